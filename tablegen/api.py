@@ -1,0 +1,113 @@
+"""Public API: substances by name, mixtures by composition.
+
+    >>> import tablegen
+    >>> gas = tablegen.substance("CO2")
+    >>> mix = tablegen.mixture({"CO2": 0.09, "H2O": 0.18, "N2": 0.71, "O2": 0.02})
+    >>> p = mix.properties([300.0, 1000.0])      # SI, mass basis
+"""
+
+from __future__ import annotations
+
+import tomllib
+from functools import lru_cache
+
+from .data.library import library, norm_name
+from .errors import NameLookupError, TablegenError
+from .thermo.build import mixture_substance, species_substance
+from .thermo.substance import Anchor, Datum, Substance
+
+__all__ = ["substance", "mixture", "Substance", "Datum", "Anchor", "shipped_mixtures", "RESOLVERS"]
+
+#: Extra name resolvers tried before species lookup: callables (name, data, source)
+#: returning a Substance or None (combustion products register here).
+RESOLVERS: list = []
+
+
+@lru_cache(maxsize=None)
+def shipped_mixtures() -> dict:
+    """Shipped mixtures from gasdata/mixtures.toml: normalised name -> raw entry."""
+    lib = library()
+    raw = tomllib.loads((lib.root / "mixtures.toml").read_text(encoding="utf-8"))
+    out = {}
+    for m in raw.get("mixture", []):
+        for n in (m["id"], m.get("name", ""), *m.get("aliases", [])):
+            if n:
+                out.setdefault(norm_name(n), m)
+    return out
+
+
+def substance(name: str, *, source: str | None = None, data=()) -> Substance:
+    """A substance by species id or alias, shipped mixture name, or inline mixture.
+
+    Parameters
+    ----------
+    name : "CO2", "carbon dioxide", "air", or "CH4:0.9,C2H6:0.06,N2:0.04"
+        (mole fractions)
+    source : data set id to take species from (e.g. "nasa1993"); default: each
+        species' default source
+    data : extra gasdata files or folders (--data)
+
+    Raises
+    ------
+    NameLookupError with the closest matches for an unknown name.
+    """
+    if not isinstance(name, str) or not name.strip():
+        raise NameLookupError("substance name is empty; give a species id, alias or mixture")
+    name = name.strip()
+    for resolve in RESOLVERS:
+        s = resolve(name, data, source)
+        if s is not None:
+            return s
+    m = shipped_mixtures().get(norm_name(name))
+    if m is not None:
+        sub = mixture(m["components"], basis=m.get("basis", "mole"), source=source, data=data,
+                      id=m["id"], name=m.get("name", m["id"]))
+        return sub
+    if ":" in name:
+        return mixture(parse_inline(name), basis="mole", source=source, data=data, id=name)
+    rec = library(tuple(data)).record(name, source=source)
+    return species_substance(rec)
+
+
+def parse_inline(text: str, what: str = "mixture") -> dict:
+    """'CH4:0.9,N2:0.1' -> {'CH4': 0.9, 'N2': 0.1}; duplicates refused."""
+    out = {}
+    for part in text.split(","):
+        if ":" not in part:
+            raise TablegenError(f"{what} {text!r}: each component is NAME:FRACTION, e.g. CH4:0.9,N2:0.1")
+        k, v = part.rsplit(":", 1)
+        k = k.strip()
+        if k in out:
+            raise TablegenError(f"{what} {text!r}: {k!r} is given twice")
+        try:
+            out[k] = float(v)
+        except ValueError:
+            raise TablegenError(f"{what} {text!r}: fraction {v.strip()!r} of {k!r} is not a number") from None
+    return out
+
+
+def mixture(components: dict, basis: str = "mole", *, source: str | None = None, data=(),
+            id: str | None = None, name: str | None = None) -> Substance:
+    """A fixed-composition ideal-gas mixture, collapsed into one polynomial.
+
+    Parameters
+    ----------
+    components : mapping species name -> mole or mass fraction
+    basis : "mole" or "mass"
+
+    Raises
+    ------
+    TablegenError for negative, duplicate or unknown components, or fractions
+    that do not sum to 1 within 1e-6.
+    """
+    if not isinstance(components, dict):
+        raise TablegenError("mixture components must be a mapping of species to fractions")
+    lib = library(tuple(data))
+    parts = []
+    for k, v in components.items():
+        try:
+            rec = lib.record(str(k), source=source)
+        except NameLookupError as e:
+            raise NameLookupError(f"mixture component: {e}") from None
+        parts.append((rec, v))
+    return mixture_substance(parts, basis, id=id, name=name)

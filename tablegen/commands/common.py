@@ -1,0 +1,90 @@
+"""Pieces the commands share: option parsing for datums, JSON output, messages."""
+
+from __future__ import annotations
+
+import json
+import math
+import sys
+
+from ..errors import TablegenError
+
+
+def add_datum_options(p, *, with_pressure: bool = True):
+    g = p.add_argument_group("datums and scales")
+    g.add_argument("--h-datum", default="formation", metavar="DATUM",
+                   help="formation (default: h(298.15 K) = enthalpy of formation) or "
+                        "sensible[:T[:h]] (h(T) = h kJ/kg, default 298.15 K and 0), e.g. sensible:0C")
+    g.add_argument("--p-ref", default="1bar", metavar="P",
+                   help="entropy reference pressure P°: 1bar (default) or 1atm (any pressure with a unit)")
+    g.add_argument("--anchor", default=None, metavar="T=..,Pr=..,vr=..",
+                   help="Pr/vr scale: Pr and vr at temperature T (default T=298.15K,Pr=1,vr=1)")
+    g.add_argument("--extrapolate", action="store_true",
+                   help="allow temperatures outside the data range; such values are marked")
+
+
+def datum_from_text(text: str):
+    from ..thermo.substance import Datum
+    from ..units import quantity, temperature_K
+    t = (text or "formation").strip()
+    if t == "formation":
+        return Datum("formation")
+    if t == "sensible" or t.startswith("sensible:"):
+        parts = t.split(":")[1:]
+        T = temperature_K(parts[0], "--h-datum temperature") if parts and parts[0] else 298.15
+        h = quantity(parts[1], "specific_energy", "--h-datum enthalpy") if len(parts) > 1 else 0.0
+        return Datum("sensible", T, h)
+    raise TablegenError(f"--h-datum {text!r} is not known; allowed: formation, sensible, sensible:T, sensible:T:h")
+
+
+def anchor_from_text(text: str | None):
+    from ..thermo.substance import Anchor
+    from ..units import temperature_K
+    if not text:
+        return Anchor()
+    vals = {}
+    for part in text.split(","):
+        if "=" not in part:
+            raise TablegenError(f"--anchor {text!r}: write T=298.15K,Pr=1,vr=1")
+        k, v = (x.strip() for x in part.split("=", 1))
+        if k not in ("T", "Pr", "vr"):
+            raise TablegenError(f"--anchor: unknown key {k!r}; allowed: T, Pr, vr")
+        if k == "T":
+            vals["T_K"] = temperature_K(v, "--anchor T")
+        else:
+            try:
+                vals[k] = float(v)
+            except ValueError:
+                raise TablegenError(f"--anchor {k}={v!r} is not a number") from None
+    return Anchor(**vals)
+
+
+def substance_with_options(args, name: str):
+    """Resolve a substance and apply --h-datum, --p-ref and --anchor."""
+    from .. import api
+    from ..units import pressure_Pa
+    sub = api.substance(name, source=args.source, data=args.data)
+    return sub.with_options(datum=datum_from_text(getattr(args, "h_datum", None)),
+                            P_ref_Pa=pressure_Pa(getattr(args, "p_ref", "1bar") or "1bar", "--p-ref"),
+                            anchor=anchor_from_text(getattr(args, "anchor", None)))
+
+
+def clean(v):
+    """JSON-ready: numpy scalars to float, NaN refused."""
+    if isinstance(v, dict):
+        return {k: clean(x) for k, x in v.items()}
+    if isinstance(v, (list, tuple)):
+        return [clean(x) for x in v]
+    if hasattr(v, "item") and not isinstance(v, (str, bytes)):
+        v = v.item()
+    if isinstance(v, float) and not math.isfinite(v):
+        return None
+    return v
+
+
+def dumps(obj) -> str:
+    return json.dumps(clean(obj), indent=2, sort_keys=True, ensure_ascii=False) + "\n"
+
+
+def notice(args, text: str):
+    if not getattr(args, "quiet", False):
+        print(text, file=sys.stderr)

@@ -1,0 +1,386 @@
+"""The coefficient library: gasdata files, records, names and validation.
+
+A gasdata file (format in gasdata/README.md) is one ``[dataset]`` table and one
+``[[species]]`` table per record. Shipped files hold hundreds of records, so a
+file is split at its ``[[species]]`` headers and a record is parsed only when it
+is asked for; the names of all records are read with one cheap scan. Everything
+is loaded lazily and once.
+"""
+
+from __future__ import annotations
+
+import difflib
+import math
+import os
+import re
+import tomllib
+from dataclasses import dataclass, field
+from functools import cached_property
+from pathlib import Path
+
+import numpy as np
+
+from ..errors import DataError, NameLookupError
+from ..thermo.polynomial import Polynomial, nasa7_to_9
+
+#: Files in gasdata/ that are not coefficient sets.
+NOT_DATASETS = {"atomic-weights.toml", "mixtures.toml", "defaults.toml", "agreement.toml",
+                "critical.toml", "incompressible.toml", "uncertainty.toml"}
+
+#: Reference pressure of every polynomial once loaded (NASA 1993 and 2002 use 1 bar).
+P_STD_PA = 100000.0
+
+#: Relative tolerance of the molar-mass check of a record against its elements.
+#: Common practice: weights are abridged to 5 significant figures, so 1e-4.
+M_TOLERANCE = 1e-4
+
+
+def gasdata_dir() -> Path:
+    """The shipped gasdata folder, from a checkout or from an installed wheel."""
+    here = Path(__file__).resolve().parent.parent
+    for cand in (here / "_gasdata", here.parent / "gasdata"):
+        if (cand / "atomic-weights.toml").is_file():
+            return cand
+    raise DataError("the shipped gasdata folder is missing; reinstall tablegen")
+
+
+def user_data_dir() -> Path | None:
+    """The user's own data folder: $TABLEGEN_DATA, else ~/.config/tablegen/gasdata."""
+    env = os.environ.get("TABLEGEN_DATA")
+    if env:
+        return Path(env)
+    p = Path.home() / ".config" / "tablegen" / "gasdata"
+    return p if p.is_dir() else None
+
+
+def norm_name(s: str) -> str:
+    return s.strip().casefold()
+
+
+@dataclass(frozen=True, slots=True)
+class AtomicWeights:
+    weights: dict
+    citation: str
+
+    def molar_mass(self, elements: dict, where: str = "") -> float:
+        total = 0.0
+        for el, n in elements.items():
+            if el not in self.weights:
+                raise DataError(f"{where}unknown element {el!r}; known: {', '.join(sorted(self.weights))}")
+            total += self.weights[el] * n
+        return total
+
+
+@dataclass(frozen=True, slots=True)
+class Record:
+    """One species record of a dataset, validated, with its polynomial."""
+
+    id: str
+    name: str
+    aliases: tuple
+    elements: dict
+    M: float                      # g/mol = kg/kmol
+    phase: str
+    form: str
+    poly: Polynomial              # molar, reference pressure 1 bar
+    h_formation_298: float | None  # J/mol, derived from the polynomial
+    dataset: str
+    citation: str
+    source_note: str
+    file: str
+    line: int
+    extra: dict = field(default_factory=dict)
+
+    @property
+    def T_min(self) -> float:
+        return self.poly.T_min
+
+    @property
+    def T_max(self) -> float:
+        return self.poly.T_max
+
+    @property
+    def source_text(self) -> str:
+        note = f" [{self.source_note}]" if self.source_note else ""
+        return f"{self.citation}{note}"
+
+
+class Dataset:
+    """A gasdata file, parsed lazily record by record."""
+
+    _HEADER = re.compile(r"^\[\[species\]\][ \t]*(#.*)?$", re.M)
+    _ID = re.compile(r'^id\s*=\s*"([^"]*)"', re.M)
+    _NAME = re.compile(r'^name\s*=\s*"([^"]*)"', re.M)
+    _ALIASES = re.compile(r"^aliases\s*=\s*(\[[^\]\n]*\])", re.M)
+
+    def __init__(self, path: Path, weights: AtomicWeights):
+        self.path = Path(path)
+        self.weights = weights
+        try:
+            self.text = self.path.read_text(encoding="utf-8")
+        except (OSError, UnicodeDecodeError) as e:
+            raise DataError(f"{self.path}: cannot read ({e}); a gasdata file must be UTF-8 text") from None
+        starts = [m.start() for m in self._HEADER.finditer(self.text)]
+        head = self.text[: starts[0]] if starts else self.text
+        self._blocks = [(s, self.text[s: e]) for s, e in zip(starts, [*starts[1:], len(self.text)])]
+        try:
+            meta = tomllib.loads(head)
+        except tomllib.TOMLDecodeError as e:
+            raise DataError(f"{self.path}: not valid TOML before the first [[species]] ({e})") from None
+        ds = meta.get("dataset")
+        if not isinstance(ds, dict) or "id" not in ds or "citation" not in ds:
+            raise DataError(f"{self.path}: needs a [dataset] table with at least id and citation")
+        self.meta = ds
+        self.id = str(ds["id"])
+        self.citation = str(ds["citation"])
+        self.P_ref = float(ds.get("reference_pressure_Pa", P_STD_PA))
+        self._cache: dict[int, Record] = {}
+
+    def __repr__(self):
+        return f"Dataset({self.id!r}, {len(self._blocks)} records)"
+
+    @cached_property
+    def names(self) -> dict[str, int]:
+        """Normalised id, name and alias -> block index (ids win over aliases)."""
+        ids, others = {}, {}
+        for i, (_, block) in enumerate(self._blocks):
+            m = self._ID.search(block)
+            if not m:
+                ids[norm_name(self._parse(i).id)] = i
+                continue
+            ids[norm_name(m.group(1))] = i
+            n = self._NAME.search(block)
+            if n:
+                others.setdefault(norm_name(n.group(1)), i)
+            a = self._ALIASES.search(block)
+            if a:
+                try:
+                    for alias in tomllib.loads("a = " + a.group(1))["a"]:
+                        others.setdefault(norm_name(str(alias)), i)
+                except tomllib.TOMLDecodeError:
+                    pass
+        return {**others, **ids}
+
+    @cached_property
+    def ids(self) -> list[str]:
+        out = []
+        for i, (_, block) in enumerate(self._blocks):
+            m = self._ID.search(block)
+            out.append(m.group(1) if m else self._parse(i).id)
+        return out
+
+    def __len__(self):
+        return len(self._blocks)
+
+    def get(self, name: str) -> Record | None:
+        i = self.names.get(norm_name(name))
+        return None if i is None else self._parse(i)
+
+    def records(self) -> list[Record]:
+        return [self._parse(i) for i in range(len(self._blocks))]
+
+    def _parse(self, i: int) -> Record:
+        if i in self._cache:
+            return self._cache[i]
+        start, block = self._blocks[i]
+        line = self.text.count("\n", 0, start) + 1
+        where = f"{self.path.name}:{line}: "
+        try:
+            raw = tomllib.loads(block)["species"][0]
+        except tomllib.TOMLDecodeError as e:
+            raise DataError(f"{where}record is not valid TOML ({e})") from None
+        rec = build_record(raw, dataset=self, where=where, line=line)
+        self._cache[i] = rec
+        return rec
+
+
+def _req(raw: dict, key: str, types, where: str):
+    if key not in raw:
+        raise DataError(f"{where}record lacks {key!r}")
+    v = raw[key]
+    if not isinstance(v, types) or isinstance(v, bool):
+        raise DataError(f"{where}{key!r} has the wrong type ({type(v).__name__})")
+    return v
+
+
+def build_record(raw: dict, *, dataset: Dataset, where: str, line: int) -> Record:
+    """Validate one raw record and build its polynomial (molar, 1 bar)."""
+    sid = _req(raw, "id", str, where)
+    where = f"{where}{sid}: "
+    elements = _req(raw, "elements", dict, where)
+    form = _req(raw, "form", str, where)
+    if form not in ("nasa7", "nasa9"):
+        raise DataError(f"{where}form {form!r} is not known; allowed: nasa7, nasa9")
+    bounds = [float(x) for x in _req(raw, "T_bounds_K", list, where)]
+    rows = _req(raw, "coefficients", list, where)
+    if len(rows) != len(bounds) - 1 or not rows:
+        raise DataError(f"{where}{len(bounds)} bounds need {len(bounds) - 1} coefficient rows, found {len(rows)}")
+    n_expect = 7 if form == "nasa7" else 9
+    c9 = []
+    for k, r in enumerate(rows):
+        if not isinstance(r, list) or len(r) != n_expect:
+            raise DataError(f"{where}interval {k + 1} needs {n_expect} coefficients for {form}")
+        try:
+            r = [float(x) for x in r]
+        except (TypeError, ValueError):
+            raise DataError(f"{where}interval {k + 1} has a non-numeric coefficient") from None
+        if not all(math.isfinite(x) for x in r):
+            raise DataError(f"{where}interval {k + 1} has a non-finite coefficient")
+        c9.append(nasa7_to_9(r) if form == "nasa7" else r)
+    c9 = np.array(c9)
+    if dataset.P_ref != P_STD_PA:
+        # s°(1 bar) = s°(P_ref) + R ln(P_ref / 1 bar): shift the s/R constant
+        c9[:, 8] += math.log(dataset.P_ref / P_STD_PA)
+    try:
+        poly = Polynomial(np.array(bounds), c9, form)
+    except DataError as e:
+        raise DataError(f"{where}{e}") from None
+    M_el = dataset.weights.molar_mass(elements, where)
+    M = float(raw.get("molar_mass_g_per_mol", M_el))
+    if M <= 0 or abs(M - M_el) > M_TOLERANCE * max(M_el, 1e-3):
+        raise DataError(f"{where}molar mass {M} g/mol does not match its elements ({M_el:.6g} g/mol)")
+    h298 = None
+    if poly.T_min <= 298.15 <= poly.T_max:
+        h298 = float(poly.evaluate(np.array([298.15]), want=("h",))["h"][0]) * 8.314462618
+    known = {"id", "name", "aliases", "elements", "molar_mass_g_per_mol", "phase", "form", "T_bounds_K",
+             "coefficients", "h_formation_298_J_per_mol", "source", "source_note"}
+    return Record(
+        id=sid,
+        name=str(raw.get("name", sid)),
+        aliases=tuple(str(a) for a in raw.get("aliases", [])),
+        elements={str(k): v for k, v in elements.items()},
+        M=M_el,
+        phase=str(raw.get("phase", "gas")),
+        form=form,
+        poly=poly,
+        h_formation_298=h298,
+        dataset=dataset.id,
+        citation=dataset.citation,
+        source_note=str(raw.get("source_note", "")),
+        file=str(dataset.path),
+        line=line,
+        extra={k: v for k, v in raw.items() if k not in known},
+    )
+
+
+class Library:
+    """All datasets: shipped, then the user data folder, then --data paths."""
+
+    def __init__(self, extra_paths=(), *, include_user_dir: bool = True):
+        self.root = gasdata_dir()
+        self.weights = self._load_weights()
+        self.datasets: dict[str, Dataset] = {}
+        self.messages: list[str] = []
+        self.user_order: list[str] = []
+        for p in sorted(self.root.glob("*.toml")):
+            if p.name not in NOT_DATASETS:
+                self._add(p, announce=False)
+        self.shipped = list(self.datasets)
+        paths = []
+        ud = user_data_dir() if include_user_dir else None
+        if ud is not None and ud.is_dir():
+            paths.append(ud)
+        paths.extend(Path(p) for p in extra_paths)
+        for p in paths:
+            if p.is_dir():
+                for f in sorted(p.glob("*.toml")):
+                    self._add(f, announce=True)
+            elif p.is_file():
+                self._add(p, announce=True)
+            else:
+                raise DataError(f"--data {p}: no such file or folder")
+        self.defaults = self._load_defaults()
+
+    def _load_weights(self) -> AtomicWeights:
+        raw = tomllib.loads((self.root / "atomic-weights.toml").read_text(encoding="utf-8"))
+        return AtomicWeights({k: float(v) for k, v in raw["weights"].items()}, raw["source"]["citation"])
+
+    def _load_defaults(self) -> dict:
+        p = self.root / "defaults.toml"
+        if not p.is_file():
+            return {}
+        return tomllib.loads(p.read_text(encoding="utf-8")).get("species", {})
+
+    def _add(self, path: Path, announce: bool):
+        ds = Dataset(path, self.weights)
+        if ds.id in self.datasets and announce:
+            self.messages.append(f"data set {ds.id!r} from {path} replaces the one already loaded")
+        self.datasets[ds.id] = ds
+        if announce:
+            self.user_order.append(ds.id)
+
+    @property
+    def search_order(self) -> list[str]:
+        """Datasets in the order a name is looked up: user data first."""
+        shipped_pref = [d for d in ("nasa1993", "nuig2015") if d in self.datasets]
+        rest = [d for d in self.shipped if d not in shipped_pref]
+        return [*reversed(self.user_order), *shipped_pref, *rest]
+
+    def record(self, name: str, source: str | None = None) -> Record:
+        """Resolve a species name to a record.
+
+        Order: a user data set that holds it; else the named ``source`` data set;
+        else the species' default source (gasdata/defaults.toml); else the
+        search order above.
+        """
+        for d in reversed(self.user_order):
+            r = self.datasets[d].get(name)
+            if r is not None:
+                return r
+        if source is not None:
+            if source not in self.datasets:
+                raise NameLookupError(f"unknown data set {source!r}; known: {', '.join(sorted(self.datasets))}")
+            r = self.datasets[source].get(name)
+            if r is not None:
+                return r
+        base = self._first(name)
+        if base is not None:
+            pref = self.defaults.get(base.id, {}).get("source")
+            if pref and pref in self.datasets and pref != base.dataset:
+                r = self.datasets[pref].get(base.id)
+                if r is not None:
+                    return r
+            return base
+        raise NameLookupError(self._unknown(name))
+
+    def _first(self, name: str) -> Record | None:
+        for d in self.search_order:
+            r = self.datasets[d].get(name)
+            if r is not None:
+                return r
+        return None
+
+    def has(self, name: str) -> bool:
+        return any(norm_name(name) in self.datasets[d].names for d in self.search_order)
+
+    def _unknown(self, name: str) -> str:
+        pool = {}
+        for d in self.search_order:
+            for key, i in self.datasets[d].names.items():
+                pool.setdefault(key, self.datasets[d].ids[i])
+        close = difflib.get_close_matches(norm_name(name), list(pool), n=5, cutoff=0.6)
+        ids = list(dict.fromkeys(pool[c] for c in close))
+        hint = f"closest matches: {', '.join(ids)}" if ids else "run 'tablegen species' for the list"
+        return f"unknown substance {name!r}; {hint}"
+
+    def all_records(self) -> list[Record]:
+        """One record per species id, in the order a name would resolve."""
+        seen, out = set(), []
+        for d in self.search_order:
+            for sid in self.datasets[d].ids:
+                if sid not in seen:
+                    seen.add(sid)
+                    out.append(self.record(sid))
+        return out
+
+
+_LIB: dict = {}
+
+
+def library(extra_paths=()) -> Library:
+    """The process-wide library for a given list of --data paths, built once."""
+    key = tuple(str(Path(p).resolve()) for p in extra_paths)
+    if key not in _LIB:
+        lib = Library(extra_paths)
+        _LIB[key] = lib
+    return _LIB[key]

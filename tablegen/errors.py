@@ -1,0 +1,36 @@
+"""The one exception family of tablegen.
+
+Every user error raises a ``TablegenError`` whose text says what was wrong and
+what is allowed; the command line prints it as one line and exits with status 2.
+Anything else that escapes is a bug.
+"""
+
+
+class TablegenError(Exception):
+    """A user-facing error: bad input, unknown name, out-of-range request."""
+
+    exit_status = 2
+
+
+class SpecError(TablegenError):
+    """A table-book spec (or other structured input) breaks a rule."""
+
+
+class DataError(TablegenError):
+    """Coefficient data cannot be read or fails validation."""
+
+
+class RangeError(TablegenError):
+    """A temperature or value lies outside the range of the data."""
+
+
+class UnitError(TablegenError):
+    """A unit is unknown or does not fit the quantity."""
+
+
+class NameLookupError(TablegenError):
+    """A substance name resolves to nothing in the library."""
+
+
+class OutputExistsError(TablegenError):
+    """A file to be written exists and --force was not given."""

@@ -1,0 +1,207 @@
+"""NASA polynomial forms of ideal-gas cp, h and s°, evaluated on arrays.
+
+Both forms are held in the 9-coefficient layout of NASA/TP-2002-211556
+(McBride, Zehe & Gordon, 2002), eq. (1)-(3), per interval::
+
+    cp/R  = a1 T^-2 + a2 T^-1 + a3 + a4 T + a5 T^2 + a6 T^3 + a7 T^4
+    h/RT  = -a1 T^-2 + a2 ln(T)/T + a3 + a4 T/2 + a5 T^2/3 + a6 T^3/4 + a7 T^4/5 + b1/T
+    s/R   = -a1 T^-2/2 - a2 T^-1 + a3 ln T + a4 T + a5 T^2/2 + a6 T^3/3 + a7 T^4/4 + b2
+
+The 7-coefficient form of NASA TM-4513 (McBride, Gordon & Reno, 1993) is the
+special case a1 = a2 = 0 with (a3..a7, b1, b2) = (a1..a7) of that report, so one
+evaluation path serves both; ``form`` remembers which one the data came in.
+
+A linear combination of such polynomials on a common set of intervals is again
+such a polynomial: that is what makes a fixed-composition mixture collapse into
+one record whose evaluation cost does not grow with its number of species.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from ..errors import DataError
+
+#: Number of coefficients per interval in the 9-coefficient layout.
+NCOEF = 9
+
+
+def nasa7_to_9(c7) -> list[float]:
+    """Map NASA TM-4513 coefficients (a1..a7) onto the 9-coefficient layout."""
+    c7 = [float(x) for x in c7]
+    if len(c7) != 7:
+        raise DataError(f"a 7-coefficient interval needs 7 numbers, got {len(c7)}")
+    return [0.0, 0.0, *c7[:5], c7[5], c7[6]]
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class Polynomial:
+    """Piecewise NASA polynomial in molar, dimensionless form (cp/R, h/R, s/R).
+
+    Parameters
+    ----------
+    T_bounds : array of n+1 increasing temperatures in K
+    coeffs : array (n, 9) in the 9-coefficient layout
+    form : "nasa7" or "nasa9", the layout the data were published in
+    """
+
+    T_bounds: np.ndarray
+    coeffs: np.ndarray
+    form: str = "nasa9"
+    _inner: np.ndarray = field(init=False, repr=False)
+    _h: np.ndarray = field(init=False, repr=False)
+    _s: np.ndarray = field(init=False, repr=False)
+    _has_neg: bool = field(init=False, repr=False)
+
+    def __post_init__(self):
+        b = np.ascontiguousarray(self.T_bounds, dtype=float)
+        c = np.ascontiguousarray(self.coeffs, dtype=float)
+        if c.ndim != 2 or c.shape[1] != NCOEF or b.shape != (c.shape[0] + 1,):
+            raise DataError(
+                f"polynomial needs n+1 bounds and n rows of 9 coefficients, "
+                f"got {b.shape[0]} bounds and {c.shape} coefficients")
+        if not np.all(np.diff(b) > 0) or b[0] <= 0:
+            raise DataError(f"interval bounds must be positive and increasing: {b.tolist()}")
+        object.__setattr__(self, "T_bounds", b)
+        object.__setattr__(self, "coeffs", c)
+        object.__setattr__(self, "_inner", b[1:-1].copy())
+        # Pre-scaled columns so evaluation is pure Horner, no divisions.
+        a1, a2, a3, a4, a5, a6, a7, b1, b2 = c.T
+        h = np.stack([-a1, a2, a3, a4 / 2, a5 / 3, a6 / 4, a7 / 5, b1])     # h/R
+        s = np.stack([-a1 / 2, -a2, a3, a4, a5 / 2, a6 / 3, a7 / 4, b2])     # s/R
+        object.__setattr__(self, "_h", np.ascontiguousarray(h))
+        object.__setattr__(self, "_s", np.ascontiguousarray(s))
+        object.__setattr__(self, "_has_neg", bool(np.any(c[:, :2] != 0.0)))
+
+    # ------------------------------------------------------------------ basics
+    @property
+    def T_min(self) -> float:
+        return float(self.T_bounds[0])
+
+    @property
+    def T_max(self) -> float:
+        return float(self.T_bounds[-1])
+
+    @property
+    def n_intervals(self) -> int:
+        return int(self.coeffs.shape[0])
+
+    def interval_index(self, T: np.ndarray) -> np.ndarray:
+        """Interval of each temperature; beyond the ends, the end intervals."""
+        return np.searchsorted(self._inner, T, side="right")
+
+    # -------------------------------------------------------------- evaluation
+    def evaluate(self, T, *, want=("cp", "h", "s")) -> dict[str, np.ndarray]:
+        """cp/R, h/R (in K) and s/R at temperatures T (K), arrays broadcast.
+
+        No range check here: callers (``Substance``) refuse or mark
+        out-of-range temperatures before calling.
+        """
+        T = np.asarray(T, dtype=float)
+        shape = T.shape
+        T = T.ravel()
+        out = {k: np.empty_like(T) for k in want}
+        if self.n_intervals == 1:
+            self._eval_block(T, self.coeffs[0], self._h[:, 0], self._s[:, 0], out, slice(None))
+        else:
+            idx = self.interval_index(T)
+            if T.size < 2 or not np.any(idx[1:] < idx[:-1]):
+                # sorted input (every table grid): contiguous slices, scalar coefficients
+                edges = np.searchsorted(idx, np.arange(self.n_intervals + 1), side="left")
+                for k in range(self.n_intervals):
+                    sl = slice(edges[k], edges[k + 1])
+                    if sl.start < sl.stop:
+                        self._eval_block(T[sl], self.coeffs[k], self._h[:, k], self._s[:, k], out, sl)
+            else:
+                cc = self.coeffs.T[:, idx]
+                hh = self._h[:, idx]
+                ss = self._s[:, idx]
+                self._eval_block(T, cc, hh, ss, out, slice(None))
+        return {k: v.reshape(shape) for k, v in out.items()}
+
+    def _eval_block(self, T, c, h, s, out, sl):
+        a1, a2, a3, a4, a5, a6, a7 = c[0], c[1], c[2], c[3], c[4], c[5], c[6]
+        need_log = ("h" in out and self._has_neg) or "s" in out
+        lnT = np.log(T) if need_log else None
+        inv = 1.0 / T if self._has_neg else None
+        if "cp" in out:
+            v = a3 + T * (a4 + T * (a5 + T * (a6 + T * a7)))
+            if self._has_neg:
+                v += inv * (a2 + a1 * inv)
+            out["cp"][sl] = v
+        if "h" in out:
+            # h/R = sum; h[0]=-a1 (T^-1), h[1]=a2 (ln T), h[2..6] powers, h[7]=b1
+            v = h[7] + T * (h[2] + T * (h[3] + T * (h[4] + T * (h[5] + T * h[6]))))
+            if self._has_neg:
+                v += h[0] * inv + h[1] * lnT
+            out["h"][sl] = v
+        if "s" in out:
+            v = s[7] + s[2] * lnT + T * (s[3] + T * (s[4] + T * (s[5] + T * s[6])))
+            if self._has_neg:
+                v += inv * (s[1] + s[0] * inv)
+            out["s"][sl] = v
+
+    # ------------------------------------------------------------- algebra
+    def on_bounds(self, bounds: np.ndarray) -> np.ndarray:
+        """Coefficients of this polynomial re-expressed on a finer set of bounds.
+
+        ``bounds`` must contain this polynomial's inner breakpoints and lie
+        inside its range; each new interval takes the coefficients of the
+        interval that holds its midpoint.
+        """
+        mid = 0.5 * (bounds[1:] + bounds[:-1])
+        return self.coeffs[self.interval_index(mid)]
+
+    def boundary_jumps(self) -> list[dict[str, float]]:
+        """Relative jumps of cp, h and s° at each inner breakpoint.
+
+        Returned per breakpoint: T_K and the jump of each function divided by
+        the magnitude of its value (h relative to |h| + cp·T so a value near
+        zero does not blow the ratio up).
+        """
+        jumps = []
+        for k, Tb in enumerate(self._inner):
+            lo = self._point(k, Tb)
+            hi = self._point(k + 1, Tb)
+            scale_h = abs(lo["h"]) + abs(lo["cp"]) * Tb
+            jumps.append({
+                "T_K": float(Tb),
+                "cp": abs(hi["cp"] - lo["cp"]) / abs(lo["cp"]),
+                "h": abs(hi["h"] - lo["h"]) / scale_h,
+                "s": abs(hi["s"] - lo["s"]) / abs(lo["s"]),
+            })
+        return jumps
+
+    def _point(self, k: int, T: float) -> dict[str, float]:
+        one = Polynomial(np.array([T * 0.5, T * 2.0]), self.coeffs[k:k + 1], self.form)
+        v = one.evaluate(np.array([T]))
+        return {key: float(val[0]) for key, val in v.items()}
+
+
+def combine(polys, weights, extra_s: float = 0.0) -> Polynomial:
+    """Weighted sum of polynomials on the union of their breakpoints.
+
+    Parameters
+    ----------
+    polys : sequence of Polynomial
+    weights : mole fractions (any real weights)
+    extra_s : constant added to s/R (the ideal mixing term -Σ y ln y)
+
+    Returns
+    -------
+    Polynomial valid on the intersection of the ranges.
+    """
+    lo = max(p.T_min for p in polys)
+    hi = min(p.T_max for p in polys)
+    if not lo < hi:
+        raise DataError("the components' temperature ranges do not overlap")
+    inner = sorted({float(t) for p in polys for t in p._inner if lo < t < hi})
+    bounds = np.array([lo, *inner, hi])
+    coeffs = np.zeros((bounds.size - 1, NCOEF))
+    for p, w in zip(polys, weights):
+        coeffs += float(w) * p.on_bounds(bounds)
+    coeffs[:, 8] += extra_s
+    form = "nasa7" if all(p.form == "nasa7" for p in polys) else "nasa9"
+    return Polynomial(bounds, coeffs, form)
