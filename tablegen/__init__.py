@@ -9,13 +9,19 @@ The public API is loaded on first use so that ``tablegen --help`` starts fast:
 
 __version__ = "0.1.0"
 
-_API = {"substance", "mixture", "Substance", "Datum", "Anchor", "shipped_mixtures"}
+#: public name -> module that defines it (imported on first use)
+_API = {
+    "substance": "api", "mixture": "api", "Substance": "api", "Datum": "api", "Anchor": "api",
+    "shipped_mixtures": "api",
+    "combustion": "burn",     # fuels, oxidants, combustion products
+    "process": "steps",       # state changes and method comparison
+}
 
 
 def __getattr__(name):
     if name in _API:
-        from . import api
-        return getattr(api, name)
+        import importlib
+        return getattr(importlib.import_module(f"{__name__}.{_API[name]}"), name)
     raise AttributeError(f"module 'tablegen' has no attribute {name!r}")
 
 

@@ -1,0 +1,50 @@
+"""Embedded fonts for every PDF: the DejaVu TrueType faces that matplotlib ships.
+
+They cover °, ·, ², ³, Greek letters and sub/superscript digits, so no new
+dependency is needed; registering them with reportlab embeds subsets in the PDF.
+Start canvases with ``initialFontName=SANS`` so no unembedded standard font is
+referenced.
+"""
+
+from __future__ import annotations
+
+from functools import lru_cache
+from pathlib import Path
+
+SANS = "TG-Sans"
+SANS_BOLD = "TG-Sans-Bold"
+SANS_OBLIQUE = "TG-Sans-Oblique"
+MONO = "TG-Mono"
+CONDENSED = "TG-Condensed"
+CONDENSED_BOLD = "TG-Condensed-Bold"
+
+_FILES = {
+    SANS: "DejaVuSans.ttf",
+    SANS_BOLD: "DejaVuSans-Bold.ttf",
+    SANS_OBLIQUE: "DejaVuSans-Oblique.ttf",
+    MONO: "DejaVuSansMono.ttf",
+}
+
+
+def font_dir() -> Path:
+    import matplotlib
+    return Path(matplotlib.get_data_path()) / "fonts" / "ttf"
+
+
+@lru_cache(maxsize=None)
+def register() -> dict:
+    """Register the faces with reportlab once; returns name -> file path."""
+    from reportlab.lib.fonts import addMapping
+    from reportlab.pdfbase import pdfmetrics
+    from reportlab.pdfbase.ttfonts import TTFont
+    d = font_dir()
+    out = {}
+    for name, fname in _FILES.items():
+        path = d / fname
+        pdfmetrics.registerFont(TTFont(name, str(path)))
+        out[name] = str(path)
+    addMapping(SANS, 0, 0, SANS)
+    addMapping(SANS, 1, 0, SANS_BOLD)
+    addMapping(SANS, 0, 1, SANS_OBLIQUE)
+    addMapping(SANS, 1, 1, SANS_BOLD)
+    return out
