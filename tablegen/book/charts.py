@@ -275,7 +275,8 @@ def parse_chart(raw: dict, where: str, *, units: str = "SI") -> tuple[ChartSpec,
         _fail(f"{where}.overlays", "must be a list of overlay tables")
     if len(ov) > 6:
         _fail(f"{where}.overlays", f"{len(ov)} overlays; allowed: at most 6 per chart")
-    overlays = tuple(_parse_overlay(o, f"{where}.overlays[{i}]", sysu, i) for i, o in enumerate(ov))
+    sysu_T = dict(sysu, T=T_unit)    # bare temperatures are read in the axis unit
+    overlays = tuple(_parse_overlay(o, f"{where}.overlays[{i}]", sysu_T, i) for i, o in enumerate(ov))
     kinds = KINDS if kind == "both" else (kind,)
     return tuple(ChartSpec(kind=k, pressures_Pa=pressures, volumes_m3_per_kg=volumes,
                            isotherms_K=isotherms, T_range_K=T_range, paper=paper.upper(),
@@ -338,10 +339,10 @@ def end_state(substance, T1_K: float, P1_Pa: float, step: StepSpec) -> StepEnd:
             P2 = P1_Pa * step.ratio if step.kind == "compress" else P1_Pa / step.ratio
         if step.kind == "compress" and not P2 > P1_Pa:
             _fail(step.where, f"a compression must end above its start pressure "
-                  f"({P1_Pa / 1e5:g} bar); got P2 = {P2 / 1e5:g} bar")
+                  f"({P1_Pa / 1e3:g} kPa); got P2 = {P2 / 1e3:g} kPa")
         if step.kind == "expand" and not P2 < P1_Pa:
             _fail(step.where, f"an expansion must end below its start pressure "
-                  f"({P1_Pa / 1e5:g} bar); got P2 = {P2 / 1e5:g} bar")
+                  f"({P1_Pa / 1e3:g} kPa); got P2 = {P2 / 1e3:g} kPa")
         p1 = substance.properties(np.array([T1_K]))
         T2s = float(substance.T_from("Pr", p1["Pr"] * (P2 / P1_Pa))[0])
         h1 = float(p1["h"][0])
@@ -354,7 +355,7 @@ def end_state(substance, T1_K: float, P1_Pa: float, step: StepSpec) -> StepEnd:
     if step.kind == "heat_v":
         return StepEnd(step.T2_K, P1_Pa * step.T2_K / T1_K, None)
     if not step.P2_Pa < P1_Pa:
-        _fail(step.where, f"a throttle must end below its start pressure ({P1_Pa / 1e5:g} bar)")
+        _fail(step.where, f"a throttle must end below its start pressure ({P1_Pa / 1e3:g} kPa)")
     return StepEnd(T1_K, step.P2_Pa, None)
 
 
