@@ -457,13 +457,13 @@ class ChartModel:
 STYLES = {
     "grid_major": (0.45, None, (0.72, 0.74, 0.76)),
     "grid_minor": (0.2, None, (0.85, 0.86, 0.87)),
-    "isobar": (0.7, None, (0.10, 0.23, 0.40)),
-    "isobar_decade": (1.15, None, (0.10, 0.23, 0.40)),
+    "isobar": (0.7, None, (0.20, 0.36, 0.56)),
+    "isobar_decade": (1.2, None, (0.20, 0.36, 0.56)),
     "isochore": (0.65, (4.0, 2.2), (0.16, 0.42, 0.30)),
     "isotherm": (0.65, (6.0, 1.8, 1.2, 1.8), (0.45, 0.28, 0.12)),
-    "process": (1.9, None, (0.62, 0.08, 0.08)),
-    "isentropic": (1.3, (5.0, 2.5), (0.62, 0.08, 0.08)),
-    "aux": (0.8, (1.2, 1.6), (0.62, 0.08, 0.08)),
+    "process": (2.2, None, (0.52, 0.03, 0.03)),
+    "isentropic": (1.4, (5.0, 2.5), (0.52, 0.03, 0.03)),
+    "aux": (0.9, (1.2, 1.6), (0.52, 0.03, 0.03)),
     "frame": (0.8, None, (0.0, 0.0, 0.0)),
 }
 BLACK = (0.0, 0.0, 0.0)
@@ -498,6 +498,9 @@ def layout(width: float, height: float) -> Layout:
     py = m + foot_h + bottom
     pw = width - 2 * m - left - right - panel_w - 10.0 * s
     ph = height - 2 * m - title_h - foot_h - bottom - 6.0 * s
+    if pw < 120 or ph < 120:
+        raise TablegenError(f"a chart box of {width:.0f} x {height:.0f} pt is too small; "
+                            f"allowed: at least a landscape A5 ({PAPERS['A4'][1]:.0f} x {PAPERS['A4'][0] / 2:.0f} pt)")
     return Layout(page=(0.0, 0.0, width, height),
                   title=(m, height - m - title_h, width - 2 * m, title_h),
                   plot=(px, py, pw, ph),
@@ -716,17 +719,19 @@ def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None
             t_lo, t_hi = cv.T.from_si(lo), cv.T.from_si(hi)
             st, _, _ = nice_ticks(t_lo, t_hi, 7)
             iso = [cv.T.to_si(k * st) for k in range(math.ceil(t_lo / st), math.floor(t_hi / st) + 1)]
-            iso = [t for t in iso if lo <= t <= hi]
+            iso = [t for t in iso if lo + 0.02 * (hi - lo) <= t <= hi - 0.02 * (hi - lo)]
         if iso:
             pi = substance.properties(np.array(iso))
             p_hi, p_lo = max(pressures), min(pressures)
             for t, s0t, ht in zip(iso, pi["s0"], pi["h"]):
-                sa = s0t - R * math.log(p_hi / substance.P_ref_Pa)
-                sb = s0t - R * math.log(p_lo / substance.P_ref_Pa)
-                xx = cv.s.from_si(np.linspace(sa, sb, 24))
+                pa, pb = p_hi, p_lo
+                if p_hi < 1.5 * p_lo:       # a single isobar: isotherms span the chart
+                    pa = float(substance.P_ref_Pa * math.exp((s0t - cv.s.to_si(x_axis.lo)) / R))
+                    pb = float(substance.P_ref_Pa * math.exp((s0t - cv.s.to_si(x_axis.hi)) / R))
+                P_line = np.geomspace(pa, pb, 24)
+                xx = cv.s.from_si(s0t - R * np.log(P_line / substance.P_ref_Pa))
                 lines.append(Line("isotherm", xx, np.full(xx.shape, cv.h.from_si(ht)), "isotherm",
-                                  value_SI=float(t), T_K=np.full(xx.shape, t),
-                                  P_Pa=np.geomspace(p_hi, p_lo, 24)))
+                                  value_SI=float(t), T_K=np.full(xx.shape, t), P_Pa=P_line))
 
     # ---- right-hand scale: h on T-s, T on h-s (ideal gas: h is a function of T)
     side = None
@@ -817,7 +822,7 @@ def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None
         placed_points.append(StatePoint(p.name, p.T_K, p.P_Pa, p.h, p.s, p.x, p.y, p.isentropic, lab))
 
     labelled = []
-    size = 6.6 * fs
+    size = 7.0 * fs
     Psym = cv.sym["P"]
     for idx, ln in enumerate(all_lines):
         if ln.family == "isobar":
@@ -837,9 +842,11 @@ def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None
         labelled.append(Line(ln.family, ln.x, ln.y, ln.style, lab, ln.value_SI, ln.T_K, ln.P_Pa))
 
     # ---- panel
-    panel = _panel(substance, spec, cv, ov_states, ov_steps, placed_points, system, notes, fs)
+    used = {ln.style for ln in labelled}
+    panel = _panel(substance, spec, cv, ov_states, ov_steps, placed_points, system, notes, fs, used)
     kind_name = "Temperature-entropy (T-s) chart" if spec.kind == "ts" else "Enthalpy-entropy (h-s) chart"
-    title = spec.title or f"{substance.name} ({substance.id})"
+    title = spec.title or (substance.name if substance.name == substance.id
+                           else f"{substance.name} ({substance.id})")
     subtitle = (f"{kind_name} · ideal gas · M = {substance.M:.4f} kg/kmol · "
                 f"R = {cv.s.from_si(R):.5f} {cv.sym['s']} · s° at P° = {_fmt_value(cv.P.from_si(substance.P_ref_Pa))} {Psym}")
     return ChartModel(kind=spec.kind, paper=spec.paper, units=system, title=title, subtitle=subtitle,
@@ -855,9 +862,10 @@ def _stagger(i: int, targets: tuple) -> tuple:
     return targets[k:] + targets[:k]
 
 
-def _panel(substance, spec, cv, ov_states, ov_steps, points, system, notes, fs) -> tuple:
+def _panel(substance, spec, cv, ov_states, ov_steps, points, system, notes, fs, used) -> tuple:
     blocks = [PanelBlock("heading", ("How to read",), 8.0 * fs)]
-    key = [("isobar_decade", "isobar, P = const (decade value)"), ("isobar", "isobar, P = const")]
+    key = [k for k in (("isobar_decade", "isobar, P = const (decade value)"), ("isobar", "isobar, P = const"))
+           if k[0] in used]
     if spec.volumes_m3_per_kg:
         key.append(("isochore", "specific volume v = const"))
     if spec.kind == "hs":
@@ -875,17 +883,16 @@ def _panel(substance, spec, cv, ov_states, ov_steps, points, system, notes, fs) 
     for ov, states, steps in zip(spec.overlays, ov_states, ov_steps):
         blocks.append(PanelBlock("heading", (ov.label,), 7.6 * fs))
         rows = [("state", f"T [{sym['T']}]", f"P [{sym['P']}]", f"h [{sym['h']}]", f"s [{sym['s']}]")]
-        hd = 1 if system == "SI" else 1
         for name, *_ in states:
             p = byname[name]
             rows.append((name, f"{cv.T.from_si(p.T_K):.1f}", f"{cv.P.from_si(p.P_Pa):.4g}",
-                         _fmt(cv.h.from_si(p.h), hd), _fmt(cv.s.from_si(p.s), 4)))
+                         _fmt(cv.h.from_si(p.h), 1), _fmt(cv.s.from_si(p.s), 4)))
         blocks.append(PanelBlock("table", tuple(rows), 6.2 * fs))
         text = []
         actual = [s[0] for s in states if not s[3]]
         for (st, (T1, P1), e), (a, b) in zip(steps, zip(actual[:-1], actual[1:])):
             A, B = byname[a], byname[b]
-            dh = cv.h.from_si(B.h - A.h) if True else 0
+            dh = cv.h.from_si(B.h - A.h)
             if st.kind == "compress":
                 text.append(f"{a}→{b} compression, η = {st.eta:g}: w in = {dh:.1f} {sym['h']}")
             elif st.kind == "expand":
@@ -908,7 +915,15 @@ def _panel(substance, spec, cv, ov_states, ov_steps, points, system, notes, fs) 
     cits = {ds: cit for _, ds, cit in substance.sources}
     blocks.append(PanelBlock("heading", ("Data and cautions",), 7.6 * fs))
     text = [f"Coefficients: {', '.join(srcs)} ({'; '.join(dict.fromkeys(c.split(' [')[0] for c in cits.values()))})."]
+    if substance.kind == "mixture" and len(substance.components) > 1:
+        comp = ", ".join(f"{c.id} {c.mole_fraction:.4g}" for c in substance.components)
+        text.append(f"Composition, mole fractions: {comp}; s° includes the ideal mixing term.")
     text += list(notes)
+    ids = {c.id for c in substance.components} | {substance.id}
+    if "H2O" in ids:
+        text.append("Contains water vapour: below its dew point water (and any acid formed from "
+                    "SO2 or SO3) condenses; lines there do not describe the gas, and condensing "
+                    "acid attacks metal surfaces.")
     text.append("Ideal-gas model: not valid near saturation or at high pressure, where real-gas "
                 "effects matter; for design, check against real-gas data and follow local codes "
                 "and licensed engineering practice.")
@@ -1381,7 +1396,11 @@ class _MplSurface(_Surface):
                    "bold": FontProperties(fname=str(d / "DejaVuSans-Bold.ttf")),
                    "oblique": FontProperties(fname=str(d / "DejaVuSans-Oblique.ttf")),
                    "mono": FontProperties(fname=str(d / "DejaVuSansMono.ttf"))}
-        self._pdf = None
+        self.z = 0            # drawing order is stacking order, as on the PDF page
+
+    def _z(self):
+        self.z += 1
+        return self.z
 
     def width(self, s, size, font="sans"):
         from reportlab.pdfbase.pdfmetrics import stringWidth
@@ -1397,7 +1416,7 @@ class _MplSurface(_Surface):
         pts = np.asarray(pts, float)
         ln = Line2D(pts[:, 0], pts[:, 1], linewidth=width, color=rgb, solid_joinstyle="round",
                     solid_capstyle="round" if not dash else "butt", dash_capstyle="butt",
-                    linestyle=(0, tuple(dash)) if dash else "-", antialiased=True)
+                    linestyle=(0, tuple(dash)) if dash else "-", antialiased=True, zorder=self._z())
         self.ax.add_line(ln)
         if clip is not None:
             r = Rectangle(clip[:2], clip[2], clip[3], transform=self.ax.transData)
@@ -1407,15 +1426,16 @@ class _MplSurface(_Surface):
         from matplotlib.patches import Polygon
         self.ax.add_patch(Polygon(pts, closed=True, facecolor=fill,
                                   edgecolor=stroke if stroke is not None else "none",
-                                  linewidth=width if stroke is not None else 0.0))
+                                  linewidth=width if stroke is not None else 0.0, zorder=self._z()))
 
     def circle(self, x, y, r, fill, stroke, width):
         from matplotlib.patches import Circle
-        self.ax.add_patch(Circle((x, y), r, facecolor=fill, edgecolor=stroke, linewidth=width))
+        self.ax.add_patch(Circle((x, y), r, facecolor=fill, edgecolor=stroke, linewidth=width,
+                                 zorder=self._z()))
 
     def text(self, x, y, s, size, font="sans", align="left", angle=0.0, rgb=INK):
         self.ax.text(x, y, s, fontproperties=self.fp[font], fontsize=size, ha=align, va="baseline",
-                     rotation=angle, rotation_mode="anchor", color=rgb)
+                     rotation=angle, rotation_mode="anchor", color=rgb, zorder=self._z())
 
 
 def chart_png(model: ChartModel, paper: str | None = None, dpi: int = 300) -> bytes:
