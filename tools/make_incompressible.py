@@ -19,6 +19,7 @@ Needs: pip install iapws numpy (tools only, never at run time).
 
 from __future__ import annotations
 
+import math
 import sys
 from pathlib import Path
 
@@ -76,6 +77,12 @@ ENTRIES = [
 ]
 
 
+def _round_up(x: float) -> float:
+    """x rounded up to two significant digits, so a stated bound never understates."""
+    e = math.floor(math.log10(x)) - 1
+    return float(f"{math.ceil(x / 10.0 ** e) * 10.0 ** e:.2g}")
+
+
 def fit_entry(e: dict) -> dict:
     lo, hi = e["T_range_K"]
     T = np.linspace(lo, hi, N_POINTS)
@@ -98,13 +105,13 @@ def fit_entry(e: dict) -> dict:
         "density_kg_per_m3": float(rho_ref),
         "density_at_K": float(e["T_density_K"]),
         "T_ref_K": 298.15 if lo <= 298.15 <= hi else float(hi),
-        "c_max_rel_dev": float(f"{dev:.2g}"),
-        "density_max_rel_spread": float(f"{spread:.2g}"),
+        "c_max_rel_dev": _round_up(dev),
+        "density_max_rel_spread": _round_up(spread),
         "n_fit_points": N_POINTS,
         "source": e["source"],
         "source_note": (f"c fitted with degree {e['degree']} to {N_POINTS} points; largest "
-                        f"deviation from the source {dev * 100:.2g} %; the true density differs from "
-                        f"the one value used by up to {spread * 100:.2g} % over the range"),
+                        f"deviation from the source {_round_up(dev) * 100:.2g} %; the true density differs "
+                        f"from the one value used by up to {_round_up(spread) * 100:.2g} % over the range"),
     }
 
 
