@@ -139,6 +139,10 @@ class ProcessResult:
     s_gen_basis: str
     comparison: MappingProxyType = field(default_factory=lambda: MappingProxyType({}))
     notes: tuple = ()
+    Pr1: np.ndarray | None = None        # relative pressure and volume (ideal gas only),
+    Pr2: np.ndarray | None = None        # on the substance's anchor scale
+    vr1: np.ndarray | None = None
+    vr2: np.ndarray | None = None
 
     @property
     def w_J_per_kmol(self):
@@ -359,11 +363,39 @@ def parse_incompressible(text: str) -> Incompressible:
     return ent
 
 
+def _from_file(text: str) -> Incompressible:
+    """'PATH.toml' (one entry) or 'PATH.toml:NAME', in the format of gasdata/incompressible.toml."""
+    from pathlib import Path
+    path, _, name = text.partition(".toml:")
+    path = Path(path if text.endswith(".toml") and not name else path + ".toml")
+    if not path.is_file():
+        raise TablegenError(f"incompressible file {str(path)!r} does not exist")
+    entries = _read_entries(path)
+    ids = sorted({e.id for e in entries.values()})
+    if not name:
+        if len(ids) != 1:
+            raise TablegenError(f"{path} holds {len(ids)} entries; name one as {path}:NAME; "
+                                f"allowed: {', '.join(ids)}")
+        return next(iter(entries.values()))
+    ent = entries.get(_norm(name))
+    if ent is None:
+        raise TablegenError(f"{path}: no incompressible entry {name!r}; allowed: {', '.join(ids)}")
+    return ent
+
+
 def incompressible(name_or_spec: str) -> Incompressible:
-    """A shipped entry by id or alias ('water-liquid', 'ice') or an inline spec 'c=4.18,rho=998'."""
+    """An incompressible substance by name, inline spec or file.
+
+    'water-liquid' or an alias ('water', 'ice'): a shipped entry of
+    gasdata/incompressible.toml; 'c=4.18,rho=998': inline (see
+    :func:`parse_incompressible`); 'PATH.toml' or 'PATH.toml:NAME': a user file
+    of ``[[incompressible]]`` tables in the shipped format.
+    """
     text = str(name_or_spec).strip()
     if "=" in text:
         return parse_incompressible(text)
+    if text.endswith(".toml") or ".toml:" in text:
+        return _from_file(text)
     table = shipped_incompressibles()
     ent = table.get(_norm(text))
     if ent is None:
@@ -551,7 +583,8 @@ def _gas(sub: Substance, step, T1, P1, params):
                 T2_K=np.asarray(T2, float), P2_Pa=np.asarray(P2, float) * np.ones_like(T2),
                 v2=p2["v"], h2=p2["h"], u2=p2["u"], s2=p2["s"], T2s_K=T2s, h2s=h2s, eta=eta,
                 w_J_per_kg=w, q_J_per_kg=q, ds_J_per_kgK=ds, s_gen_J_per_kgK=s_gen,
-                s_gen_basis=s_gen_basis, comparison=comp, notes=tuple(notes))
+                s_gen_basis=s_gen_basis, comparison=comp, notes=tuple(notes),
+                Pr1=p1["Pr"], Pr2=p2["Pr"], vr1=p1["vr"], vr2=p2["vr"])
 
 
 def _cpk(sub, T):

@@ -62,9 +62,10 @@ def add_arguments(p):
                    help="gas: species id or alias, shipped mixture (air), or inline NAME:x,NAME:y "
                         "(leave out with --incompressible)")
     p.add_argument("--incompressible", default=None, metavar="NAME|c=..,rho=..",
-                   help="a liquid or solid instead of a gas: a shipped entry (water-liquid, ice-Ih) "
-                        "or c=KJ_PER_KG_K,rho=KG_PER_M3[,T=LO:HI]; c may be a polynomial in T/K "
-                        "written a0:a1:a2 (kJ/(kg K))")
+                   help="a liquid or solid instead of a gas: a shipped entry (water-liquid, ice-Ih), "
+                        "c=KJ_PER_KG_K,rho=KG_PER_M3[,T=LO:HI] (c may be a polynomial in T/K "
+                        "written a0:a1:a2, kJ/(kg K)), or a file FILE.toml[:NAME] of "
+                        "[[incompressible]] tables as in docs/process.md")
     p.add_argument("--from", dest="start", required=True, metavar="T=..,P=..",
                    help="start state, temperature and absolute pressure with units, e.g. T=300K,P=1bar")
     g = p.add_argument_group("step (give exactly one)")
@@ -194,6 +195,7 @@ JSON_FIELDS = {
     "T2_K": ("T2_K", 1.0, "K"), "P2_Pa": ("P2_Pa", 1.0, "Pa"),
     "v2": ("v2", 1.0, "m³/kg"), "h2": ("h2", 1e-3, "kJ/kg"), "u2": ("u2", 1e-3, "kJ/kg"),
     "s2": ("s2", 1e-3, "kJ/(kg K)"),
+    "Pr1": ("Pr1", 1.0, "-"), "Pr2": ("Pr2", 1.0, "-"), "vr1": ("vr1", 1.0, "-"), "vr2": ("vr2", 1.0, "-"),
     "T2s_K": ("T2s_K", 1.0, "K"), "h2s": ("h2s", 1e-3, "kJ/kg"), "eta": ("eta", 1.0, "-"),
     "w": ("w_J_per_kg", 1e-3, "kJ/kg"), "q": ("q_J_per_kg", 1e-3, "kJ/kg"),
     "ds": ("ds_J_per_kgK", 1e-3, "kJ/(kg K)"), "s_gen": ("s_gen_J_per_kgK", 1e-3, "kJ/(kg K)"),
@@ -226,13 +228,16 @@ def result_to_json(res, sub, step, params) -> dict:
            "step": step, "basis": res.basis, "M": res.M,
            "R": None if res.kind != "ideal gas" else sub.R * 1e-3,
            "s_gen_basis": res.s_gen_basis, "notes": list(res.notes)}
+    out["units"] = {k: u for k, (_, _, u) in JSON_FIELDS.items()}
+    out["units"]["R"] = "kJ/(kg K)"
+    out["units"]["M"] = "kg/kmol"
     for key, (attr, f, _) in JSON_FIELDS.items():
         v = getattr(res, attr)
         v = _scalar(v)
         out[key] = None if v is None else v * f
-    out["units"] = {k: u for k, (_, _, u) in JSON_FIELDS.items()}
-    out["units"]["R"] = "kJ/(kg K)"
-    out["units"]["M"] = "kg/kmol"
+    if out["T2s_K"] is not None and out["Pr1"] is not None:
+        out["Pr2s"] = out["Pr1"] * out["P2_Pa"] / out["P1_Pa"]     # the isentropic relation Pr2s/Pr1 = P2/P1
+        out["units"]["Pr2s"] = "-"
     if "T_boundary_K" in params:
         out["T_boundary_K"] = params["T_boundary_K"]
     if "ratio" in params:
@@ -303,11 +308,13 @@ def format_text(d: dict, sub) -> str:
             ("h", "kJ/kg", "h1", "h2", "h2s", "{:.3f}"),
             ("u", "kJ/kg", "u1", "u2", None, "{:.3f}"),
             ("s", "kJ/(kg K)", "s1", "s2", None, "{:.5f}")]
+    if d["kind"] == "ideal gas":
+        spec += [("Pr", "-", "Pr1", "Pr2", "Pr2s", "{:.6g}"), ("vr", "-", "vr1", "vr2", None, "{:.6g}")]
     for name, unit, k1, k2, ks, fmt in spec:
         f = 1e-3 if name == "P" else 1.0
         row = [name, unit, _fmt(d[k1] * f, fmt), _fmt(d[k2] * f, fmt)]
         if has_s:
-            row.append(_fmt(None if ks is None or d[ks] is None else d[ks] * f, fmt))
+            row.append(_fmt(None if ks is None or d.get(ks) is None else d[ks] * f, fmt))
         rows.append(row)
     lines += _grid(rows, "llrrr")
     lines.append("")
