@@ -400,3 +400,36 @@ def test_cli_text_output_is_reproducible(capsys):
     assert main(argv) == 0
     assert capsys.readouterr().out == first
     assert "method comparison" in first and "kJ/kg" in first
+
+
+def test_incompressible_entry_from_a_user_file(tmp_path, capsys):
+    f = tmp_path / "oil.toml"
+    f.write_text('[[incompressible]]\nid = "oil-x"\nname = "invented demo oil"\n'
+                 'T_range_K = [280.0, 600.0]\nc_J_per_kgK = [800.0, 3.6]\n'
+                 'density_kg_per_m3 = 870.0\nsource = "invented demo data"\n', encoding="utf-8")
+    sub = incompressible(str(f))
+    assert sub.id == "oil-x" and incompressible(f"{f}:oil-x") is not None
+    r = process(sub, 300.0, 3e5, "heat_p", T2_K=550.0)
+    # ∫(800 + 3.6 T) dT from 300 to 550 K (incompressible relation, common practice)
+    assert math.isclose(float(r.q_J_per_kg), 800 * 250 + 1.8 * (550 ** 2 - 300 ** 2), rel_tol=1e-13)
+    assert main(["process", "--incompressible", f"{f}:nothing", "--from", "T=300K,P=1bar",
+                 "--heat-to", "400K"]) == 2
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and "oil-x" in err
+    with pytest.raises(RangeError):
+        process(sub, 300.0, 3e5, "heat_p", T2_K=650.0)           # beyond the entry's range
+
+
+def test_cli_json_isentropic_relative_pressure_and_incompressible_nulls(capsys):
+    assert main(["process", "N2", "--from", "T=320K,P=1.2bar", "--compress-to", "6bar",
+                 "--eta", "0.8", "--json"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    # Pr2s / Pr1 = P2 / P1 (isentropic relation), and Pr at T2s equals Pr2s
+    assert math.isclose(d["Pr2s"] / d["Pr1"], 5.0, rel_tol=1e-14)
+    assert math.isclose(float(N2.properties(d["T2s_K"])["Pr"]), d["Pr2s"], rel_tol=STEP_RTOL * 10)
+    assert main(["process", "--incompressible", "water", "--from", "T=20C,P=1bar",
+                 "--compress-to", "12bar", "--json"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    assert d["w_molar"] is None and d["M"] is None and d["kind"] == "incompressible"
+    # pump: w = v (P2 - P1) with v from the entry's density
+    assert math.isclose(d["w"], (11e5 / incompressible("water").rho_kg_per_m3) / 1e3, rel_tol=1e-12)
