@@ -69,6 +69,7 @@ class StepSpec:
     ratio: float | None = None   # pressure ratio > 1 (P2/P1 compressing, P1/P2 expanding)
     eta: float | None = None     # isentropic efficiency, 0 < eta <= 1
     T2_K: float | None = None
+    q_J_per_kg: float | None = None   # heat added instead of T2 (heat_p, heat_v); < 0 cooling
     where: str = ""              # key path, for messages
 
 
@@ -105,7 +106,7 @@ CHART_KEYS = ("kind", "pressures", "volumes", "isotherms", "T_range", "paper", "
 OVERLAY_KEYS = ("label", "start", "steps")
 START_KEYS = ("T", "P")
 STEP_KEYS = {"compress": ("step", "P2", "ratio", "eta"), "expand": ("step", "P2", "ratio", "eta"),
-             "heat_p": ("step", "T2"), "heat_v": ("step", "T2"), "throttle": ("step", "P2")}
+             "heat_p": ("step", "T2", "q"), "heat_v": ("step", "T2", "q"), "throttle": ("step", "P2")}
 
 
 def _fail(path: str, text: str):
@@ -143,7 +144,8 @@ def _value(v, dim: str, default_unit: str, path: str, *, positive: bool = True) 
     return float(si)
 
 
-_EXAMPLES = {"pressure": "'10bar'", "temperature": "'1200K'", "specific_volume": "'0.5m3/kg'"}
+_EXAMPLES = {"pressure": "'10bar'", "temperature": "'1200K'", "specific_volume": "'0.5m3/kg'",
+             "specific_energy": "'500kJ/kg'"}
 
 
 def _list(v, dim, default_unit, path):
@@ -194,8 +196,11 @@ def _parse_step(raw, path: str, sysu: dict) -> StepSpec:
             ratio = _number(raw["ratio"], f"{path}.ratio", 1.0, 1e4, "pressure ratio")
         return StepSpec(kind, P2_Pa=P2, ratio=ratio, eta=eta, where=path)
     if kind in ("heat_p", "heat_v"):
-        if "T2" not in raw:
-            _fail(f"{path}.T2", f"missing; a {kind} step needs the end temperature T2")
+        if ("T2" in raw) == ("q" in raw):
+            _fail(path, f"a {kind} step needs exactly one of T2 (end temperature) or q (heat added per kg)")
+        if "q" in raw:
+            return StepSpec(kind, q_J_per_kg=_value(raw["q"], "specific_energy", sysu["h"], f"{path}.q",
+                                                    positive=False), where=path)
         return StepSpec(kind, T2_K=_value(raw["T2"], "temperature", sysu["T"], f"{path}.T2"), where=path)
     if "P2" not in raw:
         _fail(f"{path}.P2", "missing; a throttle step needs the end pressure P2")
@@ -320,43 +325,40 @@ class StepEnd:
 
 
 def end_state(substance, T1_K: float, P1_Pa: float, step: StepSpec) -> StepEnd:
-    """End state of one process step, from the engine directly.
+    """End state of one process step, by the process calculator ``tablegen.steps.process``.
 
     compress/expand (ideal gas, isentropic relation through the relative
-    pressure, common practice):  Pr(T2s) = Pr(T1) P2/P1;
-        compression h2 = h1 + (h2s - h1)/eta;  expansion h2 = h1 - eta (h1 - h2s);
-        T2 = T(h2).
+    pressure): Pr(T2s) = Pr(T1) P2/P1; compression h2 = h1 + (h2s - h1)/eta,
+    expansion h2 = h1 - eta (h1 - h2s); T2 = T(h2).
     heat_p: P2 = P1.  heat_v: v constant, P2 = P1 T2/T1.
     throttle: h2 = h1, so T2 = T1 for an ideal gas.
 
-    This is the one place the overlays compute end states; the process
-    calculator (tablegen.steps.process) can replace its body at merge.
+    Raises
+    ------
+    SpecError naming the step's key path when the step breaks a rule or its
+    end state leaves the data range.
     """
+    from ..steps import process
+    params = {}
     if step.kind in ("compress", "expand"):
+        params["eta"] = step.eta
         if step.P2_Pa is not None:
-            P2 = step.P2_Pa
+            params["P2_Pa"] = step.P2_Pa
         else:
-            P2 = P1_Pa * step.ratio if step.kind == "compress" else P1_Pa / step.ratio
-        if step.kind == "compress" and not P2 > P1_Pa:
-            _fail(step.where, f"a compression must end above its start pressure "
-                  f"({P1_Pa / 1e3:g} kPa); got P2 = {P2 / 1e3:g} kPa")
-        if step.kind == "expand" and not P2 < P1_Pa:
-            _fail(step.where, f"an expansion must end below its start pressure "
-                  f"({P1_Pa / 1e3:g} kPa); got P2 = {P2 / 1e3:g} kPa")
-        p1 = substance.properties(np.array([T1_K]))
-        T2s = float(substance.T_from("Pr", p1["Pr"] * (P2 / P1_Pa))[0])
-        h1 = float(p1["h"][0])
-        h2s = float(substance.properties(np.array([T2s]))["h"][0])
-        h2 = h1 + (h2s - h1) / step.eta if step.kind == "compress" else h1 - step.eta * (h1 - h2s)
-        T2 = float(substance.T_from("h", np.array([h2]))[0])
-        return StepEnd(T2, P2, T2s)
-    if step.kind == "heat_p":
-        return StepEnd(step.T2_K, P1_Pa, None)
-    if step.kind == "heat_v":
-        return StepEnd(step.T2_K, P1_Pa * step.T2_K / T1_K, None)
-    if not step.P2_Pa < P1_Pa:
-        _fail(step.where, f"a throttle must end below its start pressure ({P1_Pa / 1e3:g} kPa)")
-    return StepEnd(T1_K, step.P2_Pa, None)
+            params["ratio"] = step.ratio
+    elif step.kind in ("heat_p", "heat_v"):
+        if step.T2_K is not None:
+            params["T2_K"] = step.T2_K
+        else:
+            params["q_J_per_kg"] = step.q_J_per_kg
+    else:
+        params["P2_Pa"] = step.P2_Pa
+    try:
+        r = process(substance, np.array([T1_K]), np.array([P1_Pa]), step.kind, **params)
+    except TablegenError as e:
+        _fail(step.where, str(e))
+    T2s = None if r.T2s_K is None else float(np.ravel(r.T2s_K)[0])
+    return StepEnd(float(np.ravel(r.T2_K)[0]), float(np.ravel(r.P2_Pa)[0]), T2s)
 
 
 # --------------------------------------------------------------------------
