@@ -677,6 +677,20 @@ def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None
     if len(decade) < 2 or len(decade) == len(pressures):
         decade = set()
 
+    # ---- y axis first; the lines then fill it out to its rounded ends (inside the data)
+    plot = lay.plot
+    if spec.kind == "ts":
+        y_axis = _axis(f"temperature T  [{cv.sym['T']}]", cv.T.from_si(lo), cv.T.from_si(hi), plot[3] / 40.0)
+        lo = max(lo_d, cv.T.to_si(y_axis.lo))
+        hi = min(hi_d, cv.T.to_si(y_axis.hi))
+    else:
+        hb = substance.properties(np.array([lo, hi]))["h"]
+        y_axis = _axis(f"specific enthalpy h  [{cv.sym['h']}]", cv.h.from_si(float(hb[0])),
+                       cv.h.from_si(float(hb[1])), plot[3] / 50.0)
+        h_ends = substance.properties(np.array([lo_d, hi_d]))["h"]
+        ya = max(cv.h.to_si(y_axis.lo), float(h_ends[0]))
+        yb = min(cv.h.to_si(y_axis.hi), float(h_ends[1]))
+        lo, hi = (float(t) for t in substance.T_from("h", np.array([ya, yb])))
     T = np.unique(np.concatenate([np.geomspace(lo, hi, 240), [lo, hi]]))
     props = substance.properties(T)
     s0 = props["s0"]
@@ -704,14 +718,7 @@ def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None
         x_lo = min(x_lo, cv.s.from_si(min(ov_s)))
         x_hi = max(x_hi, cv.s.from_si(max(ov_s)))
     pad = 0.015 * (x_hi - x_lo)
-    plot = lay.plot
     x_axis = _axis(f"specific entropy s  [{cv.sym['s']}]", x_lo - pad, x_hi + pad, plot[2] / 52.0)
-    if spec.kind == "ts":
-        y_lo, y_hi = cv.T.from_si(lo), cv.T.from_si(hi)
-        y_axis = _axis(f"temperature T  [{cv.sym['T']}]", y_lo, y_hi, plot[3] / 40.0)
-    else:
-        h_lo, h_hi = cv.h.from_si(float(hT[0])), cv.h.from_si(float(hT[-1]))
-        y_axis = _axis(f"specific enthalpy h  [{cv.sym['h']}]", h_lo, h_hi, plot[3] / 50.0)
 
     # ---- isotherms on h-s: horizontal lines across the isobar fan
     if spec.kind == "hs":
