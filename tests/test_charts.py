@@ -308,3 +308,42 @@ def test_cli_spec_file_with_overlays(tmp_path):
     out = tmp_path / "o"
     assert main(["chart", "--spec", str(spec), "--out", str(out), "--quiet"]) == 0
     assert (out / "gt2-charts.pdf").exists()
+
+
+def _ov(n):
+    return {"label": f"unit {n}", "start": {"T": f"{280 + 10 * n}K", "P": "1bar"},
+            "steps": [{"step": "compress", "ratio": 4 + n, "eta": 0.85},
+                      {"step": "heat_p", "T2": f"{1000 + 50 * n}K"},
+                      {"step": "expand", "P2": "1.1bar", "eta": 0.9}]}
+
+
+def test_too_many_overlays_for_a4_panel_refused_naming_key_a3_accepts(air):
+    spec, = charts({"kind": "ts", "paper": "A4", "overlays": [_ov(i) for i in range(4)]})
+    with pytest.raises(SpecError, match=r"^charts\[0\]\.overlays:.*A3"):
+        C.build_chart(air, spec, T_range_K=(250.0, 1500.0))
+    spec, = charts({"kind": "ts", "paper": "A3", "overlays": [_ov(i) for i in range(4)]})
+    m = C.build_chart(air, spec, T_range_K=(250.0, 1500.0))
+    assert len(m.points) == 4 * 6
+    with pytest.raises(SpecError, match=r"^charts\[0\]\.overlays:.*at most 4"):
+        charts({"overlays": [_ov(i) for i in range(5)]})
+
+
+def test_draw_chart_into_a_portrait_book_box(air):
+    """The book may give a portrait box: the panel goes under the plot, nothing fails."""
+    from reportlab.pdfgen.canvas import Canvas
+
+    from tablegen.book.fonts import SANS
+    box = (535.0, 740.0)
+    spec, = charts({"kind": "hs", "overlays": [GT]}, units="both")
+    m = C.build_chart(air, spec, T_range_K=(250.0, 1500.0), box_pt=box)
+    assert m.units == "SI"
+    buf = io.BytesIO()
+    c = Canvas(buf, pagesize=(595.27, 841.89), invariant=1, initialFontName=SANS)
+    C.draw_chart(c, m, 30.0, 50.0, *box, page_text="page 3 of 9")
+    c.showPage()
+    c.save()
+    import pypdf
+    text = pypdf.PdfReader(io.BytesIO(buf.getvalue())).pages[0].extract_text()
+    assert "page 3 of 9" in text and "GT-2" in text
+    with pytest.raises(tablegen.errors.TablegenError, match="too small"):
+        C.layout(200.0, 150.0)

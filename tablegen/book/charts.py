@@ -114,6 +114,8 @@ def _fail(path: str, text: str):
 
 
 def _system(text, path: str) -> str:
+    if isinstance(text, str) and text.lower() == "both":
+        return "SI"       # a book printing SI and US columns draws its charts in SI
     if not isinstance(text, str) or text.upper() not in UNIT_SYSTEMS:
         _fail(path, f"unit system {text!r} is not known; allowed: SI, US")
     return text.upper()
@@ -264,7 +266,7 @@ def parse_chart(raw: dict, where: str, *, units: str = "SI") -> tuple[ChartSpec,
         if isinstance(r, str):
             r = r.split(",")
         if not isinstance(r, (list, tuple)) or len(r) != 2:
-            _fail(f"{where}.T_range", "give two temperatures, low and high, e.g. [\"300K\", \"1500K\"]")
+            _fail(f"{where}.T_range", "give two temperatures, low and high, e.g. 300K and 1500K")
         lo = _value(r[0], "temperature", T_unit, f"{where}.T_range[0]")
         hi = _value(r[1], "temperature", T_unit, f"{where}.T_range[1]")
         if not hi > lo * 1.05:
@@ -278,8 +280,8 @@ def parse_chart(raw: dict, where: str, *, units: str = "SI") -> tuple[ChartSpec,
         ov = [ov]
     if not isinstance(ov, list):
         _fail(f"{where}.overlays", "must be a list of overlay tables")
-    if len(ov) > 6:
-        _fail(f"{where}.overlays", f"{len(ov)} overlays; allowed: at most 6 per chart")
+    if len(ov) > 4:
+        _fail(f"{where}.overlays", f"{len(ov)} overlays; allowed: at most 4 per chart")
     sysu_T = dict(sysu, T=T_unit)    # bare temperatures are read in the axis unit
     overlays = tuple(_parse_overlay(o, f"{where}.overlays[{i}]", sysu_T, i) for i, o in enumerate(ov))
     kinds = KINDS if kind == "both" else (kind,)
@@ -484,31 +486,46 @@ class Layout:
     panel: tuple
     footer: tuple
     scale: float          # font scale
+    columns: int = 1      # columns of the reading panel
 
 
 def layout(width: float, height: float) -> Layout:
-    """Our page design: title band on top, plot at left, reading panel at right."""
-    s = max(0.8, min(1.45, math.sqrt(width / PAPERS["A4"][0])))
-    m = 26.0 * s
+    """Our page design: title band on top, plot at left, reading panel at right.
+
+    A portrait box (width < 1.15 height) puts the reading panel under the plot,
+    in two columns.
+    """
+    s = max(0.8, min(1.45, math.sqrt(max(width, height) / PAPERS["A4"][0])))
+    m = 26.0 * s if width > 500 else 12.0 * s
     title_h = 34.0 * s
     foot_h = 14.0 * s
-    panel_w = 190.0 * s
     left = 44.0 * s       # y tick labels and axis title
     right = 48.0 * s      # secondary scale
     bottom = 34.0 * s     # x tick labels and axis title
     px = m + left
-    py = m + foot_h + bottom
-    pw = width - 2 * m - left - right - panel_w - 10.0 * s
-    ph = height - 2 * m - title_h - foot_h - bottom - 6.0 * s
-    if pw < 120 or ph < 120:
+    portrait = width < 1.15 * height
+    if portrait:
+        panel_h = 0.36 * (height - 2 * m - title_h - foot_h)
+        panel = (m, m + foot_h, width - 2 * m, panel_h)
+        py = m + foot_h + panel_h + bottom + 6.0 * s
+        pw = width - 2 * m - left - right
+        ph = height - m - title_h - 6.0 * s - py
+        cols = 2
+    else:
+        panel_w = 190.0 * s
+        panel = (width - m - panel_w, m + foot_h, panel_w, height - 2 * m - title_h - foot_h)
+        py = m + foot_h + bottom
+        pw = width - 2 * m - left - right - panel_w - 10.0 * s
+        ph = height - 2 * m - title_h - foot_h - bottom - 6.0 * s
+        cols = 1
+    if pw < 150 or ph < 150:
         raise TablegenError(f"a chart box of {width:.0f} x {height:.0f} pt is too small; "
-                            f"allowed: at least a landscape A5 ({PAPERS['A4'][1]:.0f} x {PAPERS['A4'][0] / 2:.0f} pt)")
+                            f"allowed: at least about {PAPERS['A4'][0] / 1.414:.0f} x {PAPERS['A4'][1] / 1.414:.0f} pt "
+                            f"(landscape A5)")
     return Layout(page=(0.0, 0.0, width, height),
                   title=(m, height - m - title_h, width - 2 * m, title_h),
-                  plot=(px, py, pw, ph),
-                  panel=(width - m - panel_w, m + foot_h, panel_w, height - 2 * m - title_h - foot_h),
-                  footer=(m, m, width - 2 * m, foot_h),
-                  scale=s)
+                  plot=(px, py, pw, ph), panel=panel,
+                  footer=(m, m, width - 2 * m, foot_h), scale=s, columns=cols)
 
 
 def nice_ticks(lo: float, hi: float, target: float):
@@ -583,7 +600,7 @@ class _Conv:
 
 
 def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None = None,
-                footer: str = "") -> ChartModel:
+                footer: str = "", box_pt=None) -> ChartModel:
     """The finished chart as data: every line sampled, every label placed.
 
     Parameters
@@ -595,6 +612,8 @@ def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None
         The range is widened to show every overlay state.
     units : "SI" or "US"; default the spec's
     footer : document line printed at the bottom (the writer adds page numbers)
+    box_pt : (width, height) of the box ``draw_chart`` will fill, points; labels
+        are placed for it. Default: the spec's paper, landscape.
 
     Raises
     ------
@@ -604,7 +623,7 @@ def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None
     system = _system(units or spec.units, "units")
     T_unit = spec.T_unit if spec.T_unit in T_UNITS[system] else T_UNITS[system][0]
     cv = _Conv(system, T_unit)
-    lay = layout(*PAPERS[spec.paper])
+    lay = layout(*(box_pt or PAPERS[spec.paper]))
     fs = lay.scale
 
     # ---- temperature range
@@ -852,7 +871,15 @@ def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None
 
     # ---- panel
     used = {ln.style for ln in labelled}
+    if hi > 2200.0:
+        notes.append("Fixed composition: dissociation, which sets in above about 2000 K (common "
+                     "practice), is not included.")
     panel = _panel(substance, spec, cv, ov_states, ov_steps, placed_points, system, notes, fs, used)
+    if not panel_fits(panel, lay):
+        _fail(f"{spec.where}.overlays", f"{len(spec.overlays)} overlays with "
+              f"{sum(len(o.steps) for o in spec.overlays)} steps do not fit the reading panel of "
+              f"{'this box' if box_pt else 'an ' + spec.paper + ' page'} in legible type; allowed: fewer "
+              f"overlays or steps, or paper = \"A3\"")
     kind_name = "Temperature-entropy (T-s) chart" if spec.kind == "ts" else "Enthalpy-entropy (h-s) chart"
     title = spec.title or (substance.name if substance.name == substance.id
                            else f"{substance.name} ({substance.id})")
@@ -1202,53 +1229,7 @@ def _compose(surf, model: ChartModel, x0, y0, width, height, page_text: str = ""
 
     # reading panel
     qx, qy, qw, qh = lay.panel
-    qx, qy = qx + x0, qy + y0
-    cy = qy + qh - 4 * fs
-    for b in model.panel:
-        if b.kind == "heading":
-            cy -= b.size * 1.5
-            surf.text(qx, cy, b.content[0], b.size, "bold", "left", rgb=BLACK)
-            cy -= 2.5 * fs
-        elif b.kind == "key":
-            for style, text in b.content:
-                cy -= b.size * 1.55
-                mid = cy + b.size * 0.32
-                if style == "point":
-                    surf.circle(qx + 11 * fs, mid, 2.4 * fs, BLACK, (1, 1, 1), 0.6 * fs)
-                elif style == "point_open":
-                    surf.circle(qx + 11 * fs, mid, 2.4 * fs, (1, 1, 1), BLACK, 1.0 * fs)
-                else:
-                    w, dash, rgb = STYLES[style]
-                    surf.polyline([(qx, mid), (qx + 22 * fs, mid)], w, dash, rgb)
-                surf.text(qx + 27 * fs, cy, text, b.size, "sans", "left")
-            cy -= 3 * fs
-        elif b.kind == "text":
-            for para in b.content:
-                for line in _wrap(surf, para, b.size, qw):
-                    cy -= b.size * 1.32
-                    surf.text(qx, cy, line, b.size, "sans", "left")
-                cy -= b.size * 0.4
-            cy -= 2 * fs
-        elif b.kind == "table":
-            ncol = len(b.content[0])
-            widths = [max(surf.width(r[j], b.size, "bold" if i == 0 else "sans")
-                          for i, r in enumerate(b.content)) for j in range(ncol)]
-            gap = max(3.0, (qw - sum(widths)) / max(ncol - 1, 1))
-            if gap > 10 * fs:
-                gap = 10 * fs
-            xs = [qx]
-            for wdt in widths[:-1]:
-                xs.append(xs[-1] + wdt + gap)
-            for i, row in enumerate(b.content):
-                cy -= b.size * 1.38
-                for j, cell in enumerate(row):
-                    if j == 0:
-                        surf.text(xs[j], cy, cell, b.size, "bold", "left")
-                    else:
-                        surf.text(xs[j] + widths[j], cy, cell, b.size, "bold" if i == 0 else "sans", "right")
-                if i == 0:
-                    surf.polyline([(qx, cy - 2.0), (xs[-1] + widths[-1], cy - 2.0)], 0.4, None, INK)
-            cy -= 5 * fs
+    _draw_panel(surf, model.panel, (qx + x0, qy + y0, qw, qh), fs, lay.columns)
 
     # footer
     fx, fy, fw, fh = lay.footer
@@ -1258,6 +1239,139 @@ def _compose(surf, model: ChartModel, x0, y0, width, height, page_text: str = ""
     surf.text(fx, fy + 3 * fs, f"{left} · chart fingerprint {model.fingerprint}", 6.2 * fs, "sans", "left")
     if page_text:
         surf.text(fx + fw, fy + 3 * fs, page_text, 6.2 * fs, "sans", "right")
+
+
+def _panel_ops(surf, blocks, width, fs, k):
+    """Blocks -> (height, ops) at font factor k; ops are drawn relative to the block top."""
+    out = []
+    for b in blocks:
+        size = b.size * k
+        ops, y = [], 0.0
+        if b.kind == "heading":
+            y -= size * 1.5
+            ops.append(("text", 0.0, y, b.content[0], size, "bold", "left", BLACK))
+            y -= 2.5 * fs * k
+        elif b.kind == "key":
+            for style, text in b.content:
+                y -= size * 1.55
+                mid = y + size * 0.32
+                if style in ("point", "point_open"):
+                    ops.append(("dot", 11 * fs * k, mid, 2.4 * fs * k, style == "point_open"))
+                else:
+                    ops.append(("sample", 0.0, mid, 22 * fs * k, style))
+                ops.append(("text", 27 * fs * k, y, text, size, "sans", "left", INK))
+            y -= 3 * fs * k
+        elif b.kind == "text":
+            for para in b.content:
+                for line in _wrap(surf, para, size, width):
+                    y -= size * 1.32
+                    ops.append(("text", 0.0, y, line, size, "sans", "left", INK))
+                y -= size * 0.4
+            y -= 2 * fs * k
+        elif b.kind == "table":
+            ncol = len(b.content[0])
+            widths = [max(surf.width(r[j], size, "bold" if i == 0 else "sans")
+                          for i, r in enumerate(b.content)) for j in range(ncol)]
+            gap = min(10 * fs * k, max(3.0, (width - sum(widths)) / max(ncol - 1, 1)))
+            xs = [0.0]
+            for wdt in widths[:-1]:
+                xs.append(xs[-1] + wdt + gap)
+            for i, row in enumerate(b.content):
+                y -= size * 1.38
+                for j, cell in enumerate(row):
+                    if j == 0:
+                        ops.append(("text", xs[j], y, cell, size, "bold", "left", INK))
+                    else:
+                        ops.append(("text", xs[j] + widths[j], y, cell, size, "bold" if i == 0 else "sans",
+                                    "right", INK))
+                if i == 0:
+                    ops.append(("rule", 0.0, y - 2.0, xs[-1] + widths[-1]))
+            y -= 5 * fs * k
+        out.append((b.kind, -y, ops))
+    return out
+
+
+def _flow(items, height, columns):
+    """Place blocks top-down in columns; a heading stays with the block after it.
+    Returns [(column, top offset, ops)] or None when they do not fit."""
+    placed, col, used = [], 0, 0.0
+    i = 0
+    while i < len(items):
+        group = [items[i]]
+        if items[i][0] == "heading" and i + 1 < len(items):
+            group.append(items[i + 1])
+        need = sum(g[1] for g in group)
+        if used + need > height:
+            col += 1
+            used = 0.0
+            if col >= columns or need > height:
+                return None
+        for g in group:
+            placed.append((col, used, g[2]))
+            used += g[1]
+        i += len(group)
+    return placed
+
+
+#: Font factors tried for the reading panel; below 0.8 the text is too small to read in print.
+PANEL_FACTORS = (1.0, 0.93, 0.86, 0.8)
+
+
+class _Measure:
+    """Text widths without a canvas (the same DejaVu metrics both renderers use)."""
+
+    def width(self, s, size, font="sans"):
+        from reportlab.pdfbase.pdfmetrics import stringWidth
+
+        from .fonts import SANS, SANS_BOLD, register
+        register()
+        return stringWidth(s, SANS_BOLD if font == "bold" else SANS, size)
+
+
+def panel_fits(blocks, lay: Layout) -> bool:
+    qx, qy, qw, qh = lay.panel
+    cw = (qw - 14.0 * lay.scale * (lay.columns - 1)) / lay.columns
+    return any(_flow(_panel_ops(_Measure(), blocks, cw, lay.scale, k), qh - 4 * lay.scale, lay.columns)
+               is not None for k in PANEL_FACTORS)
+
+
+def _draw_panel(surf, blocks, rect, fs, columns):
+    qx, qy, qw, qh = rect
+    gap = 14.0 * fs
+    cw = (qw - gap * (columns - 1)) / columns
+    placed = None
+    for k in PANEL_FACTORS:
+        placed = _flow(_panel_ops(surf, blocks, cw, fs, k), qh - 4 * fs, columns)
+        if placed is not None:
+            break
+    if placed is None:      # cannot happen within the spec limits; keep what fits, never overprint
+        placed, col, acc = [], 0, 0.0
+        for _, h, ops in _panel_ops(surf, blocks, cw, fs, 0.62):
+            if acc + h > qh - 4 * fs:
+                col, acc = col + 1, 0.0
+            if col < columns:
+                placed.append((col, acc, ops))
+            acc += h
+    for col, top, ops in placed:
+        ox = qx + col * (cw + gap)
+        oy = qy + qh - 4 * fs - top
+        for op in ops:
+            if op[0] == "text":
+                _, x, y, text, size, font, align, rgb = op
+                surf.text(ox + x, oy + y, text, size, font, align, rgb=rgb)
+            elif op[0] == "dot":
+                _, x, y, r, hollow = op
+                if hollow:
+                    surf.circle(ox + x, oy + y, r, (1, 1, 1), BLACK, 1.0 * fs)
+                else:
+                    surf.circle(ox + x, oy + y, r, BLACK, (1, 1, 1), 0.6 * fs)
+            elif op[0] == "sample":
+                _, x, y, length, style = op
+                w, dash, rgb = STYLES[style]
+                surf.polyline([(ox + x, oy + y), (ox + x + length, oy + y)], w, dash, rgb)
+            elif op[0] == "rule":
+                _, x, y, length = op
+                surf.polyline([(ox + x, oy + y), (ox + x + length, oy + y)], 0.4, None, INK)
 
 
 def _wrap(surf, text, size, width):
