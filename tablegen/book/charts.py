@@ -976,6 +976,7 @@ class _Placer:
         self.xa, self.ya = xa, ya
         self.boxes = []      # oriented rectangles: (cx, cy, ux, uy, hw, hh) in pt
         self.segs = []       # blocked points (x, y, r) in pt
+        self._seg_arr = None
 
     def norm(self, x, y):
         return ((np.asarray(x, float) - self.xa.lo) / (self.xa.hi - self.xa.lo),
@@ -1013,12 +1014,14 @@ class _Placer:
         for b in self.boxes:
             if _obb_overlap(box, b):
                 cost += 10.0
-        for (sx, sy, r) in self.segs:
+        if self.segs:
+            if self._seg_arr is None or len(self._seg_arr) != len(self.segs):
+                self._seg_arr = np.array(self.segs, float)
+            sx, sy, r = self._seg_arr.T
             dx, dy = sx - cx, sy - cy
             a = dx * ux + dy * uy
             c = -dx * uy + dy * ux
-            if abs(a) < hw + r and abs(c) < hh + r:
-                cost += 1.0
+            cost += float(np.count_nonzero((np.abs(a) < hw + r) & (np.abs(c) < hh + r)))
         return cost
 
     def place_on_line(self, text, x, y, size, targets, along_x=False):
