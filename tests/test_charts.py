@@ -347,3 +347,22 @@ def test_draw_chart_into_a_portrait_book_box(air):
     assert "page 3 of 9" in text and "GT-2" in text
     with pytest.raises(tablegen.errors.TablegenError, match="too small"):
         C.layout(200.0, 150.0)
+
+
+def test_cli_bytes_identical_across_processes_and_hash_seeds(tmp_path):
+    """Same input, same bytes, whatever the interpreter's hash seed."""
+    import os
+    import subprocess
+    import sys
+    root = Path(__file__).resolve().parents[1]
+    digests = []
+    for seed in ("1", "2"):
+        out = tmp_path / seed
+        env = dict(os.environ, PYTHONHASHSEED=seed)
+        subprocess.run([sys.executable, "-m", "tablegen", "chart", "air", "--format", "both", "--dpi", "72",
+                        "--out", str(out), "--quiet", "--volumes", "0.5,5",
+                        "--overlay", "T=15C P=1.013bar; compress P2=12bar eta=0.86; heat_p T2=1350K"],
+                       cwd=root, env=env, check=True, capture_output=True)
+        digests.append({p.name: p.read_bytes() for p in sorted(out.iterdir())})
+    assert digests[0].keys() == {"air-charts.pdf", "air-ts.png", "air-hs.png"}
+    assert digests[0] == digests[1]
