@@ -907,8 +907,12 @@ def _panel(substance, spec, cv, ov_states, ov_steps, points, system, notes, fs, 
     if spec.kind == "hs":
         key.append(("isotherm", "isotherm, T = const (h = const)"))
     if spec.overlays:
-        key += [("process", "process, actual path"), ("isentropic", "isentropic path (η = 1)"),
-                ("aux", "end isobar, 2s to 2"), ("point", "state point"), ("point_open", "isentropic end state 2s")]
+        key.append(("process", "process, actual path"))
+        if "isentropic" in used:
+            key += [("isentropic", "isentropic path (η = 1)"), ("aux", "end isobar, 2s to 2")]
+        key.append(("point", "state point"))
+        if "isentropic" in used:
+            key.append(("point_open", "isentropic end state 2s"))
     blocks.append(PanelBlock("key", tuple(key), 6.6 * fs))
     side = "right scale: h from T (ideal gas)" if spec.kind == "ts" else "right scale: T from h (ideal gas)"
     blocks.append(PanelBlock("text", (
@@ -930,18 +934,18 @@ def _panel(substance, spec, cv, ov_states, ov_steps, points, system, notes, fs, 
             A, B = byname[a], byname[b]
             dh = cv.h.from_si(B.h - A.h)
             if st.kind == "compress":
-                text.append(f"{a}→{b} compression, η = {st.eta:g}: w in = {dh:.1f} {sym['h']}")
+                text.append(f"{a}→{b} compression, η = {st.eta:g}: w in = {_fmt(dh, 1)} {sym['h']}")
             elif st.kind == "expand":
-                text.append(f"{a}→{b} expansion, η = {st.eta:g}: w out = {-dh:.1f} {sym['h']}")
+                text.append(f"{a}→{b} expansion, η = {st.eta:g}: w out = {_fmt(-dh, 1)} {sym['h']}")
             elif st.kind == "heat_p":
                 text.append(f"{a}→{b} {'heating' if B.T_K >= A.T_K else 'cooling'} at P = const: "
-                            f"q = {dh:.1f} {sym['h']}")
+                            f"q = {_fmt(dh, 1)} {sym['h']}")
             elif st.kind == "heat_v":
                 du = dh - cv.h.from_si(substance.R * (B.T_K - A.T_K))
                 text.append(f"{a}→{b} {'heating' if B.T_K >= A.T_K else 'cooling'} at v = const: "
-                            f"q = {du:.1f} {sym['h']}")
+                            f"q = {_fmt(du, 1)} {sym['h']}")
             else:
-                text.append(f"{a}→{b} throttling, h = const: Δs = {cv.s.from_si(B.s - A.s):.4f} {sym['s']}")
+                text.append(f"{a}→{b} throttling, h = const: Δs = {_fmt(cv.s.from_si(B.s - A.s), 4)} {sym['s']}")
         if text:
             blocks.append(PanelBlock("text", tuple(text), 6.2 * fs))
     srcs = []

@@ -210,7 +210,7 @@ def run(args) -> int:
         specs = charts_from_options(args)
         units = (args.units or "SI").upper()
     sub = substance_with_options(args, sub_name)
-    footer = f"tablegen {__version__} · {sub.name} ({sub.id})"
+    footer = f"tablegen {__version__} · " + (sub.name if sub.name == sub.id else f"{sub.name} ({sub.id})")
     try:
         models = [C.build_chart(sub, sp, units=sp.units, footer=footer) for sp in specs]
     except SpecError as e:
