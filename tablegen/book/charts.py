@@ -884,7 +884,7 @@ def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None
     title = spec.title or (substance.name if substance.name == substance.id
                            else f"{substance.name} ({substance.id})")
     subtitle = (f"{kind_name} · ideal gas · M = {substance.M:.4f} kg/kmol · "
-                f"R = {cv.s.from_si(R):.5f} {cv.sym['s']} · s° at P° = {_fmt_value(cv.P.from_si(substance.P_ref_Pa))} {Psym}")
+                f"R = {cv.s.from_si(R):.5f} {cv.sym['s']} · s° at P° = {cv.P.from_si(substance.P_ref_Pa):.6g} {Psym}")
     return ChartModel(kind=spec.kind, paper=spec.paper, units=system, title=title, subtitle=subtitle,
                       x_axis=x_axis, y_axis=y_axis, side=side, lines=tuple(labelled),
                       points=tuple(placed_points), arrows=tuple(arrow_objs), panel=panel,
