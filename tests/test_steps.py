@@ -105,6 +105,11 @@ def test_constant_cp_data_reproduce_the_power_law_exactly():
         assert np.allclose(e.value, cp * (expected - T1), rtol=STEP_RTOL, atol=0), e.method
     for e in r.comparison["ds"]:
         assert np.all(np.abs(e.value) <= cp * STEP_RTOL), e.method
+    # with an efficiency: h linear in T, so T2 = T1 + (T2s - T1)/eta exactly (ideal-gas identity)
+    r = process(gas, T1, 1e5, "compress", ratio=ratio, eta=0.8)
+    assert np.allclose(r.T2_K, T1 + (expected - T1) / 0.8, rtol=STEP_RTOL, atol=0)
+    for e in r.comparison["w"]:
+        assert np.allclose(e.value, r.w_J_per_kg, rtol=STEP_RTOL, atol=0), e.method
 
 
 def test_constant_cp_heating_is_cp_delta_T():
@@ -199,6 +204,19 @@ def test_compress_then_expand_round_trip(T1, P1, ratio):
     down = process(N2, up.T2_K, up.P2_Pa, "expand", ratio=ratio)
     assert math.isclose(float(down.T2_K), T1, rel_tol=2 * (STEP_RTOL + jump_rtol(N2)))
     assert math.isclose(float(down.P2_Pa), P1, rel_tol=1e-14)
+
+
+@settings(max_examples=40, deadline=None)
+@given(T1=st.floats(min_value=280.0, max_value=320.0), q=st.floats(min_value=-8e3, max_value=8e4),
+       P1=st.floats(min_value=1e5, max_value=2e6))
+def test_incompressible_heating_round_trip(T1, q, P1):
+    water = incompressible("water")
+    try:
+        fwd = process(water, T1, P1, "heat_p", q_J_per_kg=q)
+    except RangeError:
+        return
+    back = process(water, T1, P1, "heat_p", T2_K=fwd.T2_K)
+    assert abs(float(back.q_J_per_kg) - q) <= float(water.c(fwd.T2_K)) * float(fwd.T2_K) * STEP_RTOL
 
 
 # --------------------------------------------------- reference: CoolProp
