@@ -89,8 +89,9 @@ class Polynomial:
         return int(self.coeffs.shape[0])
 
     def interval_index(self, T: np.ndarray) -> np.ndarray:
-        """Interval of each temperature; beyond the ends, the end intervals."""
-        return np.searchsorted(self._inner, T, side="right")
+        """Interval of each temperature (a breakpoint belongs to the lower interval, as in
+        the NASA reports); beyond the ends, the end intervals."""
+        return np.searchsorted(self._inner, T, side="left")
 
     # -------------------------------------------------------------- evaluation
     def evaluate(self, T, *, want=("cp", "h", "s")) -> dict[str, np.ndarray]:
