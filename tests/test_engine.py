@@ -161,3 +161,13 @@ def test_molar_mass_of_air_matches_its_source():
     # Lemmon et al. (2000) give M = 28.9586 g/mol for their air (from memory); the
     # abridged IUPAC weights used here differ in the 5th digit
     assert tablegen.substance("air").M == pytest.approx(28.9586, rel=2e-5)
+
+
+def test_fast_path_equals_full_properties():
+    mix = tablegen.mixture(FLUE).with_options(datum=Datum("sensible", 273.15), P_ref_Pa=101325.0)
+    T = np.random.default_rng(2).uniform(200, 6000, 500)
+    cp, h, s0 = mix.cp_h_s0(T)
+    p = mix.properties(T)
+    np.testing.assert_allclose(cp, p["cp"], rtol=1e-13)
+    np.testing.assert_allclose(h, p["h"], rtol=1e-12, atol=1e-6)
+    np.testing.assert_allclose(s0, p["s0"], rtol=1e-13)

@@ -122,15 +122,20 @@ class Polynomial:
                     self._eval_block(T[sl], None if lnT is None else lnT[sl], None if inv is None else inv[sl],
                                      self.coeffs[k], self._h[:, k], self._s[:, k], part)
         elif n <= 4:
-            # few intervals: evaluate each with scalar coefficients, keep where it applies
-            tmp = {key: np.empty_like(T) for key in want}
+            # few intervals: the most populated one over the whole array, the
+            # others on their own points only, all with scalar coefficients
+            counts = np.bincount(idx, minlength=n)
+            major = int(np.argmax(counts))
+            self._eval_block(T, lnT, inv, self.coeffs[major], self._h[:, major], self._s[:, major], out)
             for k in range(n):
-                where = idx == k
-                if not where.any():
+                if k == major or counts[k] == 0:
                     continue
-                self._eval_block(T, lnT, inv, self.coeffs[k], self._h[:, k], self._s[:, k], tmp)
+                sel = np.flatnonzero(idx == k)
+                part = {key: np.empty(sel.size) for key in want}
+                self._eval_block(T[sel], None if lnT is None else lnT[sel], None if inv is None else inv[sel],
+                                 self.coeffs[k], self._h[:, k], self._s[:, k], part)
                 for key in want:
-                    np.copyto(out[key], tmp[key], where=where)
+                    out[key][sel] = part[key]
         else:
             self._eval_block(T, lnT, inv, self.coeffs.T[:, idx], self._h[:, idx], self._s[:, idx], out)
         return {k: v.reshape(shape) for k, v in out.items()}
