@@ -150,7 +150,12 @@ def fit_one(sid: str, index: str, formula: str, base) -> dict:
     return rec
 
 
-def main() -> int:
+def main(argv=None) -> int:
+    import argparse
+    ap = argparse.ArgumentParser(description="Refit NIST-JANAF tables into gasdata/janaf1998.toml")
+    ap.add_argument("--out", type=Path, default=ROOT / "gasdata" / "janaf1998.toml",
+                    help="file to write (default: gasdata/janaf1998.toml)")
+    args = ap.parse_args(argv)
     lib = library()
     nasa = lib.datasets["nasa1993"]
     records = []
@@ -188,8 +193,8 @@ def main() -> int:
     for r in records:
         text.append("")
         text.append(table("species", r, array=True))
-    write_bytes(ROOT / "gasdata" / "janaf1998.toml", "\n".join(text).encode("utf-8"))
-    print(f"wrote gasdata/janaf1998.toml ({len(records)} records)", file=sys.stderr)
+    write_bytes(args.out, "\n".join(text).encode("utf-8"))
+    print(f"wrote {args.out} ({len(records)} records)", file=sys.stderr)
     return 0
 
 
