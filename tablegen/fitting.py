@@ -278,7 +278,8 @@ def _solve(prob: _Problem, bounds: np.ndarray) -> tuple[np.ndarray, float]:
     cond = float(svr[0] / svr[-1]) if svr[-1] > 0 else math.inf
     if not cond <= COND_LIMIT:
         raise FitError(f"the fit is ill-conditioned (condition number {cond:.2g} > {COND_LIMIT:.0g}); "
-                       "use fewer coefficients (form nasa7), fewer breakpoints or more points")
+                       "the tabulated range is too narrow or the points too few for this form: "
+                       "use form nasa7, fewer breakpoints, or a wider range of temperatures")
     x = (y_p + N @ z) / scale
     Ak = np.zeros((n_int, NCOEF))
     Ak[:, cols] = x.reshape(n_int, m)

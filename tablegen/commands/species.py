@@ -58,7 +58,12 @@ def check(lib) -> tuple[list[dict], list[str]]:
 def sources(lib, name: str, as_json: bool) -> int:
     """Print the agreement figures and the default source of one species."""
     from .. import agreement
-    rec = lib.record(name)
+    from ..errors import NameLookupError
+    try:
+        rec = lib.record(name)
+    except NameLookupError as e:
+        raise NameLookupError(f"--sources takes one species id or name (a mixture's components each have "
+                              f"their own figures): {e}") from None
     rows = agreement.for_species(rec.id)
     default = lib.defaults.get(rec.id, {})
     held = [d for d in lib.search_order if (r := lib.datasets[d].get(rec.id)) is not None and r.id == rec.id]
