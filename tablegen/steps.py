@@ -578,7 +578,7 @@ def _gas(sub: Substance, step, T1, P1, params):
     s_gen, s_gen_basis = _s_gen(step, ds, q, params, T1, T2)
     comp = _gas_comparison(sub, step, T1, P1, T2, P2, ds, T2s, w, q, eta, params, p1, p2)
     if sub.kind == "mixture":
-        notes.append("mixture s° includes the ideal mixing term -R Σ y ln y")
+        notes.append("mixture s° includes the ideal mixing term -R Σ y ln y (it cancels in s2 - s1 at fixed composition)")
     return dict(kind="ideal gas", basis=basis, M=sub.M, v1=v1, h1=h1, u1=u1, s1=s1,
                 T2_K=np.asarray(T2, float), P2_Pa=np.asarray(P2, float) * np.ones_like(T2),
                 v2=p2["v"], h2=p2["h"], u2=p2["u"], s2=p2["s"], T2s_K=T2s, h2s=h2s, eta=eta,
@@ -588,9 +588,16 @@ def _gas(sub: Substance, step, T1, P1, params):
 
 
 def _cpk(sub, T):
-    """cp, cv and k at T; the comparison may evaluate slightly outside the data range."""
-    p = sub.properties(T, extrapolate=True)
-    return p["cp"], p["cv"], p["k"], bool(np.any(p["extrapolated"]))
+    """cp, cv (J/(kg K)) and k at T, and whether any T lies outside the data range.
+
+    The comparison may evaluate slightly outside the range (a power-law end
+    temperature beyond T_max); only cp/R is evaluated, as the iterations call
+    this often.
+    """
+    T = np.asarray(T, float)
+    cpR = sub.poly.evaluate(T, want=("cp",))["cp"]
+    R = sub.R
+    return cpR * R, (cpR - 1.0) * R, cpR / (cpR - 1.0), bool(np.any((T < sub.T_min) | (T > sub.T_max)))
 
 
 def _gas_comparison(sub, step, T1, P1, T2, P2, ds, T2s, w, q, eta, params, p1, p2):

@@ -212,6 +212,9 @@ COMPARISON_UNITS = {
     "w": ("w", 1e-3, "kJ/kg"),
     "q": ("q", 1e-3, "kJ/kg"),
 }
+#: Text output: an error below this fraction of the value is round-off and printed as 0.
+ROUND_OFF = 1e-12
+
 PARAM_UNITS = {"cp": (1e-3, "kJ/(kg K)"), "cv": (1e-3, "kJ/(kg K)"), "c": (1e-3, "kJ/(kg K)"), "k": (1.0, "-")}
 
 
@@ -348,8 +351,11 @@ def format_text(d: dict, sub) -> str:
             rel = "" if exact or e["rel_error"] is None else f"{e['rel_error'] * 100:+.3g}"
             if not exact and e["rel_error"] is None:
                 rel = "-"
+            err = "" if exact else f"{e['error']:+.3g}"
+            if not exact and abs(e["error"]) <= ROUND_OFF * abs(e["value"]):
+                err, rel = "0", ("0" if rel else rel)     # equal to round-off: the methods coincide
             rows.append([f"{heading} [{unit}]" if i == 0 else "", e["label"], used,
-                         fmts[q].format(e["value"]), "" if exact else f"{e['error']:+.3g}", rel])
+                         fmts[q].format(e["value"]), err, rel])
     lines += _grid(rows, "lllrrr")
     for n in d["notes"]:
         lines.append(f"note: {n}")

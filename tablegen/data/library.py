@@ -172,8 +172,28 @@ class Dataset:
     def __len__(self):
         return len(self._blocks)
 
+    @cached_property
+    def exact(self) -> dict[str, int]:
+        """Exact-case id -> block index (CS2 and Cs2 differ only in case)."""
+        return {sid: i for i, sid in enumerate(self.ids)}
+
+    @cached_property
+    def ambiguous(self) -> dict[str, list[str]]:
+        """Case-folded names shared by ids that differ only in case."""
+        groups: dict[str, list[str]] = {}
+        for sid in self.ids:
+            groups.setdefault(norm_name(sid), []).append(sid)
+        return {k: v for k, v in groups.items() if len(v) > 1}
+
     def get(self, name: str) -> Record | None:
-        i = self.names.get(norm_name(name))
+        name = name.strip()
+        i = self.exact.get(name)
+        if i is None:
+            key = norm_name(name)
+            if key in self.ambiguous:
+                raise NameLookupError(f"{name!r} is ambiguous in data set {self.id} (case matters here); "
+                                      f"allowed: {', '.join(self.ambiguous[key])}")
+            i = self.names.get(key)
         return None if i is None else self._parse(i)
 
     def records(self) -> list[Record]:
