@@ -366,3 +366,29 @@ def test_cli_bytes_identical_across_processes_and_hash_seeds(tmp_path):
         digests.append({p.name: p.read_bytes() for p in sorted(out.iterdir())})
     assert digests[0].keys() == {"air-charts.pdf", "air-ts.png", "air-hs.png"}
     assert digests[0] == digests[1]
+
+
+from hypothesis import given, settings, strategies as st  # noqa: E402
+
+
+@settings(max_examples=25, deadline=None)
+@given(T1=st.floats(260.0, 700.0), ratio=st.floats(1.5, 30.0), eta=st.floats(0.5, 1.0),
+       expand=st.booleans())
+def test_overlay_machine_step_identities(T1, ratio, eta, expand):
+    """For any machine step: s(T2s, P2) = s(T1, P1) (the isentrope), and the actual
+    end enthalpy follows the efficiency definition."""
+    air = tablegen.substance("air")
+    T0 = T1 * 2.0 if expand else T1
+    step = {"step": "expand" if expand else "compress", "ratio": ratio, "eta": eta}
+    spec, = charts({"kind": "ts", "overlays": [{"start": {"T": f"{T0}K", "P": "2bar"}, "steps": [step]}]})
+    m = C.build_chart(air, spec, T_range_K=(250.0, 1500.0))
+    p = {q.name: q for q in m.points}
+    one, two, iso = p["1"], p["2"], p["2s"]
+    assert iso.s == pytest.approx(one.s, abs=1e-7 * air.R)
+    assert iso.P_Pa == pytest.approx(two.P_Pa)
+    if expand:
+        assert two.h == pytest.approx(one.h - eta * (one.h - iso.h), abs=1e-6 * abs(one.h - iso.h) + 1e-6)
+        assert two.s >= iso.s - 1e-9 * air.R
+    else:
+        assert two.h == pytest.approx(one.h + (iso.h - one.h) / eta, abs=1e-6 * abs(iso.h - one.h) + 1e-6)
+        assert two.s >= iso.s - 1e-9 * air.R
