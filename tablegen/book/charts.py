@@ -572,10 +572,6 @@ def _fmt_value(v: float) -> str:
     return f"{v:.3g}"
 
 
-def _unit_label(sym: str) -> str:
-    return sym
-
-
 def _fingerprint(substance, spec: ChartSpec, T_range) -> str:
     h = hashlib.sha256()
     h.update(repr((substance.id, substance.M, substance.datum, substance.P_ref_Pa, substance.anchor,
