@@ -104,7 +104,7 @@ DEFINITIONS = {
     "g0": ("g°", "Gibbs energy at P°", "g° = h − T s°"),
     "cp_mean_h": ("c̄ₚ,h", "mean cₚ for enthalpy",
                   "c̄ₚ,h = [h(T) − h(Tₘ)]/(T − Tₘ); at T = Tₘ the limit cₚ(Tₘ) is printed; "
-                  "q = c̄ₚ,h (T₂ − Tₘ) − c̄ₚ,h(T₁)(T₁ − Tₘ)"),
+                  "heat from Tₘ to T is c̄ₚ,h (T − Tₘ)"),
     "cp_mean_s": ("c̄ₚ,s", "mean cₚ for entropy",
                   "c̄ₚ,s = [s°(T) − s°(Tₘ)]/ln(T/Tₘ); at T = Tₘ the limit cₚ(Tₘ) is printed"),
 }
@@ -188,9 +188,12 @@ class TableModel:
     anchor_text: str
     mean_cp_from_K: float
     grid_text: str
+    datum: dict             # kind, T_ref_K, h_ref_J_per_kg
+    anchor: dict            # T_K, Pr, vr
     T_K: np.ndarray
     marks: tuple            # per row: "" or a mark ("*" extra row, "x" extrapolated)
     columns: tuple          # Column; the temperature columns first
+    head_lines: tuple = ()  # lines printed under the title on every page of the table
     notes: list = field(default_factory=list)     # strings printed under the table
     charts: tuple = ()      # chart models (tablegen.book.charts), drawn after the table
 
@@ -330,13 +333,27 @@ def _substance_info(ref: str, s) -> SubstanceInfo:
 
 
 def _fmtK(T: float) -> str:
-    return f"{T:.2f}".rstrip("0").rstrip(".") + " K"
+    return f"{T:.3f}".rstrip("0").rstrip(".") + " K"
 
 
-def _datum_text(d) -> str:
+def _fmtT(T_K: float, unit_symbol: str) -> str:
+    """A temperature in the table's unit, with K beside it when that unit is not K."""
+    from ..units import unit
+    v = unit(unit_symbol, "temperature").from_si(T_K)
+    s = f"{v:.3f}".rstrip("0").rstrip(".")
+    if s == "-0":
+        s = "0"
+    return f"{s} {unit_symbol}" if unit_symbol == "K" else f"{s} {unit_symbol} = {_fmtK(T_K)}"
+
+
+def _datum_text(d, unit_symbol: str = "K") -> str:
     if d.kind == "formation":
         return "h(298.15 K) = enthalpy of formation (NASA/JANAF convention)"
-    return f"h({_fmtK(d.T_ref_K)}) = {d.h_ref_J_per_kg / 1000:g} kJ/kg (sensible enthalpy)"
+    return f"h({_fmtT(d.T_ref_K, unit_symbol)}) = {d.h_ref_J_per_kg / 1000:g} kJ/kg (sensible enthalpy)"
+
+
+def anchor_text_of(an, unit_symbol: str = "K") -> str:
+    return f"Pr = {an.Pr:g} and vr = {an.vr:g} at {_fmtT(an.T_K, unit_symbol)}"
 
 
 def _pressure_text(P: float) -> str:
@@ -355,7 +372,7 @@ def _grid_text(g: dict) -> str:
             u = unit(s["unit"], "temperature")
             step = s["step_K"] / u.factor
             parts.append(f"{u.from_si(s['start_K']):g} to {u.from_si(s['stop_K']):g} {u.symbol} "
-                         f"step {step:g}")
+                         f"step {step:g} {u.symbol}")
         return "; ".join(parts)
     if g["kind"] == "list":
         return f"{len(g['T_K'])} listed temperatures"
@@ -395,7 +412,8 @@ def build_table(t, doc) -> TableModel:
         marks.append(m)
     notes = []
     if t.extra_rows:
-        labels = [f"{_fmtK(e.T_K)}" + (f" ({e.label})" if e.label else "") for e in t.extra_rows]
+        labels = [_fmtT(e.T_K, t.temperature_units[0]) + (f" ({e.label})" if e.label else "")
+                  for e in t.extra_rows]
         notes.append("* extra row at a named temperature: " + ", ".join(labels) + ".")
     if ext is not None and np.any(ext):
         notes.append(f"x extrapolated beyond the data range {sub.T_min:g}-{sub.T_max:g} K: "
@@ -403,14 +421,22 @@ def build_table(t, doc) -> TableModel:
     basis_text = {"mass": "per unit mass", "molar": "per mole",
                   "volumetric": f"per m³ (SI) or ft³ (US) at {doc.reference.text}"}[t.basis]
     an = sub.anchor
-    anchor_text = f"Pr = {an.Pr:g} and vr = {an.vr:g} at {_fmtK(an.T_K)}"
+    anchor_text = anchor_text_of(an, t.temperature_units[0])
     subtitle = (f"{sub.name} ({sub.id}), M = {sub.M:.4f} kg/kmol · {basis_text} · "
                 f"P° = {_pressure_text(sub.P_ref_Pa)}")
+    t_unit = t.temperature_units[0]
+    datum_text = _datum_text(sub.datum, t_unit)
+    head_lines = (f"{sub.name} ({sub.id}), M = {sub.M:.4f} kg/kmol, R = {sub.R:.3f} J/(kg K); "
+                  f"data valid {sub.T_min:g}-{sub.T_max:g} K",
+                  f"Values {basis_text}; entropy at P° = {_pressure_text(sub.P_ref_Pa)}",
+                  f"Enthalpy datum {datum_text}; Pr/vr anchor: {anchor_text_of(sub.anchor, t_unit)}")
     return TableModel(
         name=t.name, title=t.title, subtitle=subtitle, substance=_substance_info(t.substance_ref, sub),
-        basis=t.basis, basis_text=basis_text, units=t.units, datum_text=_datum_text(sub.datum),
+        basis=t.basis, basis_text=basis_text, units=t.units, datum_text=datum_text, head_lines=head_lines,
         P_ref_Pa=sub.P_ref_Pa, anchor_text=anchor_text, mean_cp_from_K=t.T_mean_ref_K,
-        grid_text=_grid_text(t.grid), T_K=np.asarray(t.T_K, float), marks=tuple(marks),
+        grid_text=_grid_text(t.grid),
+        datum={"kind": sub.datum.kind, "T_ref_K": sub.datum.T_ref_K, "h_ref_J_per_kg": sub.datum.h_ref_J_per_kg},
+        anchor={"T_K": an.T_K, "Pr": an.Pr, "vr": an.vr}, T_K=np.asarray(t.T_K, float), marks=tuple(marks),
         columns=tuple(cols), notes=notes)
 
 
@@ -460,20 +486,21 @@ def versions() -> dict:
             "python": platform.python_version()}
 
 
-def build_book(spec) -> BookModel:
-    """Evaluate every table of a validated spec into the book model."""
+def build_book(spec, tables=None) -> BookModel:
+    """Evaluate every table of a validated spec into the book model.
+
+    ``tables`` may pass table models already built (to report progress per table).
+    """
     doc = spec.document
-    tables = tuple(build_table(t, doc) for t in spec.tables)
+    if tables is None:
+        tables = tuple(build_table(t, doc) for t in spec.tables)
     seen, subs = set(), []
     for t in tables:
         if t.substance.id not in seen:
             seen.add(t.substance.id)
             subs.append(t.substance)
-    used = []
-    for t in tables:
-        for c in t.columns:
-            if c.key not in used:
-                used.append(c.key)
+    present = {c.key for t in tables for c in t.columns}
+    used = [k for k in DEFINITIONS if k in present]
     definitions = []
     for k in used:
         sym, name, formula = DEFINITIONS[k]
