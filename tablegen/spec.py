@@ -384,6 +384,8 @@ def _segment(seg, where) -> tuple[np.ndarray, dict]:
         _fail(where, f"must be a table {{start = ..., stop = ..., step = ...}}, not {_typename(seg)}")
     _check_keys(seg, SEGMENT_KEYS, where)
     a, ua = _temp_unit(_get(seg, "start", str, where, required=True), f"{where}.start")
+    if not ua.to_si(a) > 0:
+        _fail(f"{where}.start", f"is {ua.to_si(a):g} K; temperatures must be above 0 K")
     b, ub = _temp_unit(_get(seg, "stop", str, where, required=True), f"{where}.stop")
     st, us = _temp_unit(_get(seg, "step", str, where, required=True), f"{where}.step")
     if ub.symbol != ua.symbol:

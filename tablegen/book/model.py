@@ -110,8 +110,10 @@ DEFINITIONS = {
 }
 
 ROUNDING_RULE = ("Each printed value is the computed double-precision value rounded once to the "
-                 "printed number of decimals (or significant digits for Pr and vr), ties to even "
-                 "on the exact binary value; the CSV files carry the unrounded values.")
+                 "printed number of decimals (or of significant digits, for Pr and vr), ties to even "
+                 "on the exact binary value; the CSV files carry the unrounded values. A value of n "
+                 "significant digits below 0.0001 or from 10^(n+2) up is printed in exponent form: "
+                 "2.0182e-05 = 2.0182 × 10⁻⁵.")
 
 CAUTIONS = (
     "These tables follow the ideal-gas model: the properties depend on temperature only "
