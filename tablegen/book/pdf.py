@@ -338,14 +338,30 @@ class _Widths:
         self.f = getFont(font)
 
     def __call__(self, s: str) -> float:
+        # DejaVu's figures share one width; correct for the few other characters
         cw = self.cw
-        try:
-            return sum(map(cw.__getitem__, s))
-        except KeyError:
-            for ch in s:
-                if ch not in cw:
-                    cw[ch] = self.f.stringWidth(ch, self.size)
-            return sum(map(cw.__getitem__, s))
+        if not cw:
+            self.digit = self.f.stringWidth("0", self.size)
+            for ch in "0123456789":
+                cw[ch] = self.digit
+            self.other = {ch: self.f.stringWidth(ch, self.size) - self.digit for ch in ".−e+*x-"}
+        w = len(s) * self.digit
+        for ch, dw in self.other.items():
+            if ch in s:
+                w += s.count(ch) * dw
+        if not s.strip("0123456789.−e+*x-"):
+            return w
+        return self.f.stringWidth(s, self.size)
+
+    def many(self, cells) -> list:
+        """Widths of a column of figures: digits, one '.' at most, a leading minus."""
+        self("0")
+        simple = set("".join(cells)) <= set("0123456789.−") and \
+            all(s.count(".") <= 1 and "−" not in s[1:] for s in cells)
+        if not simple:
+            return [self(s) for s in cells]
+        d, dm, dd = self.digit, self.other["−"], self.other["."]
+        return [len(s) * d + (dm if s[:1] == "−" else 0.0) + (dd if "." in s else 0.0) for s in cells]
 
 
 def plan_table(t, L: Layout):
@@ -404,6 +420,7 @@ def table_pages(t, index: int, L: Layout, pages: list):
     chunks = [(a, min(a + rpp, n)) for a in range(0, n, rpp)]
     widths = _Widths(SANS, L.body)
     cells_txt = [[_cell_text(s) for s in c.cells] for c in t.columns]
+    cell_w = [widths.many(col) for col in cells_txt]
     left0 = L.margin_x
     full = L.width - 2 * L.margin_x
     top = L.height - L.margin_top - 10
@@ -459,8 +476,7 @@ def table_pages(t, index: int, L: Layout, pages: list):
                 if markw and t.marks[r]:
                     cells.append((x0, base, t.marks[r]))
                 for i, xx in zip(g, xr):
-                    s = cells_txt[i][r]
-                    cells.append((xx - widths(s), base, s))
+                    cells.append((xx - cell_w[i][r], base, cells_txt[i][r]))
                 if (r - a + 1) % 5 == 0 and r + 1 < b:
                     ops.append(("l", x0, yy, x0 + tw, yy, 0.3, 0.6))
             ops.append(("cells", SANS, L.body, cells))
@@ -531,6 +547,15 @@ def render(book) -> bytes:
             if op[0] == "anchor":
                 anchors.setdefault(op[1], i)
     d = book.document
+    from reportlab import rl_config
+    a85, rl_config.useA85 = rl_config.useA85, 0     # binary streams: smaller and faster
+    try:
+        return _render(book, L, pages, anchors, d)
+    finally:
+        rl_config.useA85 = a85
+
+
+def _render(book, L, pages, anchors, d) -> bytes:
     buf = io.BytesIO()
     c = rl_canvas.Canvas(buf, pagesize=(L.width, L.height), invariant=1, initialFontName=SANS,
                          initialFontSize=10, pageCompression=1)
@@ -593,12 +618,7 @@ def _draw_ops(c, ops, anchors, L):
             c.rect(x, y, w, h, stroke=1, fill=0)
         elif kind == "cells":
             _, font, size, cells = op
-            to = c.beginText()
-            to.setFont(font, size)
-            for x, y, s in cells:
-                to.setTextOrigin(x, y)
-                to.textOut(s)
-            c.drawText(to)
+            _draw_cells(c, font, size, cells)
         elif kind == "pageref":
             _, font, size, x, y, anchor = op
             c.setFont(font, size)
@@ -610,6 +630,54 @@ def _draw_ops(c, ops, anchors, L):
                               L.height - L.margin_top - L.margin_bottom - 50)
         elif kind == "anchor":
             pass
+
+
+def _draw_cells(c, fontname: str, size: float, cells):
+    """Many short strings at given positions in one text object.
+
+    This writes the text operators directly (what reportlab's text object would write,
+    less its per-string width bookkeeping): characters are mapped to the embedded font's
+    subsets once per character through reportlab's own ``splitString``, so subsetting and
+    embedding stay reportlab's.
+    """
+    from reportlab.pdfbase.pdfdoc import escapePDF
+    font = getFont(fontname)
+    doc = c._doc
+    tf = f"{size:.2f} Tf"
+    used = set("".join(s for _, _, s in cells))
+    enc = {}
+    for ch in sorted(used):
+        (subset, b), = font.splitString(ch, doc)
+        enc[ch] = (subset, escapePDF(b))
+    subsets = {v[0] for v in enc.values()}
+    if len(subsets) <= 1:
+        # the usual case: every character of the figures lies in one subset
+        table = str.maketrans({ch: v[1] for ch, v in enc.items()})
+        out = ["BT"]
+        if subsets:
+            out.append(f"{font.getSubsetInternalName(subsets.pop(), doc)} {tf}")
+        out.extend([f"1 0 0 1 {x:.2f} {y:.2f} Tm ({s.translate(table)}) Tj" for x, y, s in cells])
+        out.append("ET")
+        c._code.append(" ".join(out))
+        return
+    chars = enc
+    out = ["BT"]
+    cur = None
+    for x, y, s in cells:
+        pieces = []
+        for ch in s:
+            e = chars[ch]
+            if e[0] != cur:
+                if pieces:
+                    out.append(f"({''.join(pieces)}) Tj")
+                    pieces = []
+                cur = e[0]
+                out.append(f"{font.getSubsetInternalName(cur, doc)} {tf}")
+            pieces.append(e[1])
+        out.append(f"1 0 0 1 {x:.2f} {y:.2f} Tm ({''.join(pieces)}) Tj")
+    out.append("ET")
+    # the canvas's page stream (reportlab keeps it in Canvas._code)
+    c._code.append(" ".join(out))
 
 
 def page_count(book) -> int:
