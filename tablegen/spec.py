@@ -522,8 +522,8 @@ def auto_step(sub, a, b, ua, keys, tol, extrapolate, where):
 # ---------------------------------------------------------------- tables
 TABLE_KEYS = ("name", "title", "substance", "grid", "extra_rows", "columns", "decimals", "significant",
               "units", "basis", "temperature_units", "datum", "P_ref", "anchor", "mean_cp_from",
-              "extrapolate")
-DEFAULT_KEYS = tuple(k for k in TABLE_KEYS if k not in ("name", "title", "substance"))
+              "extrapolate", "charts")
+DEFAULT_KEYS = tuple(k for k in TABLE_KEYS if k not in ("name", "title", "substance", "charts"))
 
 
 def _datum(v, where):
@@ -745,11 +745,17 @@ def _table(raw, where, defaults, doc, subs, source, data) -> TableSpec:
         T_mean = datum.T_ref_K if datum.kind == "sensible" else 298.15
     else:
         T_mean = _temperature(mref, f"{where}.mean_cp_from")
+    charts = ()
     if "charts" in raw:
-        pass  # reserved: handled by tablegen.book.charts once that lands
+        try:
+            from .book.charts import parse_charts
+        except ImportError:
+            _fail(f"{where}.charts", "charts are not available in this build of tablegen")
+        charts = tuple(parse_charts(raw["charts"], f"{where}.charts", units=system))
     return TableSpec(name=name, title=title, substance_ref=ref, substance=sub, T_K=allT, extra=flag,
                      extra_rows=tuple(extras), grid=grid, columns=tuple(fixed), units=system, basis=basis,
-                     temperature_units=t_units, T_mean_ref_K=float(T_mean), extrapolate=bool(extrapolate))
+                     temperature_units=t_units, T_mean_ref_K=float(T_mean), extrapolate=bool(extrapolate),
+                     charts=charts)
 
 
 # ---------------------------------------------------------------- book
@@ -869,6 +875,9 @@ def normalise(spec: BookSpec, source) -> dict:
             "anchor": {"T_K": s.anchor.T_K, "Pr": s.anchor.Pr, "vr": s.anchor.vr},
             "mean_cp_from_K": t.T_mean_ref_K, "extrapolate": t.extrapolate,
         })
+        if t.charts:
+            from dataclasses import asdict, is_dataclass
+            tables[-1]["charts"] = [asdict(c) if is_dataclass(c) else repr(c) for c in t.charts]
     subs = {}
     for k, s in sorted(spec.substances.items()):
         subs[k] = {"id": s.id, "name": s.name, "kind": s.kind,

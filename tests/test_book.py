@@ -178,7 +178,8 @@ def parse_table_pages(reader: PdfReader):
             pages.append(None)
             continue
         lines = [ln.strip() for ln in text.split("\n")]
-        start = next(j for j, ln in enumerate(lines) if ln.startswith("Enthalpy datum")) + 1
+        datum = next(j for j, ln in enumerate(lines) if ln.startswith("Enthalpy datum"))
+        start = next(j for j in range(datum + 1, len(lines)) if lines[j] == "T")   # first column header
         rows, header, marks = [], [], []
         j = start
         while j < len(lines):

@@ -432,7 +432,13 @@ def build_table(t, doc) -> TableModel:
                   f"data valid {sub.T_min:g}-{sub.T_max:g} K",
                   f"Values {basis_text}; entropy at P° = {_pressure_text(sub.P_ref_Pa)}",
                   f"Enthalpy datum {datum_text}; Pr/vr anchor: {anchor_text_of(sub.anchor, t_unit)}")
+    charts = ()
+    if t.charts:
+        from .charts import build_chart
+        charts = tuple(build_chart(sub, c, T_range_K=(float(t.T_K.min()), float(t.T_K.max())), units=t.units)
+                       for c in t.charts)
     return TableModel(
+        charts=charts,
         name=t.name, title=t.title, subtitle=subtitle, substance=_substance_info(t.substance_ref, sub),
         basis=t.basis, basis_text=basis_text, units=t.units, datum_text=datum_text, head_lines=head_lines,
         P_ref_Pa=sub.P_ref_Pa, anchor_text=anchor_text, mean_cp_from_K=t.T_mean_ref_K,

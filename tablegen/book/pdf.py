@@ -365,7 +365,10 @@ class _Widths:
 
 
 def plan_table(t, L: Layout):
-    """Column groups and rows per page of one table: (groups, rows_per_page, widths, notes lines)."""
+    """Column groups and rows per page of one table.
+
+    Returns (groups, rows_per_page, column widths, mark column width, note lines, head lines).
+    """
     widths = _Widths(SANS, L.body)
     colw = []
     for c in t.columns:
@@ -379,13 +382,20 @@ def plan_table(t, L: Layout):
     tcols = [i for i, c in enumerate(t.columns) if c.key == "T"]
     others = [i for i, c in enumerate(t.columns) if c.key != "T"]
     base = sum(colw[i] + L.gap for i in tcols)
-    groups, cur, used = [], [], base
+    # SI and US columns of one property stay side by side on one page
+    units = []
     for i in others:
-        w = colw[i] + L.gap
-        if cur and (used + w > avail or (L.max_columns and len(cur) >= L.max_columns)):
+        if units and t.columns[units[-1][-1]].key == t.columns[i].key:
+            units[-1].append(i)
+        else:
+            units.append([i])
+    groups, cur, used = [], [], base
+    for u in units:
+        w = sum(colw[i] + L.gap for i in u)
+        if cur and (used + w > avail or (L.max_columns and len(cur) + len(u) > L.max_columns)):
             groups.append(cur)
             cur, used = [], base
-        cur.append(i)
+        cur.extend(u)
         used += w
     if cur or not groups:
         groups.append(cur)
@@ -394,14 +404,17 @@ def plan_table(t, L: Layout):
         note_lines.extend(simpleSplit(n, SANS_OBLIQUE, L.body * 0.85, L.width - 2 * L.margin_x))
     top = L.height - L.margin_top - 10
     bottom = L.margin_bottom + 14
-    title_h = L.text * 1.35 * 1.3 + L.body * 1.25 * len(t.head_lines) + 4
+    head = []
+    for line in t.head_lines:
+        head.extend(simpleSplit(line, SANS, L.body * 0.9, L.width - 2 * L.margin_x))
+    title_h = L.text * 1.35 * 1.3 + L.body * 1.2 * len(head) + 4
     header_h = L.head * 1.3 + L.body * 0.82 * 1.3 + 6
     notes_h = (len(note_lines) + 1) * L.body * 0.85 * 1.3 + 4
     avail_h = top - bottom - title_h - header_h - notes_h
     rpp = max(1, int(avail_h // L.row))
     if rpp >= 10:
         rpp -= rpp % 5
-    return [tcols + g for g in groups], rpp, colw, markw, note_lines
+    return [tcols + g for g in groups], rpp, colw, markw, note_lines, head
 
 
 def _shapes(cells):
@@ -415,7 +428,7 @@ def _shapes(cells):
 
 
 def table_pages(t, index: int, L: Layout, pages: list):
-    groups, rpp, colw, markw, note_lines = plan_table(t, L)
+    groups, rpp, colw, markw, note_lines, head = plan_table(t, L)
     n = t.rows
     chunks = [(a, min(a + rpp, n)) for a in range(0, n, rpp)]
     widths = _Widths(SANS, L.body)
@@ -442,15 +455,13 @@ def table_pages(t, index: int, L: Layout, pages: list):
                 part.append(f"rows {a + 1}-{b} of {n}")
             if len(groups) > 1:
                 part.append(f"columns part {gi + 1} of {len(groups)}")
-            part = "; ".join(part)
-            pw = _w(part, SANS, L.body * 0.9) + 12 if part else 0.0
+            if b < n or gi + 1 < len(groups):
+                part.append("continued on the next page")
             ops.append(("t", SANS_BOLD, L.text * 1.35, left0, y,
-                        _fit(f"Table {index}. {t.title}", SANS_BOLD, L.text * 1.35, full - pw)))
-            if part:
-                ops.append(("r", SANS, L.body * 0.9, left0 + full, y, part))
-            for line in t.head_lines:
-                y -= L.body * 1.25
-                ops.append(("t", SANS, L.body * 0.9, left0, y, _fit(line, SANS, L.body * 0.9, full)))
+                        _fit(f"Table {index}. {t.title}", SANS_BOLD, L.text * 1.35, full)))
+            for line in head:
+                y -= L.body * 1.2
+                ops.append(("t", SANS, L.body * 0.9, left0, y, line))
             y -= 6
             # column header: symbol, unit, rule
             xr = []
@@ -483,8 +494,8 @@ def table_pages(t, index: int, L: Layout, pages: list):
             ops.append(("l", x0, yy - 1, x0 + tw, yy - 1, 0.8, 0.0))
             ny = yy - 3
             lines = list(note_lines)
-            if b < n or gi + 1 < len(groups):
-                lines.append("continued on the next page")
+            if part:
+                lines.append(" · ".join(part))
             for line in lines:
                 ny -= L.body * 0.85 * 1.3
                 ops.append(("t", SANS_OBLIQUE, L.body * 0.85, left0, ny, line))
