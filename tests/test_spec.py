@@ -193,3 +193,23 @@ def test_normalised_spec_has_no_paths_and_applies_defaults(tmp_path):
     assert t["P_ref_Pa"] == 1e5 and t["datum"]["kind"] == "formation"
     assert math.isclose(t["anchor"]["T_K"], 298.15)
     assert [c["key"] for c in t["columns"]][:2] == ["T", "T"]
+
+
+def test_the_annotated_example_in_docs_builds(tmp_path):
+    from pathlib import Path
+    doc = (Path(__file__).resolve().parent.parent / "docs" / "spec.md").read_text(encoding="utf-8")
+    example = doc.split("```toml\n", 1)[1].split("```", 1)[0]
+    p = tmp_path / "example.toml"
+    p.write_text(example, encoding="utf-8")
+    s = spec.load(p)
+    assert [t.name for t in s.tables] == ["air-si", "flue-nm3", "co2-molar"]
+    assert s.tables[1].basis == "volumetric" and s.tables[2].substance.P_ref_Pa == 101325.0
+
+
+def test_substance_of_a_named_species_or_shipped_mixture(tmp_path):
+    text = BASE.replace("[substances.blend]\nmixture = { CH4 = 0.9, N2 = 0.1 }",
+                        '[substances.blend]\nof = "carbon dioxide"\nname = "process CO2"')
+    p = tmp_path / "of.toml"
+    p.write_text(text, encoding="utf-8")
+    t = spec.load(p).tables[1]
+    assert t.substance.id == "CO2" and t.substance.name == "process CO2"
