@@ -572,3 +572,22 @@ def test_model_leaves_room_for_notes_charts_and_appendix(tmp_path):
     data = pdf.render(book2)
     text = "\n".join(pg.extract_text() for pg in PdfReader(io.BytesIO(data)).pages)
     assert "U(cp) = 0.2 % (k = 2)" in text and "Appendix A. Uncertainty" in text
+
+
+def test_extrapolated_rows_are_marked_in_pdf_csv_and_notes(tmp_path):
+    text = SPEC.replace("PAPER", "A4") + textwrap.dedent('''
+        [[tables]]
+        name = "n2-cold"
+        substance = "N2"
+        extrapolate = true
+        grid = { list = ["150 K", "300 K"] }
+    ''')
+    out = build(tmp_path, "A4", name="ext", text=text)
+    csv_text = (out / "n2-cold.csv").read_bytes().decode("utf-8")
+    assert "# extrapolated beyond the data range at T_K = 150.0\r\n" in csv_text
+    reader = PdfReader(str(out / "ext.pdf"))
+    pages = [p for p in parse_table_pages(reader) if p is not None and p[0] == 4]
+    assert len(pages) == 1
+    _, pairs, rows, marks, text = pages[0]
+    assert marks == ["x", ""] and rows[0][0] == "150"
+    assert "x extrapolated beyond the data range 200-6000 K" in text

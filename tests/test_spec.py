@@ -213,3 +213,79 @@ def test_substance_of_a_named_species_or_shipped_mixture(tmp_path):
     p.write_text(text, encoding="utf-8")
     t = spec.load(p).tables[1]
     assert t.substance.id == "CO2" and t.substance.name == "process CO2"
+
+
+RICH = textwrap.dedent('''
+    [document]
+    title = "Rich"
+    number = "R-1"
+    revision = "A"
+    issue_date = 2026-11-30
+    units = "both"
+    basis = "volumetric"
+    reference = { name = "works", T = "20 °C", P = "1 atm" }
+
+    [substances.blend]
+    mixture = { CH4 = 0.9, N2 = 0.1 }
+    basis = "mole"
+    name = "blend"
+
+    [defaults]
+    columns = ["T", "cp", "h", "s0", "Pr", "cp_mean_h"]
+
+    [[tables]]
+    name = "t0"
+    title = "T0"
+    substance = "blend"
+    temperature_units = ["°C", "°F"]
+    decimals = { h = 1 }
+    significant = { Pr = 4 }
+    datum = { kind = "sensible", T = "0 °C", h = "0 kJ/kg" }
+    P_ref = "1 atm"
+    anchor = { T = "300 K", Pr = 1.0, vr = 1.0 }
+    mean_cp_from = "0 °C"
+    extra_rows = [ { T = "15 °C", label = "x" }, "20 °C" ]
+    grid = { segments = [ { start = "0 °C", stop = "100 °C", step = "50 °C" } ] }
+
+    [[tables]]
+    name = "t1"
+    substance = "N2"
+    grid = { start = "300 K", stop = "600 K", tolerance = 1e-3 }
+''')
+
+
+def _paths(obj, prefix=()):
+    if isinstance(obj, dict):
+        for k, v in obj.items():
+            yield prefix + (k,)
+            yield from _paths(v, prefix + (k,))
+    elif isinstance(obj, list):
+        for i, v in enumerate(obj):
+            yield prefix + (i,)
+            yield from _paths(v, prefix + (i,))
+
+
+def test_any_value_of_the_wrong_type_is_a_spec_error_never_a_crash():
+    """Every key of a rich spec set in turn to values of every TOML type: the result is a
+    valid book or a TablegenError naming the key, never another exception."""
+    import copy
+    import tomllib
+
+    from tablegen.errors import TablegenError
+    base = tomllib.loads(RICH)
+    spec.parse(base, name="rich")                      # the base is valid
+    wrong = [7, -1.5, "x", True, [], ["y", 2], {}, {"z": 1}]
+    checked = 0
+    for path in _paths(base):
+        for w in wrong:
+            raw = copy.deepcopy(base)
+            node = raw
+            for k in path[:-1]:
+                node = node[k]
+            node[path[-1]] = w
+            try:
+                spec.parse(raw, name="rich")
+            except TablegenError as e:
+                assert str(e).split(":")[0], e
+            checked += 1
+    assert checked > 300

@@ -24,7 +24,7 @@ def add_arguments(p):
                 "copy, A5 pocket copy) hold dry air, the fuel blend, its flue gas and pure CO2, H2O\n"
                 "and N2 in SI and US customary units. The demo always overwrites the files it\n"
                 "writes into its output folder (no --force needed); other files there are left alone.\n"
-                "Copy a spec from tablegen/demo/ to start a book of your own.\n\n"
+                "The specs it builds from are named on stderr: copy one to start a book of your own.\n\n"
                 "example:\n"
                 "  tablegen demo\n"
                 "  tablegen demo --out /tmp/demo")
@@ -36,6 +36,7 @@ def run(args) -> int:
     out = Path(args.out) if args.out else OUT
     all_files = {}
     for path in spec_paths():
+        notice(args, f"demo spec {path}")
         spec = specmod.load(path, source=args.source, data=args.data)
         bar = progress_for(args, len(spec.tables), f"building {spec.name}")
         files, _ = render_files(spec, out, bar)
