@@ -591,3 +591,4 @@ def test_extrapolated_rows_are_marked_in_pdf_csv_and_notes(tmp_path):
     _, pairs, rows, marks, text = pages[0]
     assert marks == ["x", ""] and rows[0][0] == "150"
     assert "x extrapolated beyond the data range 200-6000 K" in text
+

@@ -112,7 +112,7 @@ DEFINITIONS = {
 ROUNDING_RULE = ("Each printed value is the computed double-precision value rounded once to the "
                  "printed number of decimals (or of significant digits, for Pr and vr), ties to even "
                  "on the exact binary value; the CSV files carry the unrounded values. A value of n "
-                 "significant digits below 0.0001 or from 10^(n+2) up is printed in exponent form: "
+                 "significant digits below 0.0001 or from 10ⁿ⁺² up is printed in exponent form: "
                  "2.0182e-05 = 2.0182 × 10⁻⁵.")
 
 CAUTIONS = (
