@@ -33,7 +33,6 @@ def main() -> int:
     from tablegen import spec as specmod
     from tablegen.book import csvout, jsonout, model, pdf
     from tablegen.book.fonts import register
-    from tablegen.commands.common import dumps
     register()
     with tempfile.TemporaryDirectory() as d:
         # 20 table pages per substance at the A4 rows per page
@@ -51,7 +50,7 @@ def main() -> int:
         t3 = time.perf_counter()
         names = {"pdf": "bench.pdf", "csv": [f"{t.name}.csv" for t in book.tables]}
         csvs = [csvout.render_table(book, t) for t in book.tables]
-        js = dumps(jsonout.sidecar(book, names))
+        js = jsonout.render(book, names)
         t4 = time.perf_counter()
     _, pages = pdf.plan(book)
     table_pages = sum(1 for pg in pages if pg.kind == "table")

@@ -11,7 +11,6 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
-from ..commands.common import dumps
 from ..outfiles import check_targets, write_bytes
 
 
@@ -38,7 +37,7 @@ def render_files(spec, out_dir, progress=None) -> tuple[dict, object]:
     if progress:
         progress(n + 1, total, "PDF")
     files[out_dir / names["pdf"]] = pdf_bytes
-    files[out_dir / f"{spec.name}.json"] = dumps(jsonout.sidecar(book, names)).encode("utf-8")
+    files[out_dir / f"{spec.name}.json"] = jsonout.render(book, names).encode("utf-8")
     if progress:
         progress(total, total, "JSON")
     return files, book

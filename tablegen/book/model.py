@@ -395,7 +395,9 @@ def build_table(t, doc) -> TableModel:
     cols = []
     for c in t.columns:
         if c.key == "T":
-            v = unit(c.unit, "temperature").from_si(t.T_K)
+            # grid temperatures are exact decimals in their own unit; conversion leaves binary
+            # noise (-59.66999999999996 °F) that 1e-9 rounding removes without loss
+            v = np.round(unit(c.unit, "temperature").from_si(t.T_K), 9)
         else:
             v = vals[c.key] / unit_factor(c.key, c.system, t.basis)
         v = np.asarray(v, float)
