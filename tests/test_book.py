@@ -22,6 +22,8 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+
+from tablegen.data.library import library
 from pypdf import PdfReader
 
 import tablegen
@@ -308,7 +310,8 @@ def test_footer_fingerprint_equals_json_and_covers_spec_and_data(a4):
         assert actual == f["sha256"]
         h.update(f"\n{f['name']} {actual}".encode())
     assert h.hexdigest() == fp
-    assert {"nasa1993.toml", "mixtures.toml"} <= {f["name"] for f in meta["data_files"]}
+    used = {Path(library().datasets[library().record(k).dataset].path).name for k in ("CO2", "H2O", "N2", "O2")}
+    assert used | {"mixtures.toml"} <= {f["name"] for f in meta["data_files"]}
 
 
 def test_front_section_content(a4):
@@ -316,12 +319,16 @@ def test_front_section_content(a4):
     text = "\n".join(reader.pages[i].extract_text() for i in range(5))
     for needle in ("Document control", "GH-77", "2026-09-01", "Prepared", "Checked", "Approved", "A. Tester",
                    "How to read these tables", "Substances and compositions", "−R Σ yᵢ ln yᵢ",
-                   "Data sources", "NASA TM-4513", "CAUTION", "licensed engineering practice",
+                   "Data sources", "CAUTION", "licensed engineering practice",
                    "frozen", "ideal-gas model", "c̄ₚ,h = [h(T) − h(Tₘ)]/(T − Tₘ)", "1 atm", "Contents"):
         assert needle in text, needle
+    # every data set the species came from is named (their default sources, gasdata/defaults.toml)
+    token = {"janaf1998": "JANAF", "nasa1993": "TM-4513", "nasa2002-air": "TP-2002-211556"}
+    for k in ("CO2", "H2O", "N2", "O2"):
+        assert token[library().record(k).dataset] in text
     # mole and mass fractions of the mixture, mass fractions from the molar masses
     y = {"CO2": 0.1, "H2O": 0.15, "N2": 0.72, "O2": 0.03}
-    M = {"CO2": 44.009, "H2O": 18.015, "N2": 28.014, "O2": 31.998}   # as in the NASA TM-4513 records
+    M = {"CO2": 44.009, "H2O": 18.015, "N2": 28.014, "O2": 31.998}   # IUPAC abridged weights
     Mmix = sum(y[k] * M[k] for k in y)
     for k in y:
         assert f"{y[k] * M[k] / Mmix:.6f}" in text
