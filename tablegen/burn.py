@@ -33,7 +33,7 @@ from __future__ import annotations
 import math
 import re
 import tomllib
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from functools import lru_cache
 from pathlib import Path
 
@@ -179,6 +179,7 @@ class Fuel:
     phase: str = "gas"
     analysis: dict = field(default_factory=dict)       # bases -> mass fractions (analysis fuels)
     notes: tuple = ()
+    spec: str | None = None      # text that re-creates this fuel (for flue@ names), if any
 
     def h_J_per_kg(self, T_K: float, data=(), source=None) -> tuple[float, bool]:
         """Enthalpy of the fuel as fired at T (formation datum), J/kg; and 'extrapolated'."""
@@ -521,10 +522,15 @@ def fuel_from_text(text: str, *, data=(), source=None) -> Fuel:
         except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError) as e:
             raise SpecError(f"fuel file {t}: cannot read it as TOML ({e})") from None
         table = raw.get("fuel", raw) if isinstance(raw.get("fuel"), dict) else raw
-        return fuel_from_table(table, f"{p.name}:fuel" if "fuel" in raw else p.name, data=data, source=source)
+        f = fuel_from_table(table, f"{p.name}:fuel" if "fuel" in raw else p.name, data=data, source=source)
+        return replace(f, spec=t if "@" not in t else None)
+    if "@" in t:
+        raise TablegenError(f"fuel {t!r}: '@' is not allowed in a fuel text (it separates the parts of flue-gas names)")
     if ":" in t:
-        return gas_fuel(parse_inline(t, "fuel"), "mole", id=t, data=data, source=source)
-    return gas_fuel({t: 1.0}, "mole", id=t, name=t, data=data, source=source)
+        f = gas_fuel(parse_inline(t, "fuel"), "mole", id=t, data=data, source=source)
+    else:
+        f = gas_fuel({t: 1.0}, "mole", id=t, name=t, data=data, source=source)
+    return replace(f, spec=t)
 
 
 # ================================================================ oxidants
@@ -538,6 +544,7 @@ class Oxidant:
     M: float
     humidity_ratio: float = 0.0        # kg H2O / kg dry oxidant
     notes: tuple = ()
+    spec: str | None = None            # text that re-creates this oxidant (for flue@ names), if any
 
     @property
     def y_O2(self) -> float:
@@ -654,7 +661,22 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
         comp["H2O"] = yw
         recs["H2O"] = _record("H2O", data, source)
     M = sum(v * recs[k].M for k, v in comp.items())
-    return Oxidant(id=label, name=name or label, composition=comp, M=M, humidity_ratio=w, notes=tuple(notes))
+    opts = [f"{k}={_g(v)}" for k, v in (("o2", o2_percent), ("rh", relative_humidity), ("w", humidity_ratio))
+            if v is not None]
+    if relative_humidity is not None:
+        opts += [f"T={_g(float(temperature_K))}K", f"P={_g(float(pressure_Pa))}Pa"]
+    if composition is None:
+        spec = ("oxygen" if dry == {"O2": 1.0} and not opts else str(base).strip().lower()) + \
+            (":" + ",".join(opts) if opts else "")
+    else:
+        spec = None if opts else ",".join(f"{k}:{_g(v)}" for k, v in composition.items())
+    return Oxidant(id=label, name=name or label, composition=comp, M=M, humidity_ratio=w, notes=tuple(notes),
+                   spec=spec)
+
+
+def _g(v) -> str:
+    """Shortest text that reads back as the same float."""
+    return repr(float(v))
 
 
 def oxidant_from_text(text: str, *, data=(), source=None) -> Oxidant:
@@ -664,7 +686,7 @@ def oxidant_from_text(text: str, *, data=(), source=None) -> Oxidant:
     t = str(text).strip()
     base, _, rest = t.partition(":")
     if rest and "=" not in rest:                       # inline mole fractions
-        return make_oxidant(composition=parse_inline(t, "oxidant"), data=data, source=source)
+        return replace(make_oxidant(composition=parse_inline(t, "oxidant"), data=data, source=source), spec=t)
     kw = {}
     for part in filter(None, (p.strip() for p in rest.split(","))):
         if "=" not in part:
@@ -684,7 +706,9 @@ def oxidant_from_text(text: str, *, data=(), source=None) -> Oxidant:
         else:
             raise TablegenError(f"oxidant {text!r}: unknown option {k!r}; allowed: o2 (% O2, dry), "
                                 f"rh (%), T, P, w (kg water per kg dry air)")
-    return make_oxidant(base=base or "air", data=data, source=source, **kw)
+    if "@" in t:
+        raise TablegenError(f"oxidant {t!r}: '@' is not allowed (it separates the parts of flue-gas names)")
+    return replace(make_oxidant(base=base or "air", data=data, source=source, **kw), spec=t)
 
 
 def oxidant_from_table(t, where="oxidant", *, data=(), source=None) -> Oxidant:
@@ -759,6 +783,14 @@ def _solve_air_ratio(*, excess_air, air_ratio, phi, o2_dry, o2_wet, o2_need, n_o
                             f"the O2 content of the oxidant on that basis ({y_max * 100:.4g} %); allowed: "
                             f"0 <= O2 < {y_max * 100:.4g} %")
     return (o2_need + y * total0) / (o2_need - y * n_ox_st * c)
+
+
+def _given_amount(excess_air, air_ratio, phi, o2_dry, o2_wet):
+    for k, v in (("excess-air", excess_air), ("lambda", air_ratio), ("phi", phi), ("o2-dry", o2_dry),
+                 ("o2-wet", o2_wet)):
+        if v is not None:
+            return k, float(v)
+    raise TablegenError("give one amount of oxidant")  # pragma: no cover - checked before
 
 
 def _products_at(fuel: Fuel, ox: Oxidant, n_ox: float) -> dict:
@@ -869,12 +901,17 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
     m_dry = m_wet - prod.get("H2O", 0.0) * recs["H2O"].M * 1e-3 if "H2O" in prod else m_wet
     w_wet = {k: v * recs[k].M * 1e-3 / m_wet for k, v in prod.items()}
     w_dry = {k: v * recs[k].M * 1e-3 / m_dry for k, v in prod.items() if k != "H2O"}
-    amount = f"lambda={lam:.6g}"
-    base_id = f"flue@{f.id}@{amount}" + ("" if ox.id == "dry air" else f"@{ox.id}")
+    amount_key, amount_value = _given_amount(excess_air, air_ratio, phi, o2_dry, o2_wet)
+    amount = f"{amount_key}={_g(amount_value)}"
+    if f.spec and ox.spec:
+        base_id = f"flue@{f.spec}@{amount}" + ("" if ox.spec == "air" else f"@{ox.spec}")
+    else:
+        base_id = f"flue gas of {f.id} with {ox.id} at {amount}"
     products = mixture_substance([(recs[k], v) for k, v in y_wet.items()], "mole", id=base_id,
                                  name=f"flue gas of {f.name} with {ox.name} at λ = {lam:.4g} (wet)",
                                  what="flue gas")
-    products_dry = mixture_substance([(recs[k], v) for k, v in y_dry.items()], "mole", id=base_id + "@dry",
+    products_dry = mixture_substance([(recs[k], v) for k, v in y_dry.items()], "mole",
+                                     id=base_id + ("@dry" if base_id.startswith("flue@") else " (dry)"),
                                      name=f"flue gas of {f.name} with {ox.name} at λ = {lam:.4g} (dry)",
                                      what="dry flue gas")
 
