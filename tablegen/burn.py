@@ -444,7 +444,7 @@ def condensed_fuel(el_mass: dict | None = None, *, formula=None, basis="as-recei
             hhv_ar = hhv_b * per_kg_ar
         if hhv_ar <= 0:
             raise TablegenError(f"{what}: the heating value must be positive")
-        h_ref = -hhv_ar + hp_liq - o2 * h_o2
+        h_ref = hhv_ar + hp_liq - o2 * h_o2          # HHV = h_fuel + n_O2 h_O2 - Σ n h(products, liquid water)
         notes.append(f"fuel enthalpy derived from the given {given[0].upper()} "
                      f"({'per kg ' + basis}) at {T_hv:g} K")
     if cp is None:
@@ -675,8 +675,9 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
 
 
 def _g(v) -> str:
-    """Shortest text that reads back as the same float."""
-    return repr(float(v))
+    """Shortest text that reads back as the same float ('15', '1.15', '0.1')."""
+    r = repr(float(v))
+    return r[:-2] if r.endswith(".0") else r
 
 
 def oxidant_from_text(text: str, *, data=(), source=None) -> Oxidant:
@@ -769,7 +770,10 @@ def _solve_air_ratio(*, excess_air, air_ratio, phi, o2_dry, o2_wet, o2_need, n_o
     if k == "excess_air":
         return 1 + _num(v, "excess air (%)", lo=0.0) / 100
     if k == "lambda":
-        return _num(v, "lambda", lo=1.0)
+        if _num(v, "lambda") < 1:
+            raise TablegenError(f"lambda = {float(v):g} is below 1; complete combustion needs lambda >= 1 "
+                                f"(fuel-rich flames make CO and H2, which this model does not)")
+        return float(v)
     if k == "phi":
         return 1 / _num(v, "phi", lo=0.0, hi=1.0, lo_open=True)
     # Flue gas at λ: O2 = (λ-1) O2_need; wet total = wet0 + λ n_st; dry total = dry0 + λ n_st (1 - y_H2O,ox),
@@ -857,6 +861,8 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
     if isinstance(fuel, Fuel):
         f = fuel
     elif isinstance(fuel, dict):
+        if fuel and not any(k in FUEL_KEYS for k in fuel):      # a bare {species: mole fraction}
+            fuel = {"composition": fuel}
         f = fuel_from_table(fuel, "fuel", data=data, source=source)
     else:
         f = fuel_from_text(fuel, data=data, source=source)
@@ -1020,8 +1026,36 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
     s["oxidant"] = ox.describe()
     s["notes"] = notes
     s["cautions"] = cautions
-    return CombustionResult(fuel=f, oxidant=ox, air_ratio=lam, products=products, products_dry=products_dry,
-                            moles_per_kg=prod, summary=s, cautions=cautions)
+    result = CombustionResult(fuel=f, oxidant=ox, air_ratio=lam, products=products, products_dry=products_dry,
+                              moles_per_kg=prod, summary=s, cautions=cautions)
+    _MADE[products.id] = _MADE[products_dry.id] = result
+    return result
+
+
+#: Substance id -> the CombustionResult that made it (so documents can print its cautions).
+_MADE: dict = {}
+
+
+def result_for(substance) -> CombustionResult | None:
+    """The combustion result behind a flue-gas Substance (by id), or None for other substances.
+
+    Documents that tabulate a substance call this to print the combustion cautions and
+    summary with it.
+    """
+    r = _MADE.get(getattr(substance, "id", None))
+    if r is None and str(getattr(substance, "id", "")).lower().startswith(PREFIX):
+        try:
+            resolve(substance.id)
+        except TablegenError:
+            return None
+        r = _MADE.get(substance.id)
+    return r
+
+
+def cautions_for(substance) -> list | None:
+    """The cautions to print with a flue-gas Substance, or None if it is not one."""
+    r = result_for(substance)
+    return None if r is None else list(r.cautions)
 
 
 # ================================================================ names and specs
@@ -1061,8 +1095,9 @@ def _resolve_cached(name: str, data: tuple, source):
     fuel_text, amount, oxidant, dry = parse_name(name)
     r = combustion(fuel_text, oxidant, data=data, source=source, **amount)
     sub = r.products_dry if dry else r.products
-    from dataclasses import replace
-    return replace(sub, id=name, _cache={})
+    out = replace(sub, id=name, _cache={})
+    _MADE[name] = r
+    return out
 
 
 def resolve(name: str, data=(), source=None):
@@ -1123,13 +1158,15 @@ def substance_from_spec(table: dict, where: str, *, data=(), source=None):
     except TablegenError as e:
         raise SpecError(f"{where}.{ak}: {e}") from None
     sub = r.products_dry if basis == "dry" else r.products
-    from dataclasses import replace
     kw = {}
     if "id" in table:
         kw["id"] = str(table["id"])
     if "name" in table:
         kw["name"] = str(table["name"])
-    return replace(sub, _cache={}, **kw) if kw else sub
+    if kw:
+        sub = replace(sub, _cache={}, **kw)
+        _MADE[sub.id] = r
+    return sub
 
 
 def _register():

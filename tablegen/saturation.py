@@ -122,7 +122,7 @@ def h_vap_J_per_kg(T_K):
 
     Parameters
     ----------
-    T_K : array_like, 273.16 K <= T < 647.096 K
+    T_K : array_like, 273.15 K <= T < 647.096 K
 
     Raises
     ------
@@ -132,7 +132,9 @@ def h_vap_J_per_kg(T_K):
     ----------
     W. Wagner and A. Pruss, J. Phys. Chem. Ref. Data 22 (1993) 783-787, eqs. 1-3.
     """
-    T = _check(T_K, T_TRIPLE, T_CRIT - 1e-6, "temperature", "K")
+    # 273.15 K (0 °C, an ISO 6976 reference temperature) lies 0.01 K below the triple point:
+    # the equations are smooth there and describe the (metastable) liquid continuously.
+    T = _check(T_K, T_LOW_IF97, T_CRIT - 1e-6, "temperature", "K")
     tau = 1.0 - T / T_CRIT
     S = _wp_sum(tau, _WP_A, _WP_A_EXP)
     dS_dtau = sum(a * e * tau ** (e - 1) for a, e in zip(_WP_A, _WP_A_EXP))
