@@ -1032,8 +1032,21 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
     return result
 
 
+class _Recent(dict):
+    """A dict that keeps only the most recent entries (bounded memory in long runs)."""
+
+    LIMIT = 512
+
+    def __setitem__(self, key, value):
+        if key in self:
+            del self[key]
+        super().__setitem__(key, value)
+        while len(self) > self.LIMIT:
+            del self[next(iter(self))]
+
+
 #: Substance id -> the CombustionResult that made it (so documents can print its cautions).
-_MADE: dict = {}
+_MADE: dict = _Recent()
 
 
 def result_for(substance) -> CombustionResult | None:
@@ -1108,12 +1121,43 @@ def resolve(name: str, data=(), source=None):
 
 
 SPEC_KEYS = ("fuel", "oxidant", "excess_air", "lambda", "phi", "o2_dry", "o2_wet", "flue_basis", "name", "id")
+ANALYSIS_SPEC_KEYS = ("flue_analysis", "basis", "water_percent", "normalise", "name", "id")
+
+
+def flue_gas_from_analysis(composition: dict, basis: str = "volume-dry", *, water_percent: float = 0.0,
+                           normalise: bool = False, name=None, id=None, data=(), source=None,
+                           what="flue_analysis"):
+    """A measured flue-gas analysis (% by volume, dry or wet) as a Substance.
+
+    Parameters
+    ----------
+    composition : species -> % by volume (or fractions)
+    basis : "volume-dry" (then ``water_percent``, the H2O of the wet gas in %) or "volume-wet"
+    """
+    from .thermo.build import mixture_substance
+    if basis not in ("volume-dry", "volume-wet"):
+        raise TablegenError(f"{what}: basis {basis!r} is not known; allowed: volume-dry, volume-wet")
+    y, _ = _fractions(composition, what, normalise_loose=normalise)
+    wp = _num(water_percent, f"{what}: water_percent", lo=0.0, hi=100.0)
+    if wp and basis != "volume-dry":
+        raise TablegenError(f"{what}: water_percent is only for basis = \"volume-dry\"")
+    recs = [(_record(k, data, source, what=f"{what}.{k}"), v) for k, v in y.items()]
+    if basis == "volume-dry":
+        if any(r.id == "H2O" for r, _ in recs):
+            raise TablegenError(f"{what}: a dry analysis cannot list H2O; give it as water_percent")
+        recs = [(r, v * (1 - wp / 100)) for r, v in recs]
+        if wp:
+            recs.append((_record("H2O", data, source), wp / 100))
+    label = id or "flue gas analysis " + ",".join(f"{r.id}:{v:.6g}" for r, v in recs)
+    return mixture_substance(recs, "mole", id=label, name=name or label, what=what)
 
 
 def substance_from_spec(table: dict, where: str, *, data=(), source=None):
     """A flue-gas Substance from a spec table.
 
-    Keys: fuel (text or table, see fuel_from_table), oxidant (text or table), one of
+    Either a measured analysis: flue_analysis (species -> % by volume), basis
+    "volume-dry" (default; water_percent gives the H2O of the wet gas) or "volume-wet".
+    Or a computed flue gas: fuel (text or table, see fuel_from_table), oxidant (text or table), one of
     excess_air (%), lambda, phi, o2_dry (%), o2_wet (%); flue_basis "wet" (default) or
     "dry"; optional name and id.
 
@@ -1123,6 +1167,21 @@ def substance_from_spec(table: dict, where: str, *, data=(), source=None):
     """
     if not isinstance(table, dict):
         raise SpecError(f"{where}: a flue-gas substance is a table with fuel and an amount of oxidant")
+    if "flue_analysis" in table:
+        for k in table:
+            if k not in ANALYSIS_SPEC_KEYS:
+                raise SpecError(f"{where}.{k} is not known with flue_analysis; allowed: "
+                                f"{', '.join(ANALYSIS_SPEC_KEYS)}")
+        try:
+            return flue_gas_from_analysis(table["flue_analysis"], table.get("basis", "volume-dry"),
+                                          water_percent=table.get("water_percent", 0.0),
+                                          normalise=bool(table.get("normalise", False)), name=table.get("name"),
+                                          id=table.get("id"), data=data, source=source,
+                                          what=f"{where}.flue_analysis")
+        except SpecError:
+            raise
+        except TablegenError as e:
+            raise SpecError(str(e) if str(e).startswith(where) else f"{where}: {e}") from None
     for k in table:
         if k not in SPEC_KEYS:
             raise SpecError(f"{where}.{k} is not known; allowed: {', '.join(SPEC_KEYS)}")

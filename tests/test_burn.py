@@ -463,3 +463,13 @@ def test_cautions_reachable_from_the_substance():
     spec = burn.substance_from_spec({"fuel": "CH4", "excess_air": 10, "id": "site flue gas"}, "tables[1].substance")
     assert burn.cautions_for(spec) and burn.result_for(spec).air_ratio == pytest.approx(1.1, rel=1e-15)
     assert burn.cautions_for(tablegen.substance("CO2")) is None
+
+
+def test_measured_flue_gas_analysis_dry_to_wet():
+    """Identity: a dry analysis with 12 % water by volume becomes the wet gas y_i = y_dry,i (1 - 0.12)."""
+    sub = burn.substance_from_spec({"flue_analysis": {"CO2": 9.5, "O2": 3.5, "N2": 87.0}, "water_percent": 12},
+                                   "tables[2].substance")
+    y = {c.id: c.mole_fraction for c in sub.components}
+    assert abs(y["H2O"] - 0.12) <= 1e-14 and abs(y["CO2"] - 0.095 * 0.88) <= 1e-14
+    with pytest.raises(SpecError, match=r"^tables\[2\]\.substance\.flue_analysis"):
+        burn.substance_from_spec({"flue_analysis": {"CO2": 9.5, "O2": 3.5, "N2": 80.0}}, "tables[2].substance")
