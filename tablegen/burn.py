@@ -91,9 +91,19 @@ def _species_sub(sid: str, data: tuple, source):
     return species_substance(_record(sid, data, source))
 
 
+#: How far below the lowest data temperature an enthalpy may be extrapolated, K. SO2 and H2S
+#: data of NASA TM-4513 start at 300 K; 30 K reaches the 0 °C reference temperature. The lowest
+#: interval's cp varies by well under 1 % over 30 K there, so h moves by < 1 J/mol per K of that.
+EXTRAPOLATE_BELOW_K = 30.0
+
+
 def _h_molar(sid: str, T_K: float, data=(), source=None) -> tuple[float, bool]:
     """Molar enthalpy (formation datum), J/mol, and whether T lies outside the data range."""
     sub = _species_sub(sid, tuple(data), source)
+    if not (sub.T_min - EXTRAPOLATE_BELOW_K <= T_K <= sub.T_max):
+        raise RangeError(f"{sid}: T = {T_K:g} K is outside its data range {sub.T_min:g}-{sub.T_max:g} K; "
+                         f"allowed inlet and reference temperatures: {sub.T_min - EXTRAPOLATE_BELOW_K:g} to "
+                         f"{sub.T_max:g} K")
     p = sub.properties(np.array([float(T_K)]), extrapolate=True, molar_only=True)
     return float(p["h_molar"][0]), bool(p["extrapolated"][0])
 
