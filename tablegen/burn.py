@@ -139,7 +139,8 @@ def _qty(v, dimension: str, what: str, default_unit: str) -> float:
             try:
                 return unit(default_unit, dimension).to_si(float(v))
             except ValueError:
-                raise
+                raise TablegenError(f"{what} {v!r} is not a number with a unit; write e.g. "
+                                    f"\"42.5 {default_unit}\" (a plain number is {default_unit})") from None
     return unit(default_unit, dimension).to_si(_num(v, what))
 
 
@@ -456,7 +457,7 @@ def condensed_fuel(el_mass: dict | None = None, *, formula=None, basis="as-recei
             raise TablegenError(f"{what}: the heating value must be positive")
         h_ref = hhv_ar + hp_liq - o2 * h_o2          # HHV = h_fuel + n_O2 h_O2 - Σ n h(products, liquid water)
         notes.append(f"fuel enthalpy derived from the given {given[0].upper()} "
-                     f"({'per kg ' + basis}) at {T_hv:g} K")
+                     f"(per kg{'' if kind == 'formula' else ' ' + basis}) at {T_hv:g} K")
     if cp is None:
         notes.append("fuel cp not given: its sensible enthalpy is neglected (h(T) = h at the heating "
                      "value's reference temperature)")

@@ -375,6 +375,8 @@ def test_substance_from_spec_and_key_paths():
         ({**t, "oxidant": {"relative_humidity": 150, "temperature": "15C"}},
          "tables[0].substance.oxidant.relative_humidity"),
         ({**t, "colour": "red"}, "tables[0].substance.colour"),
+        ({**t, "fuel": {"analysis": {"C": 0.86, "H": 0.14}, "hhv": "lots"}}, "tables[0].substance.fuel.hhv"),
+        ({**t, "fuel": {"formula": "C8H18Cl", "lhv": 44}}, "tables[0].substance.fuel.formula"),
         ({**t, "fuel": {"analysis": {"C": 0.8, "H": 0.1, "Q": 0.1}, "hhv": 40}}, "tables[0].substance.fuel.analysis.Q"),
     ]
     for table, path in cases:
