@@ -40,7 +40,7 @@ from pathlib import Path
 import numpy as np
 
 from .errors import NameLookupError, RangeError, SpecError, TablegenError
-from .thermo.substance import P_STD, R_MOLAR, T_REF
+from .thermo.substance import R_MOLAR, T_REF
 
 #: Elements a fuel may contain; noble gases pass through as themselves.
 BURNING = ("C", "H", "O", "N", "S")

@@ -7,7 +7,6 @@ from the document are marked "from memory".
 from __future__ import annotations
 
 import json
-import math
 from pathlib import Path
 
 import numpy as np
@@ -18,7 +17,7 @@ from hypothesis import strategies as st
 import tablegen
 from tablegen import burn
 from tablegen.data.library import library
-from tablegen.errors import NameLookupError, SpecError, TablegenError
+from tablegen.errors import SpecError, TablegenError
 from tablegen.saturation import T_sat_K, h_vap_J_per_kg, p_sat_Pa
 
 ROOT = Path(__file__).resolve().parent.parent
