@@ -1011,11 +1011,17 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
     hfu, e4 = f.h_J_per_kg(T_fuel_K, data, source)
     hox, e5 = ox.h_molar(T_oxidant_K, data, source)
     H = hfu + n_ox * hox                                                 # J per kg fuel
-    try:
+    h_lo, h_hi = products.properties(np.array([products.T_min, products.T_max]), molar_only=True)["h_molar"]
+    if H / N_wet > h_hi:
+        # e.g. rich in O2: the frozen temperature lies above the data; the rest of the result stands
+        T_ad = None
+        notes.append(f"the frozen adiabatic flame temperature lies above {products.T_max:g} K, the upper end "
+                     f"of the flue-gas data, and is not given")
+    elif H / N_wet < h_lo:
+        raise RangeError(f"adiabatic flame temperature lies below the data range of the flue gas "
+                         f"({products.T_min:g}-{products.T_max:g} K); check the inlet temperatures")
+    else:
         T_ad = float(products.T_from("h_molar", np.array([H / N_wet]))[0])
-    except RangeError:
-        raise RangeError(f"adiabatic flame temperature lies outside the data range of the flue gas "
-                         f"({products.T_min:g}-{products.T_max:g} K); check the inlet temperatures") from None
     s.update(t_adiabatic_K=T_ad, T_fuel_K=T_fuel_K, T_oxidant_K=T_oxidant_K)
     if f.kind != "gas" and f.cp is None and abs(T_fuel_K - f.T_h_ref) > 0.01:
         notes.append(f"fuel inlet temperature {T_fuel_K:g} K differs from {f.T_h_ref:g} K but the fuel cp is "
@@ -1027,7 +1033,10 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
                      "(SO2 and H2S data start at 300 K) with the lowest interval extrapolated")
 
     cautions = list(CAUTIONS)
-    if T_ad > T_DISSOCIATION_WARN:
+    if T_ad is None:
+        cautions.insert(1, f"The frozen adiabatic flame temperature would lie above {products.T_max:g} K and is "
+                           f"not given; dissociation (CO, H2, OH, O, H, NO) holds a real flame far below it.")
+    elif T_ad > T_DISSOCIATION_WARN:
         cautions.insert(1, f"The adiabatic flame temperature {T_ad:.0f} K is above {T_DISSOCIATION_WARN:.0f} K: "
                            f"dissociation (CO, H2, OH, O, H, NO) would lower it, so the frozen value is an upper bound.")
     if "SO2" in prod:

@@ -474,3 +474,11 @@ def test_measured_flue_gas_analysis_dry_to_wet():
     assert abs(y["H2O"] - 0.12) <= 1e-14 and abs(y["CO2"] - 0.095 * 0.88) <= 1e-14
     with pytest.raises(SpecError, match=r"^tables\[2\]\.substance\.flue_analysis"):
         burn.substance_from_spec({"flue_analysis": {"CO2": 9.5, "O2": 3.5, "N2": 80.0}}, "tables[2].substance")
+
+
+def test_flame_temperature_beyond_the_data_is_not_given():
+    """Sulfur-bearing fuel in near-pure O2: the frozen flame lies above the 5000 K end of the SO2 data."""
+    r = tablegen.combustion("CH4:0.34,H2S:0.33,C2H6:0.33", "air:o2=88", excess_air=0)
+    assert r.summary["t_adiabatic_K"] is None
+    assert any("not given" in c for c in r.cautions)
+    assert r.summary["hhv_mass"] > 0 and r.summary["dew_point_K"] > 273.15

@@ -182,7 +182,9 @@ def render_text(r) -> str:
         _table(("", "LHV", "HHV"), rows)
     Ta = s["t_adiabatic_K"]
     out += ["", f"Adiabatic flame temperature (fuel at {s['T_fuel_K'] - 273.15:g} °C, oxidant at "
-                f"{s['T_oxidant_K'] - 273.15:g} °C): {Ta:.1f} K ({Ta - 273.15:.1f} °C)"]
+                f"{s['T_oxidant_K'] - 273.15:g} °C): " +
+            (f"{Ta:.1f} K ({Ta - 273.15:.1f} °C)" if Ta is not None else
+             f"above {r.products.T_max:g} K, the end of the data (not given)")]
     out += ["", "Notes"] + [f"  - {n}" for n in s["notes"]]
     out += ["", "CAUTIONS"] + [f"  ! {c}" for c in r.cautions]
     if r.products.id.lower().startswith("flue@"):
