@@ -613,7 +613,8 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
             dry, label = dict(m["components"]), "dry air"
             tot = sum(dry.values())
             dry = {k: v / tot for k, v in dry.items()}
-            notes.append("dry air of the shipped composition (N2 0.7812, O2 0.2096, Ar 0.0092)")
+            notes.append("dry air of the shipped composition ("
+                         + ", ".join(f"{k} {v:g}" for k, v in m["components"].items()) + ", mole fractions)")
     recs = {}
     for k in list(dry):
         rec = _record(k, data, source, what=f"{what}.composition.{k}")
@@ -621,6 +622,8 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
             raise TablegenError(f"{what}.composition.{k}: not an oxidant species; allowed: "
                                 f"{', '.join(s for s in OXIDANT_SPECIES if s != 'H2O')} "
                                 f"(give water as relative_humidity or humidity_ratio)")
+        if rec.id in recs:
+            raise TablegenError(f"{what}.composition: species {rec.id!r} is given twice")
         recs[rec.id] = rec
         dry[rec.id] = dry.pop(k)
     if o2_percent is not None:
