@@ -169,23 +169,26 @@ def render_text(r) -> str:
     out += ["", "Flue-gas quantities"] + _table(("", "wet", "dry"), rows)
     dp = s["dew_point_K"]
     out += ["", f"Water dew point at {s['flue_pressure_Pa'] / 1000:g} kPa: " +
-            (f"{dp:.2f} K ({dp - 273.15:.2f} °C); water partial pressure "
+            (f"{dp:.1f} K ({dp - 273.15:.1f} °C); water partial pressure "
              f"{s['water_partial_pressure_Pa'] / 1000:.4f} kPa" if dp is not None else s["dew_point_note"])]
     Tr = s["combustion_reference_T_K"]
-    rows = [("per kg [MJ/kg]", f"{s['lhv_mass']:.4f}", f"{s['hhv_mass']:.4f}")]
+    rows = [("per kg [MJ/kg]", f"{s['lhv_mass']:.3f}", f"{s['hhv_mass']:.3f}")]
     if s["lhv_molar"] is not None:
-        rows.append(("per kmol [MJ/kmol]", f"{s['lhv_molar']:.3f}", f"{s['hhv_molar']:.3f}"))
+        rows.append(("per kmol [MJ/kmol]", f"{s['lhv_molar']:.2f}", f"{s['hhv_molar']:.2f}"))
     if s["lhv_volume"] is not None:
-        rows.append(("per normal m³ [MJ/m³]", f"{s['lhv_volume']:.4f}", f"{s['hhv_volume']:.4f}"))
+        rows.append(("per normal m³ [MJ/m³]", f"{s['lhv_volume']:.3f}", f"{s['hhv_volume']:.3f}"))
     out += ["", f"Heating values, combustion reference temperature {Tr - 273.15:.2f} °C "
                 f"(Δh_vap of water {s['h_vap_water_J_per_kg'] / 1000:.2f} kJ/kg)"] + \
         _table(("", "LHV", "HHV"), rows)
     Ta = s["t_adiabatic_K"]
     out += ["", f"Adiabatic flame temperature (fuel at {s['T_fuel_K'] - 273.15:g} °C, oxidant at "
                 f"{s['T_oxidant_K'] - 273.15:g} °C): " +
-            (f"{Ta:.1f} K ({Ta - 273.15:.1f} °C)" if Ta is not None else
+            (f"{Ta:.0f} K ({Ta - 273.15:.0f} °C)" if Ta is not None else
              f"above {r.products.T_max:g} K, the end of the data (not given)")]
     out += ["", "Notes"] + [f"  - {n}" for n in s["notes"]]
+    out += ["", "Printed digits: heating values to 0.001 MJ/kg (the data agree with ISO 6976 to about 0.01 %), "
+                "dew point to 0.1 K, flame temperature to 1 K; fractions and ratios are exact to round-off "
+                "within the model. --json gives full precision."]
     out += ["", "CAUTIONS"] + [f"  ! {c}" for c in r.cautions]
     if r.products.id.lower().startswith("flue@"):
         out += ["", f"Tabulate this flue gas: tablegen state \"{r.products.id}\" --T 400K,1500K"]
