@@ -486,3 +486,20 @@ def test_flame_temperature_beyond_the_data_is_not_given():
     assert r.summary["t_adiabatic_K"] is None
     assert any("not given" in c for c in r.cautions)
     assert r.summary["hhv_mass"] > 0 and r.summary["dew_point_K"] > 273.15
+
+
+def test_fuel_bases_mass_and_volume_dry_agree_with_mole():
+    """Identity: one gas stated by mole, by mass, and as a dry volumetric analysis plus water."""
+    y = {"CH4": 0.85, "C2H6": 0.07, "CO2": 0.03, "N2": 0.03, "H2O": 0.02}
+    M = {k: LIB.record(k).M for k in y}
+    Mmix = sum(y[k] * M[k] for k in y)
+    w = {k: y[k] * M[k] / Mmix for k in y}
+    dry = {k: 100 * v / 0.98 for k, v in y.items() if k != "H2O"}
+    ref = tablegen.combustion(y, excess_air=12).summary
+    by_mass = tablegen.combustion({"composition": w, "basis": "mass"}, excess_air=12).summary
+    by_dry = tablegen.combustion({"composition": dry, "basis": "volume-dry", "water_percent": 2.0},
+                                 excess_air=12).summary
+    for other in (by_mass, by_dry):
+        for k, v in ref["products_wet"].items():
+            assert abs(other["products_wet"][k] - v) <= 1e-13
+        assert abs(other["hhv_mass"] - ref["hhv_mass"]) <= 1e-12 * ref["hhv_mass"]
