@@ -756,7 +756,7 @@ class CombustionResult:
     """Complete combustion of a fuel with an oxidant.
 
     ``products`` is the wet flue gas and ``products_dry`` the dry flue gas, both
-    ordinary Substances; ``summary`` holds every figure (JSON-ready); ``cautions``
+    ordinary Substances (``products_dry`` is None when the flue gas is water only); ``summary`` holds every figure (JSON-ready); ``cautions``
     must be shown with every result.
     """
 
@@ -902,6 +902,11 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
     p0 = _products_at(f, ox, 0.0)
     wet0 = sum(p0.values())
     dry0 = wet0 - p0["H2O"]
+    if o2_dry is not None:
+        p1 = _products_at(f, ox, n_st)
+        if sum(v for k, v in p1.items() if k not in ("H2O", "O2")) <= 1e-12 * sum(p1.values()):
+            raise TablegenError("this dry flue gas would hold nothing but O2, so a dry O2 reading cannot fix "
+                                "the amount of oxidant; give the wet O2, lambda or excess air")
     lam = _solve_air_ratio(excess_air=excess_air, air_ratio=air_ratio, phi=phi, o2_dry=o2_dry, o2_wet=o2_wet,
                            o2_need=o2_need, n_ox_st=n_st, wet0=wet0, dry0=dry0, ox=ox)
     n_ox = lam * n_st
@@ -916,11 +921,14 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
     lib = _lib(data)
     recs = {k: lib.record(k, source=source) for k in prod}
     y_wet = {k: v / N_wet for k, v in prod.items()}
-    y_dry = {k: v / N_dry for k, v in prod.items() if k != "H2O"}
+    has_dry = N_dry > 1e-12 * N_wet          # hydrogen in pure O2 at λ = 1 leaves water only
+    y_dry = {k: v / N_dry for k, v in prod.items() if k != "H2O"} if has_dry else {}
     m_wet = sum(v * recs[k].M for k, v in prod.items()) * 1e-3        # kg per kg fuel
     m_dry = m_wet - prod.get("H2O", 0.0) * recs["H2O"].M * 1e-3 if "H2O" in prod else m_wet
+    if not has_dry:
+        N_dry = m_dry = 0.0
     w_wet = {k: v * recs[k].M * 1e-3 / m_wet for k, v in prod.items()}
-    w_dry = {k: v * recs[k].M * 1e-3 / m_dry for k, v in prod.items() if k != "H2O"}
+    w_dry = {k: v * recs[k].M * 1e-3 / m_dry for k, v in prod.items() if k != "H2O"} if has_dry else {}
     amount_key, amount_value = _given_amount(excess_air, air_ratio, phi, o2_dry, o2_wet)
     amount = f"{amount_key}={_g(amount_value)}"
     if f.spec and ox.spec:
@@ -933,7 +941,7 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
     products_dry = mixture_substance([(recs[k], v) for k, v in y_dry.items()], "mole",
                                      id=base_id + ("@dry" if base_id.startswith("flue@") else " (dry)"),
                                      name=f"flue gas of {f.name} with {ox.name} at λ = {lam:.4g} (dry)",
-                                     what="dry flue gas")
+                                     what="dry flue gas") if has_dry else None
 
     notes = list(f.notes) + list(ox.notes)
     # ---------------------------------------------------------- ratios and volumes
@@ -950,7 +958,7 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
         "flue_gas_mol_wet_per_kg": N_wet, "flue_gas_mol_dry_per_kg": N_dry,
         "flue_gas_mass_wet_per_kg": m_wet, "flue_gas_mass_dry_per_kg": m_dry,
         "flue_gas_volume_wet_per_kg": N_wet * Vm, "flue_gas_volume_dry_per_kg": N_dry * Vm,
-        "M_flue_wet": products.M, "M_flue_dry": products_dry.M,
+        "M_flue_wet": products.M, "M_flue_dry": products_dry.M if has_dry else None,
         "metering_T_K": T_meter_K, "metering_P_Pa": P_meter_Pa,
         "combustion_reference_T_K": T_ref, "ash_mass_per_kg": f.ash,
     }
@@ -1051,7 +1059,9 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
     s["cautions"] = cautions
     result = CombustionResult(fuel=f, oxidant=ox, air_ratio=lam, products=products, products_dry=products_dry,
                               moles_per_kg=prod, summary=s, cautions=cautions)
-    _MADE[products.id] = _MADE[products_dry.id] = result
+    _MADE[products.id] = result
+    if products_dry is not None:
+        _MADE[products_dry.id] = result
     return result
 
 
@@ -1131,6 +1141,8 @@ def _resolve_cached(name: str, data: tuple, source):
     fuel_text, amount, oxidant, dry = parse_name(name)
     r = combustion(fuel_text, oxidant, data=data, source=source, **amount)
     sub = r.products_dry if dry else r.products
+    if sub is None:
+        raise NameLookupError(f"flue-gas name {name!r}: this flue gas is water only, it has no dry part")
     out = replace(sub, id=name, _cache={})
     _MADE[name] = r
     return out
@@ -1240,6 +1252,8 @@ def substance_from_spec(table: dict, where: str, *, data=(), source=None):
     except TablegenError as e:
         raise SpecError(f"{where}.{ak}: {e}") from None
     sub = r.products_dry if basis == "dry" else r.products
+    if sub is None:
+        raise SpecError(f"{where}.flue_basis: this flue gas is water only, it has no dry part; use \"wet\"")
     kw = {}
     if "id" in table:
         kw["id"] = str(table["id"])

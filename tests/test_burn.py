@@ -503,3 +503,13 @@ def test_fuel_bases_mass_and_volume_dry_agree_with_mole():
         for k, v in ref["products_wet"].items():
             assert abs(other["products_wet"][k] - v) <= 1e-13
         assert abs(other["hhv_mass"] - ref["hhv_mass"]) <= 1e-12 * ref["hhv_mass"]
+
+
+def test_hydrogen_in_oxygen_leaves_water_only():
+    """Edge: H2 in pure O2 at λ = 1 gives a flue gas of water only (no dry part, dew point 100 °C at 1 atm)."""
+    r = tablegen.combustion("H2", "oxygen", excess_air=0)
+    assert r.products_dry is None and r.summary["products_dry"] == {}
+    assert abs(r.summary["dew_point_K"] - 373.124) <= 0.01    # IAPWS-IF97 Ts(101.325 kPa) = 373.124 K
+    with pytest.raises(TablegenError, match="nothing but O2"):
+        tablegen.combustion("H2", "oxygen", o2_dry=50)
+    assert abs(tablegen.combustion("H2", "oxygen", o2_wet=50).air_ratio - 3.0) <= 1e-12

@@ -156,7 +156,7 @@ def render_text(r) -> str:
         d, dm = s["products_dry"].get(k), s["products_dry_mass"].get(k)
         rows.append((k, f"{s['products_wet'][k] * 100:.4f}", f"{s['products_wet_mass'][k] * 100:.4f}",
                      "-" if d is None else f"{d * 100:.4f}", "-" if dm is None else f"{dm * 100:.4f}"))
-    rows.append(("molar mass [kg/kmol]", f"{s['M_flue_wet']:.4f}", "", f"{s['M_flue_dry']:.4f}", ""))
+    rows.append(("molar mass [kg/kmol]", f"{s['M_flue_wet']:.4f}", "", _fmt(s["M_flue_dry"]), ""))
     out += ["", "Flue gas, frozen complete combustion"] + \
         _table(("", "wet mole %", "wet mass %", "dry mole %", "dry mass %"), rows)
     rows = [("per kg fuel [kg/kg]", _fmt(s["flue_gas_mass_wet_per_kg"]), _fmt(s["flue_gas_mass_dry_per_kg"])),
