@@ -381,7 +381,7 @@ def _h_products(prod: dict, T_K: float, data, source, *, liquid_water: bool) -> 
     return tot, ext
 
 
-def condensed_fuel(el_mass: dict | None = None, *, formula=None, basis="as-received", analysis=None,
+def condensed_fuel(*, formula=None, basis="as-received", analysis=None,
                    moisture=None, ash=None, hhv=None, lhv=None, h_formation=None, hv_T_ref=T_REF,
                    cp=None, phase="liquid", name=None, id=None, data=(), source=None,
                    what="fuel") -> Fuel:
