@@ -1057,6 +1057,10 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
     s["oxidant"] = ox.describe()
     s["notes"] = notes
     s["cautions"] = cautions
+    # the cautions travel with the substances, into every table, chart and state output
+    products = replace(products, cautions=tuple(cautions), _cache={})
+    if products_dry is not None:
+        products_dry = replace(products_dry, cautions=tuple(cautions), _cache={})
     result = CombustionResult(fuel=f, oxidant=ox, air_ratio=lam, products=products, products_dry=products_dry,
                               moles_per_kg=prod, summary=s, cautions=cautions)
     _MADE[products.id] = result
@@ -1100,6 +1104,8 @@ def result_for(substance) -> CombustionResult | None:
 
 def cautions_for(substance) -> list | None:
     """The cautions to print with a flue-gas Substance, or None if it is not one."""
+    if getattr(substance, "cautions", ()):
+        return list(substance.cautions)
     r = result_for(substance)
     return None if r is None else list(r.cautions)
 
@@ -1184,7 +1190,9 @@ def flue_gas_from_analysis(composition: dict, basis: str = "volume-dry", *, wate
         if wp:
             recs.append((_record("H2O", data, source), wp / 100))
     label = id or "flue gas analysis " + ",".join(f"{r.id}:{v:.6g}" for r, v in recs)
-    return mixture_substance(recs, "mole", id=label, name=name or label, what=what)
+    sub = mixture_substance(recs, "mole", id=label, name=name or label, what=what)
+    # a measured flue gas: the combustion cautions but the first (nothing was computed)
+    return replace(sub, cautions=CAUTIONS[1:], _cache={})
 
 
 def substance_from_spec(table: dict, where: str, *, data=(), source=None):

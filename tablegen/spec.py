@@ -15,7 +15,7 @@ import difflib
 import math
 import re
 import tomllib
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 import numpy as np
@@ -350,28 +350,24 @@ def _substances(raw, where, source, data) -> dict:
                 sub = api.mixture(dict(comp), basis=basis, source=source, data=data, id=sid,
                                   name=name or sid)
             else:
-                sub = _combustion(entry["combustion"], f"{w}.combustion")
+                sub = _combustion(entry["combustion"], f"{w}.combustion", source=source, data=data)
+                sub = replace(sub, id=sid, name=name or sub.name, _cache={})
         except SpecError:
             raise
         except TablegenError as e:
             _fail(w, str(e))
         if name and "of" in entry:
-            from dataclasses import replace
             sub = replace(sub, name=name, _cache={})
         out[sid] = sub
     return out
 
 
-def _combustion(raw, where):
-    """Combustion products: handed to tablegen.burn when that module is in the build."""
-    try:
-        from . import burn  # noqa: F401
-    except ImportError:
-        _fail(where, "combustion products are not available in this build; "
-                     "give the flue gas as 'mixture' fractions instead")
+def _combustion(raw, where, *, source=None, data=()):
+    """Combustion products of a fuel (or a measured flue-gas analysis), by tablegen.burn."""
+    from . import burn
     if not isinstance(raw, dict):
         _fail(where, f"must be a table, not {_typename(raw)}")
-    return burn.substance_from_spec(raw, where)
+    return burn.substance_from_spec(raw, where, source=source, data=data)
 
 
 # ---------------------------------------------------------------- grids

@@ -434,6 +434,9 @@ def build_table(t, doc) -> TableModel:
                   f"data valid {sub.T_min:g}-{sub.T_max:g} K",
                   f"Values {basis_text}; entropy at P° = {_pressure_text(sub.P_ref_Pa)}",
                   f"Enthalpy datum {datum_text}; Pr/vr anchor: {anchor_text_of(sub.anchor, t_unit)}")
+    if sub.cautions:
+        notes.append(f"{sub.name}: read the cautions for this gas in the Caution section "
+                     f"(combustion products: toxic, asphyxiant, acid dew point not computed).")
     charts = ()
     if t.charts:
         from .charts import build_chart
@@ -522,7 +525,13 @@ def build_book(spec, tables=None) -> BookModel:
         definitions.append((k, sym, name, formula, tuple(units)))
     ref_text = doc.reference.text if any(t.basis == "volumetric" for t in tables) else ""
     fp, listed = fingerprint(spec.normalised, data_files(spec))
+    cautions = list(CAUTIONS)
+    for t in spec.tables:
+        for text in t.substance.cautions:
+            line = f"{t.substance.name}: {text}"
+            if line not in cautions:
+                cautions.append(line)
     return BookModel(name=spec.name, document=doc, tables=tables, substances=tuple(subs),
-                     definitions=tuple(definitions), cautions=CAUTIONS, rounding_rule=ROUNDING_RULE,
+                     definitions=tuple(definitions), cautions=tuple(cautions), rounding_rule=ROUNDING_RULE,
                      reference_text=ref_text, data_files=listed, fingerprint=fp, versions=versions(),
                      normalised_spec=spec.normalised)

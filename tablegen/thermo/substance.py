@@ -103,6 +103,7 @@ class Substance:
     P_ref_Pa: float = P_STD
     anchor: Anchor = Anchor()
     mixing_entropy_R: float = 0.0  # -Σ y ln y, already inside poly
+    cautions: tuple = ()           # texts every document that shows this substance must print
     _cache: dict = field(default_factory=dict, repr=False)
 
     # --------------------------------------------------------------- options
