@@ -418,18 +418,19 @@ def fixed(x: float, width: int, max_decimals: int = 12) -> str:
 
 
 def _count(n: float, width: int) -> str:
-    """An element count in ``width`` columns: an integer, else every decimal that
-    fits (a leading zero dropped, as Fortran reads ".42")."""
+    """An element count in ``width`` columns: an integer, else the most decimals
+    that fit (trailing zeros dropped, a leading zero dropped only when needed,
+    as Fortran reads ".42"); a leading blank is kept where there is room."""
     if abs(n - round(n)) < 1e-12 and len(str(int(round(n)))) <= width:
         return str(int(round(n))).rjust(width)
-    for d in range(12, -1, -1):
-        s = f"{n:.{d}f}"
-        if s.startswith("0."):
-            s = s[1:]
-        elif s.startswith("-0."):
-            s = "-" + s[2:]
-        if len(s) <= width:
-            return s.rjust(width)
+    for d in range(12, 0, -1):
+        s = f"{n:.{d}f}".rstrip("0")
+        if float(s) == 0.0:
+            break
+        short = s.replace("0.", ".", 1) if s.lstrip("-").startswith("0.") else s
+        for t in (s, short):
+            if len(t) <= width:
+                return (short if len(short) < len(t) and len(t) == width else t).rjust(width)
     raise DataError(f"element count {n!r} does not fit a field of {width} columns")
 
 
