@@ -100,6 +100,13 @@ def with_poly(r: dict, poly) -> dict:
     return r
 
 
+def citation(r: dict, version: str | None = None) -> str:
+    if "citation" in r:
+        return r["citation"]
+    v = f" {version}" if version else ""
+    return f"tablegen{v} export of {r['name']}{r['origin']}"
+
+
 def to_nasa7(r: dict) -> str:
     from ..data import formats
     b = r["T_bounds_K"]
@@ -121,9 +128,9 @@ def to_nasa7(r: dict) -> str:
         raise TablegenError(f"{r['id']}: the TM-4513 formula field holds 4 elements, this record has "
                             f"{len(r['elements'])} ({', '.join(r['elements'])}); use --format nasa9 or toml")
     rec = {"id": r["id"], "elements": r["elements"], "M": r["M"], "T_bounds_K": [b[0], T0, b[-1]],
-           "coefficients": [lower[2:], upper[2:]], "date": "export", "h298_over_R_K": r["h298_over_R_K"]}
+           "coefficients": [lower[2:], upper[2:]], "date": r.get("date", "export"), "h298_over_R_K": r["h298_over_R_K"]}
     try:
-        return formats.write_nasa7(rec, comments=[f"citation: tablegen export of {r['name']}", *r["comments"]])
+        return formats.write_nasa7(rec, comments=[f"citation: {citation(r)}", *r["comments"]])
     except TablegenError as e:
         raise TablegenError(f"{r['id']}: {e}; use --format nasa9 or toml") from None
 
@@ -133,11 +140,11 @@ def to_nasa9(r: dict) -> str:
     if len(r["elements"]) > 5:
         raise TablegenError(f"{r['id']}: the NASA/TP-2002-211556 formula field holds 5 elements, this record "
                             f"has {len(r['elements'])} ({', '.join(r['elements'])}); use --format toml")
-    rec = {"id": r["id"], "comment": f"tablegen export of {r['name']}"[:62], "refcode": "export",
+    rec = {"id": r["id"], "comment": r.get("card_comment", f"tablegen export of {r['name']}")[:62], "refcode": "export",
            "elements": r["elements"], "M": r["M"], "h_formation_J_per_mol": r["h_formation_J_per_mol"],
            "T_bounds_K": r["T_bounds_K"], "coefficients": r["coeffs9"]}
     try:
-        return formats.write_nasa9(rec, comments=[f"citation: tablegen export of {r['name']}", *r["comments"]])
+        return formats.write_nasa9(rec, comments=[f"citation: {citation(r)}", *r["comments"]])
     except TablegenError as e:
         raise TablegenError(f"{r['id']}: {e}; use --format toml") from None
 
@@ -147,9 +154,9 @@ def to_toml(r: dict) -> str:
     from ..data.tomlout import table
     form = "nasa7" if r["a7_form"] else "nasa9"
     coeffs = [[float(x) for x in (row[2:] if form == "nasa7" else row)] for row in r["coeffs9"]]
-    ds = {"id": f"export-{r['id']}",
-          "title": f"tablegen export of {r['name']}",
-          "citation": f"tablegen {__version__} export of {r['name']}{r['origin']}",
+    ds = {"id": r.get("dataset_id", f"export-{r['id']}"),
+          "title": r.get("title", f"tablegen export of {r['name']}"),
+          "citation": citation(r, __version__),
           "reference_pressure_Pa": 100000.0,
           "sources": list(r["cites"])}
     sp = {"id": r["id"], "name": r["name"], "aliases": [], "elements": r["elements"],
