@@ -96,7 +96,7 @@ def _float(text: str, where: str, what: str, cols: tuple[int, int], fmt: str) ->
         v = float(t.replace("D", "E").replace("d", "e"))
     except ValueError:
         raise DataError(f"{where}{what} (columns {cols[0]}-{cols[1]}) is not a number: {t!r}; "
-                        f"the format needs {fmt} there") from None
+                        f"the format needs {fmt} there (check the value and the column widths)") from None
     if not math.isfinite(v):
         raise DataError(f"{where}{what} (columns {cols[0]}-{cols[1]}) is not finite: {t!r}")
     return v
