@@ -66,7 +66,7 @@ NASA7_COMMON_T = 1000.0
 
 #: File extensions read from a data folder (a file named with --data is read
 #: whatever its name).
-FOLDER_EXTENSIONS = (".toml", ".dat", ".inp", ".txt", ".nasa7", ".nasa9", ".thermo")
+FOLDER_EXTENSIONS = (".toml", ".dat", ".inp", ".nasa7", ".nasa9", ".thermo")
 
 _MARKERS = re.compile(r"^\s*(thermo\b|end\b)", re.I)
 _SYMBOL = re.compile(r"^[A-Za-z][A-Za-z]?$")
@@ -192,13 +192,12 @@ def read_nasa7(text: str, path) -> tuple[list[RawRecord], list[str]]:
         if phase == "gas":
             out.append(rec)
         else:
-            notes.append(f"{path}:{i + 1}: {rec.raw['id']}: condensed-phase record skipped "
-                         f"(tablegen tabulates ideal gases)")
+            notes.append((i + 1, rec.raw["id"], phase))
         i += 4
     if not out and not notes:
         raise DataError(f"{path}: no TM-4513 record found; a record is 4 lines of 80 columns "
                         f"numbered 1-4 in column 80")
-    return out, notes
+    return out, _skipped(path, notes)
 
 
 def _card(lines, i, n, path, name):
@@ -279,12 +278,21 @@ def read_nasa9(text: str, path) -> tuple[list[RawRecord], list[str]]:
         if rec.raw["phase"] == "gas":
             out.append(rec)
         else:
-            notes.append(f"{path}:{i + 1}: {rec.raw['id']}: condensed-phase record skipped "
-                         f"(tablegen tabulates ideal gases)")
+            notes.append((i + 1, rec.raw["id"], rec.raw["phase"]))
         i += n_lines
     if not out and not notes:
         raise DataError(f"{path}: no NASA/TP-2002-211556 record found")
-    return out, notes
+    return out, _skipped(path, notes)
+
+
+def _skipped(path, notes) -> list[str]:
+    """One note for the records that are not ideal-gas polynomials."""
+    if not notes:
+        return []
+    line, sid, _ = notes[0]
+    more = f" and {len(notes) - 1} more" if len(notes) > 1 else ""
+    return [f"{path}:{line}: skipped {len(notes)} record(s) that are not ideal-gas polynomials "
+            f"(condensed phases or single-temperature species): {sid}{more}"]
 
 
 def _line80(lines, i, path, name, what):
@@ -310,8 +318,13 @@ def _nasa9_record(lines, i, path) -> tuple[RawRecord, int]:
     except ValueError:
         raise DataError(f"{where}number of intervals (columns 1-2) is {n_text!r}; it must be an integer "
                         f"(I2); check the column widths") from None
-    if n_int < 1:
-        raise DataError(f"{where}number of intervals is {n_int}; at least one is needed")
+    if n_int < 0:
+        raise DataError(f"{where}number of intervals is {n_int}; it cannot be negative")
+    if n_int == 0:
+        # a species given at one temperature only (the report's reactant records): no
+        # polynomial, so nothing to tabulate; its one temperature line follows
+        raw = {"id": sid, "name": sid, "phase": "single-temperature"}
+        return RawRecord(start, raw), 3
     refcode = ln[3:9].strip()
     elements, res = _formula(ln, 5, 6, 11, where, "(A2, F6.2)")
     ph_text = ln[50:52].strip() or "0"

@@ -454,17 +454,23 @@ class Library:
         return good
 
     def _announce_replacement(self, rec: Record, ds: Dataset):
-        key = norm_name(rec.id)
-        for d in [*reversed(self.user_order), *self.shipped]:
-            if d == ds.id or d not in self.datasets:
-                continue
-            other = self.datasets[d]
-            if key in other.names:
-                old = other.ids[other.names[key]]
-                kind = "user" if d in self.user_order else "shipped"
-                self.messages.append(f"{rec.file}:{rec.line}: user record {rec.id!r} replaces the {kind} "
-                                     f"{d} record {old!r}")
-                return
+        """Note each earlier record (shipped or user) that this one takes a name from."""
+        seen = set()
+        for name in dict.fromkeys([rec.id, rec.name, *rec.aliases]):
+            key = norm_name(name)
+            for d in [*reversed(self.user_order), *self.shipped]:
+                if d == ds.id or d not in self.datasets:
+                    continue
+                other = self.datasets[d]
+                if key in other.names:
+                    old = other.ids[other.names[key]]
+                    if (d, old) not in seen:
+                        seen.add((d, old))
+                        kind = "user" if d in self.user_order else "shipped"
+                        via = "" if name == rec.id else f" (by the name {name!r})"
+                        self.messages.append(f"{rec.file}:{rec.line}: user record {rec.id!r} replaces the "
+                                             f"{kind} {d} record {old!r}{via}")
+                    break
 
     @property
     def search_order(self) -> list[str]:
