@@ -443,10 +443,16 @@ class Library:
 
     def _validate_user(self, ds: Dataset) -> list[Record]:
         """Build and validate every record of a user file (strict: raise on the first bad one)."""
-        good = []
+        good, first = [], {}
         for i in range(len(ds)):
             try:
-                good.append(ds._parse(i))
+                rec = ds._parse(i)
+                key = norm_name(rec.id)
+                if key in first:
+                    raise DataError(f"{ds.label}:{rec.line}: {rec.id}: this species appears twice in the "
+                                    f"file (first on line {first[key]}); keep one record a species")
+                first[key] = rec.line
+                good.append(rec)
             except DataError as e:
                 if self.strict:
                     raise
