@@ -370,3 +370,58 @@ def test_fit_mass_basis_cp_uses_the_molar_mass_of_the_formula(capsys, tmp_path):
     import tomllib
     a, b = (np.array(tomllib.loads(o)["species"][0]["coefficients"]) for o in outs)
     np.testing.assert_allclose(a, b, rtol=1e-9, atol=1e-12 * np.max(np.abs(a)))
+
+
+# ------------------------------------------------------ writer/reader identities
+from hypothesis import given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+from tablegen.data import formats  # noqa: E402
+
+# exponents of two digits: a field holds one significant digit fewer at |exponent| >= 100
+_coef = st.floats(min_value=-1e12, max_value=1e12, allow_nan=False).filter(lambda x: x == 0 or abs(x) > 1e-90)
+
+
+@settings(max_examples=25, deadline=None)
+@given(st.lists(_coef, min_size=9, max_size=9), st.lists(_coef, min_size=9, max_size=9),
+       st.floats(min_value=0.0001, max_value=60.0))
+def test_nasa9_fields_hold_ten_significant_digits(a, b, count):
+    # NASA/TP-2002-211556 D16 fields: written with 10 significant digits, read back
+    # within half a unit of the 10th digit (identity of the format, no source needed).
+    rec = {"id": "X", "elements": {"C": count}, "M": 12.011 * count, "T_bounds_K": [200.0, 1000.0, 6000.0],
+           "coefficients": [a, b], "h_formation_J_per_mol": 0.0}
+    got, _ = formats.read_nasa9(formats.write_nasa9(rec), "mem")
+    raw = got[0].raw
+    for row_in, row_out in zip([a, b], raw["coefficients"]):
+        for x, y in zip(row_in, row_out):
+            assert abs(x - y) <= 5e-10 * abs(x) * (1 + 1e-9)
+    # the count is read back within the resolution its field states
+    n = raw["elements"]["C"]
+    assert abs(n - count) <= max(raw["_checks"]["count_resolution"]["C"], 1e-12) * (1 + 1e-9)
+
+
+@settings(max_examples=25, deadline=None)
+@given(st.lists(_coef, min_size=7, max_size=7), st.lists(_coef, min_size=7, max_size=7),
+       _coef.filter(lambda x: abs(x) < 1e9))
+def test_nasa7_fields_hold_nine_significant_digits(lo, up, h):
+    # NASA TM-4513 E15.8 fields written 1PE15.8: 9 significant digits.
+    rec = {"id": "X", "elements": {"N": 2}, "M": 28.014, "T_bounds_K": [200.0, 1000.0, 6000.0],
+           "coefficients": [lo, up], "h298_over_R_K": h}
+    got, _ = formats.read_nasa7(formats.write_nasa7(rec), "mem")
+    raw = got[0].raw
+    for row_in, row_out in zip([lo, up], raw["coefficients"]):
+        for x, y in zip(row_in, row_out):
+            assert abs(x - y) <= 5e-9 * abs(x) * (1 + 1e-9)
+    assert abs(raw["_checks"]["h298_over_R_K"] - h) <= 5e-9 * abs(h) * (1 + 1e-9)
+
+
+def test_user_data_folder_from_environment(monkeypatch, tmp_path):
+    # $TABLEGEN_DATA names the user data folder; its records win and are announced.
+    from tablegen.data.library import Library
+    (tmp_path / "site.dat").write_text(TM4513.read_text())
+    monkeypatch.setenv("TABLEGEN_DATA", str(tmp_path))
+    lib = Library(())
+    assert lib.record("H2O").file == str(tmp_path / "site.dat")
+    assert any("replaces the shipped nasa1993 record 'H2O'" in m for m in lib.messages)
+    # Library.record and defaults unchanged for names the user data lack
+    assert lib.record("N2").dataset == library().record("N2").dataset
