@@ -185,8 +185,21 @@ class Dataset:
     def __len__(self):
         return len(self._blocks)
 
+    @cached_property
+    def exact_ids(self) -> dict[str, int]:
+        """Species id exactly as written -> block index (first one wins)."""
+        out: dict[str, int] = {}
+        for i, sid in enumerate(self.ids):
+            out.setdefault(sid, i)
+        return out
+
     def get(self, name: str) -> Record | None:
-        i = self.names.get(norm_name(name))
+        """The record of an id, name or alias. An id spelled exactly wins over a
+        case-insensitive match: NASA sets hold both CS (carbon monosulfide) and
+        Cs (caesium), CS2 and Cs2."""
+        i = self.exact_ids.get(name.strip())
+        if i is None:
+            i = self.names.get(norm_name(name))
         return None if i is None else self._parse(i)
 
     def records(self) -> list[Record]:
@@ -239,12 +252,14 @@ class CardDataset(Dataset):
 
     @cached_property
     def names(self) -> dict[str, int]:
-        ids, others = {}, {}
+        ids, others, first = {}, {}, {}
         for i, r in enumerate(self._raws):
-            if norm_name(r.raw["id"]) in ids:
-                raise DataError(f"{self.label}:{r.line}: {r.raw['id']}: this species appears twice in the "
-                                f"file (first on line {self._raws[ids[norm_name(r.raw['id'])]].line})")
-            ids[norm_name(r.raw["id"])] = i
+            sid = r.raw["id"]
+            if sid in first:
+                raise DataError(f"{self.label}:{r.line}: {sid}: this species appears twice in the "
+                                f"file (first on line {self._raws[first[sid]].line})")
+            first[sid] = i
+            ids[norm_name(sid)] = i
             others.setdefault(norm_name(r.raw["name"]), i)
         return {**others, **ids}
 
@@ -447,7 +462,7 @@ class Library:
         for i in range(len(ds)):
             try:
                 rec = ds._parse(i)
-                key = norm_name(rec.id)
+                key = rec.id
                 if key in first:
                     raise DataError(f"{ds.label}:{rec.line}: {rec.id}: this species appears twice in the "
                                     f"file (first on line {first[key]}); keep one record a species")
@@ -468,8 +483,9 @@ class Library:
                 if d == ds.id or d not in self.datasets:
                     continue
                 other = self.datasets[d]
-                if key in other.names:
-                    old = other.ids[other.names[key]]
+                idx = other.exact_ids.get(name, other.names.get(key))
+                if idx is not None:
+                    old = other.ids[idx]
                     if (d, old) not in seen:
                         seen.add((d, old))
                         kind = "user" if d in self.user_order else "shipped"
