@@ -425,3 +425,13 @@ def test_user_data_folder_from_environment(monkeypatch, tmp_path):
     assert any("replaces the shipped nasa1993 record 'H2O'" in m for m in lib.messages)
     # Library.record and defaults unchanged for names the user data lack
     assert lib.record("N2").dataset == library().record("N2").dataset
+
+
+def test_exact_id_wins_over_case_insensitive_match():
+    # NASA TM-4513 holds both CS (carbon monosulfide) and Cs (caesium), CS2 and Cs2;
+    # a name spelled exactly as an id must not fall on the other one.
+    lib = library()
+    assert lib.record("CS").elements == {"C": 1, "S": 1}
+    assert lib.record("Cs").elements == {"Cs": 1}
+    assert lib.record("CS2").elements == {"C": 1, "S": 2}
+    assert lib.record("Cs2").elements == {"Cs": 2}
