@@ -176,18 +176,17 @@ def report(fit, tab, path: str) -> list[str]:
 
 
 def run(args) -> int:
-    from ..data.library import library
     from ..data.validate import check_polynomial
     from ..fitting import fit_cp_table
     from ..outfiles import write_all
     from ..units import quantity, temperature_K
-    from .common import notice
+    from .common import data_notices, notice
     from .export import check_id, with_poly, write_record
     fmt = args.format or args.form
     if fmt == "nasa7" and args.form != "nasa7":
         raise TablegenError("--format nasa7 holds only the 7-coefficient form; use --form nasa7, or "
                             "--format nasa9 or toml")
-    lib = library(args.data)
+    lib = data_notices(args)
     elements = parse_formula(args.formula)
     M = lib.weights.molar_mass(elements, f"--formula {args.formula}: ")
     rid = check_id(args.id or args.formula.strip())
