@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import argparse
 import importlib
+import importlib.util
 import sys
 
 from . import __version__
@@ -103,8 +104,23 @@ def _selected(argv) -> str | None:
     return None
 
 
+def _join_negative_values(argv: list[str]) -> list[str]:
+    """'--T -40C' -> '--T=-40C': argparse would take '-40C' for an option."""
+    out, i = [], 0
+    while i < len(argv):
+        a = argv[i]
+        if a.startswith("--") and "=" not in a and i + 1 < len(argv) and \
+                len(argv[i + 1]) > 1 and argv[i + 1][0] == "-" and (argv[i + 1][1].isdigit() or argv[i + 1][1] == "."):
+            out.append(f"{a}={argv[i + 1]}")
+            i += 2
+            continue
+        out.append(a)
+        i += 1
+    return out
+
+
 def main(argv=None) -> int:
-    argv = list(sys.argv[1:] if argv is None else argv)
+    argv = _join_negative_values(list(sys.argv[1:] if argv is None else argv))
     try:
         parser = make_parser(_selected(argv))
         args = parser.parse_args(argv)

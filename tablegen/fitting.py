@@ -278,11 +278,26 @@ def _solve(prob: _Problem, bounds: np.ndarray) -> tuple[np.ndarray, float]:
     cond = float(svr[0] / svr[-1]) if svr[-1] > 0 else math.inf
     if not cond <= COND_LIMIT:
         raise FitError(f"the fit is ill-conditioned (condition number {cond:.2g} > {COND_LIMIT:.0g}); "
-                       "use fewer coefficients (form nasa7), fewer breakpoints or more points")
+                       "the tabulated range is too narrow or the points too few for this form: "
+                       "use form nasa7, fewer breakpoints, or a wider range of temperatures")
     x = (y_p + N @ z) / scale
     Ak = np.zeros((n_int, NCOEF))
     Ak[:, cols] = x.reshape(n_int, m)
     return scaled_to_raw(Ak), cond
+
+
+def residuals_against(poly: Polynomial, T_K, cp_J_per_molK, *, dh_J_per_mol=None,
+                      s_J_per_molK=None) -> dict:
+    """Residuals of a polynomial against a tabulation (keys as FitResult.residuals).
+
+    Used to state how far a fit made from cp alone lies from tabulated
+    h - h(298.15 K) and s° that were not fitted.
+    """
+    T = _as_table("T_K", T_K)
+    cp = _as_table("cp_J_per_molK", cp_J_per_molK, T.size)
+    dh = None if dh_J_per_mol is None else _as_table("dh_J_per_mol", dh_J_per_mol, T.size)
+    s = None if s_J_per_molK is None else _as_table("s_J_per_molK", s_J_per_molK, T.size)
+    return _residuals(_Problem(T, cp, dh, s, 0.0, None, poly.form), poly)
 
 
 def _residuals(prob: _Problem, poly: Polynomial) -> dict:

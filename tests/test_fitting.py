@@ -152,3 +152,45 @@ def test_bad_input_raises_fit_error(kwargs, match):
 def test_missing_entropy_level_refused():
     with pytest.raises(FitError, match="s° needs a level"):
         fit_cp_table([200, 300, 400, 500], [29, 29, 29, 30])
+
+
+def test_narrow_range_is_refused_as_ill_conditioned():
+    # 9 coefficients cannot be told apart on 300-310 K: the condition number
+    # of the reduced system explodes and the fit is refused, not returned.
+    T = np.linspace(300.0, 310.0, 40)
+    with pytest.raises(FitError, match="ill-conditioned"):
+        fit_cp_table(T, 29.0 + 0.001 * T, breakpoints=[], s298_J_per_molK=200.0)
+
+
+def test_reported_condition_of_janaf_fit_is_moderate():
+    # The scaled variable keeps the system far from the refusal limit.
+    from tablegen.fitting import COND_LIMIT
+    T, cp, S, H, dfH = janaf_table("N-023")
+    fit = fit_cp_table(T, cp, breakpoints=[1000.0], s298_J_per_molK=191.609, target=1e-3)
+    assert fit.condition < COND_LIMIT / 100
+
+
+from hypothesis import assume, given, settings, strategies as st  # noqa: E402
+
+
+@settings(max_examples=25, deadline=None)
+@given(bps=st.lists(st.sampled_from([1000.0, 2000.0, 3000.0, 4000.0, 5000.0]),
+                    min_size=0, max_size=3, unique=True),
+       h298=st.floats(-5e5, 5e5), s298=st.floats(100.0, 300.0),
+       form=st.sampled_from(["nasa9", "nasa7"]))
+def test_constraints_hold_for_any_breakpoints(bps, h298, s298, form):
+    # Identity: continuity of cp, h, s° and the 298.15 K anchors hold to
+    # rounding whatever the breakpoints (NIST-JANAF CO2 as the data).
+    T, cp, S, H, dfH = janaf_table("C-095")
+    try:
+        fit = fit_cp_table(T, cp, form=form, breakpoints=sorted(bps), h298_J_per_mol=h298,
+                           s298_J_per_molK=s298, target=0.05)
+    except FitError as e:
+        # a narrow end interval may be refused; that is the only refusal allowed here
+        assert "ill-conditioned" in str(e)
+        assume(False)
+    ref = fit.poly.evaluate(np.array([298.15]))
+    assert math.isclose(ref["h"][0] * R_MOLAR, h298, abs_tol=1e-6 * (1 + abs(h298)))
+    assert math.isclose(ref["s"][0] * R_MOLAR, s298, rel_tol=1e-11)
+    for j in fit.poly.boundary_jumps():
+        assert j["cp"] < 1e-10 and j["h"] < 1e-10 and j["s"] < 1e-10

@@ -26,7 +26,7 @@ from pathlib import Path
 
 import numpy as np
 
-from ..errors import DataError, NameLookupError
+from ..errors import DataError, NameLookupError, TablegenError
 from ..thermo.polynomial import Polynomial, nasa7_to_9
 from . import formats, validate
 
@@ -186,20 +186,27 @@ class Dataset:
         return len(self._blocks)
 
     @cached_property
-    def exact_ids(self) -> dict[str, int]:
-        """Species id exactly as written -> block index (first one wins)."""
-        out: dict[str, int] = {}
-        for i, sid in enumerate(self.ids):
-            out.setdefault(sid, i)
-        return out
+    def exact(self) -> dict[str, int]:
+        """Exact-case id -> block index (CS2 and Cs2 differ only in case)."""
+        return {sid: i for i, sid in enumerate(self.ids)}
+
+    @cached_property
+    def ambiguous(self) -> dict[str, list[str]]:
+        """Case-folded names shared by ids that differ only in case."""
+        groups: dict[str, list[str]] = {}
+        for sid in self.ids:
+            groups.setdefault(norm_name(sid), []).append(sid)
+        return {k: v for k, v in groups.items() if len(v) > 1}
 
     def get(self, name: str) -> Record | None:
-        """The record of an id, name or alias. An id spelled exactly wins over a
-        case-insensitive match: NASA sets hold both CS (carbon monosulfide) and
-        Cs (caesium), CS2 and Cs2."""
-        i = self.exact_ids.get(name.strip())
+        name = name.strip()
+        i = self.exact.get(name)
         if i is None:
-            i = self.names.get(norm_name(name))
+            key = norm_name(name)
+            if key in self.ambiguous:
+                raise NameLookupError(f"{name!r} is ambiguous in data set {self.id} (case matters here); "
+                                      f"allowed: {', '.join(self.ambiguous[key])}")
+            i = self.names.get(key)
         return None if i is None else self._parse(i)
 
     def records(self) -> list[Record]:
@@ -405,6 +412,7 @@ class Library:
             if p.name not in NOT_DATASETS:
                 self._add(p, announce=False)
         self.shipped = list(self.datasets)
+        self.defaults = self._load_defaults()
         paths = []
         ud = user_data_dir() if include_user_dir else None
         if ud is not None and ud.is_dir():
@@ -420,7 +428,6 @@ class Library:
                 self._add(p, announce=True)
             else:
                 raise DataError(f"--data {p}: no such file or folder; give a coefficient file or a folder of them")
-        self.defaults = self._load_defaults()
 
     def _load_weights(self) -> AtomicWeights:
         raw = tomllib.loads((self.root / "atomic-weights.toml").read_text(encoding="utf-8"))
@@ -475,24 +482,21 @@ class Library:
         return good
 
     def _announce_replacement(self, rec: Record, ds: Dataset):
-        """Note each earlier record (shipped or user) that this one takes a name from."""
+        """Note each record (shipped or earlier user) that a name of this one resolved to
+        before this file was loaded (called before the file joins the search)."""
         seen = set()
         for name in dict.fromkeys([rec.id, rec.name, *rec.aliases]):
-            key = norm_name(name)
-            for d in [*reversed(self.user_order), *self.shipped]:
-                if d == ds.id or d not in self.datasets:
-                    continue
-                other = self.datasets[d]
-                idx = other.exact_ids.get(name, other.names.get(key))
-                if idx is not None:
-                    old = other.ids[idx]
-                    if (d, old) not in seen:
-                        seen.add((d, old))
-                        kind = "user" if d in self.user_order else "shipped"
-                        via = "" if name == rec.id else f" (by the name {name!r})"
-                        self.messages.append(f"{rec.file}:{rec.line}: user record {rec.id!r} replaces the "
-                                             f"{kind} {d} record {old!r}{via}")
-                    break
+            try:
+                old = self.record(name)
+            except TablegenError:
+                continue
+            if (old.dataset, old.id) in seen:
+                continue
+            seen.add((old.dataset, old.id))
+            kind = "user" if old.dataset in self.user_order else "shipped"
+            via = "" if name == rec.id else f" (by the name {name!r})"
+            self.messages.append(f"{rec.file}:{rec.line}: user record {rec.id!r} replaces the {kind} "
+                                 f"{old.dataset} record {old.id!r}{via}")
 
     @property
     def search_order(self) -> list[str]:

@@ -89,8 +89,9 @@ class Polynomial:
         return int(self.coeffs.shape[0])
 
     def interval_index(self, T: np.ndarray) -> np.ndarray:
-        """Interval of each temperature; beyond the ends, the end intervals."""
-        return np.searchsorted(self._inner, T, side="right")
+        """Interval of each temperature (a breakpoint belongs to the lower interval, as in
+        the NASA reports); beyond the ends, the end intervals."""
+        return np.searchsorted(self._inner, T, side="left")
 
     # -------------------------------------------------------------- evaluation
     def evaluate(self, T, *, want=("cp", "h", "s")) -> dict[str, np.ndarray]:
@@ -103,45 +104,70 @@ class Polynomial:
         shape = T.shape
         T = T.ravel()
         out = {k: np.empty_like(T) for k in want}
-        if self.n_intervals == 1:
-            self._eval_block(T, self.coeffs[0], self._h[:, 0], self._s[:, 0], out, slice(None))
-        else:
-            idx = self.interval_index(T)
-            if T.size < 2 or not np.any(idx[1:] < idx[:-1]):
-                # sorted input (every table grid): contiguous slices, scalar coefficients
-                edges = np.searchsorted(idx, np.arange(self.n_intervals + 1), side="left")
-                for k in range(self.n_intervals):
-                    sl = slice(edges[k], edges[k + 1])
-                    if sl.start < sl.stop:
-                        self._eval_block(T[sl], self.coeffs[k], self._h[:, k], self._s[:, k], out, sl)
-            else:
-                cc = self.coeffs.T[:, idx]
-                hh = self._h[:, idx]
-                ss = self._s[:, idx]
-                self._eval_block(T, cc, hh, ss, out, slice(None))
-        return {k: v.reshape(shape) for k, v in out.items()}
-
-    def _eval_block(self, T, c, h, s, out, sl):
-        a1, a2, a3, a4, a5, a6, a7 = c[0], c[1], c[2], c[3], c[4], c[5], c[6]
-        need_log = ("h" in out and self._has_neg) or "s" in out
+        need_log = ("h" in want and self._has_neg) or "s" in want
         lnT = np.log(T) if need_log else None
         inv = 1.0 / T if self._has_neg else None
+        n = self.n_intervals
+        if n == 1:
+            self._eval_block(T, lnT, inv, self.coeffs[0], self._h[:, 0], self._s[:, 0], out)
+            return {k: v.reshape(shape) for k, v in out.items()}
+        idx = self.interval_index(T)
+        if T.size < 2 or not np.any(idx[1:] < idx[:-1]):
+            # sorted input (every table grid): contiguous slices, scalar coefficients
+            edges = np.searchsorted(idx, np.arange(n + 1), side="left")
+            for k in range(n):
+                sl = slice(edges[k], edges[k + 1])
+                if sl.start < sl.stop:
+                    part = {key: v[sl] for key, v in out.items()}
+                    self._eval_block(T[sl], None if lnT is None else lnT[sl], None if inv is None else inv[sl],
+                                     self.coeffs[k], self._h[:, k], self._s[:, k], part)
+        elif n <= 4:
+            # few intervals: the most populated one over the whole array, the
+            # others on their own points only, all with scalar coefficients
+            counts = np.bincount(idx, minlength=n)
+            major = int(np.argmax(counts))
+            self._eval_block(T, lnT, inv, self.coeffs[major], self._h[:, major], self._s[:, major], out)
+            for k in range(n):
+                if k == major or counts[k] == 0:
+                    continue
+                sel = np.flatnonzero(idx == k)
+                part = {key: np.empty(sel.size) for key in want}
+                self._eval_block(T[sel], None if lnT is None else lnT[sel], None if inv is None else inv[sel],
+                                 self.coeffs[k], self._h[:, k], self._s[:, k], part)
+                for key in want:
+                    out[key][sel] = part[key]
+        else:
+            self._eval_block(T, lnT, inv, self.coeffs.T[:, idx], self._h[:, idx], self._s[:, idx], out)
+        return {k: v.reshape(shape) for k, v in out.items()}
+
+    def _eval_block(self, T, lnT, inv, c, h, s, out):
+        """Horner evaluation, in place, into the arrays of ``out``.
+
+        In-place operations keep the cost at a few passes over memory per
+        power of T, with no temporary arrays.
+        """
+        neg = self._has_neg
         if "cp" in out:
-            v = a3 + T * (a4 + T * (a5 + T * (a6 + T * a7)))
-            if self._has_neg:
-                v += inv * (a2 + a1 * inv)
-            out["cp"][sl] = v
+            _horner(out["cp"], T, (c[2], c[3], c[4], c[5], c[6]))
+            if neg:
+                out["cp"] += inv * (c[1] + c[0] * inv)
         if "h" in out:
-            # h/R = sum; h[0]=-a1 (T^-1), h[1]=a2 (ln T), h[2..6] powers, h[7]=b1
-            v = h[7] + T * (h[2] + T * (h[3] + T * (h[4] + T * (h[5] + T * h[6]))))
-            if self._has_neg:
+            # h/R = b1 + T (a3 + T (a4/2 + ...)) [+ -a1/T + a2 ln T]
+            v = out["h"]
+            _horner(v, T, (h[2], h[3], h[4], h[5], h[6]))
+            v *= T
+            v += h[7]
+            if neg:
                 v += h[0] * inv + h[1] * lnT
-            out["h"][sl] = v
         if "s" in out:
-            v = s[7] + s[2] * lnT + T * (s[3] + T * (s[4] + T * (s[5] + T * s[6])))
-            if self._has_neg:
+            v = out["s"]
+            _horner(v, T, (s[3], s[4], s[5], s[6]))
+            v *= T
+            v += s[7]
+            v += s[2] * lnT
+            if neg:
                 v += inv * (s[1] + s[0] * inv)
-            out["s"][sl] = v
+
 
     # ------------------------------------------------------------- algebra
     def on_bounds(self, bounds: np.ndarray) -> np.ndarray:
@@ -205,3 +231,12 @@ def combine(polys, weights, extra_s: float = 0.0) -> Polynomial:
     coeffs[:, 8] += extra_s
     form = "nasa7" if all(p.form == "nasa7" for p in polys) else "nasa9"
     return Polynomial(bounds, coeffs, form)
+
+
+def _horner(out, T, coefs):
+    """out = coefs[0] + T (coefs[1] + T (... + T coefs[-1])), in place."""
+    np.multiply(T, coefs[-1], out=out)
+    for a in coefs[-2:0:-1]:
+        out += a
+        out *= T
+    out += coefs[0]

@@ -227,6 +227,23 @@ class Substance:
             out["extrapolated"] = mask
         return out
 
+    def cp_h_s0(self, T, *, extrapolate: bool = False):
+        """Just cp, h and s° (J/(kg K), J/kg, J/(kg K)) at T: the fast path for bulk work."""
+        T = np.asarray(T, dtype=float)
+        self.check_T(T, extrapolate)
+        c = self._constants()
+        raw = self.poly.evaluate(T)
+        f = R_MOLAR / (self.M * 1e-3)
+        cp = raw["cp"]
+        cp *= f
+        h = raw["h"]
+        h *= f
+        h += c["h_off"] / (self.M * 1e-3)
+        s0 = raw["s"]
+        s0 -= c["lnP"]
+        s0 *= f
+        return cp, h, s0
+
     # ------------------------------------------------------------- inverse
     def _target(self, key: str, T: np.ndarray):
         """Monotonic increasing function f(T) for ``key`` and its derivative."""

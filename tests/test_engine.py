@@ -1,0 +1,173 @@
+"""Identities of the engine (hypothesis), mixtures, datums, ranges and names."""
+
+import math
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+import tablegen
+from tablegen.errors import NameLookupError, RangeError, TablegenError
+from tablegen.thermo.substance import R_MOLAR, Anchor, Datum
+
+FLUE = {"CO2": 0.09, "H2O": 0.18, "N2": 0.71, "O2": 0.02}
+temps = st.floats(min_value=200.0, max_value=6000.0, allow_nan=False)
+
+
+@settings(max_examples=60, deadline=None)
+@given(T1=temps, T2=temps)
+def test_isentropic_identities_hold_to_round_off(T1, T2):
+    # along an isentrope s°(T2) - s°(T1) = R ln(P2/P1): Pr2/Pr1 = P2/P1, vr2/vr1 = v2/v1
+    mix = tablegen.mixture(FLUE)
+    p = mix.properties([T1, T2])
+    P_ratio = math.exp((p["s0_molar"][1] - p["s0_molar"][0]) / R_MOLAR)
+    assert p["Pr"][1] / p["Pr"][0] == pytest.approx(P_ratio, rel=1e-11)
+    v_ratio = (T2 / T1) / P_ratio          # ideal gas: v = RT/P
+    assert p["vr"][1] / p["vr"][0] == pytest.approx(v_ratio, rel=1e-11)
+
+
+@settings(max_examples=40, deadline=None)
+@given(T=st.lists(temps, min_size=1, max_size=20))
+def test_inverse_of_forward_is_identity(T):
+    sub = tablegen.substance("air")
+    T = np.array(T)
+    p = sub.properties(T)
+    for key in ("h", "u", "s0", "Pr", "vr", "h_molar"):
+        back = sub.T_from(key, p[key])
+        np.testing.assert_allclose(back, T, rtol=1e-9)
+
+
+@settings(max_examples=30, deadline=None)
+@given(y=st.lists(st.floats(min_value=0.01, max_value=1.0), min_size=4, max_size=4), T=temps)
+def test_collapsed_mixture_equals_sum_of_species(y, T):
+    ids = ["CO2", "H2O", "N2", "O2"]
+    y = np.array(y) / sum(y)
+    mix = tablegen.mixture(dict(zip(ids, y)))
+    pm = mix.properties([T])
+    parts = [tablegen.substance(i).properties([T]) for i in ids]
+    cp = sum(yi * p["cp_molar"][0] for yi, p in zip(y, parts))
+    h = sum(yi * p["h_molar"][0] for yi, p in zip(y, parts))
+    s = sum(yi * (p["s0_molar"][0] - R_MOLAR * math.log(yi)) for yi, p in zip(y, parts))
+    assert pm["cp_molar"][0] == pytest.approx(cp, rel=1e-12)
+    assert pm["h_molar"][0] == pytest.approx(h, rel=1e-12, abs=1e-6)
+    assert pm["s0_molar"][0] == pytest.approx(s, rel=1e-12)
+
+
+@settings(max_examples=30, deadline=None)
+@given(w=st.lists(st.floats(min_value=0.01, max_value=1.0), min_size=3, max_size=3))
+def test_mole_mass_basis_round_trip(w):
+    ids = ["CH4", "C2H6", "N2"]
+    w = np.array(w) / sum(w)
+    by_mass = tablegen.mixture(dict(zip(ids, w)), basis="mass")
+    y = {c.id: c.mole_fraction for c in by_mass.components}
+    by_mole = tablegen.mixture(y, basis="mole")
+    for c in by_mole.components:
+        assert c.mass_fraction == pytest.approx(w[ids.index(c.id)], rel=1e-12)
+    T = [300.0, 1200.0]
+    np.testing.assert_allclose(by_mass.properties(T)["cp"], by_mole.properties(T)["cp"], rtol=1e-12)
+
+
+def test_one_species_mixture_equals_the_species():
+    T = np.linspace(200, 6000, 50)
+    a = tablegen.mixture({"CO2": 1.0}).properties(T)
+    b = tablegen.substance("CO2").properties(T)
+    for k in ("cp", "h", "s0", "Pr", "vr", "a"):
+        np.testing.assert_allclose(a[k], b[k], rtol=1e-13)
+
+
+def test_evaluation_cost_flat_in_species_count():
+    # the collapsed polynomial has no more intervals than the union of breakpoints
+    big = tablegen.mixture({"N2": .5, "O2": .1, "Ar": .05, "CO2": .1, "H2O": .1, "CO": .05, "H2": .05,
+                            "SO2": .02, "NO": .03})
+    assert big.poly.coeffs.shape[1] == 9 and big.poly.n_intervals <= 3
+
+
+def test_sorted_and_unsorted_temperatures_agree():
+    sub = tablegen.mixture(FLUE)
+    T = np.linspace(200, 6000, 1001)
+    perm = np.random.default_rng(1).permutation(T.size)
+    a = sub.properties(T)
+    b = sub.properties(T[perm])
+    for k in ("cp", "h", "s0"):
+        np.testing.assert_array_equal(a[k][perm], b[k])
+
+
+def test_sensible_datum_and_reference_pressure():
+    air = tablegen.substance("air").with_options(datum=Datum("sensible", 273.15, 0.0))
+    assert air.properties([273.15])["h"][0] == pytest.approx(0.0, abs=1e-9)
+    atm = tablegen.substance("air").with_options(P_ref_Pa=101325.0)
+    bar = tablegen.substance("air")
+    d = bar.properties([500.0])["s0"][0] - atm.properties([500.0])["s0"][0]
+    assert d == pytest.approx(bar.R * math.log(101325.0 / 1e5), rel=1e-12)
+    p = bar.properties([500.0], P=[2e5])
+    assert p["s"][0] == pytest.approx(p["s0"][0] - bar.R * math.log(2.0), rel=1e-12)
+
+
+def test_anchor_sets_the_scale():
+    a = tablegen.substance("air").with_options(anchor=Anchor(T_K=500.0, Pr=2.5, vr=40.0))
+    p = a.properties([500.0])
+    assert p["Pr"][0] == pytest.approx(2.5) and p["vr"][0] == pytest.approx(40.0)
+
+
+def test_out_of_range_refused_and_extrapolation_marked():
+    co2 = tablegen.substance("CO2")
+    with pytest.raises(RangeError, match=r"CO2: T = 7000 K is outside the data range 200-6000 K"):
+        co2.properties([300.0, 7000.0])
+    p = co2.properties([300.0, 7000.0], extrapolate=True)
+    assert p["extrapolated"].tolist() == [False, True]
+    with pytest.raises(RangeError):
+        co2.properties([0.0])
+    with pytest.raises(RangeError):
+        co2.T_from("h", [1e12])
+
+
+@pytest.mark.parametrize("comp,msg", [
+    ({"CO2": 0.5, "N2": 0.4}, "sum to 0.9"),
+    ({"CO2": -0.1, "N2": 1.1}, ">= 0"),
+    ({"CO2": 0.5, "carbon dioxide": 0.5}, "given twice"),
+    ({"CO2": 0.5, "unobtainium": 0.5}, "unknown substance"),
+    ({}, "no components"),
+])
+def test_malformed_fractions_refused(comp, msg):
+    with pytest.raises(TablegenError, match=msg):
+        tablegen.mixture(comp)
+
+
+def test_fractions_within_1e6_are_normalised():
+    m = tablegen.mixture({"N2": 0.7900004, "O2": 0.21})
+    assert sum(c.mole_fraction for c in m.components) == pytest.approx(1.0, abs=1e-15)
+
+
+def test_names_resolve_case_insensitively_with_suggestions():
+    assert tablegen.substance("Carbon Dioxide").id == "CO2"
+    assert tablegen.substance("ISOBUTANE").id == "i-C4H10"
+    assert tablegen.substance("n-hexane").id == "n-C6H14"
+    with pytest.raises(NameLookupError, match="closest matches: CH4"):
+        tablegen.substance("methan")
+    with pytest.raises(NameLookupError, match="ambiguous"):
+        tablegen.substance("cs2")  # CS2 and Cs2 differ only in case
+
+
+def test_required_species_are_in_the_library():
+    need = ("Ar He Ne Kr Xe N2 O2 H2 CO CO2 H2O OH H O N NO NO2 N2O NH3 SO2 SO3 H2S COS CS2 HCl HCN Cl2 "
+            "CH4 C2H6 C3H8 n-butane isobutane n-pentane isopentane n-hexane n-heptane n-octane isooctane "
+            "C2H4 C3H6 C2H2 CH3OH C2H5OH CH2O air").split()
+    for n in need:
+        tablegen.substance(n)
+
+
+def test_molar_mass_of_air_matches_its_source():
+    # Lemmon et al. (2000) give M = 28.9586 g/mol for their air (from memory); the
+    # abridged IUPAC weights used here differ in the 5th digit
+    assert tablegen.substance("air").M == pytest.approx(28.9586, rel=2e-5)
+
+
+def test_fast_path_equals_full_properties():
+    mix = tablegen.mixture(FLUE).with_options(datum=Datum("sensible", 273.15), P_ref_Pa=101325.0)
+    T = np.random.default_rng(2).uniform(200, 6000, 500)
+    cp, h, s0 = mix.cp_h_s0(T)
+    p = mix.properties(T)
+    np.testing.assert_allclose(cp, p["cp"], rtol=1e-13)
+    np.testing.assert_allclose(h, p["h"], rtol=1e-12, atol=1e-6)
+    np.testing.assert_allclose(s0, p["s0"], rtol=1e-13)

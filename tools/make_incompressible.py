@@ -1,0 +1,134 @@
+"""Generate gasdata/incompressible.toml: shipped incompressible entries.
+
+Each entry is a specific heat c(T) (a power series in T) and one density,
+fitted here to values computed by the `iapws` package (PyPI), which
+implements the IAPWS releases named beside each entry:
+
+* water-liquid: IAPWS-95 (IAPWS R6-95(2018)), liquid at 0.1 MPa, 5-50 °C
+* ice-Ih:       IAPWS R10-06(2009), ice Ih at 0.101325 MPa, 200-273 K
+
+The fit is made in the scaled variable x = (T - T_mid)/T_half, where the
+power basis is well conditioned, and converted afterwards to a power series in
+T/K, which is what the file stores. The largest deviation of the fit from
+the source and the spread of the true density over the range are written
+beside each entry, so a user can judge the incompressible model.
+
+Run from the project root:  python tools/make_incompressible.py
+Needs: pip install iapws numpy (tools only, never at run time).
+"""
+
+from __future__ import annotations
+
+import math
+import sys
+from pathlib import Path
+
+import iapws
+import numpy as np
+from iapws import IAPWS95
+from iapws._iapws import _Ice
+
+ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(ROOT))
+from tablegen.data.tomlout import table  # noqa: E402
+
+OUT = ROOT / "gasdata" / "incompressible.toml"
+#: number of fitting points per entry (uniform in T, both ends included)
+N_POINTS = 91
+
+
+def _water(T: float) -> tuple[float, float]:
+    """cp (J/(kg K)) and density (kg/m³) of liquid water at 0.1 MPa by IAPWS-95."""
+    st = IAPWS95(T=T, P=0.1)
+    if st.phase != "Liquid":
+        raise SystemExit(f"IAPWS-95 state at {T} K, 0.1 MPa is not liquid: {st.phase}")
+    return st.cp * 1e3, st.rho
+
+
+def _ice(T: float) -> tuple[float, float]:
+    """cp (J/(kg K)) and density (kg/m³) of ice Ih at 0.101325 MPa by IAPWS R10-06."""
+    st = _Ice(T, 0.101325)
+    return st["cp"] * 1e3, st["rho"]
+
+
+ENTRIES = [
+    {
+        "id": "water-liquid",
+        "name": "liquid water near ambient, 0.1 MPa (5-50 °C)",
+        "aliases": ["water", "liquid water", "water(l)"],
+        "function": _water,
+        "T_range_K": (278.15, 323.15),
+        "T_density_K": 298.15,
+        "degree": 4,
+        "source": "IAPWS-95 (IAPWS R6-95(2018)), liquid water at 0.1 MPa, evaluated with "
+                  f"the iapws package {iapws.__version__}",
+    },
+    {
+        "id": "ice-Ih",
+        "name": "ice Ih, 0.101325 MPa (200-273 K)",
+        "aliases": ["ice", "ice Ih"],
+        "function": _ice,
+        "T_range_K": (200.0, 273.0),
+        "T_density_K": 263.15,
+        "degree": 4,
+        "source": "IAPWS R10-06(2009), revised release on the equation of state 2006 for "
+                  f"H2O ice Ih, evaluated with the iapws package {iapws.__version__}",
+    },
+]
+
+
+def _round_up(x: float) -> float:
+    """x rounded up to two significant digits, so a stated bound never understates."""
+    e = math.floor(math.log10(x)) - 1
+    return float(f"{math.ceil(x / 10.0 ** e) * 10.0 ** e:.2g}")
+
+
+def fit_entry(e: dict) -> dict:
+    lo, hi = e["T_range_K"]
+    T = np.linspace(lo, hi, N_POINTS)
+    cp, rho = np.array([e["function"](float(t)) for t in T]).T
+    # Well-conditioned fit in a scaled variable, then conversion to powers of T/K.
+    fit = np.polynomial.Polynomial.fit(T, cp, e["degree"])
+    raw = fit.convert(domain=[-1, 1], window=[-1, 1])
+    coeffs = [float(c) for c in raw.coef]
+    c_back = np.polynomial.polynomial.polyval(T, coeffs)
+    dev = float(np.max(np.abs(c_back / cp - 1.0)))
+    _, rho_ref = e["function"](e["T_density_K"])
+    spread = float(max(abs(rho.max() / rho_ref - 1.0), abs(rho.min() / rho_ref - 1.0)))
+    return {
+        "id": e["id"],
+        "name": e["name"],
+        "aliases": e["aliases"],
+        "T_range_K": [float(lo), float(hi)],
+        "c_J_per_kgK": coeffs,
+        "c_form": "c = sum of c_J_per_kgK[i] * (T/K)**i, J/(kg K)",
+        "density_kg_per_m3": float(rho_ref),
+        "density_at_K": float(e["T_density_K"]),
+        "T_ref_K": 298.15 if lo <= 298.15 <= hi else float(hi),
+        "c_max_rel_dev": _round_up(dev),
+        "density_max_rel_spread": _round_up(spread),
+        "n_fit_points": N_POINTS,
+        "source": e["source"],
+        "source_note": (f"c fitted with degree {e['degree']} to {N_POINTS} points; largest "
+                        f"deviation from the source {_round_up(dev) * 100:.2g} %; the true density differs "
+                        f"from the one value used by up to {_round_up(spread) * 100:.2g} % over the range"),
+    }
+
+
+def main() -> int:
+    head = table("dataset", {
+        "id": "incompressible",
+        "citation": "tablegen incompressible entries fitted to IAPWS releases "
+                    "(see each entry's source)",
+        "generated_by": "tools/make_incompressible.py",
+        "datum": "u = 0 and s = 0 at T_ref_K; h = u + P v",
+    })
+    parts = [head] + [table("incompressible", fit_entry(e), array=True) for e in ENTRIES]
+    OUT.write_text("# Generated by tools/make_incompressible.py; do not edit by hand.\n"
+                   + "\n".join(parts), encoding="utf-8")
+    print(f"wrote {OUT}")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
