@@ -140,7 +140,8 @@ def to_nasa9(r: dict) -> str:
     if len(r["elements"]) > 5:
         raise TablegenError(f"{r['id']}: the NASA/TP-2002-211556 formula field holds 5 elements, this record "
                             f"has {len(r['elements'])} ({', '.join(r['elements'])}); use --format toml")
-    rec = {"id": r["id"], "comment": r.get("card_comment", f"tablegen export of {r['name']}")[:62], "refcode": "export",
+    rec = {"id": r["id"], "comment": r.get("card_comment", f"tablegen export of {r['name']}")[:62],
+           "refcode": r.get("date", "export"),
            "elements": r["elements"], "M": r["M"], "h_formation_J_per_mol": r["h_formation_J_per_mol"],
            "T_bounds_K": r["T_bounds_K"], "coefficients": r["coeffs9"]}
     try:

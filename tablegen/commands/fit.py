@@ -52,7 +52,8 @@ def add_arguments(p):
     p.add_argument("--id", default=None, metavar="ID", help="species id of the record (default: the formula)")
     p.add_argument("--name", default=None, metavar="NAME", help="descriptive name (default: the id)")
     p.add_argument("--h298", default=None, metavar="H",
-                   help="h(298.15 K), the enthalpy of formation, with a unit, written --h298=-393.51kJ/mol for a negative value; default 0")
+                   help="h(298.15 K), the enthalpy of formation, with a unit, written "
+                        "--h298=-393.51kJ/mol for a negative value; default 0")
     p.add_argument("--s298", default=None, metavar="S",
                    help="s°(298.15 K) at 1 bar with a unit (e.g. 213.79J/(mol K)); needed without an s0 column")
     p.add_argument("--target-cp", type=float, default=1e-3, metavar="REL",
