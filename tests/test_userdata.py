@@ -442,3 +442,15 @@ def test_exact_id_wins_over_case_insensitive_match():
     assert lib.record("Cs").elements == {"Cs": 1}
     assert lib.record("CS2").elements == {"C": 1, "S": 2}
     assert lib.record("Cs2").elements == {"Cs": 2}
+
+
+def test_whole_tp2002_data_file_skips_what_is_not_a_gas_polynomial(capsys):
+    # Layout of a whole NASA/TP-2002-211556 data file (header, gas and condensed
+    # records, END markers, a zero-interval reactant): only the gas record loads.
+    f = DATA / "tp2002-thermo-file.inp"
+    lib = library((str(f),))
+    ds = lib.datasets["tp2002-thermo-file"]
+    assert ds.ids == ["N2"]
+    np.testing.assert_allclose(ds.get("N2").poly.coeffs, lib.datasets["nasa2002-air"].get("N2").poly.coeffs,
+                               rtol=1e-15, atol=0)
+    assert any("skipped 2 record(s)" in m and "N2(L)" in m for m in lib.messages)
