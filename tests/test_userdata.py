@@ -384,6 +384,7 @@ from hypothesis import given, settings  # noqa: E402
 from hypothesis import strategies as st  # noqa: E402
 
 from tablegen.data import formats  # noqa: E402
+from tablegen.errors import DataError  # noqa: E402
 
 # exponents of two digits: a field holds one significant digit fewer at |exponent| >= 100
 _coef = st.floats(min_value=-1e12, max_value=1e12, allow_nan=False).filter(lambda x: x == 0 or abs(x) > 1e-90)
@@ -397,7 +398,13 @@ def test_nasa9_fields_hold_ten_significant_digits(a, b, count):
     # within half a unit of the 10th digit (identity of the format, no source needed).
     rec = {"id": "X", "elements": {"C": count}, "M": 12.011 * count, "T_bounds_K": [200.0, 1000.0, 6000.0],
            "coefficients": [a, b], "h_formation_J_per_mol": 0.0}
-    got, _ = formats.read_nasa9(formats.write_nasa9(rec), "mem")
+    try:
+        text = formats.write_nasa9(rec)
+    except DataError:
+        # refused only when the field would round the count to a whole number
+        assert abs(count - round(count)) < 0.5e-4 and count != round(count)
+        return
+    got, _ = formats.read_nasa9(text, "mem")
     raw = got[0].raw
     for row_in, row_out in zip([a, b], raw["coefficients"]):
         for x, y in zip(row_in, row_out):

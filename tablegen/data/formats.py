@@ -438,8 +438,11 @@ def _count(n: float, width: int) -> str:
         return str(int(round(n))).rjust(width)
     for d in range(12, 0, -1):
         s = f"{n:.{d}f}".rstrip("0")
-        if float(s) == 0.0:
-            break
+        if float(s) == 0.0 or float(s) == round(float(s)):
+            # rounded to zero or to a whole number: a reader would take it as exact
+            if len(s.lstrip("-")) <= width:
+                break
+            continue
         short = s.replace("0.", ".", 1) if s.lstrip("-").startswith("0.") else s
         for t in (s, short):
             if len(t) <= width:
