@@ -111,6 +111,22 @@ def sources(lib, name: str, as_json: bool) -> int:
     return 0
 
 
+def user_records_passed(lib) -> list[dict]:
+    """The user records that passed every check (part of the check report)."""
+    from ..errors import DataError
+    out = []
+    for d in reversed(getattr(lib, "user_order", [])):
+        ds = lib.datasets[d]
+        for i in range(len(ds)):
+            try:
+                r = ds._parse(i)
+            except DataError:
+                continue
+            out.append({"dataset": d, "id": r.id, "file": r.file, "line": r.line, "form": r.form,
+                        "T_min_K": r.T_min, "T_max_K": r.T_max, "M": r.M, "intervals": r.poly.n_intervals})
+    return out
+
+
 def run(args) -> int:
     from ..data.library import library
     lib = library(args.data, strict=not args.check)
@@ -121,12 +137,16 @@ def run(args) -> int:
         return sources(lib, args.sources, args.json)
     if args.check:
         warnings, errors = check(lib)
+        passed = user_records_passed(lib)
         if args.json:
-            sys.stdout.write(dumps({"errors": errors, "warnings": warnings,
+            sys.stdout.write(dumps({"errors": errors, "warnings": warnings, "user_records_passed": passed,
                                     "datasets": {d: len(lib.datasets[d]) for d in lib.search_order}}))
         else:
             for d in lib.search_order:
                 print(f"{d}: {len(lib.datasets[d])} records ({lib.datasets[d].path})")
+            for r in passed:
+                print(f"ok: {r['file']}:{r['line']}: {r['id']} ({r['form']}, {r['T_min_K']:g}-{r['T_max_K']:g} K, "
+                      f"M {r['M']:.5g} g/mol, {r['intervals']} intervals)")
             for e in errors:
                 print(f"error: {e}")
             for w in warnings:
