@@ -461,3 +461,14 @@ def test_whole_tp2002_data_file_skips_what_is_not_a_gas_polynomial(capsys):
     np.testing.assert_allclose(ds.get("N2").poly.coeffs, lib.datasets["nasa2002-air"].get("N2").poly.coeffs,
                                rtol=1e-15, atol=0)
     assert any("skipped 2 record(s)" in m and "N2(L)" in m for m in lib.messages)
+
+
+def test_replacement_notice_names_the_record_a_name_resolved_to():
+    # The notice is worked out without building records; it must agree with
+    # Library.record (identity of the library's own lookup rule).
+    lib = library()
+    names = ["CO2", "H2O", "N2", "carbon dioxide", "water", "n-butane", "CS", "Cs2", "Ar", "n-C6H14", "OH"]
+    for n in names:
+        r = lib.record(n)
+        assert lib._resolves_to(n) == (r.dataset, r.id), n
+    assert lib._resolves_to("no-such-gas") is None

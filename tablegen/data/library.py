@@ -486,17 +486,45 @@ class Library:
         before this file was loaded (called before the file joins the search)."""
         seen = set()
         for name in dict.fromkeys([rec.id, rec.name, *rec.aliases]):
-            try:
-                old = self.record(name)
-            except TablegenError:
+            old = self._resolves_to(name)
+            if old is None or old in seen:
                 continue
-            if (old.dataset, old.id) in seen:
-                continue
-            seen.add((old.dataset, old.id))
-            kind = "user" if old.dataset in self.user_order else "shipped"
+            seen.add(old)
+            kind = "user" if old[0] in self.user_order else "shipped"
             via = "" if name == rec.id else f" (by the name {name!r})"
             self.messages.append(f"{rec.file}:{rec.line}: user record {rec.id!r} replaces the {kind} "
-                                 f"{old.dataset} record {old.id!r}{via}")
+                                 f"{old[0]} record {old[1]!r}{via}")
+
+    def _resolves_to(self, name: str) -> tuple[str, str] | None:
+        """(data set, id) that ``record(name)`` gives, found without building records.
+
+        Mirrors record() without a source: user data sets, then the search
+        order, then the species' default source.
+        """
+        def find(d):
+            ds = self.datasets[d]
+            i = ds.exact.get(name.strip())
+            if i is None:
+                key = norm_name(name)
+                if key in getattr(ds, "ambiguous", {}):
+                    return None
+                i = ds.names.get(key)
+            return None if i is None else ds.ids[i]
+
+        for d in reversed(self.user_order):
+            sid = find(d)
+            if sid is not None:
+                return d, sid
+        for d in self.search_order:
+            sid = find(d)
+            if sid is not None:
+                pref = self.defaults.get(sid, {}).get("source")
+                if pref and pref in self.datasets and pref != d:
+                    p = self.datasets[pref]
+                    if sid in p.exact or norm_name(sid) in p.names:
+                        return pref, p.ids[p.exact.get(sid, p.names.get(norm_name(sid)))]
+                return d, sid
+        return None
 
     @property
     def search_order(self) -> list[str]:

@@ -57,8 +57,20 @@ class Finding:
     jump_relative: float | None = None
 
 
-def interval_poly(poly: Polynomial, k: int) -> Polynomial:
-    return Polynomial(poly.T_bounds[k:k + 2], poly.coeffs[k:k + 1], poly.form)
+def evaluate_rows(c: np.ndarray, T: np.ndarray) -> dict[str, np.ndarray]:
+    """cp/R, h/R and s/R of coefficient rows c (n, 9) at temperatures T (n, m).
+
+    Row k of T is evaluated with row k of c, whatever interval T lies in (the
+    checks need both sides of a breakpoint). Same formulas as
+    tablegen.thermo.polynomial (NASA/TP-2002-211556 eq. 1-3).
+    """
+    a1, a2, a3, a4, a5, a6, a7, b1, b2 = (c[:, i:i + 1] for i in range(9))
+    inv = 1.0 / T
+    lnT = np.log(T)
+    cp = a1 * inv * inv + a2 * inv + a3 + T * (a4 + T * (a5 + T * (a6 + T * a7)))
+    h = -a1 * inv + a2 * lnT + b1 + T * (a3 + T * (a4 / 2 + T * (a5 / 3 + T * (a6 / 4 + T * a7 / 5))))
+    s = -a1 * inv * inv / 2 - a2 * inv + a3 * lnT + b2 + T * (a4 + T * (a5 / 2 + T * (a6 / 3 + T * a7 / 4)))
+    return {"cp": cp, "h": h, "s": s}
 
 
 def check_polynomial(poly: Polynomial, *, user: bool) -> list[Finding]:
@@ -71,40 +83,61 @@ def check_polynomial(poly: Polynomial, *, user: bool) -> list[Finding]:
     """
     out: list[Finding] = []
     b = poly.T_bounds
+    c = poly.coeffs
+    frac = np.linspace(0.0, 1.0, SAMPLES)
+    T = b[:-1, None] + (b[1:] - b[:-1])[:, None] * frac[None, :]
+    T[:, -1] = b[1:]
+    with np.errstate(all="ignore"):
+        v = evaluate_rows(c, T)
     for k in range(poly.n_intervals):
-        T = np.linspace(b[k], b[k + 1], SAMPLES)
-        with np.errstate(all="ignore"):
-            v = interval_poly(poly, k).evaluate(T)
         where = f"interval {k + 1} ({b[k]:g}-{b[k + 1]:g} K)"
-        if not all(np.all(np.isfinite(x)) for x in v.values()):
+        cp, h, s = v["cp"][k], v["h"][k], v["s"][k]
+        if not (np.all(np.isfinite(cp)) and np.all(np.isfinite(h)) and np.all(np.isfinite(s))):
             out.append(Finding("error", f"{where}: cp, h or s° is not finite; check the coefficients"))
             continue
-        bad = np.flatnonzero(v["cp"] <= 0)
+        bad = np.flatnonzero(cp <= 0)
         if bad.size:
-            i = int(bad[np.argmin(v["cp"][bad])])
-            out.append(Finding("error", f"{where}: cp goes negative (cp/R = {v['cp'][i]:.4g} at "
-                                        f"{T[i]:.6g} K); cp must be positive over the whole range"))
+            i = int(bad[np.argmin(cp[bad])])
+            out.append(Finding("error", f"{where}: cp goes negative (cp/R = {cp[i]:.4g} at "
+                                        f"{T[k, i]:.6g} K); cp must be positive over the whole range"))
             continue
-        for key, label in (("h", "h"), ("s", "s°")):
-            if np.any(np.diff(v[key]) <= 0):
-                i = int(np.flatnonzero(np.diff(v[key]) <= 0)[0])
-                out.append(Finding("error", f"{where}: {label} does not increase with T near {T[i]:.6g} K; "
+        for arr, label in ((h, "h"), (s, "s°")):
+            d = np.diff(arr)
+            if np.any(d <= 0):
+                i = int(np.flatnonzero(d <= 0)[0])
+                out.append(Finding("error", f"{where}: {label} does not increase with T near {T[k, i]:.6g} K; "
                                             f"{label} must increase with T"))
-    for j in poly.boundary_jumps():
-        T_b = j["T_K"]
-        for key, label, fn in (("h", "h", "h"), ("s", "s°", "s0")):
-            if j[key] > JUMP_LIMIT:
-                out.append(Finding("error" if user else "warning",
-                                   f"{label} jumps by {j[key]:.2e} relative at the breakpoint {T_b:g} K "
-                                   f"(allowed: {JUMP_LIMIT:g}); cp, h and s° must be continuous there",
-                                   T_b, fn, j[key]))
-        if j["cp"] > (CP_JUMP_LIMIT if user else JUMP_LIMIT):
+    if poly.n_intervals > 1:
+        Tb = b[1:-1, None]
+        with np.errstate(all="ignore"):
+            lo = evaluate_rows(c[:-1], Tb)
+            hi = evaluate_rows(c[1:], Tb)
+        # relative jumps as in Polynomial.boundary_jumps: h against |h| + cp T
+        jc = np.abs(hi["cp"] - lo["cp"]) / np.abs(lo["cp"])
+        jh = np.abs(hi["h"] - lo["h"]) / (np.abs(lo["h"]) + np.abs(lo["cp"]) * Tb)
+        js = np.abs(hi["s"] - lo["s"]) / np.abs(lo["s"])
+        for m in range(Tb.shape[0]):
+            j = {"T_K": float(Tb[m, 0]), "cp": float(jc[m, 0]), "h": float(jh[m, 0]), "s": float(js[m, 0])}
+            out.extend(_jump_findings(j, user))
+    return out
+
+
+def _jump_findings(j: dict, user: bool) -> list[Finding]:
+    out = []
+    T_b = j["T_K"]
+    for key, label, fn in (("h", "h", "h"), ("s", "s°", "s0")):
+        if j[key] > JUMP_LIMIT:
             out.append(Finding("error" if user else "warning",
-                               f"cp jumps by {j['cp']:.2e} relative at the breakpoint {T_b:g} K "
-                               f"(allowed: {CP_JUMP_LIMIT if user else JUMP_LIMIT:g})", T_b, "cp", j["cp"]))
-        elif j["cp"] > JUMP_LIMIT:
-            out.append(Finding("warning", f"cp jumps by {j['cp']:.2e} relative at the breakpoint "
-                                          f"{T_b:g} K (above {JUMP_LIMIT:g})", T_b, "cp", j["cp"]))
+                               f"{label} jumps by {j[key]:.2e} relative at the breakpoint {T_b:g} K "
+                               f"(allowed: {JUMP_LIMIT:g}); cp, h and s° must be continuous there",
+                               T_b, fn, j[key]))
+    if j["cp"] > (CP_JUMP_LIMIT if user else JUMP_LIMIT):
+        out.append(Finding("error" if user else "warning",
+                           f"cp jumps by {j['cp']:.2e} relative at the breakpoint {T_b:g} K "
+                           f"(allowed: {CP_JUMP_LIMIT if user else JUMP_LIMIT:g})", T_b, "cp", j["cp"]))
+    elif j["cp"] > JUMP_LIMIT:
+        out.append(Finding("warning", f"cp jumps by {j['cp']:.2e} relative at the breakpoint "
+                                      f"{T_b:g} K (above {JUMP_LIMIT:g})", T_b, "cp", j["cp"]))
     return out
 
 
