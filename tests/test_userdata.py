@@ -472,3 +472,15 @@ def test_replacement_notice_names_the_record_a_name_resolved_to():
         r = lib.record(n)
         assert lib._resolves_to(n) == (r.dataset, r.id), n
     assert lib._resolves_to("no-such-gas") is None
+
+
+def test_printed_heat_of_formation_is_compared_with_the_polynomial(capsys, tmp_path):
+    # A heat of formation that disagrees with h(298.15 K) of the coefficients is
+    # a transcription slip: noted (not refused), naming file, line and record.
+    rc, out, _ = run(capsys, "export", "CO2", "--source", "nasa1993", "--format", "toml")
+    bad = out.replace("h_formation_298_J_per_mol = -393507", "h_formation_298_J_per_mol = -383507")
+    assert rc == 0 and bad != out
+    f = tmp_path / "hf.toml"
+    f.write_text(bad)
+    _, err = state(capsys, "CO2", f, T="300K")
+    assert f"{f}:" in err and "CO2: heat of formation given in the record" in err

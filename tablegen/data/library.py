@@ -316,6 +316,9 @@ def build_record(raw: dict, *, dataset: Dataset, where: str, line: int) -> Recor
     lists them) so that a shipped set never stops a table being made.
     """
     checks = raw.pop("_checks", {}) if isinstance(raw, dict) else {}
+    hf = raw.get("h_formation_298_J_per_mol") if isinstance(raw, dict) else None
+    if "h_formation_J_per_mol" not in checks and isinstance(hf, (int, float)) and not isinstance(hf, bool):
+        checks = {**checks, "h_formation_J_per_mol": float(hf)}
     sid = _req(raw, "id", str, where)
     where = f"{where}{sid}: "
     elements = _req(raw, "elements", dict, where)

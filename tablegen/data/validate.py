@@ -158,7 +158,7 @@ def check_printed_enthalpy(poly: Polynomial, checks: dict, R_J_per_molK: float) 
         hf = checks["h_formation_J_per_mol"]
         d = abs(hf - hR * R_J_per_molK) / (scale * R_J_per_molK)
         if d > JUMP_LIMIT:
-            out.append(Finding("warning", f"heat of formation printed on the second line ({hf:.8g} J/mol) "
+            out.append(Finding("warning", f"heat of formation given in the record ({hf:.8g} J/mol) "
                                           f"differs from the polynomial's ({hR * R_J_per_molK:.8g} J/mol) "
                                           f"by {d:.1e} relative"))
     return out
