@@ -510,7 +510,9 @@ def write_nasa9(rec: dict, comments=()) -> str:
     if len(rows) > 99:
         raise DataError("more than 99 intervals do not fit the I2 interval count")
     out = [f"! {c}" for c in comments]
-    out.append((sid.ljust(18) + str(rec.get("comment", ""))[:62]).rstrip())
+    # fixed columns are counted in bytes by Fortran readers: ASCII only on record lines
+    comment = str(rec.get("comment", "")).replace("λ", "lambda").encode("ascii", "replace").decode()
+    out.append((sid.ljust(18) + comment[:62]).rstrip())
     out.append(f"{len(rows):2d} " + str(rec.get("refcode", ""))[:6].ljust(6) + " "
                + _formula_text(rec["elements"], 5, 6, "TP-2002-211556") + " 0"
                + " " + fixed(float(rec["M"]), 12) + fixed(float(rec.get("h_formation_J_per_mol", 0.0)), 15, 5))
