@@ -484,3 +484,34 @@ def test_printed_heat_of_formation_is_compared_with_the_polynomial(capsys, tmp_p
     f.write_text(bad)
     _, err = state(capsys, "CO2", f, T="300K")
     assert f"{f}:" in err and "CO2: heat of formation given in the record" in err
+
+
+#: Argon typed by hand in the TM-4513 card layout, in the report's own E15.8 style
+#: (0.dddddddd, 8 significant digits), from the shipped nasa1993 Ar record (one
+#: interval, so both card intervals carry it; H(298.15)/R = 0 for an element).
+#: Columns:  1-18 name, 19-24 date, 25-44 formula, 45 phase, 46-65 T range, 66-79 M, 80 line number.
+AR_CARD = """\
+AR                L 6/88AR  1    0    0    0G   200.000  6000.000     39.94800 1
+ 0.25000000E+01 0.00000000E+00 0.00000000E+00 0.00000000E+00 0.00000000E+00    2
+-0.74537500E+03 0.43796749E+01 0.25000000E+01 0.00000000E+00 0.00000000E+00    3
+ 0.00000000E+00 0.00000000E+00-0.74537500E+03 0.43796749E+01 0.00000000E+00    4
+"""
+
+
+def test_hand_typed_tm4513_card_matches_shipped_argon(capsys, tmp_path):
+    # Reader checked against a card typed by hand (not made by our writer):
+    # NASA TM-4513 layout; values of gasdata/nasa1993.toml Ar to 8 digits.
+    f = tmp_path / "argon.dat"
+    f.write_text(AR_CARD)
+    rec = library((str(f),)).record("Ar")
+    ref = library().datasets["nasa1993"].get("Ar")
+    assert rec.file == str(f) and rec.elements == {"Ar": 1}
+    assert list(rec.poly.T_bounds) == [200.0, 1000.0, 6000.0]
+    for row in rec.poly.coeffs:
+        assert np.all(np.abs(row - ref.poly.coeffs[0]) <= 5e-8 * np.abs(ref.poly.coeffs[0]))
+    a, _ = state(capsys, "Ar", f, T="200K,1000K,6000K")
+    b, _ = state(capsys, "Ar", T="200K,1000K,6000K", extra=("--source", "nasa1993"))
+    for ra, rb in zip(a, b):
+        assert ra["cp_molar"] == pytest.approx(rb["cp_molar"], rel=1e-15)
+        # b2 printed to 8 digits: s° differs by at most 5e-8 x 4.38 x R
+        assert abs(ra["s0_molar"] - rb["s0_molar"]) <= 5e-8 * 4.3796749 * 8.314462618 * (1 + 1e-6)
