@@ -2,9 +2,9 @@
 
 Sources named beside each check:
 * NASA TM-4513 (McBride, Gordon & Reno 1993) card layout and the shipped
-  transcription gasdata/nasa1993.toml of its records;
+  copy gasdata/nasa1993.toml of its records;
 * NASA/TP-2002-211556 (McBride, Zehe & Gordon 2002) Appendix C layout and the
-  shipped transcription gasdata/nasa2002-air.toml;
+  shipped copy gasdata/nasa2002-air.toml;
 * NIST-JANAF Thermochemical Tables, 4th ed. (Chase 1998), via the `janaf`
   package, for the fits.
 The two sample files in tests/data were written from the format descriptions.
@@ -476,7 +476,7 @@ def test_replacement_notice_names_the_record_a_name_resolved_to():
 
 def test_printed_heat_of_formation_is_compared_with_the_polynomial(capsys, tmp_path):
     # A heat of formation that disagrees with h(298.15 K) of the coefficients is
-    # a transcription slip: noted (not refused), naming file, line and record.
+    # a copying slip: noted (not refused), naming file, line and record.
     rc, out, _ = run(capsys, "export", "CO2", "--source", "nasa1993", "--format", "toml")
     bad = out.replace("h_formation_298_J_per_mol = -393507", "h_formation_298_J_per_mol = -383507")
     assert rc == 0 and bad != out

@@ -14,7 +14,7 @@ breaks what an ideal-gas cp, h and s° must do:
   ``JUMP_LIMIT`` a warning;
 * the enthalpy printed in a card record (H(298.15)/R of TM-4513, the heat of
   formation of TP-2002-211556) agrees with the polynomial within
-  ``JUMP_LIMIT`` relative (a warning: it is a check of transcription).
+  ``JUMP_LIMIT`` relative (a warning: it catches a copying slip).
 
 Relative jumps are measured as in ``Polynomial.boundary_jumps`` (h relative to
 |h| + cp T, s° relative to |s°|). The limits are common practice: the NASA sets
