@@ -54,6 +54,8 @@ def substance(name: str, *, source: str | None = None, data=()) -> Substance:
     if not isinstance(name, str) or not name.strip():
         raise NameLookupError("substance name is empty; give a species id, alias or mixture")
     name = name.strip()
+    if name[:5].lower() == "flue@":
+        from . import burn  # noqa: F401  (registers the flue-gas name resolver on import)
     for resolve in RESOLVERS:
         s = resolve(name, data, source)
         if s is not None:

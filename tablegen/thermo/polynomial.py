@@ -121,8 +121,8 @@ class Polynomial:
                     part = {key: v[sl] for key, v in out.items()}
                     self._eval_block(T[sl], None if lnT is None else lnT[sl], None if inv is None else inv[sl],
                                      self.coeffs[k], self._h[:, k], self._s[:, k], part)
-        elif n <= 4:
-            # few intervals: the most populated one over the whole array, the
+        else:
+            # unsorted: the most populated interval over the whole array, the
             # others on their own points only, all with scalar coefficients
             counts = np.bincount(idx, minlength=n)
             major = int(np.argmax(counts))
@@ -136,8 +136,6 @@ class Polynomial:
                                  self.coeffs[k], self._h[:, k], self._s[:, k], part)
                 for key in want:
                     out[key][sel] = part[key]
-        else:
-            self._eval_block(T, lnT, inv, self.coeffs.T[:, idx], self._h[:, idx], self._s[:, idx], out)
         return {k: v.reshape(shape) for k, v in out.items()}
 
     def _eval_block(self, T, lnT, inv, c, h, s, out):
