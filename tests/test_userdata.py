@@ -222,7 +222,7 @@ def test_species_check_reports_every_refusal(capsys, tmp_path):
 FLUE = "CO2:0.09,H2O:0.18,N2:0.7,O2:0.021,Ar:0.009"   # invented boiler flue gas
 
 
-@pytest.mark.parametrize("name", ["air", FLUE])
+@pytest.mark.parametrize("name", ["air", FLUE, "flue@CH4@excess-air=15%"])
 def test_exported_mixture_round_trips_through_toml_to_1e9(capsys, tmp_path, name):
     # Round trip of the exact collapsed polynomial: state of the imported record
     # equals state of the mixture to 1e-9 relative (toml keeps every bit).
