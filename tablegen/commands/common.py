@@ -58,10 +58,26 @@ def anchor_from_text(text: str | None):
     return Anchor(**vals)
 
 
+def data_notices(args):
+    """Print the library's notices once, on stderr unless --quiet.
+
+    They say which user records replace shipped ones and what validation
+    found in user files (tablegen.data.library.Library.messages).
+    """
+    from ..data.library import library
+    lib = library(tuple(getattr(args, "data", ()) or ()))
+    if not lib.announced:
+        lib.announced = True
+        for m in lib.messages:
+            notice(args, f"note: {m}")
+    return lib
+
+
 def substance_with_options(args, name: str):
     """Resolve a substance and apply --h-datum, --p-ref and --anchor."""
     from .. import api
     from ..units import pressure_Pa
+    data_notices(args)
     sub = api.substance(name, source=args.source, data=args.data)
     return sub.with_options(datum=datum_from_text(getattr(args, "h_datum", None)),
                             P_ref_Pa=pressure_Pa(getattr(args, "p_ref", "1bar") or "1bar", "--p-ref"),

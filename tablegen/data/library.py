@@ -5,6 +5,12 @@ A gasdata file (format in gasdata/README.md) is one ``[dataset]`` table and one
 file is split at its ``[[species]]`` headers and a record is parsed only when it
 is asked for; the names of all records are read with one cheap scan. Everything
 is loaded lazily and once.
+
+User data (the user data folder and every ``--data`` path) may also come in the
+two card formats of the NASA reports (tablegen.data.formats); the format is
+told from the content. User records are all built and validated when the
+library is made (tablegen.data.validate), so a bad file is refused before any
+table is computed, with file, line, record and reason.
 """
 
 from __future__ import annotations
@@ -20,8 +26,9 @@ from pathlib import Path
 
 import numpy as np
 
-from ..errors import DataError, NameLookupError
+from ..errors import DataError, NameLookupError, TablegenError
 from ..thermo.polynomial import Polynomial, nasa7_to_9
+from . import formats, validate
 
 #: Files in gasdata/ that are not coefficient sets.
 NOT_DATASETS = {"atomic-weights.toml", "mixtures.toml", "defaults.toml", "agreement.toml",
@@ -90,6 +97,8 @@ class Record:
     file: str
     line: int
     extra: dict = field(default_factory=dict)
+    #: validation findings that did not refuse the record (tablegen.data.validate.Finding)
+    warnings: tuple = ()
 
     @property
     def T_min(self) -> float:
@@ -113,9 +122,12 @@ class Dataset:
     _NAME = re.compile(r'^name\s*=\s*"([^"]*)"', re.M)
     _ALIASES = re.compile(r"^aliases\s*=\s*(\[[^\]\n]*\])", re.M)
 
-    def __init__(self, path: Path, weights: AtomicWeights):
+    def __init__(self, path: Path, weights: AtomicWeights, *, user: bool = False):
         self.path = Path(path)
         self.weights = weights
+        self.user = user
+        self.label = str(self.path) if user else self.path.name
+        self.notes: list[str] = []
         try:
             self.text = self.path.read_text(encoding="utf-8")
         except (OSError, UnicodeDecodeError) as e:
@@ -126,7 +138,8 @@ class Dataset:
         try:
             meta = tomllib.loads(head)
         except tomllib.TOMLDecodeError as e:
-            raise DataError(f"{self.path}: not valid TOML before the first [[species]] ({e})") from None
+            raise DataError(f"{self.path}: not valid TOML before the first [[species]] ({e}); "
+                            f"a gasdata file starts with a [dataset] table") from None
         ds = meta.get("dataset")
         if not isinstance(ds, dict) or "id" not in ds or "citation" not in ds:
             raise DataError(f"{self.path}: needs a [dataset] table with at least id and citation")
@@ -204,7 +217,7 @@ class Dataset:
             return self._cache[i]
         start, block = self._blocks[i]
         line = self.text.count("\n", 0, start) + 1
-        where = f"{self.path.name}:{line}: "
+        where = f"{self.label}:{line}: "
         try:
             raw = tomllib.loads(block)["species"][0]
         except tomllib.TOMLDecodeError as e:
@@ -212,6 +225,77 @@ class Dataset:
         rec = build_record(raw, dataset=self, where=where, line=line)
         self._cache[i] = rec
         return rec
+
+
+class CardDataset(Dataset):
+    """A user file in the TM-4513 (nasa7) or TP-2002-211556 (nasa9) card format.
+
+    Every record is read when the file is opened; records are built (and
+    validated) on demand like those of a TOML file. The data set id is the
+    file name without its extension; a comment line ``! citation: ...`` before
+    the first record gives its citation.
+    """
+
+    def __init__(self, path: Path, weights: AtomicWeights, fmt: str, text: str):
+        self.path = Path(path)
+        self.weights = weights
+        self.user = True
+        self.label = str(self.path)
+        self.text = text
+        self.format = fmt
+        reader = formats.read_nasa7 if fmt == "nasa7" else formats.read_nasa9
+        self._raws, self.notes = reader(text, self.label)
+        cite = re.search(r"^\s*[!#]\s*citation:\s*(.+?)\s*$", text, re.M | re.I)
+        report = "NASA TM-4513" if fmt == "nasa7" else "NASA/TP-2002-211556"
+        self.id = self.path.stem
+        self.citation = cite.group(1) if cite else f"user data file {self.path.name} ({report} format)"
+        self.meta = {"id": self.id, "citation": self.citation, "format": fmt}
+        self.P_ref = P_STD_PA
+        self._cache = {}
+        self._blocks = self._raws
+
+    def __repr__(self):
+        return f"CardDataset({self.id!r}, {self.format}, {len(self._raws)} records)"
+
+    @cached_property
+    def names(self) -> dict[str, int]:
+        ids, others, first = {}, {}, {}
+        for i, r in enumerate(self._raws):
+            sid = r.raw["id"]
+            if sid in first:
+                raise DataError(f"{self.label}:{r.line}: {sid}: this species appears twice in the "
+                                f"file (first on line {self._raws[first[sid]].line})")
+            first[sid] = i
+            ids[norm_name(sid)] = i
+            others.setdefault(norm_name(r.raw["name"]), i)
+        return {**others, **ids}
+
+    @cached_property
+    def ids(self) -> list[str]:
+        return [r.raw["id"] for r in self._raws]
+
+    def _parse(self, i: int) -> Record:
+        if i in self._cache:
+            return self._cache[i]
+        r = self._raws[i]
+        rec = build_record(dict(r.raw), dataset=self, where=f"{self.label}:{r.line}: ", line=r.line)
+        self._cache[i] = rec
+        return rec
+
+
+def open_dataset(path: Path, weights: AtomicWeights, *, user: bool) -> Dataset:
+    """A data file in any of the accepted formats (told from the content)."""
+    path = Path(path)
+    if not user:
+        return Dataset(path, weights)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError) as e:
+        raise DataError(f"{path}: cannot read ({e}); a data file must be UTF-8 text") from None
+    fmt = formats.detect(path, text)
+    if fmt == "toml":
+        return Dataset(path, weights, user=True)
+    return CardDataset(path, weights, fmt, text)
 
 
 def _req(raw: dict, key: str, types, where: str):
@@ -224,7 +308,17 @@ def _req(raw: dict, key: str, types, where: str):
 
 
 def build_record(raw: dict, *, dataset: Dataset, where: str, line: int) -> Record:
-    """Validate one raw record and build its polynomial (molar, 1 bar)."""
+    """Validate one raw record and build its polynomial (molar, 1 bar).
+
+    User data (``dataset.user``) are refused on any finding of
+    tablegen.data.validate.check_polynomial that is an error; for shipped data
+    those findings are kept in ``Record.warnings`` (``tablegen species --check``
+    lists them) so that a shipped set never stops a table being made.
+    """
+    checks = raw.pop("_checks", {}) if isinstance(raw, dict) else {}
+    hf = raw.get("h_formation_298_J_per_mol") if isinstance(raw, dict) else None
+    if "h_formation_J_per_mol" not in checks and isinstance(hf, (int, float)) and not isinstance(hf, bool):
+        checks = {**checks, "h_formation_J_per_mol": float(hf)}
     sid = _req(raw, "id", str, where)
     where = f"{where}{sid}: "
     elements = _req(raw, "elements", dict, where)
@@ -248,6 +342,9 @@ def build_record(raw: dict, *, dataset: Dataset, where: str, line: int) -> Recor
             raise DataError(f"{where}interval {k + 1} has a non-finite coefficient")
         c9.append(nasa7_to_9(r) if form == "nasa7" else r)
     c9 = np.array(c9)
+    if bounds != sorted(bounds) or len(set(bounds)) != len(bounds):
+        raise DataError(f"{where}temperature bounds {bounds} must increase: the intervals must be "
+                        f"contiguous and in order")
     if dataset.P_ref != P_STD_PA:
         # s°(1 bar) = s°(P_ref) + R ln(P_ref / 1 bar): shift the s/R constant
         c9[:, 8] += math.log(dataset.P_ref / P_STD_PA)
@@ -257,8 +354,25 @@ def build_record(raw: dict, *, dataset: Dataset, where: str, line: int) -> Recor
         raise DataError(f"{where}{e}") from None
     M_el = dataset.weights.molar_mass(elements, where)
     M = float(raw.get("molar_mass_g_per_mol", M_el))
-    if M <= 0 or abs(M - M_el) > M_TOLERANCE * max(M_el, 1e-3):
-        raise DataError(f"{where}molar mass {M} g/mol does not match its elements ({M_el:.6g} g/mol)")
+    # A card format rounds a fractional element count (a mixture written as one
+    # record) to its field; the molar-mass check allows for that rounding, and
+    # the printed molar mass is then the better value.
+    res = checks.get("count_resolution", {})
+    u_M = sum(dataset.weights.weights[e] * r for e, r in res.items() if e in dataset.weights.weights)
+    if not (math.isfinite(M) and M > 0) or abs(M - M_el) > M_TOLERANCE * max(M_el, 1e-3) + u_M:
+        raise DataError(f"{where}molar mass {M:.8g} g/mol does not match its elements "
+                        f"({M_el:.8g} g/mol from {', '.join(f'{e} {n:g}' for e, n in elements.items())}); "
+                        f"allowed difference {M_TOLERANCE * max(M_el, 1e-3) + u_M:.2g} g/mol")
+    if u_M > 0:
+        M_el = M
+    found = validate.check_polynomial(poly, user=bool(getattr(dataset, "user", False)))
+    errors = [f for f in found if f.severity == "error"]
+    if errors and getattr(dataset, "user", False):
+        raise DataError(f"{where}{errors[0].text}")
+    found += validate.check_printed_enthalpy(poly, checks, 8.314462618)
+    for f in found:
+        if f.severity == "warning" and getattr(dataset, "user", False):
+            dataset.notes.append(f"{where}{f.text}")
     h298 = None
     if poly.T_min <= 298.15 <= poly.T_max:
         h298 = float(poly.evaluate(np.array([298.15]), want=("h",))["h"][0]) * 8.314462618
@@ -280,22 +394,28 @@ def build_record(raw: dict, *, dataset: Dataset, where: str, line: int) -> Recor
         file=str(dataset.path),
         line=line,
         extra={k: v for k, v in raw.items() if k not in known},
+        warnings=tuple(found),
     )
 
 
 class Library:
     """All datasets: shipped, then the user data folder, then --data paths."""
 
-    def __init__(self, extra_paths=(), *, include_user_dir: bool = True):
+    def __init__(self, extra_paths=(), *, include_user_dir: bool = True, strict: bool = True):
         self.root = gasdata_dir()
         self.weights = self._load_weights()
         self.datasets: dict[str, Dataset] = {}
         self.messages: list[str] = []
         self.user_order: list[str] = []
+        #: with strict=False: refusals of user files and records, instead of raising
+        self.load_errors: list[str] = []
+        self.strict = strict
+        self.announced = False
         for p in sorted(self.root.glob("*.toml")):
             if p.name not in NOT_DATASETS:
                 self._add(p, announce=False)
         self.shipped = list(self.datasets)
+        self.defaults = self._load_defaults()
         paths = []
         ud = user_data_dir() if include_user_dir else None
         if ud is not None and ud.is_dir():
@@ -303,13 +423,14 @@ class Library:
         paths.extend(Path(p) for p in extra_paths)
         for p in paths:
             if p.is_dir():
-                for f in sorted(p.glob("*.toml")):
-                    self._add(f, announce=True)
+                for f in sorted(p.iterdir()):
+                    if f.is_file() and not f.name.startswith(".") and \
+                            f.suffix.lower() in formats.FOLDER_EXTENSIONS:
+                        self._add(f, announce=True)
             elif p.is_file():
                 self._add(p, announce=True)
             else:
-                raise DataError(f"--data {p}: no such file or folder")
-        self.defaults = self._load_defaults()
+                raise DataError(f"--data {p}: no such file or folder; give a coefficient file or a folder of them")
 
     def _load_weights(self) -> AtomicWeights:
         raw = tomllib.loads((self.root / "atomic-weights.toml").read_text(encoding="utf-8"))
@@ -322,12 +443,91 @@ class Library:
         return tomllib.loads(p.read_text(encoding="utf-8")).get("species", {})
 
     def _add(self, path: Path, announce: bool):
-        ds = Dataset(path, self.weights)
-        if ds.id in self.datasets and announce:
+        if not announce:
+            ds = Dataset(path, self.weights)
+            self.datasets[ds.id] = ds
+            return
+        try:
+            ds = open_dataset(path, self.weights, user=True)
+            names = ds.names  # noqa: F841  (duplicate ids are refused here)
+        except DataError as e:
+            if self.strict:
+                raise
+            self.load_errors.append(str(e))
+            return
+        good = self._validate_user(ds)
+        if ds.id in self.datasets:
             self.messages.append(f"data set {ds.id!r} from {path} replaces the one already loaded")
+            if ds.id in self.user_order:
+                self.user_order.remove(ds.id)
+        self.messages.extend(ds.notes)
+        for rec in good:
+            self._announce_replacement(rec, ds)
         self.datasets[ds.id] = ds
-        if announce:
-            self.user_order.append(ds.id)
+        self.user_order.append(ds.id)
+
+    def _validate_user(self, ds: Dataset) -> list[Record]:
+        """Build and validate every record of a user file (strict: raise on the first bad one)."""
+        good, first = [], {}
+        for i in range(len(ds)):
+            try:
+                rec = ds._parse(i)
+                key = rec.id
+                if key in first:
+                    raise DataError(f"{ds.label}:{rec.line}: {rec.id}: this species appears twice in the "
+                                    f"file (first on line {first[key]}); keep one record a species")
+                first[key] = rec.line
+                good.append(rec)
+            except DataError as e:
+                if self.strict:
+                    raise
+                self.load_errors.append(str(e))
+        return good
+
+    def _announce_replacement(self, rec: Record, ds: Dataset):
+        """Note each record (shipped or earlier user) that a name of this one resolved to
+        before this file was loaded (called before the file joins the search)."""
+        seen = set()
+        for name in dict.fromkeys([rec.id, rec.name, *rec.aliases]):
+            old = self._resolves_to(name)
+            if old is None or old in seen:
+                continue
+            seen.add(old)
+            kind = "user" if old[0] in self.user_order else "shipped"
+            via = "" if name == rec.id else f" (by the name {name!r})"
+            self.messages.append(f"{rec.file}:{rec.line}: user record {rec.id!r} replaces the {kind} "
+                                 f"{old[0]} record {old[1]!r}{via}")
+
+    def _resolves_to(self, name: str) -> tuple[str, str] | None:
+        """(data set, id) that ``record(name)`` gives, found without building records.
+
+        Mirrors record() without a source: user data sets, then the search
+        order, then the species' default source.
+        """
+        def find(d):
+            ds = self.datasets[d]
+            i = ds.exact.get(name.strip())
+            if i is None:
+                key = norm_name(name)
+                if key in getattr(ds, "ambiguous", {}):
+                    return None
+                i = ds.names.get(key)
+            return None if i is None else ds.ids[i]
+
+        for d in reversed(self.user_order):
+            sid = find(d)
+            if sid is not None:
+                return d, sid
+        for d in self.search_order:
+            sid = find(d)
+            if sid is not None:
+                pref = self.defaults.get(sid, {}).get("source")
+                if pref and pref in self.datasets and pref != d:
+                    p = self.datasets[pref]
+                    if sid in p.exact or norm_name(sid) in p.names:
+                        return pref, p.ids[p.exact.get(sid, p.names.get(norm_name(sid)))]
+                return d, sid
+        return None
 
     @property
     def search_order(self) -> list[str]:
@@ -397,10 +597,14 @@ class Library:
 _LIB: dict = {}
 
 
-def library(extra_paths=()) -> Library:
-    """The process-wide library for a given list of --data paths, built once."""
-    key = tuple(str(Path(p).resolve()) for p in extra_paths)
+def library(extra_paths=(), *, strict: bool = True) -> Library:
+    """The process-wide library for a given list of --data paths, built once.
+
+    strict=False (``tablegen species --check``) collects the refusals of user
+    files in ``Library.load_errors`` instead of raising the first one.
+    """
+    key = (tuple(str(Path(p).resolve()) for p in extra_paths), strict)
     if key not in _LIB:
-        lib = Library(extra_paths)
+        lib = Library(extra_paths, strict=strict)
         _LIB[key] = lib
     return _LIB[key]

@@ -1,0 +1,245 @@
+"""tablegen fit: NASA polynomial coefficients from a tabulated cp(T).
+
+Reads a CSV in the shared column convention (header cells ``key [unit]``,
+``#`` comment lines): a ``T`` column and a ``cp_molar`` column (or a mass-basis
+``cp`` column, converted with the molar mass of ``--formula``), optionally
+``dh298_molar`` (h - h(298.15 K)) and ``s0_molar`` (or mass-basis ``s0``)
+columns, which are then fitted with cp. The fit is tablegen.fitting's
+constrained least squares (cp, h and s° continuous at each breakpoint); it is
+refused when ill-conditioned or when it misses the residual target. The record
+is written in the chosen format; the largest residuals go to stderr and into
+the record's comments.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import re
+import sys
+from pathlib import Path
+
+import numpy as np
+
+from ..errors import TablegenError
+
+EXAMPLE = """example:
+  tablegen fit site-gas-cp.csv --form nasa9 --formula C1.02H3.9O0.1N0.08 --id SITE-GAS \\
+      --h298=-78.2kJ/mol --s298 "190.1J/(mol K)" --out site-gas.inp
+  tablegen fit co2-table.csv --form nasa7 --formula CO2 --breakpoint 1000K --format toml
+
+The CSV has header cells 'key [unit]': T [K] (or °C, °F, °R), cp_molar [J/(mol K)]
+or cp [kJ/(kg K)], and optionally dh298_molar [J/mol] and s0_molar [J/(mol K)]."""
+
+#: Columns the fit reads: key -> dimension of its unit.
+COLUMNS = {"T": "temperature", "cp_molar": "molar_entropy", "cp": "specific_entropy",
+           "dh298_molar": "molar_energy", "s0_molar": "molar_entropy", "s0": "specific_entropy"}
+
+_HEAD = re.compile(r"^\s*([A-Za-z0-9_]+)\s*\[(.*)\]\s*$")
+_FORMULA = re.compile(r"([A-Z][a-z]?)(\d+(?:\.\d*)?|\.\d+)?")
+
+
+def add_arguments(p):
+    p.epilog = EXAMPLE
+    p.add_argument("table", metavar="TABLE.csv", help="tabulated cp(T), columns 'key [unit]'")
+    p.add_argument("--form", required=True, choices=("nasa7", "nasa9"), metavar="FORM",
+                   help="polynomial form: nasa7 (NASA TM-4513) or nasa9 (NASA/TP-2002-211556)")
+    p.add_argument("--breakpoint", action="append", default=None, metavar="T",
+                   help="inner interval bound with a unit (repeatable); default: chosen by the fit "
+                        "(1000 K for nasa7 card output)")
+    p.add_argument("--formula", required=True, metavar="FORMULA",
+                   help="elements and counts, e.g. CO2 or C1.02H3.9O0.1 (gives the molar mass)")
+    p.add_argument("--id", default=None, metavar="ID", help="species id of the record (default: the formula)")
+    p.add_argument("--name", default=None, metavar="NAME", help="descriptive name (default: the id)")
+    p.add_argument("--h298", default=None, metavar="H",
+                   help="h(298.15 K), the enthalpy of formation, with a unit, written "
+                        "--h298=-393.51kJ/mol for a negative value; default 0")
+    p.add_argument("--s298", default=None, metavar="S",
+                   help="s°(298.15 K) at 1 bar with a unit (e.g. 213.79J/(mol K)); needed without an s0 column")
+    p.add_argument("--target-cp", type=float, default=1e-3, metavar="REL",
+                   help="largest |Δcp|/cp accepted at the tabulated points (default 1e-3)")
+    p.add_argument("--format", default=None, choices=("nasa7", "nasa9", "toml"), metavar="FORMAT",
+                   help="output format: nasa7, nasa9 or toml (default: the card format of --form)")
+    p.add_argument("--out", default=None, metavar="FILE", help="write to FILE instead of stdout")
+    p.add_argument("--force", action="store_true", help="overwrite FILE if it exists")
+
+
+def parse_formula(text: str) -> dict:
+    """'CO2' -> {'C': 1, 'O': 2}; fractional counts allowed (a pseudo-species)."""
+    t = text.strip()
+    pos, out = 0, {}
+    for m in _FORMULA.finditer(t):
+        if m.start() != pos:
+            break
+        el, n = m.group(1), m.group(2)
+        x = float(n) if n else 1.0
+        if el in out:
+            raise TablegenError(f"--formula {text!r}: element {el} is given twice")
+        if x <= 0:
+            raise TablegenError(f"--formula {text!r}: count of {el} must be positive")
+        out[el] = int(x) if x == int(x) else x
+        pos = m.end()
+    if pos != len(t) or not out:
+        raise TablegenError(f"--formula {text!r} is not a formula; write element symbols with counts, "
+                            f"e.g. CO2, C3H8 or C1.02H3.9O0.1")
+    return out
+
+
+def read_table(path: str, M_g_per_mol: float) -> dict:
+    """The fit columns of a CSV, SI molar units; cites from '# source:' lines."""
+    from ..units import unit
+    p = Path(path)
+    try:
+        text = p.read_text(encoding="utf-8-sig")
+    except FileNotFoundError:
+        raise TablegenError(f"{path}: no such file; give a CSV table of cp(T)") from None
+    except (OSError, UnicodeDecodeError) as e:
+        raise TablegenError(f"{path}: cannot read ({e}); the table must be UTF-8 CSV") from None
+    lines = text.splitlines()
+    cites, body = [], []
+    for n, ln in enumerate(lines, 1):
+        if ln.lstrip().startswith("#"):
+            m = re.match(r"^\s*#\s*source:\s*(.+?)\s*$", ln, re.I)
+            if m:
+                cites.append(m.group(1))
+            continue
+        if ln.strip():
+            body.append((n, ln))
+    if not body:
+        raise TablegenError(f"{path}: the table is empty; it needs a header line and rows")
+    rows = list(csv.reader(io.StringIO("\n".join(ln for _, ln in body))))
+    head_line, head = body[0][0], rows[0]
+    cols = {}
+    for j, cell in enumerate(head):
+        m = _HEAD.match(cell)
+        if not m:
+            raise TablegenError(f"{path}:{head_line}: header cell {cell!r} is not 'key [unit]', e.g. 'T [K]' "
+                                f"or 'cp_molar [J/(mol K)]'")
+        key, u = m.group(1), m.group(2).strip()
+        if key in COLUMNS:
+            if key in cols:
+                raise TablegenError(f"{path}:{head_line}: column {key!r} appears twice")
+            try:
+                cols[key] = (j, unit(u, COLUMNS[key]))
+            except TablegenError as e:
+                raise TablegenError(f"{path}:{head_line}: column {cell!r}: {e}") from None
+    if "T" not in cols:
+        raise TablegenError(f"{path}:{head_line}: no 'T [unit]' column; the table needs T and cp_molar (or cp)")
+    if "cp_molar" not in cols and "cp" not in cols:
+        raise TablegenError(f"{path}:{head_line}: no cp column; give 'cp_molar [J/(mol K)]' or 'cp [kJ/(kg K)]'")
+    for a, b in (("cp_molar", "cp"), ("s0_molar", "s0")):
+        if a in cols and b in cols:
+            raise TablegenError(f"{path}:{head_line}: give {a} or {b}, not both")
+    data = {k: [] for k in cols}
+    for (n, _), r in zip(body[1:], rows[1:]):
+        if len(r) != len(head):
+            raise TablegenError(f"{path}:{n}: the row has {len(r)} cells but the header has {len(head)}")
+        for k, (j, u) in cols.items():
+            try:
+                v = float(r[j])
+            except ValueError:
+                raise TablegenError(f"{path}:{n}: column {head[j]!r}: {r[j]!r} is not a number") from None
+            if not np.isfinite(v):
+                raise TablegenError(f"{path}:{n}: column {head[j]!r}: {r[j]!r} is not a finite number")
+            data[k].append(u.to_si(v))
+    if len(data["T"]) < 2:
+        raise TablegenError(f"{path}: the table has {len(data['T'])} rows; a fit needs many more")
+    Mk = M_g_per_mol * 1e-3
+    out = {"T_K": np.array(data["T"])}
+    out["cp"] = np.array(data["cp_molar"]) if "cp_molar" in data else np.array(data["cp"]) * Mk
+    if "dh298_molar" in data:
+        out["dh"] = np.array(data["dh298_molar"])
+    if "s0_molar" in data or "s0" in data:
+        out["s"] = np.array(data["s0_molar"]) if "s0_molar" in data else np.array(data["s0"]) * Mk
+    order = np.argsort(out["T_K"], kind="stable")
+    if np.any(np.diff(out["T_K"][order]) <= 0):
+        raise TablegenError(f"{path}: temperatures repeat; give each temperature once")
+    out = {k: v[order] for k, v in out.items()}
+    out["cites"] = cites
+    return out
+
+
+def report(fit, tab, path: str) -> list[str]:
+    r = fit.residuals
+    bp = [f"{t:g}" for t in fit.T_bounds[1:-1]]
+    lines = [f"fit of {Path(path).name}: {fit.n_points} points, {fit.T_bounds[0]:g}-{fit.T_bounds[-1]:g} K, "
+             f"{fit.form}, breakpoints {', '.join(bp) + ' K' if bp else 'none'}, condition {fit.condition:.2g}",
+             f"largest residuals: cp {r['cp_max_rel'] * 100:.3g} % (rms {r['cp_rms_rel'] * 100:.3g} %)"]
+    if r.get("h_max_J_per_mol") is not None:
+        lines[-1] += f"; h-h298 {r['h_max_J_per_mol']:.3g} J/mol"
+    else:
+        lines[-1] += "; h-h298 not tabulated"
+    if r.get("s_max_J_per_molK") is not None:
+        lines[-1] += f"; s° {r['s_max_J_per_molK']:.3g} J/(mol K)"
+    else:
+        lines[-1] += "; s° not tabulated (level from --s298)"
+    return lines
+
+
+def run(args) -> int:
+    from ..data.validate import check_polynomial
+    from ..fitting import fit_cp_table
+    from ..outfiles import write_all
+    from ..units import quantity, temperature_K
+    from .common import data_notices, notice
+    from .export import check_id, with_poly, write_record
+    fmt = args.format or args.form
+    if fmt == "nasa7" and args.form != "nasa7":
+        raise TablegenError("--format nasa7 holds only the 7-coefficient form; use --form nasa7, or "
+                            "--format nasa9 or toml")
+    lib = data_notices(args)
+    elements = parse_formula(args.formula)
+    M = lib.weights.molar_mass(elements, f"--formula {args.formula}: ")
+    rid = check_id(args.id or args.formula.strip())
+    tab = read_table(args.table, M)
+    bps = None
+    if args.breakpoint:
+        bps = [temperature_K(b, "--breakpoint") for b in args.breakpoint]
+    if fmt == "nasa7":
+        if bps is None:
+            bps = [1000.0]
+        if len(bps) != 1 or abs(bps[0] - 1000.0) > 1e-9:
+            raise TablegenError("the nasa7 (TM-4513) card format has one breakpoint, at 1000 K; give "
+                                "--breakpoint 1000K or choose --format toml")
+        if not tab["T_K"][0] < 1000.0 < tab["T_K"][-1]:
+            raise TablegenError("the nasa7 (TM-4513) card format needs a table that spans 1000 K; "
+                                "choose --format toml")
+    h298 = quantity(args.h298, "molar_energy", "--h298") if args.h298 is not None else None
+    s298 = quantity(args.s298, "molar_entropy", "--s298") if args.s298 is not None else None
+    if not 0 < args.target_cp < 1:
+        raise TablegenError(f"--target-cp {args.target_cp!r} must lie between 0 and 1 (a relative error)")
+    from ..fitting import FitError
+    if h298 is None:
+        notice(args, "note: h(298.15 K) taken as 0 (a sensible-enthalpy record); give --h298 for the "
+                     "enthalpy of formation")
+    try:
+        fit = fit_cp_table(tab["T_K"], tab["cp"], form=args.form, breakpoints=bps, h298_J_per_mol=h298,
+                           s298_J_per_molK=s298, dh_J_per_mol=tab.get("dh"), s_J_per_molK=tab.get("s"),
+                           target={"cp_max_rel": args.target_cp})
+    except FitError as e:
+        hint = (" (the nasa7 card format allows only the 1000 K breakpoint; --format toml allows more)"
+                if fmt == "nasa7" else "")
+        raise FitError(f"fit of {args.table} refused: {e}{hint}") from None
+    errors = [f for f in check_polynomial(fit.poly, user=True) if f.severity == "error"]
+    if errors:
+        raise TablegenError(f"the fit is refused: {errors[0].text}")
+    lines = report(fit, tab, args.table)
+    for ln in lines:
+        notice(args, ln)
+    cites = tab["cites"] or [f"tabulation {Path(args.table).name}"]
+    r = {"id": rid, "name": args.name or rid, "kind": "species", "elements": elements, "M": M,
+         "comments": [f"{rid}: fit of {Path(args.table).name} by tablegen fit ({args.form})", *lines,
+                      *[f"source: {c}" for c in cites]],
+         "cites": cites, "origin": f" (fit of {Path(args.table).name})",
+         "citation": f"{'; '.join(cites)}; coefficients fitted by tablegen fit ({args.form})",
+         "card_comment": f"fit of {Path(args.table).name} (tablegen fit)",
+         "dataset_id": f"fit-{rid}", "date": "fit", "title": f"tablegen fit of {Path(args.table).name}",
+         "fit_residuals": {k: float(v) for k, v in fit.residuals.items() if v is not None},
+         "fit_input": Path(args.table).name}
+    text = write_record(with_poly(r, fit.poly), fmt)
+    if args.out:
+        write_all({args.out: text}, args.force)
+        notice(args, f"wrote {args.out} (record {rid}, {fmt})")
+    else:
+        sys.stdout.write(text)
+    return 0
