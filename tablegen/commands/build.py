@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from .common import notice
+from .common import notice, data_notices
 
 
 def add_arguments(p):
@@ -25,6 +25,8 @@ def run(args) -> int:
     from .. import spec as specmod
     from ..book.build import progress_for, render_files, write
     spec = specmod.load(args.spec, source=args.source, data=args.data)
+    from types import SimpleNamespace
+    data_notices(SimpleNamespace(data=spec.data_paths, quiet=args.quiet))
     out = Path(args.out) if args.out else Path("output") / spec.name
     bar = progress_for(args, len(spec.tables), f"building {spec.name}")
     files, book = render_files(spec, out, bar)

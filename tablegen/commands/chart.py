@@ -180,6 +180,8 @@ def _stem(text: str) -> str:
 
 
 def run(args) -> int:
+    from .common import data_notices
+    data_notices(args)
     from ..book import charts as C
     from .. import __version__
 

@@ -196,6 +196,8 @@ def render_text(r) -> str:
 
 
 def run(args) -> int:
+    from .common import data_notices
+    data_notices(args)
     r = compute(args)
     if args.json:
         obj = dict(r.summary)

@@ -366,6 +366,8 @@ def format_text(d: dict, sub) -> str:
 
 
 def run(args) -> int:
+    from .common import data_notices
+    data_notices(args)
     from ..steps import process
     T1, P1 = parse_start(args.start)
     step, params = step_from_args(args)
