@@ -57,30 +57,55 @@ CP_FLOOR_REL = 1.0e-5
 
 SQRT3 = math.sqrt(3.0)
 
+#: Fraction of the class default kept as a floor under a source spread.
+SHARED_FLOOR = 1.0
+
 # ---------------------------------------------------------------- class defaults
 #: Species classes with default standard uncertainties ("estimated"), used where
-#: no published value and no source spread exist.  cp_rel: relative standard
-#: uncertainty of cp below 1000 K, 1000-3000 K and above 3000 K; S298 in
-#: J/(mol K); dfH in J/mol.  Basis (docs/uncertainty.md): the spread of the
-#: NASA TM-4513 7-coefficient fits against the JANAF tables (4th ed., 1998) and
-#: NASA/TP-2002-211556 for the species of each class, max/sqrt(3), rounded up.
+#: no published value and no source spread exist: relative standard
+#: uncertainties of cp, of H(T)-H(298.15) and of S(T)-S(298.15) in three bins
+#: (<= 1000 K, 1000-3000 K, > 3000 K); S298 in J/(mol K) and dfH in J/mol.
+#: Derived by tools/class_defaults.py: the NASA TM-4513 functions against the
+#: JANAF tables, 4th ed. (Chase 1998), per class the median over its species of
+#: the largest difference in each bin, divided by sqrt(3), rounded up to one
+#: significant digit and made non-decreasing with temperature (table in
+#: docs/uncertainty.md).  Where JANAF agrees to its printed digits (noble
+#: gases, cp = 5/2 R; atoms below 1000 K), the gas-constant floor is used.  S298 and dfH defaults are
+#: judgement (common practice for tabulated gases without a key value).
 CLASS_DEFAULTS = {
-    "noble gas":           {"cp_rel": (1.0e-5, 1.0e-5, 1.0e-5), "S298": 0.005, "dfH": 0.0},
-    "monatomic":           {"cp_rel": (6.0e-4, 1.0e-3, 1.0e-3), "S298": 0.01, "dfH": 1000.0},
-    "diatomic":            {"cp_rel": (1.0e-3, 2.0e-3, 5.0e-3), "S298": 0.05, "dfH": 2000.0},
-    "small polyatomic":    {"cp_rel": (2.0e-3, 5.0e-3, 1.0e-2), "S298": 0.2, "dfH": 2000.0},
-    "hydrocarbon or larger": {"cp_rel": (4.0e-3, 1.0e-2, 2.0e-2), "S298": 1.0, "dfH": 4000.0},
+    "noble gas": {"cp_rel": (5e-6, 5e-6, 5e-6), "dh_rel": (5e-6, 5e-6, 5e-6),
+                  "ds_rel": (5e-6, 5e-6, 5e-6), "S298": 0.005, "dfH": 0.0},
+    "monatomic": {"cp_rel": (5e-5, 5e-4, 5e-4), "dh_rel": (4e-5, 2e-4, 2e-4),
+                  "ds_rel": (1e-5, 2e-4, 2e-4), "S298": 0.01, "dfH": 1000.0},
+    "diatomic": {"cp_rel": (5e-4, 2e-3, 2e-3), "dh_rel": (3e-4, 7e-4, 7e-4),
+                 "ds_rel": (3e-4, 4e-4, 4e-4), "S298": 0.05, "dfH": 1000.0},
+    "diatomic radical": {"cp_rel": (4e-3, 5e-3, 2e-2), "dh_rel": (1e-3, 2e-3, 5e-3),
+                         "ds_rel": (5e-4, 7e-4, 2e-3), "S298": 0.1, "dfH": 2000.0},
+    "small polyatomic": {"cp_rel": (7e-4, 3e-3, 3e-3), "dh_rel": (4e-4, 8e-4, 8e-4),
+                         "ds_rel": (4e-4, 5e-4, 5e-4), "S298": 0.2, "dfH": 1000.0},
+    "polyatomic radical": {"cp_rel": (4e-3, 7e-3, 8e-3), "dh_rel": (3e-3, 3e-3, 5e-3),
+                           "ds_rel": (3e-3, 3e-3, 3e-3), "S298": 0.5, "dfH": 4000.0},
+    "hydrocarbon or larger": {"cp_rel": (5e-3, 6e-3, 7e-3), "dh_rel": (4e-3, 4e-3, 5e-3),
+                              "ds_rel": (4e-3, 4e-3, 4e-3), "S298": 1.0, "dfH": 2000.0},
 }
 _CLASS_T = (1000.0, 3000.0)
 NOBLE = frozenset({"He", "Ne", "Ar", "Kr", "Xe", "Rn"})
 
 
-def species_class(elements: dict) -> str:
+#: Atomic numbers of the elements that the shipped gases hold (for the
+#: open-shell test: an odd number of electrons makes a radical).
+ATOMIC_NUMBER = {"H": 1, "D": 1, "He": 2, "Li": 3, "B": 5, "C": 6, "N": 7, "O": 8, "F": 9, "Ne": 10,
+                 "Na": 11, "Mg": 12, "Al": 13, "Si": 14, "P": 15, "S": 16, "Cl": 17, "Ar": 18,
+                 "K": 19, "Ca": 20, "Br": 35, "Kr": 36, "I": 53, "Xe": 54}
+
+
+def species_class(elements: dict, species_id: str = "") -> str:
     """Class of a species from its elements (for the default uncertainties).
 
-    noble gas; monatomic; diatomic; small polyatomic (3-5 atoms, not a
-    hydrocarbon); hydrocarbon or larger (C with H and 5 atoms or more, or 6
-    atoms or more).  Electrons and ions count by their atoms.
+    noble gas; monatomic; diatomic; diatomic radical (odd number of
+    electrons); polyatomic radical (3-5 atoms, odd number of electrons);
+    hydrocarbon or larger (closed-shell CxHy of 4 or 5 atoms, or any species of
+    6 atoms or more); small polyatomic (the other species of 3-5 atoms).  The charge of an ion is read from a trailing + or - of its id.
     """
     atoms = {k: v for k, v in elements.items() if k not in ("E", "e", "e-")}
     n = sum(atoms.values())
@@ -88,15 +113,20 @@ def species_class(elements: dict) -> str:
         return "noble gas"        # the free electron: cp = 5/2 R exactly
     if n == 1:
         return "noble gas" if next(iter(atoms)) in NOBLE else "monatomic"
-    if n == 2:
-        return "diatomic"
-    if n >= 6 or ("C" in atoms and "H" in atoms and n >= 5):
+    if n >= 6:
         return "hydrocarbon or larger"
-    return "small polyatomic"
+    charge = species_id.count("+") - species_id.count("-") if species_id.endswith(("+", "-")) else 0
+    electrons = sum(ATOMIC_NUMBER.get(el, 0) * k for el, k in atoms.items()) - charge
+    radical = all(el in ATOMIC_NUMBER for el in atoms) and electrons % 2 == 1
+    if n == 2:
+        return "diatomic radical" if radical else "diatomic"
+    if not radical and set(atoms) == {"C", "H"} and n >= 4:
+        return "hydrocarbon or larger"
+    return "polyatomic radical" if radical else "small polyatomic"
 
 
-def _class_cp_rel(cls: str, T: np.ndarray) -> np.ndarray:
-    a, b, c = CLASS_DEFAULTS[cls]["cp_rel"]
+def _class_rel(cls: str, what: str, T: np.ndarray) -> np.ndarray:
+    a, b, c = CLASS_DEFAULTS[cls][what]
     return np.where(T <= _CLASS_T[0], a, np.where(T <= _CLASS_T[1], b, c))
 
 
@@ -143,22 +173,18 @@ AGREEMENT_KEYS = ("species", "source", "against", "band_K", "n_points", "cp_max_
                   "dh_max_J_per_mol", "dh_rms_J_per_mol", "s0_max_J_per_molK", "s0_rms_J_per_molK")
 
 
-def load_agreement(path=None) -> tuple:
-    """Agreement rows ([[agreement]] tables, format of gasdata/agreement.toml).
+#: Shipped agreement files, read together: the data-curation figures and the
+#: JANAF comparison written by tools/janaf_agreement.py.
+AGREEMENT_FILES = ("agreement.toml", "agreement-janaf.toml")
 
-    With no path: the shipped gasdata/agreement.toml if present, else the
-    spread of the shipped data sets against each other (:func:`shipped_spread`).
-    """
-    if path is None:
-        p = _gasdata("agreement.toml")
-        if p is None:
-            return shipped_spread()
-    else:
-        from pathlib import Path
-        p = Path(path)
+
+@lru_cache(maxsize=None)
+def _read_agreement(path: str) -> tuple:
+    from pathlib import Path
+    p = Path(path)
     try:
         raw = tomllib.loads(p.read_text(encoding="utf-8"))
-    except (OSError, tomllib.TOMLDecodeError) as e:
+    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError) as e:
         raise TablegenError(f"{p}: cannot read agreement figures ({e})") from None
     rows = []
     for i, r in enumerate(raw.get("agreement", [])):
@@ -169,6 +195,29 @@ def load_agreement(path=None) -> tuple:
                                 f"allowed keys: {', '.join(AGREEMENT_KEYS)}")
         rows.append(dict(r))
     return tuple(rows)
+
+
+def load_agreement(path=None) -> tuple:
+    """Agreement rows ([[agreement]] tables, format of gasdata/agreement.toml).
+
+    With no path: every shipped agreement file (AGREEMENT_FILES) plus the
+    spread of the shipped data sets against each other (:func:`shipped_spread`).
+    """
+    if path is not None:
+        return _read_agreement(str(path))
+    rows = list(shipped_spread())
+    for name in AGREEMENT_FILES:
+        p = _gasdata(name)
+        if p is not None:
+            rows += _read_agreement(str(p))
+    return tuple(rows)
+
+
+def _by_species(rows) -> dict:
+    out: dict = {}
+    for r in rows:
+        out.setdefault(r["species"], []).append(r)
+    return out
 
 
 def spread_figures(species: str, source: str, against: str, f_source, f_against, T_lo: float,
@@ -271,19 +320,21 @@ def _record_for(comp_id: str, dataset: str):
 
 def species_data(rec, T: np.ndarray, agreement) -> SpeciesData:
     """Data-component standard uncertainties of one species record at T (K)."""
-    cls = species_class(rec.elements)
+    cls = species_class(rec.elements, rec.id)
     e = rec.poly.evaluate(np.concatenate([[T_REF], T]))
     cp = e["cp"][1:] * R_MOLAR
     dh = (e["h"][1:] - e["h"][0]) * R_MOLAR
     ds = (e["s"][1:] - e["s"][0]) * R_MOLAR
     h298, s298 = e["h"][0] * R_MOLAR, e["s"][0] * R_MOLAR
-    rel = _class_cp_rel(cls, np.maximum(T, T_REF))
+    Tc = np.maximum(T, T_REF)
     u_cp = np.full(T.shape, np.nan)
     u_dh = np.full(T.shape, np.nan)
     u_ds = np.full(T.shape, np.nan)
     basis = set()
-    for r in agreement:
-        if r["species"] != rec.id or rec.dataset not in (r["source"], r["against"]):
+    mine = agreement.get(rec.id, ()) if isinstance(agreement, dict) else \
+        [r for r in agreement if r["species"] == rec.id]
+    for r in mine:
+        if rec.dataset not in (r["source"], r["against"]):
             continue
         lo, hi = r["band_K"]
         m = (T >= lo) & (T <= hi)
@@ -299,9 +350,15 @@ def species_data(rec, T: np.ndarray, agreement) -> SpeciesData:
     est = np.isnan(u_cp)
     if np.any(est):
         basis.add(f"class default ({cls}), estimated")
-    u_cp = np.where(est, rel * cp, u_cp)
-    u_dh = np.where(est, rel * np.abs(dh), u_dh)
-    u_ds = np.where(est, rel * np.abs(ds), u_ds)
+    c_cp = _class_rel(cls, "cp_rel", Tc) * cp
+    c_dh = _class_rel(cls, "dh_rel", Tc) * np.abs(dh)
+    c_ds = _class_rel(cls, "ds_rel", Tc) * np.abs(ds)
+    # Sources that agree closely often share their underlying data, so a spread
+    # may raise a figure above the class floor but not lower it below.
+    f = SHARED_FLOOR
+    u_cp = np.where(est, c_cp, np.hypot(u_cp, f * c_cp))
+    u_dh = np.where(est, c_dh, np.hypot(u_dh, f * c_dh))
+    u_ds = np.where(est, c_ds, np.hypot(u_ds, f * c_ds))
     u_cp = np.hypot(u_cp, CP_FLOOR_REL * cp)
     cd = codata_values().get(rec.id)
     d = CLASS_DEFAULTS[cls]
@@ -338,6 +395,10 @@ POLAR_WITHOUT_TERM = frozenset({"NH3", "SO2", "H2S", "HCl", "HF", "HCN", "CH3OH"
 #: part (m3/mol).  Common practice for corresponding-states B correlations away
 #: from the critical region (Tr > 0.6); checked against CoolProp in the tests.
 B_U_REL, B_U_REL_POLAR, B_U_ABS = 0.10, 0.25, 3.0e-6
+#: Relative expanded uncertainty of the temperature derivatives of B (a
+#: correlation's slope and curvature are less certain than its value;
+#: judgement, checked against CoolProp in the tests), nonpolar and polar.
+DB_U_REL, DB_U_REL_POLAR = 0.25, 0.40
 
 
 def _series(coef: dict, Tr: np.ndarray):
@@ -372,7 +433,8 @@ class VirialEstimate:
     dB: np.ndarray         # m3/(mol K)
     d2B: np.ndarray        # m3/(mol K2)
     U_B: np.ndarray        # expanded uncertainty of B, m3/mol
-    U_rel: float           # relative part of U_B used for the derivatives
+    U_dB: np.ndarray       # expanded uncertainty of dB/dT
+    U_d2B: np.ndarray      # expanded uncertainty of d2B/dT2
     covered: float         # mole fraction with critical data
     missing: tuple         # species without critical data
     Vc: float              # mixture critical volume estimate, m3/mol
@@ -401,7 +463,8 @@ def virial_mixture(components, T: np.ndarray) -> VirialEstimate | None:
     dB = np.zeros_like(T)
     d2B = np.zeros_like(T)
     UB = np.zeros_like(T)
-    rel_max = 0.0
+    UdB = np.zeros_like(T)
+    Ud2B = np.zeros_like(T)
     Vc_mix = 0.0
     for i, (si, yi, ci) in enumerate(known):
         for j, (sj, yj, cj) in enumerate(known):
@@ -409,7 +472,7 @@ def virial_mixture(components, T: np.ndarray) -> VirialEstimate | None:
             if i == j:
                 Tc, Pc, Vc, om = ci[:4]
                 a, b = POLAR_AB.get(si, (0.0, 0.0))
-                rel = B_U_REL_POLAR if si in POLAR_WITHOUT_TERM else B_U_REL
+                polar = si in POLAR_WITHOUT_TERM
             else:
                 Tc = math.sqrt(ci[0] * cj[0])
                 Vc = ((ci[2] ** (1 / 3) + cj[2] ** (1 / 3)) / 2) ** 3
@@ -417,15 +480,18 @@ def virial_mixture(components, T: np.ndarray) -> VirialEstimate | None:
                 Pc = Zc * R_MOLAR * Tc / Vc
                 om = (ci[3] + cj[3]) / 2
                 a = b = 0.0
-                rel = B_U_REL_POLAR if (si in POLAR_WITHOUT_TERM or sj in POLAR_WITHOUT_TERM) else B_U_REL
+                polar = si in POLAR_WITHOUT_TERM or sj in POLAR_WITHOUT_TERM
+            rel = B_U_REL_POLAR if polar else B_U_REL
+            rd = DB_U_REL_POLAR if polar else DB_U_REL
             b0, b1, b2 = second_virial(T, Tc, Pc, om, a, b)
             B += w * b0
             dB += w * b1
             d2B += w * b2
             UB += w * (rel * np.abs(b0) + B_U_ABS)
-            rel_max = max(rel_max, rel)
+            UdB += w * (rd * np.abs(b1) + B_U_ABS / T)
+            Ud2B += w * (rd * np.abs(b2) + B_U_ABS / T ** 2)
             Vc_mix += w * Vc
-    return VirialEstimate(B, dB, d2B, UB, rel_max, float(tot), missing, float(Vc_mix))
+    return VirialEstimate(B, dB, d2B, UB, UdB, Ud2B, float(tot), missing, float(Vc_mix))
 
 
 def model_departures(est: VirialEstimate, T: np.ndarray, P: float) -> dict:
@@ -442,6 +508,19 @@ def model_departures(est: VirialEstimate, T: np.ndarray, P: float) -> dict:
         "s": -P * est.dB,
         "cp": -P * T * est.d2B,
         "cv": -P * (2 * est.dB + T * est.d2B),
+    }
+
+
+def departure_bounds(est: VirialEstimate, T: np.ndarray, P: float) -> dict:
+    """Upper bounds of |real - ideal| at (T, P): the estimate plus its expanded
+    uncertainty (from U_B, U_dB, U_d2B), molar SI, keys as model_departures."""
+    return {
+        "Z": (np.abs(est.B) + est.U_B) * P / (R_MOLAR * T),
+        "h": P * (np.abs(est.B - T * est.dB) + est.U_B + T * est.U_dB),
+        "u": P * T * (np.abs(est.dB) + est.U_dB),
+        "s": P * (np.abs(est.dB) + est.U_dB),
+        "cp": P * T * (np.abs(est.d2B) + est.U_d2B),
+        "cv": P * (2 * np.abs(est.dB) + T * np.abs(est.d2B) + 2 * est.U_dB + T * est.U_d2B),
     }
 
 
@@ -619,7 +698,7 @@ def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: floa
     P = float(P_max_Pa)
     props = substance.properties(T, P)
     values = {k: np.asarray(props[k], float) * np.ones_like(T) for k in keys}
-    rows = load_agreement() if agreement is None else tuple(agreement)
+    rows = _by_species(load_agreement() if agreement is None else tuple(agreement))
 
     # ---- data component, per species, combined over the mixture
     Mk = substance.M * 1e-3
@@ -676,10 +755,7 @@ def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: floa
     statements = []
     vir = virial_mixture(substance.components, T)
     if vir is not None:
-        dep = model_departures(vir, T, P)
-        # departure bounds: the estimate plus its stated uncertainty
-        up = {q: np.abs(v) * (1 + vir.U_rel) for q, v in dep.items()}
-        up["Z"] = (np.abs(vir.B) + vir.U_B) * P / (R_MOLAR * T)
+        up = departure_bounds(vir, T, P)
         cp_m = props["cp_molar"]
         model = {
             "cp_molar": up["cp"], "cv_molar": up["cv"], "h_molar": up["h"], "u_molar": up["u"],
@@ -752,9 +828,8 @@ def model_statements(substance, vir: VirialEstimate, T: np.ndarray, P: float, pr
     vg = virial_mixture(substance.components, Tg)
     cp_g = substance.properties(Tg)["cp_molar"]
     # departures per pascal (upper bounds): Z and cp relative
-    z1 = (np.abs(vg.B) + vg.U_B) / (R_MOLAR * Tg)
-    c1 = np.abs(Tg * vg.d2B) * (1 + vg.U_rel) / cp_g
-    per_pa = np.maximum(z1, c1)
+    bnd = departure_bounds(vg, Tg, 1.0)
+    per_pa = np.maximum(bnd["Z"], bnd["cp"] / cp_g)
     cands = sorted({T_lo, *(t for t in (300.0, 400.0, 500.0, 700.0, 1000.0) if T_lo < t < T_hi)})
     for tol in (0.001, 0.01):
         parts = []
@@ -770,6 +845,12 @@ def model_statements(substance, vir: VirialEstimate, T: np.ndarray, P: float, pr
         f"|Z-1| {np.max(np.abs(dep['Z'])) * 100:.2g} %, cp {np.max(np.abs(dep['cp']) / props['cp_molar']) * 100:.2g} %, "
         f"h {np.max(np.abs(dep['h'])) / Mk / 1e3:.2g} kJ/kg, s {np.max(np.abs(dep['s'])) / Mk:.2g} J/(kg K) "
         f"(second virial coefficient, Tsonopoulos 1974)")
+    rho_vc = P * vir.Vc / (R_MOLAR * T * np.maximum(1 + vir.B * P / (R_MOLAR * T), 0.1))
+    if np.any(rho_vc > 0.1):
+        bad = float(T[rho_vc > 0.1].max())
+        out.append(f"caution: at {P / 1e5:g} bar below about {bad:.0f} K the density exceeds a tenth of the "
+                   f"critical density, beyond the range of the second-virial estimate; the ideal-gas "
+                   f"departures stated there are indicative only")
     if vir.missing:
         out.append(f"no critical constants for {', '.join(vir.missing)} (mole fraction "
                    f"{1 - vir.covered:.3g}): the virial estimate uses the other components")
