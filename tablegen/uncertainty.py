@@ -50,7 +50,7 @@ COVERAGE = 2.0
 #: Temperature band edges (K) of reported figures and of computed spreads.
 BAND_EDGES_K = (200.0, 300.0, 600.0, 1000.0, 1500.0, 2000.0, 3000.0, 6000.0, 20000.0)
 
-#: Relative floor of every cp uncertainty: the NASA fits used R = 8.31451
+#: Relative floor of every cp, dh and ds uncertainty: the NASA fits used R = 8.31451
 #: J/(mol K) (1993) or 8.314472 (2002) against 8.314462618 today, a
 #: disagreement of up to 5.7e-6 that no source spread can undercut.
 CP_FLOOR_REL = 1.0e-5
@@ -66,27 +66,27 @@ SHARED_FLOOR = 1.0
 #: uncertainties of cp, of H(T)-H(298.15) and of S(T)-S(298.15) in three bins
 #: (<= 1000 K, 1000-3000 K, > 3000 K); S298 in J/(mol K) and dfH in J/mol.
 #: Derived by tools/class_defaults.py: the NASA TM-4513 functions against the
-#: JANAF tables, 4th ed. (Chase 1998), per class the median over its species of
-#: the largest difference in each bin, divided by sqrt(3), rounded up to one
-#: significant digit and made non-decreasing with temperature (table in
-#: docs/uncertainty.md).  Where JANAF agrees to its printed digits (noble
+#: JANAF tables, 4th ed. (Chase 1998), per class the mean over its species of
+#: the largest difference in each bin, divided by sqrt(3), rounded up to two
+#: significant digits and made non-decreasing with temperature (table in
+#: docs/uncertainty.md; the choice of the mean is discussed there).  Where JANAF agrees to its printed digits (noble
 #: gases, cp = 5/2 R; atoms below 1000 K), the gas-constant floor is used.  S298 and dfH defaults are
 #: judgement (common practice for tabulated gases without a key value).
 CLASS_DEFAULTS = {
     "noble gas": {"cp_rel": (5e-6, 5e-6, 5e-6), "dh_rel": (5e-6, 5e-6, 5e-6),
                   "ds_rel": (5e-6, 5e-6, 5e-6), "S298": 0.005, "dfH": 0.0},
-    "monatomic": {"cp_rel": (5e-5, 5e-4, 5e-4), "dh_rel": (4e-5, 2e-4, 2e-4),
-                  "ds_rel": (1e-5, 2e-4, 2e-4), "S298": 0.01, "dfH": 1000.0},
-    "diatomic": {"cp_rel": (5e-4, 2e-3, 2e-3), "dh_rel": (3e-4, 7e-4, 7e-4),
-                 "ds_rel": (3e-4, 4e-4, 4e-4), "S298": 0.05, "dfH": 1000.0},
-    "diatomic radical": {"cp_rel": (4e-3, 5e-3, 2e-2), "dh_rel": (1e-3, 2e-3, 5e-3),
-                         "ds_rel": (5e-4, 7e-4, 2e-3), "S298": 0.1, "dfH": 2000.0},
-    "small polyatomic": {"cp_rel": (7e-4, 3e-3, 3e-3), "dh_rel": (4e-4, 8e-4, 8e-4),
-                         "ds_rel": (4e-4, 5e-4, 5e-4), "S298": 0.2, "dfH": 1000.0},
-    "polyatomic radical": {"cp_rel": (4e-3, 7e-3, 8e-3), "dh_rel": (3e-3, 3e-3, 5e-3),
-                           "ds_rel": (3e-3, 3e-3, 3e-3), "S298": 0.5, "dfH": 4000.0},
-    "hydrocarbon or larger": {"cp_rel": (5e-3, 6e-3, 7e-3), "dh_rel": (4e-3, 4e-3, 5e-3),
-                              "ds_rel": (4e-3, 4e-3, 4e-3), "S298": 1.0, "dfH": 2000.0},
+    "monatomic": {"cp_rel": (1.8e-4, 4.6e-4, 4.6e-4), "dh_rel": (8.8e-5, 1.5e-4, 1.5e-4),
+                  "ds_rel": (8.4e-5, 9.7e-5, 9.7e-5), "S298": 0.01, "dfH": 1000.0},
+    "diatomic": {"cp_rel": (6.3e-4, 1.6e-3, 2.0e-3), "dh_rel": (3.9e-4, 5.8e-4, 5.8e-4),
+                 "ds_rel": (3.8e-4, 3.8e-4, 3.8e-4), "S298": 0.05, "dfH": 1000.0},
+    "diatomic radical": {"cp_rel": (3.0e-3, 5.8e-3, 1.4e-2), "dh_rel": (9.7e-4, 2.7e-3, 4.3e-3),
+                         "ds_rel": (8.0e-4, 8.0e-4, 1.6e-3), "S298": 0.1, "dfH": 2000.0},
+    "small polyatomic": {"cp_rel": (1.2e-3, 5.1e-3, 1.3e-2), "dh_rel": (5.7e-4, 2.4e-3, 4.4e-3),
+                         "ds_rel": (5.1e-4, 1.6e-3, 2.3e-3), "S298": 0.2, "dfH": 1000.0},
+    "polyatomic radical": {"cp_rel": (4.2e-3, 1.4e-2, 3.6e-2), "dh_rel": (3.3e-3, 6.0e-3, 1.6e-2),
+                           "ds_rel": (3.1e-3, 4.4e-3, 8.6e-3), "S298": 0.5, "dfH": 4000.0},
+    "hydrocarbon or larger": {"cp_rel": (7.5e-3, 2.3e-2, 4.5e-2), "dh_rel": (4.3e-3, 1.3e-2, 2.5e-2),
+                              "ds_rel": (3.7e-3, 9.1e-3, 1.6e-2), "S298": 1.0, "dfH": 2000.0},
 }
 _CLASS_T = (1000.0, 3000.0)
 NOBLE = frozenset({"He", "Ne", "Ar", "Kr", "Xe", "Rn"})
@@ -356,10 +356,12 @@ def species_data(rec, T: np.ndarray, agreement) -> SpeciesData:
     # Sources that agree closely often share their underlying data, so a spread
     # may raise a figure above the class floor but not lower it below.
     f = SHARED_FLOOR
-    u_cp = np.where(est, c_cp, np.hypot(u_cp, f * c_cp))
-    u_dh = np.where(est, c_dh, np.hypot(u_dh, f * c_dh))
-    u_ds = np.where(est, c_ds, np.hypot(u_ds, f * c_ds))
+    u_cp = np.where(est, c_cp, np.fmax(u_cp, f * c_cp))
+    u_dh = np.where(est, c_dh, np.fmax(u_dh, f * c_dh))
+    u_ds = np.where(est, c_ds, np.fmax(u_ds, f * c_ds))
     u_cp = np.hypot(u_cp, CP_FLOOR_REL * cp)
+    u_dh = np.hypot(u_dh, CP_FLOOR_REL * np.abs(dh))
+    u_ds = np.hypot(u_ds, CP_FLOOR_REL * np.abs(ds))
     cd = codata_values().get(rec.id)
     d = CLASS_DEFAULTS[cls]
     if cd is not None:

@@ -6,11 +6,15 @@ J. Phys. Chem. Ref. Data Monograph 9, 1998), as shipped by the `janaf` package
 (PyPI), at the tabulated temperatures from 200 K.  Per species and temperature
 bin (<= 1000 K, 1000-3000 K, > 3000 K) the largest relative difference of cp,
 of H(T)-H(298.15) and of S(T)-S(298.15) is taken; the class figure is the
-median of those maxima over the class's species (robust to one outlying
-table), divided by sqrt(3) (the maximum as half-width of a rectangular
+mean of those maxima over the class's species, divided by sqrt(3) (the maximum as half-width of a rectangular
 distribution).  dh and ds differences are relative to |dh| and |ds| at the
 same temperature, from 100 K away from 298.15 K (where both vanish).  CoolProp is not
 used here, so the calibration test against CoolProp stays independent.
+
+The figures in CLASS_DEFAULTS are these, rounded up to two significant digits
+and made non-decreasing with temperature (running maximum over the bins);
+where JANAF agrees to its printed digits (noble gases), the gas-constant
+floor 5e-6 is used.
 
 Run from the project root:  python tools/class_defaults.py   (prints a table)
 Needs: janaf (tools only, never at run time).
@@ -83,10 +87,10 @@ def main() -> int:
             else:
                 f_dh = f_ds = 0.0
             per_class.setdefault((cls, b), []).append((sid, f_cp, f_dh, f_ds, Tk[-1]))
-    print("class, bin, n, u_cp_rel, u_dh_rel, u_ds_rel (median of maxima / sqrt 3), species")
+    print("class, bin, n, u_cp_rel, u_dh_rel, u_ds_rel (mean of maxima / sqrt 3), species")
     for (cls, b), rows in sorted(per_class.items()):
         arr = np.array([r[1:4] for r in rows])
-        u = np.nanmedian(arr, axis=0) / math.sqrt(3)
+        u = np.nanmean(arr, axis=0) / math.sqrt(3)
         print(f"{cls:22s} {BINS[b][0]:.0f}-{BINS[b][1]:.0f} K  n={len(rows):2d}  "
               f"{u[0]:.2e} {u[1]:.2e} {u[2]:.2e}  "
               + " ".join(f"{r[0]}:{r[1]:.1e}" for r in rows))
