@@ -795,7 +795,8 @@ def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: floa
         worst = []
         for k in keys:
             b = inter[k]
-            worst.append(f"{k} {float(np.max(b)):.2g} {UNITS[k]}")
+            unit = "" if UNITS[k] == "1" else f" {UNITS[k]}"
+            worst.append(f"{k} {float(np.max(b)):.2g}{unit}")
         statements.append("linear interpolation between adjacent printed rows adds at most: "
                           + "; ".join(worst) + " (largest over the table; per band in the figures)")
 
@@ -832,10 +833,10 @@ def model_statements(substance, vir: VirialEstimate, T: np.ndarray, P: float, pr
     # departures per pascal (upper bounds): Z and cp relative
     bnd = departure_bounds(vg, Tg, 1.0)
     per_pa = np.maximum(bnd["Z"], bnd["cp"] / cp_g)
-    cands = sorted({T_lo, *(t for t in (300.0, 400.0, 500.0, 700.0, 1000.0) if T_lo < t < T_hi)})
+    cands = sorted({T_lo, *(t for t in (300.0, 500.0, 1000.0) if T_lo < t < T_hi)})
     for tol in (0.001, 0.01):
         parts = []
-        for Y in cands[:3]:
+        for Y in cands:
             m = Tg >= Y - 1e-9
             X = tol / float(np.max(per_pa[m]))
             parts.append(f"up to {_round_down(X / 1e5)} bar above {Y:g} K")

@@ -43,15 +43,13 @@ def test_codata_key_values_from_memory_agree_with_nasa_tm4513():
     """CODATA 1989 S°(298.15 K) and ΔfH° (shipped from memory) against the shipped
     NASA TM-4513 functions: agreement within the CODATA uncertainty for the
     combustion species, which both evaluations rest on the same spectroscopy for."""
-    lib = library()
     cd = un.codata_values()
-    for sid in ("N2", "O2", "H2", "Ar", "He", "H2O", "CO", "CO2", "O", "H", "N", "OH" if "OH" in cd else "N2",
-                "NH3", "SO2", "H2S", "HCl"):
+    for sid in ("N2", "O2", "H2", "Ar", "He", "H2O", "CO", "CO2", "O", "H", "N", "NH3", "SO2", "H2S", "HCl"):
         v = cd[sid]
         e = library().record(sid).poly.evaluate(np.array([298.15]))
         assert abs(e["s"][0] * R - v["S298"]) <= v["U_S298"], sid
+        # reference elements: ΔfH = 0 by definition, the fits give it within 1 J/mol
         assert abs(e["h"][0] * R - v["dfH"]) <= max(v["U_dfH"], 1.0), sid
-    assert lib is not None
 
 
 def test_codata_difference_widens_the_stated_uncertainty():
@@ -161,7 +159,6 @@ def test_virial_Z_h_s_cp_within_stated_uncertainty_of_coolprop(sid):
         Ta = np.array([T])
         est = un.virial_mixture(sub.components, Ta)
         dep = un.model_departures(est, Ta, P)
-        mid = un.model_departures(est, Ta, P)  # estimate
         bnd = un.departure_bounds(est, Ta, P)
         a.update(CoolProp.PT_INPUTS, P, T)
         Z, h, s, cp = a.compressibility_factor(), a.hmolar(), a.smolar(), a.cpmolar()
@@ -171,7 +168,7 @@ def test_virial_Z_h_s_cp_within_stated_uncertainty_of_coolprop(sid):
         ref = {"Z": Z - 1, "h": h - h0, "s": s - s0, "cp": cp - cp0}
         for q, r in ref.items():
             # stated expanded uncertainty of the estimate = bound - |estimate|
-            U = float(bnd[q][0] - abs(mid[q][0]))
+            U = float(bnd[q][0] - abs(dep[q][0]))
             assert abs(dep[q][0] - r) <= U, f"{sid} {T} K {P / 1e5} bar {q}: {dep[q][0]:.4g} vs {r:.4g} (U {U:.3g})"
 
 
