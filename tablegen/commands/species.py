@@ -9,7 +9,8 @@ from .common import dumps
 EXAMPLE = """example:
   tablegen species
   tablegen species --json
-  tablegen species --check --data my-gases.toml"""
+  tablegen species --check --data my-gases.toml
+  tablegen species --sources H2O"""
 
 #: A jump in h or s° at a breakpoint above this (relative) is a data warning.
 JUMP_WARN = 1e-4
@@ -21,6 +22,8 @@ def add_arguments(p):
     p.add_argument("--check", action="store_true",
                    help="validate every record and list breakpoint jumps in h or s° above 1e-4 relative")
     p.add_argument("--all-sets", action="store_true", help="list every record of every data set, not one per species")
+    p.add_argument("--sources", metavar="ID",
+                   help="show how far the sources of one species agree (gasdata/agreement.toml) and which is its default")
 
 
 def rows(lib, all_sets: bool):
@@ -52,12 +55,60 @@ def check(lib) -> tuple[list[dict], list[str]]:
     return warnings, errors
 
 
+def sources(lib, name: str, as_json: bool) -> int:
+    """Print the agreement figures and the default source of one species."""
+    from .. import agreement
+    from ..errors import NameLookupError
+    try:
+        rec = lib.record(name)
+    except NameLookupError as e:
+        raise NameLookupError(f"--sources takes one species id or name (a mixture's components each have "
+                              f"their own figures): {e}") from None
+    rows = agreement.for_species(rec.id)
+    default = lib.defaults.get(rec.id, {})
+    held = [d for d in lib.search_order if (r := lib.datasets[d].get(rec.id)) is not None and r.id == rec.id]
+    if as_json:
+        sys.stdout.write(dumps({"species": rec.id, "name": rec.name, "data_sets": held,
+                                "default": {"source": default.get("source", rec.dataset),
+                                            "reason": default.get("reason", "the only data set holding it"),
+                                            "sources_agree": default.get("sources_agree")},
+                                "figures": rows}))
+        return 0
+    print(f"{rec.name} ({rec.id}): data sets {', '.join(held)}")
+    if default:
+        flag = "" if default.get("sources_agree", True) else "  (the sources disagree: wider uncertainty)"
+        print(f"default source: {default['source']}{flag}")
+        print(f"  because it {default['reason']}" if default["reason"].startswith("agrees")
+              else f"  because {default['reason']}")
+    else:
+        print(f"default source: {rec.dataset} (the only data set holding it)")
+    print("figures: max and rms of source - against over each band; cp relative, "
+          "h - h(298.15 K) in J/mol, s° in J/(mol K) (* s° - s°(298.15 K))")
+    head = ["source", "against", "band K", "cp max %", "cp rms %", "dh max", "dh rms", "s° max", "s° rms"]
+    table = [head]
+    for r in rows:
+        star = "*" if r.get("s0_relative_to_298") else ""
+        table.append([r["source"], r["against"], f"{r['band_K'][0]:g}-{r['band_K'][1]:g}",
+                      f"{r['cp_max_rel'] * 100:.3f}", f"{r['cp_rms_rel'] * 100:.3f}",
+                      f"{r['dh_max_J_per_mol']:.3g}", f"{r['dh_rms_J_per_mol']:.3g}",
+                      f"{r['s0_max_J_per_molK']:.3g}{star}", f"{r['s0_rms_J_per_molK']:.3g}{star}"])
+    w = [max(len(t[j]) for t in table) for j in range(len(head))]
+    for t in table:
+        print("  ".join(c.ljust(x) if j < 3 else c.rjust(x) for j, (c, x) in enumerate(zip(t, w))).rstrip())
+    h298 = {(r["source"], r["against"]): r["h298_diff_J_per_mol"] for r in rows if "h298_diff_J_per_mol" in r}
+    for (a, b), v in h298.items():
+        print(f"h(298.15 K), the enthalpy of formation: {a} - {b} = {v:.4g} J/mol")
+    return 0
+
+
 def run(args) -> int:
     from ..data.library import library
     lib = library(args.data)
     for m in lib.messages:
         if not args.quiet:
             print(f"note: {m}", file=sys.stderr)
+    if args.sources:
+        return sources(lib, args.sources, args.json)
     if args.check:
         warnings, errors = check(lib)
         if args.json:
