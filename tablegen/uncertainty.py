@@ -57,6 +57,10 @@ CP_FLOOR_REL = 1.0e-5
 
 SQRT3 = math.sqrt(3.0)
 
+#: Sources that are one tabulation: the janaf1998 refits stand for the JANAF
+#: tables, so their figures and the direct JANAF comparison count as one partner.
+SOURCE_FAMILY = {"janaf1998": "janaf"}
+
 #: Fraction of the class default kept as a floor under a source spread.
 SHARED_FLOOR = 1.0
 
@@ -333,20 +337,34 @@ def species_data(rec, T: np.ndarray, agreement) -> SpeciesData:
     basis = set()
     mine = agreement.get(rec.id, ()) if isinstance(agreement, dict) else \
         [r for r in agreement if r["species"] == rec.id]
+    # Per partner (a source family: a refit counts as its table), the narrowest
+    # band that holds T gives the most local figure; partners combine by max.
+    per_family: dict = {}
+    own = SOURCE_FAMILY.get(rec.dataset, rec.dataset)
     for r in mine:
-        if rec.dataset not in (r["source"], r["against"]):
-            continue
+        fs, fa = SOURCE_FAMILY.get(r["source"], r["source"]), SOURCE_FAMILY.get(r["against"], r["against"])
+        if own not in (fs, fa) or fs == fa:
+            continue                      # not about the printed source, or a refit against its table
+        other = r["against"] if fs == own else r["source"]
+        fam = SOURCE_FAMILY.get(other, other)
         lo, hi = r["band_K"]
         m = (T >= lo) & (T <= hi)
         if not np.any(m):
             continue
+        basis.add(f"spread against {other}")
+        w, c, h_, s_ = per_family.setdefault(fam, [np.full(T.shape, np.inf), np.full(T.shape, np.nan),
+                                                   np.full(T.shape, np.nan), np.full(T.shape, np.nan)])
+        take = m & (hi - lo < w)
+        w[take] = hi - lo
         # The largest difference in a band is taken as the half-width of a
         # rectangular distribution of the printed source's error.
-        other = r["against"] if r["source"] == rec.dataset else r["source"]
-        basis.add(f"spread against {other}")
-        u_cp[m] = np.fmax(u_cp[m], r["cp_max_rel"] / SQRT3 * cp[m])
-        u_dh[m] = np.fmax(u_dh[m], r["dh_max_J_per_mol"] / SQRT3)
-        u_ds[m] = np.fmax(u_ds[m], r["s0_max_J_per_molK"] / SQRT3)
+        c[take] = r["cp_max_rel"] / SQRT3 * cp[take]
+        h_[take] = r["dh_max_J_per_mol"] / SQRT3
+        s_[take] = r["s0_max_J_per_molK"] / SQRT3
+    for _, c, h_, s_ in per_family.values():
+        u_cp = np.fmax(u_cp, c)
+        u_dh = np.fmax(u_dh, h_)
+        u_ds = np.fmax(u_ds, s_)
     est = np.isnan(u_cp)
     if np.any(est):
         basis.add(f"class default ({cls}), estimated")
