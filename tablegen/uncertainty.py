@@ -698,7 +698,8 @@ def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: floa
     composition_u : species id -> standard uncertainty of its fraction
     composition_basis : "mole" or "mass": the basis of those fractions
     printed_step : key -> value of one unit of the last printed digit, SI; keys
-        absent get the step :func:`digits_for` chooses (decades of the SI unit)
+        absent get the step :func:`digits_for` chooses from the data
+        uncertainty (decades of the SI unit)
     agreement : agreement rows to use instead of the shipped ones
     T_rows : printed rows, if the interpolation bound is wanted (default T_K
         when it has at least 2 points)
@@ -766,6 +767,9 @@ def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: floa
     u = {k: {"data": data_u[k]} for k in keys}
 
     # ---- composition
+    if composition_u is not None and not isinstance(composition_u, dict):
+        raise TablegenError("uncertainty: composition uncertainties must be a mapping of species to "
+                            "standard uncertainties of their fractions, e.g. {'H2O': 0.005}")
     if composition_u:
         comp = composition_sensitivity(substance, T, keys, composition_u, composition_basis, P)
         for k in keys:
@@ -795,8 +799,17 @@ def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: floa
 
     # ---- rounding
     printed_step = dict(printed_step or {})
+    for k, v in printed_step.items():
+        try:
+            ok = math.isfinite(float(v)) and float(v) > 0
+        except (TypeError, ValueError):
+            ok = False
+        if not ok:
+            raise TablegenError(f"uncertainty: printed step of {k!r} is {v!r}; allowed: a positive number (SI)")
     for k in keys:
-        U_now = COVERAGE * np.sqrt(sum(v ** 2 for v in u[k].values()))
+        # digits follow the data uncertainty (not the pressure- or
+        # composition-dependent parts, which differ between users of a table)
+        U_now = COVERAGE * u[k]["data"]
         if k in printed_step:
             step = np.full_like(T, float(printed_step[k]))
         else:
@@ -1032,14 +1045,20 @@ def auto_step(substance, keys, T_lo: float, T_hi: float, tolerance, *, P_Pa: flo
     _check_keys(substance, keys)
     if not (T_hi > T_lo > 0):
         raise SpecError(f"automatic step: range {T_lo}-{T_hi} K must be increasing and above 0 K")
+    try:
+        tol = {k: float(tolerance[k]) for k in keys if k in tolerance} if isinstance(tolerance, dict) \
+            else None
+        plain = None if isinstance(tolerance, dict) else float(tolerance)
+    except (TypeError, ValueError):
+        raise SpecError(f"automatic step: tolerance {tolerance!r} is not a number; allowed: a positive "
+                        f"relative tolerance or a mapping of column to absolute tolerance") from None
     if isinstance(tolerance, dict):
-        tol = {k: float(tolerance[k]) for k in keys if k in tolerance}
         missing = [k for k in keys if k not in tol]
         if missing:
             raise SpecError(f"automatic step: no tolerance for {', '.join(missing)}")
         rel = False
     else:
-        tol = {k: float(tolerance) for k in keys}
+        tol = {k: plain for k in keys}
         rel = True
     if not all(math.isfinite(v) and v > 0 for v in tol.values()):
         raise SpecError("automatic step: tolerance must be a positive number")

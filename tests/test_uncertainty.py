@@ -346,6 +346,8 @@ def test_band_figures_are_the_largest_U_in_the_band():
     ({"P_max_Pa": -1.0}, "positive"),
     ({"composition_u": {"Xe": 0.01}}, "not a component"),
     ({"composition_u": {"N2": -0.1}}, "allowed"),
+    ({"composition_u": [0.01]}, "mapping"),
+    ({"printed_step": {"cp": "x"}}, "allowed"),
 ])
 def test_bad_input_gives_one_clear_message(kwargs, text):
     sub = tablegen.substance("air")
@@ -353,6 +355,15 @@ def test_bad_input_gives_one_clear_message(kwargs, text):
     with pytest.raises(TablegenError) as e:
         un.budget(sub, np.array([300.0, 400.0]), keys, **kwargs)
     assert text in str(e.value) and "\n" not in str(e.value)
+
+
+def test_auto_step_bad_tolerance_gives_one_clear_message():
+    from tablegen.errors import SpecError
+    sub = tablegen.substance("air")
+    for tol in ("abc", -1.0, {"cp": None}, {"h": 1.0}):
+        with pytest.raises(SpecError) as e:
+            un.auto_step(sub, ("cp",), 300.0, 400.0, tol)
+        assert "tolerance" in str(e.value)
 
 
 def test_species_class_defaults():
