@@ -40,7 +40,7 @@ from functools import lru_cache
 
 import numpy as np
 
-from .errors import RangeError, SpecError, TablegenError
+from .errors import SpecError, TablegenError
 from .thermo.substance import P_STD, R_MOLAR, T_REF
 
 #: Coverage factor of every stated expanded uncertainty (about 95 % for a
@@ -649,6 +649,19 @@ class Budget:
                             {c: float(np.max(COVERAGE * v[m])) for c, v in parts.items()},
                             im, bool(np.any(self.estimated[m]))))
         return tuple(out)
+
+    def summary(self, key: str, *, unit_factor: float = 1.0, unit: str = "") -> str:
+        """One line for a table's notes: the largest U per band, relative where
+        that is meaningful, else in ``unit`` (SI value of one unit: unit_factor)."""
+        parts = []
+        for b in self.bands(key):
+            if np.isfinite(b.U_rel_max):
+                fig = f"{b.U_rel_max * 100:.2g} %"
+            else:
+                fig = f"{b.U_max / unit_factor:.2g} {unit}".rstrip()
+            est = " (estimated)" if b.estimated else ""
+            parts.append(f"{fig} at {b.T_lo_K:g}-{b.T_hi_K:g} K{est}")
+        return f"{key}: U (k = 2) at most " + ", ".join(parts)
 
     def columns(self) -> dict:
         """U_<key> arrays for a CSV (expanded, k = 2, SI unit of the key)."""
