@@ -7,9 +7,9 @@ U = k·sqrt(Σ u²) with coverage factor k = 2 (JCGM 100:2008, the GUM, §6):
 data          the source functions themselves: CODATA key values for S°(298.15 K)
               and the enthalpy of formation (gasdata/codata1989.toml); across
               temperature, the spread between independent sources
-              (gasdata/agreement.toml, or the shipped data sets against each
-              other); otherwise a default for the species' class, marked
-              "estimated".
+              (gasdata/agreement.toml, gasdata/agreement-janaf.toml and the
+              shipped data sets against each other); otherwise a default for
+              the species' class, marked "estimated".
 composition   user-given uncertainties of mole or mass fractions, propagated by
               linear sensitivity (central differences on the collapsed mixture,
               the other fractions renormalised).
@@ -389,7 +389,8 @@ def species_data(rec, T: np.ndarray, agreement) -> SpeciesData:
         uH = math.hypot(cd["U_dfH"] / 2, (h298 - cd["dfH"]) / SQRT3)
         Sb = Hb = "CODATA key value (Cox, Wagman & Medvedev 1989)"
     else:
-        element_ref = len(rec.elements) == 1 and abs(h298) < 1e-6 and cls != "monatomic"
+        # a reference element (N2, Cl2, ...): its fit gives 0 within 1 J/mol
+        element_ref = len(rec.elements) == 1 and abs(h298) < 1.0 and cls != "monatomic"
         uS, uH = d["S298"], 0.0 if element_ref else d["dfH"]
         Sb = f"class default ({cls}), estimated"
         Hb = "zero by definition (reference element)" if element_ref else Sb
