@@ -120,7 +120,8 @@ def test_calibration_without_coolprop_covers_coolprop_ideal_gas(calibration, q):
     """Leave-one-source-out calibration, source left out: CoolProp's ideal-gas parts.
 
     Printed functions: NASA TM-4513 (nasa1993).  The data component is built
-    from CODATA, the JANAF comparisons and the NASA 1993/2002 spread only; the
+    from CODATA, the JANAF comparisons, the NASA 1993/2002 spread and the
+    data-curation figures with every CoolProp row removed; the
     printed functions' deviations from CoolProp's
     ideal-gas cp°, H°-H°(298.15) and S°-S°(298.15) (20 fluids, each inside its
     equation's range) must fall within the stated U at >= 95 % of all points."""
