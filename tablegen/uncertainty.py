@@ -860,6 +860,8 @@ def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: floa
         "(Tsonopoulos 1974), their bound taken as a rectangular half-width; not applied to the "
         "standard-state functions s0, g0, Pr, vr, dh298",
         "molar-mass and gas-constant uncertainties neglected",
+        "these figures state how far the tables can be trusted; they are no design margin: for boilers, "
+        "flue gas, toxic, asphyxiant or condensing gases follow local codes and licensed engineering practice",
     ]
     if composition_u:
         assumptions.append(f"composition: the given {composition_basis}-fraction uncertainties are "
