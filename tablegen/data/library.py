@@ -32,7 +32,8 @@ from . import formats, validate
 
 #: Files in gasdata/ that are not coefficient sets.
 NOT_DATASETS = {"atomic-weights.toml", "mixtures.toml", "defaults.toml", "agreement.toml",
-                "critical.toml", "incompressible.toml", "uncertainty.toml"}
+                "critical.toml", "incompressible.toml", "uncertainty.toml", "codata1989.toml",
+                "agreement-janaf.toml"}
 
 #: Reference pressure of every polynomial once loaded (NASA 1993 and 2002 use 1 bar).
 P_STD_PA = 100000.0

@@ -167,7 +167,8 @@ class Substance:
         return c
 
     # ------------------------------------------------------------- forward
-    def properties(self, T, P=None, *, extrapolate: bool = False, molar_only: bool = False) -> dict:
+    def properties(self, T, P=None, *, extrapolate: bool = False, molar_only: bool = False,
+                   uncertainty: bool = False) -> dict:
         """All ideal-gas properties at temperatures T (K), optionally at pressures P (Pa).
 
         Parameters
@@ -176,6 +177,9 @@ class Substance:
         P : array_like, Pa, optional; adds s, s_molar, v and rho
         extrapolate : evaluate outside the data range with the end intervals;
             adds the boolean array ``extrapolated``
+        uncertainty : add U_<key>, the expanded uncertainty (k = 2, same unit as
+            <key>) of each key, at the largest P given (else 1 bar); see
+            tablegen.uncertainty
 
         Returns
         -------
@@ -226,6 +230,9 @@ class Substance:
             out["rho"] = P / (self.R * T)
         if mask is not None:
             out["extrapolated"] = mask
+        if uncertainty:
+            from ..uncertainty import uncertainty_columns  # lazy: budgets load more data
+            out.update(uncertainty_columns(self, T, P))
         return out
 
     def cp_h_s0(self, T, *, extrapolate: bool = False):

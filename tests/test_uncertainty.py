@@ -1,0 +1,378 @@
+"""Checks of the uncertainty budget (tablegen/uncertainty.py) against outside sources.
+
+Sources named beside each check: CoolProp (reference equations of state and
+their ideal-gas parts), the CODATA key values (Cox, Wagman & Medvedev 1989,
+shipped from memory), NASA TM-4513 (the shipped data), JCGM 101:2008 (Monte
+Carlo propagation of distributions).
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import subprocess
+import sys
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+import tablegen
+from tablegen import uncertainty as un
+from tablegen.data.library import library
+from tablegen.errors import TablegenError
+
+CoolProp = pytest.importorskip("CoolProp.CoolProp")
+from CoolProp import AbstractState  # noqa: E402
+
+R = 8.314462618
+
+#: tablegen species -> CoolProp fluid, for the reference-equation checks
+COOLPROP_FLUIDS = {
+    "N2": "Nitrogen", "O2": "Oxygen", "Ar": "Argon", "CO2": "CarbonDioxide", "H2O": "Water",
+    "CH4": "Methane", "CO": "CarbonMonoxide", "H2": "Hydrogen", "C2H6": "Ethane", "C3H8": "Propane",
+    "NH3": "Ammonia", "SO2": "SulfurDioxide", "He": "Helium", "N2O": "NitrousOxide",
+    "H2S": "HydrogenSulfide", "C2H4": "Ethylene", "Ne": "Neon", "HCl": "HydrogenChloride",
+    "Kr": "Krypton", "Xe": "Xenon",
+}
+
+
+# ------------------------------------------------------------------ CODATA
+def test_codata_key_values_from_memory_agree_with_nasa_tm4513():
+    """CODATA 1989 S°(298.15 K) and ΔfH° (shipped from memory) against the shipped
+    NASA TM-4513 functions: agreement within the CODATA uncertainty for the
+    combustion species, which both evaluations rest on the same spectroscopy for."""
+    cd = un.codata_values()
+    for sid in ("N2", "O2", "H2", "Ar", "He", "H2O", "CO", "CO2", "O", "H", "N", "NH3", "SO2", "H2S", "HCl"):
+        v = cd[sid]
+        e = library().record(sid, source="nasa1993").poly.evaluate(np.array([298.15]))
+        assert abs(e["s"][0] * R - v["S298"]) <= v["U_S298"], sid
+        # reference elements: ΔfH = 0 by definition, the fits give it within 1 J/mol
+        assert abs(e["h"][0] * R - v["dfH"]) <= max(v["U_dfH"], 1.0), sid
+
+
+def test_codata_difference_widens_the_stated_uncertainty():
+    """Where the printed source differs from the CODATA value by more than CODATA's
+    U (S2: NASA TM-4513 takes newer data), the budget's S°(298.15 K) standard
+    uncertainty is at least that difference as a rectangular half-width."""
+    rec = library().record("S2", source="nasa1993")
+    sd = un.species_data(rec, np.array([500.0]), {})
+    e = rec.poly.evaluate(np.array([298.15]))
+    d = abs(e["s"][0] * R - un.codata_values()["S2"]["S298"])
+    assert d > un.codata_values()["S2"]["U_S298"]
+    assert sd.S298 >= d / math.sqrt(3)
+
+
+# ------------------------------------------------------------ calibration
+def _coolprop_ideal(fluid, T):
+    """cp°, H°(T)-H°(298.15), S°(T)-S°(298.15) of CoolProp's ideal-gas part (molar)."""
+    from scipy.integrate import quad
+    a = AbstractState("HEOS", fluid)
+
+    def cp0(t):
+        a.update(CoolProp.DmolarT_INPUTS, 1e-10, t)
+        return a.cp0molar()
+    cp = np.array([cp0(t) for t in T])
+    dh = np.array([quad(cp0, 298.15, t, epsabs=1e-8, epsrel=1e-10)[0] for t in T])
+    ds = np.array([quad(lambda x: cp0(x) / x, 298.15, t, epsabs=1e-11, epsrel=1e-10)[0] for t in T])
+    return cp, dh, ds
+
+
+def _calibration_points(source=None):
+    """Deviations of the printed functions (data set ``source``, default: each
+    species' default source) from CoolProp's ideal-gas parts and the
+    data-component U built WITHOUT CoolProp (source left out: CoolProp)."""
+    lib = library()
+    rows = un._by_species([r for r in un.load_agreement() if "coolprop" not in (r["source"], r["against"])])
+    out = {}
+    for sid, fluid in COOLPROP_FLUIDS.items():
+        rec = lib.record(sid, source=source)
+        a = AbstractState("HEOS", fluid)
+        # inside the reference's range: the equation of state's range, IAPWS-95
+        # for water validated to 1273 K (the release's range of validity)
+        hi = min(a.Tmax(), rec.T_max, 1273.0 if sid == "H2O" else np.inf)
+        T = np.linspace(max(200.0, a.Tmin(), rec.T_min), hi, 40)
+        T = T[np.abs(T - 298.15) >= 20.0]   # dh, ds vanish at 298.15 K by construction
+        ref = _coolprop_ideal(fluid, T)
+        mine = un.record_functions(rec)(T)
+        sd = un.species_data(rec, T, rows)
+        out[sid] = {q: (mine[i] - ref[i], 2 * u, ref[i])
+                    for i, (q, u) in enumerate((("cp", sd.cp), ("dh", sd.dh), ("ds", sd.ds)))}
+    return out
+
+
+@pytest.fixture(scope="module")
+def calibration():
+    return _calibration_points("nasa1993")
+
+
+@pytest.fixture(scope="module")
+def calibration_defaults():
+    return _calibration_points()
+
+
+NOBLE = ("He", "Ne", "Ar", "Kr", "Xe")
+
+
+@pytest.mark.parametrize("q", ["cp", "dh", "ds"])
+def test_calibration_without_coolprop_covers_coolprop_ideal_gas(calibration, q):
+    """Leave-one-source-out calibration, source left out: CoolProp's ideal-gas parts.
+
+    Printed functions: NASA TM-4513 (nasa1993).  The data component is built
+    from CODATA, the JANAF comparisons, the NASA 1993/2002 spread and the
+    data-curation figures with every CoolProp row removed; the
+    printed functions' deviations from CoolProp's
+    ideal-gas cp°, H°-H°(298.15) and S°-S°(298.15) (20 fluids, each inside its
+    equation's range) must fall within the stated U at >= 95 % of all points."""
+    dev = np.concatenate([calibration[s][q][0] for s in calibration])
+    U = np.concatenate([calibration[s][q][1] for s in calibration])
+    coverage = float(np.mean(np.abs(dev) <= U))
+    assert coverage >= 0.95, f"{q}: {coverage:.3f} of points within U"
+
+
+@pytest.mark.parametrize("q", ["cp", "dh", "ds"])
+def test_calibration_without_coolprop_is_not_inflated(calibration, q):
+    """Same calibration (nasa1993 printed, CoolProp left out): the stated U is not more than 3 times
+    the RMS of the deviations, for the median fluid (RMS of U / RMS of deviations
+    per fluid).  Noble gases are left out of this check: their cp is 5/2 R exactly
+    and the deviations (1e-6 relative) are the sources' gas constants."""
+    ratios = []
+    for s, v in calibration.items():
+        if s in NOBLE:
+            continue
+        d, U, _ = v[q]
+        ratios.append(math.sqrt(np.mean(U ** 2)) / math.sqrt(np.mean(d ** 2)))
+    assert float(np.median(ratios)) <= 3.0, f"{q}: median ratio {np.median(ratios):.2f}"
+
+
+@pytest.mark.parametrize("q", ["cp", "dh", "ds"])
+def test_calibration_without_coolprop_covers_coolprop_for_default_sources(calibration_defaults, q):
+    """Leave-one-source-out calibration (CoolProp left out) for the functions a
+    table prints by default (gasdata/defaults.toml: mostly the janaf1998 refits
+    of NIST-JANAF): >= 95 % of points within the stated U.  The 3-times-RMS
+    check is not met here and not asserted: with only nasa1993 to compare
+    janaf1998 against, the whole spread is charged to the printed source, and
+    the stated U is 4 to 36 times the RMS deviation for N2, CO2, H2O (see
+    docs/uncertainty.md)."""
+    dev = np.concatenate([calibration_defaults[s][q][0] for s in calibration_defaults])
+    U = np.concatenate([calibration_defaults[s][q][1] for s in calibration_defaults])
+    coverage = float(np.mean(np.abs(dev) <= U))
+    assert coverage >= 0.95, f"{q}: {coverage:.3f} of points within U"
+
+
+# ---------------------------------------------------------------- virial
+VIRIAL_STATES = {   # (T K, P Pa), gas phase, density below a tenth of critical
+    "N2": [(200.0, 10e5), (300.0, 20e5), (500.0, 50e5)],
+    "CO2": [(300.0, 5e5), (500.0, 20e5), (1000.0, 50e5)],
+    "CH4": [(300.0, 10e5), (450.0, 30e5)],
+    "H2O": [(500.0, 5e5), (700.0, 20e5), (1000.0, 50e5)],
+}
+
+
+@pytest.mark.parametrize("sid", list(VIRIAL_STATES))
+def test_virial_Z_h_s_cp_within_stated_uncertainty_of_coolprop(sid):
+    """Tsonopoulos second-virial departures against CoolProp's real-gas equation of
+    state (Span & Wagner N2/CO2, Setzmann & Wagner CH4, IAPWS-95 H2O): Z, h - h°,
+    s - s° and cp - cp° within the expanded uncertainty the module states."""
+    fluid = COOLPROP_FLUIDS[sid]
+    sub = tablegen.substance(sid)
+    a = AbstractState("HEOS", fluid)
+    for T, P in VIRIAL_STATES[sid]:
+        Ta = np.array([T])
+        est = un.virial_mixture(sub.components, Ta)
+        dep = un.model_departures(est, Ta, P)
+        bnd = un.departure_bounds(est, Ta, P)
+        a.update(CoolProp.PT_INPUTS, P, T)
+        Z, h, s, cp = a.compressibility_factor(), a.hmolar(), a.smolar(), a.cpmolar()
+        p0 = 1.0
+        a.update(CoolProp.PT_INPUTS, p0, T)
+        h0, s0, cp0 = a.hmolar(), a.smolar() - R * math.log(P / p0), a.cpmolar()
+        ref = {"Z": Z - 1, "h": h - h0, "s": s - s0, "cp": cp - cp0}
+        for q, r in ref.items():
+            # stated expanded uncertainty of the estimate = bound - |estimate|
+            U = float(bnd[q][0] - abs(dep[q][0]))
+            assert abs(dep[q][0] - r) <= U, f"{sid} {T} K {P / 1e5} bar {q}: {dep[q][0]:.4g} vs {r:.4g} (U {U:.3g})"
+
+
+def test_virial_statement_names_pressure_limit():
+    """A budget at 40 bar states where the ideal-gas values hold and cautions for
+    condensing water (estimated vapour pressure, Edmister 1958)."""
+    b = un.budget(tablegen.substance("H2O"), np.arange(300.0, 1001.0, 50.0), ("cp", "h"), P_max_Pa=40e5)
+    text = " ".join(b.statements)
+    assert "within 0.1 % up to" in text and "bar above" in text
+    assert "may condense" in text
+
+
+# ---------------------------------------------------------- interpolation
+@pytest.mark.parametrize("name", ["N2", "CO2", "air", "CO2:0.09,H2O:0.18,N2:0.71,O2:0.02"])
+def test_interpolation_bound_never_exceeded_at_10000_random_temperatures(name):
+    """The stated bound of linear interpolation between printed rows is never
+    exceeded at 10,000 random temperatures (rows cross the data's 1000 K
+    breakpoint; irregular spacing), and it is not loose: somewhere the
+    error reaches 90 % of it."""
+    sub = tablegen.substance(name)
+    rows = np.array([200.0, 260, 300, 400, 550, 700, 900, 1000, 1050, 1300, 1800, 2500, 3000])
+    rows = rows[(rows >= sub.T_min) & (rows <= sub.T_max)]
+    rng = np.random.default_rng(20261201)
+    T = rng.uniform(rows[0], rows[-1], 10000)
+    j = np.clip(np.searchsorted(rows, T, side="right") - 1, 0, rows.size - 2)
+    for key in ("cp", "h", "s0", "Pr", "vr", "k"):
+        bound = un.interpolation_bound(sub, key, rows)
+        f = sub.properties(T)[key]
+        fr = sub.properties(rows)[key]
+        lin = fr[j] + (fr[j + 1] - fr[j]) * (T - rows[j]) / (rows[j + 1] - rows[j])
+        err = np.abs(f - lin)
+        assert np.all(err <= bound[j]), f"{name} {key}: exceeded"
+        assert np.max(err / bound[j]) >= 0.9, f"{name} {key}: bound loose"
+
+
+def test_auto_step_is_largest_round_step_meeting_tolerance():
+    """auto_step returns a round step that keeps interpolation in cp and h within
+    1e-4 relative, and the next larger round step does not."""
+    sub = tablegen.substance("air")
+    step = un.auto_step(sub, ("cp", "h"), 300.0, 1500.0, 1e-4)
+    assert step in un._nice_steps(1200.0)
+    steps = un._nice_steps(1200.0)
+    bigger = steps[steps.index(step) - 1]
+    rows = np.append(np.arange(300.0, 1500.0, bigger), 1500.0)
+    mid = 0.5 * (rows[1:] + rows[:-1])
+    p = sub.properties(mid)
+    b_cp = un.interpolation_bound(sub, "cp", rows) / p["cp"]
+    b_h = un.interpolation_bound(sub, "h", rows) / (p["cp"] * mid)
+    assert max(b_cp.max(), b_h.max()) > 1e-4
+
+
+# ------------------------------------------------------------ composition
+def test_composition_linear_propagation_matches_monte_carlo():
+    """Linear sensitivity against a Monte Carlo propagation of distributions
+    (JCGM 101:2008): normal mole-fraction errors, renormalised; the standard
+    uncertainties agree within the Monte Carlo's own sampling uncertainty
+    (3 / sqrt(2 N) relative at N = 1500) plus 2 % for non-linearity."""
+    comp = {"CO2": 0.09, "H2O": 0.18, "N2": 0.71, "O2": 0.02}
+    u = {"CO2": 0.004, "H2O": 0.01, "O2": 0.002}
+    sub = tablegen.mixture(comp)
+    T = np.array([300.0, 800.0, 1500.0])
+    keys = ("cp", "h", "s0", "k")
+    lin = un.composition_sensitivity(sub, T, keys, u)
+    rng = np.random.default_rng(5)
+    N = 1500
+    lib = library()
+    recs = {k: lib.record(k) for k in comp}
+    vals = {k: [] for k in keys}
+    from tablegen.thermo.build import mixture_substance
+    for _ in range(N):
+        x = dict(comp)
+        for k, uk in u.items():
+            x[k] = max(comp[k] + rng.normal(0.0, uk), 1e-9)
+        tot = sum(x.values())
+        m = mixture_substance([(recs[k], x[k] / tot) for k in comp], "mole")
+        p = m.properties(T)
+        for k in keys:
+            vals[k].append(p[k])
+    tol = 3 / math.sqrt(2 * N) + 0.02
+    for k in keys:
+        mc = np.std(np.array(vals[k]), axis=0, ddof=1)
+        assert np.all(np.abs(lin[k] / mc - 1) <= tol), (k, lin[k], mc)
+
+
+def test_composition_uncertainty_enters_the_budget():
+    sub = tablegen.mixture({"CO2": 0.09, "H2O": 0.18, "N2": 0.71, "O2": 0.02})
+    T = np.array([400.0, 1200.0])
+    b0 = un.budget(sub, T, ("cp",))
+    b1 = un.budget(sub, T, ("cp",), composition_u={"H2O": 0.01})
+    assert np.all(b1.U("cp") > b0.U("cp"))
+    assert np.all(b1.U("cp", "composition") > 0)
+
+
+# ---------------------------------------------------------------- rounding
+@settings(max_examples=200, deadline=None)
+@given(st.floats(min_value=1e-9, max_value=1e9, allow_nan=False))
+def test_digits_for_keeps_rounding_between_U_over_40_and_U_over_4(U):
+    """Rule of digits_for: half a unit of the last printed digit lies in (U/40, U/4]."""
+    d = int(un.digits_for(U))
+    half = 0.5 * 10.0 ** (-d)
+    assert U / 40 < half * (1 + 1e-12) and half <= U / 4 * (1 + 1e-12)
+
+
+def test_digits_for_uses_the_printed_unit():
+    # U = 3.2 J/(kg K) printed in kJ/(kg K): last digit 1e-3 kJ/(kg K) (1 J/(kg K) <= U/2)
+    assert int(un.digits_for(3.2, unit_factor=1000.0)) == 3
+
+
+# --------------------------------------------------------------- API glue
+def test_properties_with_uncertainty_adds_U_keys_of_the_same_shape():
+    sub = tablegen.substance("air")
+    T = np.array([[300.0, 1000.0], [500.0, 700.0]])
+    p = sub.properties(T, 5e5, uncertainty=True)
+    for k in ("cp", "h", "s0", "s", "Pr", "vr", "k", "a", "h_molar"):
+        assert p[f"U_{k}"].shape == T.shape
+        assert np.all(p[f"U_{k}"] > 0)
+    assert "U_cp" not in sub.properties([300.0])
+
+
+def test_thermo_does_not_import_document_libraries():
+    code = ("import sys, tablegen; s = tablegen.substance('air'); s.properties([300.0], uncertainty=True); "
+            "print(any(m.split('.')[0] in ('reportlab', 'matplotlib') for m in sys.modules))")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "False"
+
+
+def test_budget_json_is_plain_sorted_and_reproducible():
+    sub = tablegen.substance("CO2")
+    T = np.arange(300.0, 2001.0, 100.0)
+    j1 = json.dumps(un.budget(sub, T, ("cp", "h", "s0")).to_json(), sort_keys=True)
+    j2 = json.dumps(un.budget(sub, T, ("cp", "h", "s0")).to_json(), sort_keys=True)
+    assert j1 == j2
+    d = json.loads(j1)
+    assert d["coverage_factor"] == 2.0
+    bands = d["keys"]["cp"]["bands"]
+    assert bands[0]["T_lo_K"] == 300.0 and bands[-1]["T_hi_K"] == 2000.0
+    assert all(b["U"] > 0 for b in bands)
+
+
+def test_band_figures_are_the_largest_U_in_the_band():
+    sub = tablegen.substance("N2")
+    T = np.arange(300.0, 3001.0, 50.0)
+    b = un.budget(sub, T, ("cp",))
+    U = b.U("cp")
+    for band in b.bands("cp"):
+        m = (T >= band.T_lo_K) & (T <= band.T_hi_K)
+        assert band.U_max <= U[m].max() * (1 + 1e-12)
+        assert band.U_max >= U[(T >= band.T_lo_K) & (T < band.T_hi_K)].max() * (1 - 1e-12)
+
+
+@pytest.mark.parametrize("kwargs, text", [
+    ({"keys": ("cp", "nonsense")}, "allowed"),
+    ({"P_max_Pa": -1.0}, "positive"),
+    ({"composition_u": {"Xe": 0.01}}, "not a component"),
+    ({"composition_u": {"N2": -0.1}}, "allowed"),
+    ({"composition_u": [0.01]}, "mapping"),
+    ({"printed_step": {"cp": "x"}}, "allowed"),
+])
+def test_bad_input_gives_one_clear_message(kwargs, text):
+    sub = tablegen.substance("air")
+    keys = kwargs.pop("keys", ("cp",))
+    with pytest.raises(TablegenError) as e:
+        un.budget(sub, np.array([300.0, 400.0]), keys, **kwargs)
+    assert text in str(e.value) and "\n" not in str(e.value)
+
+
+def test_auto_step_bad_tolerance_gives_one_clear_message():
+    from tablegen.errors import SpecError
+    sub = tablegen.substance("air")
+    for tol in ("abc", -1.0, {"cp": None}, {"h": 1.0}):
+        with pytest.raises(SpecError) as e:
+            un.auto_step(sub, ("cp",), 300.0, 400.0, tol)
+        assert "tolerance" in str(e.value)
+
+
+def test_species_class_defaults():
+    assert un.species_class({"Ar": 1}) == "noble gas"
+    assert un.species_class({"O": 1}) == "monatomic"
+    assert un.species_class({"N": 2}) == "diatomic"
+    assert un.species_class({"O": 1, "H": 1}, "OH") == "diatomic radical"
+    assert un.species_class({"C": 1, "O": 2}) == "small polyatomic"
+    assert un.species_class({"N": 1, "O": 2}, "NO2") == "polyatomic radical"
+    assert un.species_class({"C": 1, "H": 4}) == "hydrocarbon or larger"
+    assert un.species_class({"C": 6, "H": 14}) == "hydrocarbon or larger"
