@@ -83,6 +83,8 @@ class Document:
     reference: Reference
     source: str | None
     subtitle: str
+    max_pressure_Pa: float = 1e5      # largest pressure the values are used at (ideal-gas term of U)
+    uncertainty_columns: bool = False  # U_<key> columns in the CSV files
 
 
 @dataclass(frozen=True, slots=True)
@@ -250,7 +252,7 @@ def _positive_number(raw, key, where, default):
 # ---------------------------------------------------------------- document
 DOCUMENT_KEYS = ("title", "subtitle", "number", "revision", "issue_date", "organisation",
                  "prepared_by", "checked_by", "approved_by", "paper", "orientation", "units",
-                 "basis", "reference", "source")
+                 "basis", "reference", "source", "max_pressure", "uncertainty_columns")
 
 
 def _document(raw, where="document") -> Document:
@@ -285,6 +287,8 @@ def _document(raw, where="document") -> Document:
         basis=_choice(raw, "basis", BASES, where, "mass"),
         reference=_reference(raw.get("reference", "normal"), f"{where}.reference"),
         source=_get(raw, "source", str, where, None),
+        max_pressure_Pa=_pressure(raw.get("max_pressure", "1 bar"), f"{where}.max_pressure"),
+        uncertainty_columns=_get(raw, "uncertainty_columns", bool, where, False),
     )
 
 
@@ -853,7 +857,8 @@ def normalise(spec: BookSpec, source) -> dict:
     d = spec.document
     doc = {k: getattr(d, k) for k in ("title", "subtitle", "number", "revision", "issue_date",
                                        "organisation", "prepared_by", "checked_by", "approved_by",
-                                       "paper", "orientation", "units", "basis")}
+                                       "paper", "orientation", "units", "basis", "max_pressure_Pa",
+                                       "uncertainty_columns")}
     doc["reference"] = {"name": d.reference.name, "T_K": d.reference.T_K, "P_Pa": d.reference.P_Pa}
     doc["source"] = source
     tables = []

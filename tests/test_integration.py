@@ -49,3 +49,42 @@ def test_flue_gas_name_in_state_and_process(capsys):
     assert main(["process", name, "--from", "T=1500K,P=1.05bar", "--heat-to", "420K", "--json"]) == 0
     res = json.loads(capsys.readouterr().out)
     assert res["q"] < 0
+
+
+def test_book_states_uncertainty_per_column_and_appendix(demo):
+    meta = json.loads((demo / "kestrel-fen-desk.json").read_text())
+    t = meta["tables"][0]
+    assert t["uncertainty"]["coverage_factor"] == 2
+    assert any(n.startswith("Uncertainty U (k = 2)") for n in t["notes"])
+    assert meta["appendix"] and meta["appendix"][0]["title"] == "Uncertainty of the printed values"
+
+
+def test_csv_uncertainty_columns_when_asked(tmp_path):
+    from tablegen import spec as specmod
+    src = tmp_path / "u.toml"
+    src.write_text('''[document]
+title = "U columns"
+number = "T-1"
+revision = "A"
+issue_date = 2026-12-01
+max_pressure = "10 bar"
+uncertainty_columns = true
+
+[[tables]]
+name = "n2"
+substance = "N2"
+columns = ["T", "cp", "h"]
+grid = { segments = [ { start = "300 K", stop = "1500 K", step = "100 K" } ] }
+''')
+    assert main(["build", str(src), "--out", str(tmp_path / "out"), "--quiet"]) == 0
+    lines = [ln for ln in (tmp_path / "out" / "n2.csv").read_text().splitlines() if not ln.startswith("#")]
+    head = lines[0].split(",")
+    assert "U_cp [kJ/(kg K)]" in head and "U_h [kJ/kg]" in head
+    import tablegen.uncertainty as unc
+    import numpy as np
+    sp = specmod.load(str(src))
+    b = unc.budget(sp.tables[0].substance, sp.tables[0].T_K, ["cp", "h"], P_max_Pa=1e6,
+                   printed_step={"cp": 1e-4 * 1e3, "h": 1e-2 * 1e3})
+    i = head.index("U_cp [kJ/(kg K)]")
+    got = np.array([float(r.split(",")[i]) for r in lines[1:]])
+    np.testing.assert_allclose(got, b.U("cp") / 1e3, rtol=1e-12)

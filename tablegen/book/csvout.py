@@ -56,8 +56,12 @@ def render_table(book, t) -> str:
     xt = [repr(float(T)) for T, m in zip(t.T_K, t.marks) if "x" in m]
     if xt:
         lines.append(f"# extrapolated beyond the data range at T_K = {' '.join(xt)}")
-    lines.append(",".join(_field(c.csv_header) for c in t.columns))
-    cols = [c.values.tolist() for c in t.columns]
+    if t.U_columns:
+        lines.append("# U_<column>: expanded uncertainty (k = 2) of that column, same unit; "
+                     "empty where none is stated (extrapolated rows)")
+    heads = [c.csv_header for c in t.columns] + [h for h, _ in t.U_columns]
+    lines.append(",".join(_field(h) for h in heads))
+    cols = [c.values.tolist() for c in t.columns] + [v.tolist() for _, v in t.U_columns]
     for row in zip(*cols):
-        lines.append(",".join(map(repr, row)))
+        lines.append(",".join("" if x != x else repr(x) for x in row))
     return "\r\n".join(lines) + "\r\n"

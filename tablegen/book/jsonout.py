@@ -32,6 +32,7 @@ def sidecar(book, files: dict) -> dict:
             "columns": [{"key": c.key, "csv_header": c.csv_header, "unit": c.unit, "system": c.system,
                          "decimals": c.decimals, "significant": c.significant} for c in t.columns],
             "notes": list(t.notes),
+            "uncertainty": t.uncertainty,
         })
     d = book.document
     return {
