@@ -491,13 +491,18 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
             raise TablegenError(f"column {k!r} has a tolerance or alignment but is not compared; "
                                 f"compared columns: {', '.join(keys)}")
 
-    T = ref.T_K
+    # A converted temperature may miss a range end by rounding (-73.15 °C is
+    # 199.99999999999997 K): within 1e-9 relative it counts as the end itself.
+    T = ref.T_K.copy()
+    for end in (sub.T_min, sub.T_max):
+        T[np.abs(T - end) <= 1e-9 * end] = end
     if not extrapolate:
         out = (T < sub.T_min) | (T > sub.T_max)
         if np.any(out):
             i = int(np.argmax(out))
-            raise RangeError(f"{ref.path}:{ref.lines[i]}: T = {ref.T_text[i]} {ref.T_unit.symbol} "
-                             f"({T[i]:g} K) is outside the data range {sub.T_min:g}-{sub.T_max:g} K "
+            inK = "" if ref.T_unit.symbol == "K" else f" ({T[i]:g} K)"
+            raise RangeError(f"{ref.path}:{ref.lines[i]}: T = {ref.T_text[i]} {ref.T_unit.symbol}{inK} "
+                             f"is outside the data range {sub.T_min:g}-{sub.T_max:g} K "
                              f"of {sub.id}; allowed: {sub.T_min:g} to {sub.T_max:g} K, or --extrapolate "
                              f"(every extrapolated value is marked)")
     p = sub.properties(T, extrapolate=extrapolate)

@@ -352,13 +352,11 @@ def draw_deviation_plot(c, col, T_disp, T_unit, x, y, w, h):
         t_lo, t_hi = t_lo - 1, t_hi + 1
     dmax = float(np.nanmax(np.abs(ds[ms])))
     bmax = float(np.nanmax(bs[ms]))
-    ymax = max(dmax * 1.2, 1e-300)
-    band_shown = bmax <= 3 * ymax
-    if band_shown:
-        ymax = max(ymax, bmax * 1.1)
-    if dmax == 0 and not band_shown:
+    ymax = dmax * 1.2
+    ymax = max(ymax, min(bmax * 1.1, 3 * ymax))       # show the band unless it dwarfs the deviations
+    if not ymax > 0:
         ymax = bmax * 1.1 if bmax > 0 else 1.0
-        band_shown = True
+    band_clipped = bmax > ymax
     yt, ystep = _ticks(-ymax, ymax, 4)
     ylo, yhi = min(yt[0], -ymax), max(yt[-1], ymax)
     xt, xstep = _ticks(t_lo, t_hi, 6)
@@ -388,22 +386,21 @@ def draw_deviation_plot(c, col, T_disp, T_unit, x, y, w, h):
     p = c.beginPath()
     p.rect(px0, py0, pw, ph)
     c.clipPath(p, stroke=0, fill=0)
-    if band_shown:
-        c.setStrokeColorRGB(*BAND)
-        c.setLineWidth(0.8)
-        c.setDash(3, 2)
-        for sign in (1, -1):
-            path, started = c.beginPath(), False
-            for t, b, mm in zip(Ts, bs, ms):
-                if not mm:
-                    continue
-                if not started:
-                    path.moveTo(X(t), Y(sign * b))
-                    started = True
-                else:
-                    path.lineTo(X(t), Y(sign * b))
-            c.drawPath(path, stroke=1, fill=0)
-        c.setDash()
+    c.setStrokeColorRGB(*BAND)
+    c.setLineWidth(0.8)
+    c.setDash(3, 2)
+    for sign in (1, -1):
+        path, started = c.beginPath(), False
+        for t, b, mm in zip(Ts, bs, ms):
+            if not mm:
+                continue
+            if not started:
+                path.moveTo(X(t), Y(sign * b))
+                started = True
+            else:
+                path.lineTo(X(t), Y(sign * b))
+        c.drawPath(path, stroke=1, fill=0)
+    c.setDash()
     c.setStrokeColorRGB(*TRACE)
     c.setLineWidth(0.7)
     path, started = c.beginPath(), False
@@ -427,7 +424,7 @@ def draw_deviation_plot(c, col, T_disp, T_unit, x, y, w, h):
             yy = min(max(Y(d), py0), py0 + ph)
             _text(c, X(t), yy - 3.2, OUT_MARK, fonts.SANS_BOLD, 9, FAIL_INK, "center")
     legend = "— Δ   "
-    legend += "- - ± allowed deviation" if band_shown else f"allowed ±{_num(bmax, 2)} lies beyond the plot range"
+    legend += "- - ± allowed deviation" + (f" (up to ±{_num(bmax, 2)}, partly beyond the plot)" if band_clipped else "")
     if not np.all(ws[ms]):
         legend += f"   {OUT_MARK} out of tolerance"
     _text(c, px0, py0 + ph + 4, legend, size=6.3, color=GREY)
