@@ -336,6 +336,50 @@ def _tick_label(v: float, step: float) -> str:
     return f"{v:.{dec}f}".replace("-", "−")
 
 
+def _clip_segments(points, ylo, yhi):
+    """Split a polyline (None breaks it) into pieces inside ylo <= y <= yhi, cut exactly at the limits,
+    so no coordinate far outside the plot reaches the PDF."""
+    pieces, cur = [], []
+    for a, b in zip(points[:-1], points[1:]):
+        if a is None or b is None:
+            continue
+        (t0, v0), (t1, v1) = a, b
+        s0, s1 = 0.0, 1.0                       # parameter range of the segment inside the limits
+        dv = v1 - v0
+        for lim, inside_above in ((ylo, True), (yhi, False)):
+            if dv == 0:
+                if (v0 < lim) if inside_above else (v0 > lim):
+                    s0, s1 = 1.0, 0.0
+                continue
+            sc = (lim - v0) / dv
+            if (dv > 0) == inside_above:
+                s0 = max(s0, sc)
+            else:
+                s1 = min(s1, sc)
+        if s0 > s1:
+            continue
+        p0 = (t0 + (t1 - t0) * s0, v0 + dv * s0)
+        p1 = (t0 + (t1 - t0) * s1, v0 + dv * s1)
+        if cur and cur[-1] == p0:
+            cur.append(p1)
+        else:
+            if len(cur) > 1:
+                pieces.append(cur)
+            cur = [p0, p1]
+    if len(cur) > 1:
+        pieces.append(cur)
+    return pieces
+
+
+def _polyline(c, points, ylo, yhi, X, Y):
+    for piece in _clip_segments(points, ylo, yhi):
+        path = c.beginPath()
+        path.moveTo(X(piece[0][0]), Y(piece[0][1]))
+        for t, v in piece[1:]:
+            path.lineTo(X(t), Y(v))
+        c.drawPath(path, stroke=1, fill=0)
+
+
 def draw_deviation_plot(c, col, T_disp, T_unit, x, y, w, h):
     """Δ against T with the ±tolerance band; out-of-tolerance points marked ✗ (vector)."""
     from ..compare import KEY_LABELS
@@ -390,30 +434,11 @@ def draw_deviation_plot(c, col, T_disp, T_unit, x, y, w, h):
     c.setLineWidth(0.8)
     c.setDash(3, 2)
     for sign in (1, -1):
-        path, started = c.beginPath(), False
-        for t, b, mm in zip(Ts, bs, ms):
-            if not mm:
-                continue
-            if not started:
-                path.moveTo(X(t), Y(sign * b))
-                started = True
-            else:
-                path.lineTo(X(t), Y(sign * b))
-        c.drawPath(path, stroke=1, fill=0)
+        _polyline(c, [(t, sign * b) for t, b, mm in zip(Ts, bs, ms) if mm], ylo, yhi, X, Y)
     c.setDash()
     c.setStrokeColorRGB(*TRACE)
     c.setLineWidth(0.7)
-    path, started = c.beginPath(), False
-    for t, d, mm in zip(Ts, ds, ms):
-        if not mm:
-            started = False
-            continue
-        if not started:
-            path.moveTo(X(t), Y(d))
-            started = True
-        else:
-            path.lineTo(X(t), Y(d))
-    c.drawPath(path, stroke=1, fill=0)
+    _polyline(c, [(t, d) if mm else None for t, d, mm in zip(Ts, ds, ms)], ylo, yhi, X, Y)
     c.setFillColorRGB(*TRACE)
     for t, d, mm, ok in zip(Ts, ds, ms, ws):
         if mm and ok:
@@ -463,7 +488,8 @@ def _listing(flow, cmp):
         title = "Side-by-side listing" + (f" (columns {g + 1}–{g + len(group)} of {len(cols)})" if len(cols) > per else "")
         _heading(flow, title)
         note = (f"{OUT_MARK} and tint: out of tolerance.  {EXTRAP_MARK}: extrapolated beyond the data range.  "
-                f"Δ = tablegen − reference.")
+                f"Δ = tablegen − reference.  Cells too long for the column are shown to 8 significant "
+                f"figures (deviations.csv keeps every digit).")
         if aligned_any:
             note += "  tablegen columns of aligned keys include the fitted constant."
         _paragraph(flow, note, 7.0, color=GREY, gap=2)
@@ -512,9 +538,10 @@ def _listing(flow, cmp):
                         c.rect(x, y - lead, gw, lead, stroke=0, fill=1)
                     ink = FAIL_INK if bad else INK
                     if col.present[i]:
-                        cells = (col.text[i], format_like(col.tablegen[i], col.text[i]), format_dev(col.deviation[i]))
+                        r_s, t_s = _pair(col.text[i], col.reference[i], col.tablegen[i], w_ref - 3, size)
+                        cells = (r_s, t_s, format_dev(col.deviation[i]))
                     else:
-                        cells = ("—", format_like(col.tablegen[i], ""), "")
+                        cells = ("—", _pair("", np.nan, col.tablegen[i], w_tg - 3, size)[1], "")
                     for s, ww in zip(cells, (w_ref, w_tg, w_d)):
                         x += ww
                         _text(c, x - 2, base, _fit(s.replace("-", "−"), fonts.MONO, size, ww - 3), fonts.MONO,
@@ -532,6 +559,21 @@ def _listing(flow, cmp):
             flow.add(lead, row)
         if aligned_any:
             _paragraph(flow, "* includes the fitted alignment constant (page 1).", 7.0, color=GREY)
+
+
+def _pair(text, ref_value, tg_value, width, size):
+    """Reference cell as printed and tablegen value to the same places; both to 8 significant
+    figures when the printed text is too wide for the column (deviations.csv keeps everything)."""
+    from reportlab.pdfbase.pdfmetrics import stringWidth
+
+    from ..compare import format_like
+    if text:
+        r_s, t_s = text, format_like(tg_value, text)
+        if max(stringWidth(r_s, fonts.MONO, size), stringWidth(t_s, fonts.MONO, size)) <= width:
+            return r_s, t_s
+        return f"{ref_value:.8g}", f"{tg_value:.8g}"
+    t_s = f"{tg_value:.8g}" if math.isfinite(tg_value) else "—"
+    return "", t_s
 
 
 # ------------------------------------------------------------------ render
