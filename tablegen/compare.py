@@ -232,7 +232,8 @@ def read_reference(path) -> Reference:
     cells_by_col = [[] for _ in range(n)]
     for line, cells in rows:
         if len(cells) != n:
-            raise TablegenError(f"{name}:{line}: {len(cells)} cells, but the header names {n} columns")
+            hint = "; in a whitespace table write '-' for an empty cell" if layout == "whitespace" else ""
+            raise TablegenError(f"{name}:{line}: {len(cells)} cells, but the header names {n} columns{hint}")
         for j, c in enumerate(cells):
             if c in ("", "-", "—") and keys[j] != "T":
                 cells_by_col[j].append("")
@@ -267,8 +268,8 @@ def _split_ws_header(s: str, name: str, line: int) -> list[str]:
     rest = _HEADER_WS.sub("", s).strip()
     if rest or not cells:
         bad = rest.split()[0] if rest else s
-        raise TablegenError(f"{name}:{line}: header text {bad!r} is not in the form key [unit], "
-                            f"e.g. T [K]  cp [kJ/(kg K)]")
+        raise TablegenError(f"{name}:{line}: header text {bad!r} is not in the form key [unit]; "
+                            f"separate columns by commas or blanks, e.g. T [K],cp [kJ/(kg K)]")
     return cells
 
 
@@ -501,6 +502,8 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
         if np.any(out):
             i = int(np.argmax(out))
             inK = "" if ref.T_unit.symbol == "K" else f" ({T[i]:g} K)"
+            more = int(np.sum(out)) - 1
+            inK += f" (and {more} more row{'s' if more > 1 else ''})" if more else ""
             raise RangeError(f"{ref.path}:{ref.lines[i]}: T = {ref.T_text[i]} {ref.T_unit.symbol}{inK} "
                              f"is outside the data range {sub.T_min:g}-{sub.T_max:g} K "
                              f"of {sub.id}; allowed: {sub.T_min:g} to {sub.T_max:g} K, or --extrapolate "
