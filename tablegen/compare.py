@@ -92,7 +92,7 @@ class RefColumn:
     """One property column of a reference table."""
 
     key: str
-    unit: Unit
+    unit: Unit | None             # None: a key this comparison cannot evaluate (e.g. h_vol)
     header: str                   # the header cell as written
     values_si: np.ndarray         # NaN where the cell is empty
     text: tuple                   # cell text as printed ("" for empty)
@@ -114,15 +114,27 @@ class Reference:
     columns: tuple                # RefColumn, in file order
     comments: tuple               # comment lines, '#' stripped
 
+    header_line: int = 0
+
     def column(self, key: str) -> RefColumn:
+        """The first column of a key."""
         for c in self.columns:
             if c.key == key:
                 return c
         raise KeyError(key)
 
+    def columns_of(self, key: str) -> tuple:
+        """Every column of a key (a table may give one property in SI and US units)."""
+        return tuple(c for c in self.columns if c.key == key)
+
     @property
     def keys(self) -> tuple:
-        return tuple(c.key for c in self.columns)
+        """Distinct property keys in file order."""
+        return tuple(dict.fromkeys(c.key for c in self.columns))
+
+    @property
+    def comparable_keys(self) -> tuple:
+        return tuple(dict.fromkeys(c.key for c in self.columns if c.unit is not None))
 
 
 _HEADER_CELL = re.compile(r"^\s*([A-Za-z][A-Za-z0-9_]*)\s*\[([^\[\]]*)\]\s*$")
@@ -201,7 +213,7 @@ def read_reference(path) -> Reference:
         raise TablegenError(f"{name}: no header line; the first line that is not a '#' comment must name "
                             f"each column as key [unit], e.g. T [K],cp [kJ/(kg K)]")
 
-    keys, units = [], []
+    keys, units, seen = [], [], set()
     for cell in header:
         m = _HEADER_CELL.match(cell)
         if not m:
@@ -209,20 +221,26 @@ def read_reference(path) -> Reference:
                                 f"key [unit], e.g. cp [kJ/(kg K)]")
         key, usym = m.group(1), m.group(2).strip()
         if key != "T" and key not in KEY_DIMENSIONS:
-            raise TablegenError(f"{name}:{header_line}: unknown column key {key!r}; allowed: {_allowed_keys()}")
-        if key in keys:
-            raise TablegenError(f"{name}:{header_line}: column {key!r} appears twice; give each key once")
-        dim = "temperature" if key == "T" else KEY_DIMENSIONS[key]
-        try:
-            u = unit(usym, dim)
-        except UnitError as e:
-            raise TablegenError(f"{name}:{header_line}: column {key!r}: {e}") from None
+            if not re.fullmatch(r"[A-Za-z][A-Za-z0-9]*(_(molar|vol|mean_h|mean_s|mean_h_molar|mean_s_molar|"
+                                r"mean_h_vol|mean_s_vol))?", key) or key.split("_")[0] not in KEY_DIMENSIONS:
+                raise TablegenError(f"{name}:{header_line}: unknown column key {key!r}; allowed: {_allowed_keys()}")
+            u = None            # a tablegen key (volumetric basis, mean cp) this comparison cannot evaluate
+        else:
+            dim = "temperature" if key == "T" else KEY_DIMENSIONS[key]
+            try:
+                u = unit(usym, dim)
+            except UnitError as e:
+                raise TablegenError(f"{name}:{header_line}: column {key!r}: {e}") from None
+        ident = (key, u.symbol if u else usym)
+        if ident in seen:
+            raise TablegenError(f"{name}:{header_line}: column {cell.strip()!r} appears twice; give each once")
+        seen.add(ident)
         keys.append(key)
         units.append(u)
     if "T" not in keys:
         raise TablegenError(f"{name}:{header_line}: no temperature column; one column must be T [K] "
                             f"(or T [°C], T [°F], T [°R])")
-    if len(keys) < 2:
+    if all(k == "T" for k in keys):
         raise TablegenError(f"{name}:{header_line}: only a temperature column; add property columns, "
                             f"allowed keys: {', '.join(KEY_DIMENSIONS)}")
     if not rows:
@@ -252,14 +270,15 @@ def read_reference(path) -> Reference:
             raise TablegenError(f"{name}:{line}: temperature {T:g} K is not above 0 K")
     columns = []
     for j, key in enumerate(keys):
-        if j == jT:
+        if key == "T":          # the first T column is the temperature; others (T in °F ...) are ignored
             continue
         txt = tuple(cells_by_col[j])
         vals = np.array([float(c) if c else np.nan for c in txt])
         q = np.array([_quantum(c) if c else np.nan for c in txt])
-        columns.append(RefColumn(key, units[j], header[j].strip(), units[j].to_si(vals), txt, q))
+        si = units[j].to_si(vals) if units[j] is not None else vals
+        columns.append(RefColumn(key, units[j], header[j].strip(), si, txt, q))
     return Reference(name, digest, layout, units[jT], header[jT].strip(), T_K, T_text, lines,
-                     tuple(columns), tuple(comments))
+                     tuple(columns), tuple(comments), header_line)
 
 
 def _split_ws_header(s: str, name: str, line: int) -> list[str]:
@@ -300,7 +319,8 @@ def parse_tolerance(text: str, ref_units: dict) -> tuple[str, Tolerance]:
 
     Parameters
     ----------
-    ref_units : key -> Unit of the compared columns (a bare number is in that unit)
+    ref_units : key -> Unit, or tuple of Units, of the compared columns (a bare
+        number is in that unit; a key given in several units needs a unit or a %)
     """
     if "=" not in text:
         raise TablegenError(f"--tolerance {text!r}: write COLUMN=VALUE or COLUMN=VALUE%, e.g. cp=0.1% or h=0.5")
@@ -334,6 +354,12 @@ def parse_tolerance(text: str, ref_units: dict) -> tuple[str, Tolerance]:
             if seen_abs:
                 raise TablegenError(f"--tolerance {text!r}: write one absolute part, e.g. {key}=0.5%+0.2")
             u = ref_units[key]
+            if isinstance(u, tuple):
+                if len(u) > 1 and not m.group(3):
+                    raise TablegenError(f"--tolerance {text!r}: {key} is given in "
+                                        f"{' and '.join(x.symbol for x in u)}; give the absolute part "
+                                        f"with a unit, e.g. {key}={v:g}{u[0].symbol}")
+                u = u[0]
             if m.group(3):
                 try:
                     u = unit(m.group(3), u.dimension)
@@ -485,6 +511,10 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
         if k not in ref.keys:
             raise TablegenError(f"--columns: {k!r} is not a column of {ref.path}; "
                                 f"its columns: {', '.join(ref.keys)}")
+        if k not in ref.comparable_keys:
+            raise TablegenError(f"{ref.path}:{ref.header_line}: column {k!r} cannot be compared by tablegen "
+                                f"compare (it needs the table's reference conditions); compare the other "
+                                f"columns with --columns {','.join(ref.comparable_keys)}")
     if len(set(keys)) != len(keys):
         raise TablegenError("--columns: a column is named twice; name each once")
     for k in list(tolerances) + list(align):
@@ -512,8 +542,10 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
     extrap = np.asarray(p.get("extrapolated", np.zeros(T.shape, bool)), bool)
 
     results = []
-    for key in keys:
-        rc = ref.column(key)
+    selected = [rc for rc in ref.columns if rc.key in keys]
+    selected.sort(key=lambda rc: keys.index(rc.key))
+    for rc in selected:
+        key = rc.key
         u = rc.unit
         present = np.isfinite(rc.values_si)
         ref_si = rc.values_si
@@ -521,7 +553,7 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
         alignment = None
         aligned_si = calc_si
         if key in align:
-            alignment, aligned_si = _fit(key, align[key], ref_si, calc_si, present, u, ref, sub)
+            alignment, aligned_si = _fit(key, align[key], ref_si, calc_si, present, u, ref, sub, rc)
         tol = tolerances.get(key) or default_tolerance(key)
         dev_si = np.where(present, aligned_si - ref_si, np.nan)
         with np.errstate(divide="ignore", invalid="ignore"):
@@ -543,7 +575,7 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
                       version or __version__, dict(options or {}))
 
 
-def _fit(key, kind, ref_si, calc_si, present, u, ref, sub):
+def _fit(key, kind, ref_si, calc_si, present, u, ref, sub, rc):
     n = int(np.sum(present))
     if n == 0:
         raise TablegenError(f"--align {key}={kind}: column {key!r} of {ref.path} has no values to fit")
@@ -558,7 +590,7 @@ def _fit(key, kind, ref_si, calc_si, present, u, ref, sub):
     else:
         if np.any(r <= 0):
             i = int(np.flatnonzero(present)[np.argmax(r <= 0)])
-            raise TablegenError(f"{ref.path}:{ref.lines[i]}: {key} value {ref.column(key).text[i]} is not "
+            raise TablegenError(f"{ref.path}:{ref.lines[i]}: {key} value {rc.text[i]} is not "
                                 f"positive; a scale fit needs positive {key} values")
         value = float(np.exp(np.mean(np.log(r) - np.log(c))))
         aligned = calc_si * value

@@ -267,7 +267,7 @@ BAD = [
     ("not a number", "# a note\nT [C],cp [kJ/(kg K)]\n25,1.0x\n", ":3: cell '1.0x' in column 'cp' is not a number"),
     ("ragged", "T [K],cp [kJ/(kg K)]\n300,1.0,2\n", ":2: 3 cells, but the header names 2 columns"),
     ("no T", "cp [kJ/(kg K)],h [kJ/kg]\n1.0,2\n", ":1: no temperature column"),
-    ("twice", "T [K],cp [kJ/(kg K)],cp [kJ/(kg K)]\n300,1,1\n", ":1: column 'cp' appears twice"),
+    ("twice", "T [K],cp [kJ/(kg K)],cp [kJ/(kg K)]\n300,1,1\n", ":1: column 'cp [kJ/(kg K)]' appears twice"),
 ]
 
 

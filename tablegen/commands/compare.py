@@ -103,10 +103,15 @@ def compute(args):
             raise TablegenError(f"--columns {args.columns!r}: give comma-separated keys, e.g. cp,h,s0")
     else:
         keys = list(ref.keys)
+        skipped = [k for k in keys if k not in ref.comparable_keys]
+        if skipped and ref.comparable_keys:
+            keys = list(ref.comparable_keys)
+            notice(args, f"note: columns {', '.join(skipped)} of {ref.path} need the table's reference "
+                         f"conditions and are not compared; name the columns with --columns to silence this")
     for k in keys:
         if k not in ref.keys:
             raise TablegenError(f"--columns: {k!r} is not a column of {ref.path}; its columns: {', '.join(ref.keys)}")
-    units = {k: ref.column(k).unit for k in keys}
+    units = {k: tuple(c.unit for c in ref.columns_of(k)) for k in keys}
     tolerances, align = {}, {}
     for t in args.tolerance:
         k, tol = parse_tolerance(t, units)
