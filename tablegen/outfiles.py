@@ -38,6 +38,7 @@ def write_bytes(path, data: bytes) -> None:
     try:
         with os.fdopen(fd, "wb") as f:
             f.write(data)
+        os.chmod(tmp, 0o666 & ~_umask())   # mkstemp makes 0600; give the usual mode
         os.replace(tmp, path)
     except BaseException:
         try:
@@ -45,6 +46,12 @@ def write_bytes(path, data: bytes) -> None:
         except FileNotFoundError:
             pass
         raise
+
+
+def _umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
 
 
 def write_text(path, text: str) -> None:

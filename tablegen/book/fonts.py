@@ -27,6 +27,14 @@ _FILES = {
 
 
 def font_dir() -> Path:
+    # Find matplotlib's data folder without importing matplotlib (a quarter of a
+    # second that a PDF-only command need not pay).
+    import importlib.util
+    spec = importlib.util.find_spec("matplotlib")
+    for loc in (spec.submodule_search_locations or []) if spec else []:
+        d = Path(loc) / "mpl-data" / "fonts" / "ttf"
+        if (d / _FILES[SANS]).is_file():
+            return d
     import matplotlib
     return Path(matplotlib.get_data_path()) / "fonts" / "ttf"
 

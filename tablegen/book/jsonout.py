@@ -1,0 +1,73 @@
+"""The JSON sidecar of a book: what was built, from what, with which tool.
+
+Its schema is docs/book-json-schema.json (documented in docs/spec.md). It holds
+the normalised spec, datums, anchors, compositions, sources per species, the
+versions of the tools and the SHA-256 fingerprint printed in the PDF footer.
+Keys are sorted so the bytes are reproducible.
+"""
+
+from __future__ import annotations
+
+SCHEMA_ID = "tablegen-book/1"
+
+
+def sidecar(book, files: dict) -> dict:
+    """JSON-ready dict; ``files`` maps "pdf" and "csv" to the file names written."""
+    subs = []
+    for s in book.substances:
+        subs.append({
+            "id": s.id, "name": s.name, "kind": s.kind, "M_g_per_mol": s.M, "R_J_per_kgK": s.R,
+            "T_min_K": s.T_min, "T_max_K": s.T_max, "mixing_entropy_over_R": s.mixing_entropy_R,
+            "components": [{"id": c.id, "mole_fraction": c.mole_fraction, "mass_fraction": c.mass_fraction,
+                            "M_g_per_mol": c.M, "data_set": c.source} for c in s.components],
+            "sources": [{"species": a, "data_set": b, "citation": c} for a, b, c in s.sources],
+        })
+    tables = []
+    for t, csv in zip(book.tables, files["csv"]):
+        tables.append({
+            "name": t.name, "title": t.title, "substance_id": t.substance.id, "basis": t.basis,
+            "units": t.units, "rows": t.rows, "csv": csv,
+            "datum": dict(t.datum, text=t.datum_text), "P_ref_Pa": t.P_ref_Pa,
+            "anchor": dict(t.anchor), "mean_cp_from_K": t.mean_cp_from_K, "grid": t.grid_text,
+            "columns": [{"key": c.key, "csv_header": c.csv_header, "unit": c.unit, "system": c.system,
+                         "decimals": c.decimals, "significant": c.significant} for c in t.columns],
+            "notes": list(t.notes),
+        })
+    d = book.document
+    return {
+        "schema": SCHEMA_ID,
+        "name": book.name,
+        "document": {"title": d.title, "number": d.number, "revision": d.revision,
+                     "issue_date": d.issue_date, "organisation": d.organisation},
+        "fingerprint": {"sha256": book.fingerprint,
+                        "covers": "canonical JSON of 'spec' followed by the name and SHA-256 of each data file"},
+        "versions": dict(book.versions),
+        "spec": book.normalised_spec,
+        "data_files": [{"name": n, "sha256": h} for n, h in book.data_files],
+        "substances": subs,
+        "tables": tables,
+        "rounding_rule": book.rounding_rule,
+        "cautions": list(book.cautions),
+        "appendix": [{"title": s.title, "paragraphs": list(s.paragraphs)} for s in book.appendix],
+        "files": {"pdf": files["pdf"], "csv": list(files["csv"])},
+    }
+
+
+def _clean(v):
+    """JSON-ready: numpy scalars to Python numbers; non-finite numbers refused as null."""
+    import math
+    if isinstance(v, dict):
+        return {str(k): _clean(x) for k, x in v.items()}
+    if isinstance(v, (list, tuple)):
+        return [_clean(x) for x in v]
+    if hasattr(v, "item") and not isinstance(v, (str, bytes)):
+        v = v.item()
+    if isinstance(v, float) and not math.isfinite(v):
+        return None
+    return v
+
+
+def render(book, files: dict) -> str:
+    """The sidecar text: sorted keys, two-space indent, UTF-8 characters kept."""
+    import json
+    return json.dumps(_clean(sidecar(book, files)), indent=2, sort_keys=True, ensure_ascii=False) + "\n"

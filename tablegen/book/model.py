@@ -1,0 +1,528 @@
+"""The table model: everything a renderer lays out, already computed and formatted.
+
+``build_book(spec)`` evaluates every table once (vectorised over its rows),
+converts to the printed units, rounds each column to its digits, and gathers
+the front matter (column definitions, datums, compositions, sources,
+cautions) and the fingerprint. The PDF, CSV and JSON renderers only lay this
+out; they never evaluate a polynomial.
+
+Two later additions drop in without changing the renderers' contract:
+``TableModel.notes`` (e.g. per-column uncertainty statements) and
+``TableModel.charts`` (chart models drawn after the table's pages), and
+``BookModel.appendix``, a list of :class:`Section` printed after the tables.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import math
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+
+from ..errors import TablegenError
+from ..thermo.substance import R_MOLAR, T_REF
+from ..units import BTU, FT, LBM
+
+# ---------------------------------------------------------------- units
+_J_PER_BTU_FT3 = BTU / FT ** 3        # Btu/ft³ -> J/m³ (exact from the 1959 definitions)
+
+#: (key class, system, basis) -> (unit symbol, SI factor: SI value = factor * printed value).
+#: Key classes: "cap" (cp, cv, s°, mean cp), "energy" (h, u, g°).
+_UNITS = {
+    ("cap", "SI", "mass"): ("kJ/(kg K)", 1e3),
+    ("energy", "SI", "mass"): ("kJ/kg", 1e3),
+    ("cap", "SI", "molar"): ("J/(mol K)", 1.0),
+    ("energy", "SI", "molar"): ("kJ/mol", 1e3),
+    ("cap", "SI", "volumetric"): ("kJ/(m³ K)", 1e3),
+    ("energy", "SI", "volumetric"): ("kJ/m³", 1e3),
+    ("cap", "US", "mass"): ("Btu/(lbm °R)", BTU / LBM * 9 / 5),
+    ("energy", "US", "mass"): ("Btu/lbm", BTU / LBM),
+    ("cap", "US", "molar"): ("Btu/(lbmol °R)", BTU / LBM / 1000.0 * 9 / 5),
+    ("energy", "US", "molar"): ("Btu/lbmol", BTU / LBM / 1000.0),
+    ("cap", "US", "volumetric"): ("Btu/(ft³ °R)", _J_PER_BTU_FT3 * 9 / 5),
+    ("energy", "US", "volumetric"): ("Btu/ft³", _J_PER_BTU_FT3),
+}
+_CLASS = {"cp": "cap", "cv": "cap", "s0": "cap", "cp_mean_h": "cap", "cp_mean_s": "cap",
+          "h": "energy", "u": "energy", "g0": "energy"}
+
+#: Default decimals by (key class or key, system, basis); chosen so that the last
+#: printed digit is below the stated agreement of the NASA fits with their
+#: source tables (about 1e-4 relative in cp, common practice for these tables).
+_DECIMALS = {
+    ("cap", "SI", "mass"): 4, ("energy", "SI", "mass"): 2,
+    ("cap", "SI", "molar"): 3, ("energy", "SI", "molar"): 3,
+    ("cap", "SI", "volumetric"): 4, ("energy", "SI", "volumetric"): 2,
+    ("cap", "US", "mass"): 5, ("energy", "US", "mass"): 2,
+    ("cap", "US", "molar"): 4, ("energy", "US", "molar"): 1,
+    ("cap", "US", "volumetric"): 6, ("energy", "US", "volumetric"): 3,
+}
+
+
+def unit_for(key: str, system: str, basis: str) -> str:
+    """Printed unit symbol of a column."""
+    if key in ("k", "Pr", "vr"):
+        return "-"
+    if key == "a":
+        return "m/s" if system == "SI" else "ft/s"
+    return _UNITS[(_CLASS[key], system, basis)][0]
+
+
+def unit_factor(key: str, system: str, basis: str) -> float:
+    if key in ("k", "Pr", "vr"):
+        return 1.0
+    if key == "a":
+        return 1.0 if system == "SI" else FT
+    return _UNITS[(_CLASS[key], system, basis)][1]
+
+
+def default_decimals(key: str, system: str, basis: str) -> int:
+    if key == "k":
+        return 4
+    if key == "a":
+        return 1
+    return _DECIMALS[(_CLASS[key], system, basis)]
+
+
+# ---------------------------------------------------------------- definitions
+#: key -> (printed symbol, name, formula as printed on the "how to read" page)
+DEFINITIONS = {
+    "T": ("T", "temperature", "the row's temperature; the grid is exact in the unit it was given in"),
+    "cp": ("cₚ", "isobaric heat capacity", "cₚ(T) from the NASA polynomial, cₚ/R = Σ aᵢ Tⁱ"),
+    "cv": ("cᵥ", "isochoric heat capacity", "cᵥ = cₚ − R"),
+    "k": ("k", "ratio of heat capacities", "k = cₚ / cᵥ"),
+    "h": ("h", "enthalpy", "h(T) = h(T₀) + ∫ cₚ dT, with the table's enthalpy datum"),
+    "u": ("u", "internal energy", "u = h − R T"),
+    "s0": ("s°", "entropy at P°", "s°(T) = s°(T₀) + ∫ (cₚ/T) dT at the reference pressure P°; "
+                                  "at pressure P: s(T, P) = s°(T) − R ln(P/P°)"),
+    "Pr": ("Pr", "relative pressure", "Pr = Prₐ exp[(s°(T) − s°(Tₐ))/R]; along an isentrope "
+                                      "P₂/P₁ = Pr₂/Pr₁"),
+    "vr": ("vr", "relative volume", "vr = vrₐ (T/Tₐ)(Prₐ/Pr); along an isentrope v₂/v₁ = vr₂/vr₁"),
+    "a": ("a", "speed of sound", "a = √(k R T) (ideal gas)"),
+    "g0": ("g°", "Gibbs energy at P°", "g° = h − T s°"),
+    "cp_mean_h": ("c̄ₚ,h", "mean cₚ for enthalpy",
+                  "c̄ₚ,h = [h(T) − h(Tₘ)]/(T − Tₘ); at T = Tₘ the limit cₚ(Tₘ) is printed; "
+                  "heat from Tₘ to T is c̄ₚ,h (T − Tₘ)"),
+    "cp_mean_s": ("c̄ₚ,s", "mean cₚ for entropy",
+                  "c̄ₚ,s = [s°(T) − s°(Tₘ)]/ln(T/Tₘ); at T = Tₘ the limit cₚ(Tₘ) is printed"),
+}
+
+ROUNDING_RULE = ("Each printed value is the computed double-precision value rounded once to the "
+                 "printed number of decimals (or of significant digits, for Pr and vr), ties to even "
+                 "on the exact binary value; the CSV files carry the unrounded values. A value of n "
+                 "significant digits below 0.0001 or from 10ⁿ⁺² up is printed in exponent form: "
+                 "2.0182e-05 = 2.0182 × 10⁻⁵.")
+
+CAUTIONS = (
+    "These tables follow the ideal-gas model: the properties depend on temperature only "
+    "(entropy also on pressure through −R ln(P/P°)). Real-gas effects at high pressure or "
+    "near saturation are not included.",
+    "Mixtures are of frozen composition: no dissociation, reaction or condensation. Below the "
+    "dew point of a flue gas, water and acids condense and the tabulated values do not apply; "
+    "condensing acid attacks steel.",
+    "Values are valid only inside the temperature range of the coefficient data named in the "
+    "sources section; values outside it are refused unless extrapolation was asked for, and "
+    "are then marked.",
+    "Verify these values against the applicable codes and licensed engineering practice before "
+    "using them in design or safety decisions (boilers, pressure equipment, flue-gas systems, "
+    "toxic or asphyxiant gases).",
+)
+
+
+# ---------------------------------------------------------------- dataclasses
+@dataclass(frozen=True, slots=True)
+class ComponentInfo:
+    id: str
+    mole_fraction: float
+    mass_fraction: float
+    M: float
+    source: str
+
+
+@dataclass(frozen=True, slots=True)
+class SubstanceInfo:
+    """What the front matter prints about a substance (no polynomial)."""
+
+    ref: str
+    id: str
+    name: str
+    kind: str
+    M: float
+    R: float
+    T_min: float
+    T_max: float
+    mixing_entropy_R: float
+    components: tuple
+    sources: tuple          # (species id, data set, citation)
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class Column:
+    key: str
+    system: str
+    unit: str
+    symbol: str
+    decimals: int | None
+    significant: int | None
+    values: np.ndarray      # in the printed unit, full precision
+    cells: tuple            # printed strings (ASCII '-' for minus)
+
+    @property
+    def csv_header(self) -> str:
+        return f"{self.csv_key} [{self.unit}]"
+
+    csv_key: str = ""
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class TableModel:
+    name: str
+    title: str
+    subtitle: str
+    substance: SubstanceInfo
+    basis: str
+    basis_text: str
+    units: str
+    datum_text: str
+    P_ref_Pa: float
+    anchor_text: str
+    mean_cp_from_K: float
+    grid_text: str
+    datum: dict             # kind, T_ref_K, h_ref_J_per_kg
+    anchor: dict            # T_K, Pr, vr
+    T_K: np.ndarray
+    marks: tuple            # per row: "" or a mark ("*" extra row, "x" extrapolated)
+    columns: tuple          # Column; the temperature columns first
+    head_lines: tuple = ()  # lines printed under the title on every page of the table
+    notes: list = field(default_factory=list)     # strings printed under the table
+    charts: tuple = ()      # chart models (tablegen.book.charts), drawn after the table
+
+    @property
+    def rows(self) -> int:
+        return int(self.T_K.size)
+
+
+@dataclass(frozen=True, slots=True)
+class Section:
+    """A front-matter or appendix section: paragraphs and an optional small table."""
+
+    title: str
+    paragraphs: tuple = ()
+    header: tuple = ()
+    rows: tuple = ()
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class BookModel:
+    name: str
+    document: object        # spec.Document
+    tables: tuple
+    substances: tuple       # SubstanceInfo, one per distinct substance
+    definitions: tuple      # (key, symbol, name, formula, units used)
+    cautions: tuple
+    rounding_rule: str
+    reference_text: str     # volumetric basis reference conditions ("" if unused)
+    data_files: tuple       # (file name, sha256)
+    fingerprint: str
+    versions: dict
+    normalised_spec: dict
+    appendix: list = field(default_factory=list)   # Section, printed after the tables
+
+
+# ---------------------------------------------------------------- evaluation
+def column_values_SI(sub, T_K, keys, *, extrapolate=False, basis="mass", reference=None,
+                     T_mean_ref_K=T_REF) -> dict:
+    """Property values (SI, on the chosen basis) for the given column keys.
+
+    Basis "mass": J/kg, J/(kg K); "molar": J/mol, J/(mol K); "volumetric": per m³ at
+    the reference conditions (n = P/(R T) mol/m³, ideal gas). k, Pr, vr are
+    dimensionless and a is m/s on every basis. Also returns the ``extrapolated``
+    mask when extrapolating.
+    """
+    T = np.asarray(T_K, float)
+    p = sub.properties(T, extrapolate=extrapolate)
+    need_mean = any(k.startswith("cp_mean") for k in keys)
+    if need_mean:
+        p_ref = sub.properties(np.array([T_mean_ref_K]), extrapolate=True)
+    if basis == "mass":
+        scale, suffix = 1.0, ""
+    else:
+        suffix = "_molar"
+        scale = 1.0 if basis == "molar" else reference.P_Pa / (R_MOLAR * reference.T_K)
+    out = {}
+
+    def based(k, src=p):
+        return src[k + suffix] * scale
+
+    for k in keys:
+        if k == "T":
+            out[k] = T
+        elif k in ("k", "Pr", "vr", "a"):
+            out[k] = p[k]
+        elif k in ("cp", "cv", "h", "u", "s0", "g0"):
+            out[k] = based(k)
+        elif k == "cp_mean_h":
+            cp_r = based("cp", p_ref)[0]
+            dT = T - T_mean_ref_K
+            near = np.abs(dT) <= 1e-9 * T_mean_ref_K
+            with np.errstate(divide="ignore", invalid="ignore"):
+                v = (based("h") - based("h", p_ref)[0]) / dT
+            out[k] = np.where(near, cp_r, v)
+        elif k == "cp_mean_s":
+            cp_r = based("cp", p_ref)[0]
+            lr = np.log(T / T_mean_ref_K)
+            near = np.abs(lr) <= 1e-9
+            with np.errstate(divide="ignore", invalid="ignore"):
+                v = (based("s0") - based("s0", p_ref)[0]) / lr
+            out[k] = np.where(near, cp_r, v)
+        else:  # pragma: no cover - keys are validated by the spec
+            raise TablegenError(f"unknown column {k!r}")
+    if "extrapolated" in p:
+        out["extrapolated"] = p["extrapolated"]
+    return out
+
+
+def format_fixed(values: np.ndarray, decimals: int) -> tuple:
+    """Round to ``decimals`` places; '-0.00' is printed as '0.00'."""
+    out = []
+    f = f"{{:.{decimals}f}}".format
+    for v in values.tolist():
+        s = f(v)
+        if s[0] == "-" and not s.strip("-0."):
+            s = s[1:]
+        out.append(s)
+    return tuple(out)
+
+
+def sig_decimals(values: np.ndarray, significant: int) -> np.ndarray:
+    """Decimals that give ``significant`` digits in fixed notation (-1: use exponent form)."""
+    a = np.abs(values)
+    with np.errstate(divide="ignore"):
+        e = np.floor(np.log10(np.where(a > 0, a, 1.0)))
+    # the rounding may carry into the next decade (9.99995 -> 10.000)
+    r = np.round(a / 10.0 ** e, significant - 1)
+    e = np.where(r >= 10.0, e + 1, e)
+    d = (significant - 1 - e).astype(int)
+    fixed = (e >= -4) & (e < significant + 2)
+    return np.where(fixed, np.maximum(d, 0), -1)
+
+
+def format_significant(values: np.ndarray, significant: int) -> tuple:
+    """``significant`` significant digits: fixed notation from 1e-4 up to 10^(n+2), else 1.2345e+07."""
+    d = sig_decimals(values, significant)
+    out = []
+    for v, k in zip(values.tolist(), d.tolist()):
+        if k < 0:
+            out.append(f"{v:.{significant - 1}e}")
+        else:
+            out.append(f"{v:.{k}f}")
+    return tuple(out)
+
+
+def _csv_key(key: str, basis: str) -> str:
+    if key in ("T", "k", "Pr", "vr", "a"):
+        return key
+    return key + {"mass": "", "molar": "_molar", "volumetric": "_vol"}[basis]
+
+
+def _substance_info(ref: str, s) -> SubstanceInfo:
+    comps = tuple(ComponentInfo(c.id, c.mole_fraction, c.mass_fraction, c.M, c.source) for c in s.components)
+    return SubstanceInfo(ref=ref, id=s.id, name=s.name, kind=s.kind, M=s.M, R=s.R, T_min=s.T_min,
+                         T_max=s.T_max, mixing_entropy_R=s.mixing_entropy_R, components=comps,
+                         sources=tuple(tuple(x) for x in s.sources))
+
+
+def _fmtK(T: float) -> str:
+    return f"{T:.3f}".rstrip("0").rstrip(".") + " K"
+
+
+def _fmtT(T_K: float, unit_symbol: str) -> str:
+    """A temperature in the table's unit, with K beside it when that unit is not K."""
+    from ..units import unit
+    v = unit(unit_symbol, "temperature").from_si(T_K)
+    s = f"{v:.3f}".rstrip("0").rstrip(".")
+    if s == "-0":
+        s = "0"
+    return f"{s} {unit_symbol}" if unit_symbol == "K" else f"{s} {unit_symbol} = {_fmtK(T_K)}"
+
+
+def _datum_text(d, unit_symbol: str = "K") -> str:
+    if d.kind == "formation":
+        return "h(298.15 K) = enthalpy of formation (NASA/JANAF convention)"
+    return f"h({_fmtT(d.T_ref_K, unit_symbol)}) = {d.h_ref_J_per_kg / 1000:g} kJ/kg (sensible enthalpy)"
+
+
+def anchor_text_of(an, unit_symbol: str = "K") -> str:
+    return f"Pr = {an.Pr:g} and vr = {an.vr:g} at {_fmtT(an.T_K, unit_symbol)}"
+
+
+def _pressure_text(P: float) -> str:
+    if abs(P - 1e5) < 1e-6:
+        return "1 bar (100 kPa)"
+    if abs(P - 101325.0) < 1e-6:
+        return "1 atm (101.325 kPa)"
+    return f"{P / 1000:g} kPa"
+
+
+def _grid_text(g: dict) -> str:
+    if g["kind"] == "segments":
+        parts = []
+        from ..units import unit
+        for s in g["segments"]:
+            u = unit(s["unit"], "temperature")
+            step = s["step_K"] / u.factor
+            parts.append(f"{u.from_si(s['start_K']):g} to {u.from_si(s['stop_K']):g} {u.symbol} "
+                         f"step {step:g} {u.symbol}")
+        return "; ".join(parts)
+    if g["kind"] == "list":
+        return f"{len(g['T_K'])} listed temperatures"
+    from ..units import unit
+    u = unit(g["unit"], "temperature")
+    return (f"{u.from_si(g['start_K']):g} to {u.from_si(g['stop_K']):g} {u.symbol}, step {g['step']:g} "
+            f"{u.symbol} chosen so that linear interpolation between rows stays within "
+            f"{g['tolerance']:g} (worst {g['worst_interpolation_error']:.2g})")
+
+
+def build_table(t, doc) -> TableModel:
+    """Evaluate and format one table spec."""
+    from ..units import unit
+    sub = t.substance
+    keys = list(dict.fromkeys(c.key for c in t.columns))
+    vals = column_values_SI(sub, t.T_K, keys, extrapolate=t.extrapolate, basis=t.basis,
+                            reference=doc.reference, T_mean_ref_K=t.T_mean_ref_K)
+    cols = []
+    for c in t.columns:
+        if c.key == "T":
+            # grid temperatures are exact decimals in their own unit; conversion leaves binary
+            # noise (-59.66999999999996 °F) that 1e-9 rounding removes without loss
+            v = np.round(unit(c.unit, "temperature").from_si(t.T_K), 9)
+        else:
+            v = vals[c.key] / unit_factor(c.key, c.system, t.basis)
+        v = np.asarray(v, float)
+        cells = format_fixed(v, c.decimals) if c.decimals is not None else format_significant(v, c.significant)
+        cols.append(Column(key=c.key, system=c.system, unit=c.unit, symbol=DEFINITIONS[c.key][0],
+                           decimals=c.decimals, significant=c.significant, values=v, cells=cells,
+                           csv_key=_csv_key(c.key, t.basis)))
+    ext = vals.get("extrapolated")
+    marks = []
+    for i in range(t.T_K.size):
+        m = ""
+        if t.extra[i]:
+            m += "*"
+        if ext is not None and ext[i]:
+            m += "x"
+        marks.append(m)
+    notes = []
+    if t.extra_rows:
+        labels = [_fmtT(e.T_K, t.temperature_units[0]) + (f" ({e.label})" if e.label else "")
+                  for e in t.extra_rows]
+        notes.append("* extra row at a named temperature: " + ", ".join(labels) + ".")
+    if ext is not None and np.any(ext):
+        notes.append(f"x extrapolated beyond the data range {sub.T_min:g}-{sub.T_max:g} K: "
+                     f"use with care.")
+    basis_text = {"mass": "per unit mass", "molar": "per mole",
+                  "volumetric": f"per m³ (SI) or ft³ (US) at {doc.reference.text}"}[t.basis]
+    an = sub.anchor
+    anchor_text = anchor_text_of(an, t.temperature_units[0])
+    subtitle = (f"{sub.name} ({sub.id}), M = {sub.M:.4f} kg/kmol · {basis_text} · "
+                f"P° = {_pressure_text(sub.P_ref_Pa)}")
+    t_unit = t.temperature_units[0]
+    datum_text = _datum_text(sub.datum, t_unit)
+    head_lines = (f"{sub.name} ({sub.id}), M = {sub.M:.4f} kg/kmol, R = {sub.R:.3f} J/(kg K); "
+                  f"data valid {sub.T_min:g}-{sub.T_max:g} K",
+                  f"Values {basis_text}; entropy at P° = {_pressure_text(sub.P_ref_Pa)}",
+                  f"Enthalpy datum {datum_text}; Pr/vr anchor: {anchor_text_of(sub.anchor, t_unit)}")
+    charts = ()
+    if t.charts:
+        from .charts import build_chart
+        charts = tuple(build_chart(sub, c, T_range_K=(float(t.T_K.min()), float(t.T_K.max())), units=t.units)
+                       for c in t.charts)
+    return TableModel(
+        charts=charts,
+        name=t.name, title=t.title, subtitle=subtitle, substance=_substance_info(t.substance_ref, sub),
+        basis=t.basis, basis_text=basis_text, units=t.units, datum_text=datum_text, head_lines=head_lines,
+        P_ref_Pa=sub.P_ref_Pa, anchor_text=anchor_text, mean_cp_from_K=t.T_mean_ref_K,
+        grid_text=_grid_text(t.grid),
+        datum={"kind": sub.datum.kind, "T_ref_K": sub.datum.T_ref_K, "h_ref_J_per_kg": sub.datum.h_ref_J_per_kg},
+        anchor={"T_K": an.T_K, "Pr": an.Pr, "vr": an.vr}, T_K=np.asarray(t.T_K, float), marks=tuple(marks),
+        columns=tuple(cols), notes=notes)
+
+
+# ---------------------------------------------------------------- fingerprint
+def data_files(spec) -> list[Path]:
+    """Coefficient and composition files the book's values depend on."""
+    from ..data.library import library
+    lib = library(tuple(spec.data_paths))
+    files = set()
+    for t in spec.tables:
+        for _, ds, _ in t.substance.sources:
+            d = lib.datasets.get(ds)
+            if d is not None and getattr(d, "path", None) is not None:
+                files.add(Path(d.path))
+    root = lib.root
+    for extra in ("atomic-weights.toml", "mixtures.toml", "defaults.toml"):
+        if (root / extra).is_file():
+            files.add(root / extra)
+    return sorted(files, key=lambda p: (p.name, str(p)))
+
+
+def fingerprint(normalised: dict, files) -> tuple[str, tuple]:
+    """SHA-256 over the canonical JSON of the normalised spec and each data file.
+
+    The hashed text is the spec JSON (sorted keys, no blanks) followed by one line
+    ``<file name> <sha256 of its bytes>`` per data file in name order, so the
+    value is independent of where the files live.
+    """
+    h = hashlib.sha256()
+    h.update(json.dumps(normalised, sort_keys=True, separators=(",", ":"), ensure_ascii=False).encode())
+    listed = []
+    for p in files:
+        d = hashlib.sha256(Path(p).read_bytes()).hexdigest()
+        listed.append((Path(p).name, d))
+        h.update(f"\n{Path(p).name} {d}".encode())
+    return h.hexdigest(), tuple(listed)
+
+
+def versions() -> dict:
+    import platform
+
+    import numpy
+    import reportlab
+
+    from .. import __version__
+    return {"tablegen": __version__, "numpy": numpy.__version__, "reportlab": reportlab.Version,
+            "python": platform.python_version()}
+
+
+def build_book(spec, tables=None) -> BookModel:
+    """Evaluate every table of a validated spec into the book model.
+
+    ``tables`` may pass table models already built (to report progress per table).
+    """
+    doc = spec.document
+    if tables is None:
+        tables = tuple(build_table(t, doc) for t in spec.tables)
+    seen, subs = set(), []
+    for t in tables:
+        if t.substance.id not in seen:
+            seen.add(t.substance.id)
+            subs.append(t.substance)
+    present = {c.key for t in tables for c in t.columns}
+    used = [k for k in DEFINITIONS if k in present]
+    definitions = []
+    for k in used:
+        sym, name, formula = DEFINITIONS[k]
+        units = []
+        for t in tables:
+            for c in t.columns:
+                if c.key == k and c.unit not in units:
+                    units.append(c.unit)
+        definitions.append((k, sym, name, formula, tuple(units)))
+    ref_text = doc.reference.text if any(t.basis == "volumetric" for t in tables) else ""
+    fp, listed = fingerprint(spec.normalised, data_files(spec))
+    return BookModel(name=spec.name, document=doc, tables=tables, substances=tuple(subs),
+                     definitions=tuple(definitions), cautions=CAUTIONS, rounding_rule=ROUNDING_RULE,
+                     reference_text=ref_text, data_files=listed, fingerprint=fp, versions=versions(),
+                     normalised_spec=spec.normalised)
