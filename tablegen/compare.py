@@ -51,7 +51,12 @@ KEY_DIMENSIONS = {
     "cp_molar": "molar_entropy", "cv_molar": "molar_entropy", "h_molar": "molar_energy",
     "u_molar": "molar_energy", "s0_molar": "molar_entropy", "g0_molar": "molar_energy",
     "dh298_molar": "molar_energy",
+    # mean heat capacities from T_m (the book's columns): [h(T) - h(T_m)]/(T - T_m) and
+    # [s°(T) - s°(T_m)]/ln(T/T_m)
+    "cp_mean_h": "specific_entropy", "cp_mean_s": "specific_entropy",
+    "cp_mean_h_molar": "molar_entropy", "cp_mean_s_molar": "molar_entropy",
 }
+MEAN_KEYS = ("cp_mean_h", "cp_mean_s", "cp_mean_h_molar", "cp_mean_s_molar")
 
 #: How each key is printed in reports.
 KEY_LABELS = {
@@ -59,6 +64,8 @@ KEY_LABELS = {
     "Pr": "Pr", "vr": "vr", "a": "a", "cp_molar": "molar cp", "cv_molar": "molar cv",
     "h_molar": "molar h", "u_molar": "molar u", "s0_molar": "molar s°",
     "g0_molar": "molar g°", "dh298_molar": "H − H(298.15 K)",
+    "cp_mean_h": "mean cp for h", "cp_mean_s": "mean cp for s°",
+    "cp_mean_h_molar": "molar mean cp for h", "cp_mean_s_molar": "molar mean cp for s°",
 }
 
 #: Columns that may be aligned, and how. Offsets: the enthalpy datum and the
@@ -71,17 +78,30 @@ ALIGNABLE = {
     "s0_molar": "offset", "dh298_molar": "offset", "Pr": "scale", "vr": "scale",
 }
 
-#: Default tolerances (relative), documented in docs/compare.md. The 0.5 % on cp
-#: is the order of the spread between independent ideal-gas evaluations of the
-#: same gas (NIST-JANAF against the Gurvich/TPIS tables behind NASA TM-4513) up
-#: to 3000 K, from memory; if |Δcp| <= 0.5 % cp everywhere, h - h(298.15 K) and
-#: s° - s°(298.15 K) agree to 0.5 % too (they are integrals of cp), hence the
-#: same figure for energies and entropies. k and a: a cp error moves k by
-#: about R/cv times as much (0.4 for a diatomic gas), a by half of that, so
-#: 0.25 %. Pr and vr: ln Pr moves by Δs°/R, about four times the relative s°
-#: change over a 2000 K span, so 2 %.
+#: Default tolerances, documented in docs/compare.md. The 0.5 % on cp is the
+#: order of the spread between independent ideal-gas evaluations of the same gas
+#: (NIST-JANAF against the Gurvich/TPIS tables behind NASA TM-4513) up to
+#: 3000 K, from memory. k and a: a cp error moves k by about R/cv times as much
+#: (0.4 for a diatomic gas), a by half of that, so 0.25 %. Pr and vr: ln Pr
+#: moves by Δs°/R, about four times the relative s° change over a 2000 K span,
+#: so 2 %. Mean cp: an average of cp, so 0.5 %.
 DEFAULT_REL = {key: 0.005 for key in KEY_DIMENSIONS}
 DEFAULT_REL.update({"k": 0.0025, "a": 0.0025, "Pr": 0.02, "vr": 0.02})
+
+#: Energies and entropies are judged on their change from 298.15 K instead of
+#: their value (a value of s° is mostly its third-law base, a value of h on the
+#: formation datum mostly the enthalpy of formation; 0.5 % of either would hide
+#: a wrong P° or datum): if |Δcp| <= 0.5 % cp everywhere, h - h(298.15 K) and
+#: s° - s°(298.15 K), integrals of cp, agree within 0.5 % of themselves. The
+#: floors allow for differences at 298.15 K itself: 0.02 J/(mol K) and 10 J/mol
+#: per mole (NIST-JANAF and NASA TM-4513 differ by up to 0.009 J/(mol K) in
+#: S°(298.15 K) for N2, O2, H2, Ar, CO, CO2; a wrong P° of 1 atm for 1 bar is
+#: R ln 1.01325 = 0.109 J/(mol K) and stays visible). Converted per kg with M.
+CHANGE_KEYS = {"h": "energy", "u": "energy", "h_molar": "energy", "u_molar": "energy",
+               "dh298_molar": "energy", "s0": "entropy", "s0_molar": "entropy"}
+CHANGE_REL = 0.005
+CHANGE_FLOOR_MOLAR = {"energy": 10.0, "entropy": 0.02}     # J/mol, J/(mol K)
+T_CHANGE_FROM = 298.15
 
 COMMENT = "#"
 
@@ -221,10 +241,9 @@ def read_reference(path) -> Reference:
                                 f"key [unit], e.g. cp [kJ/(kg K)]")
         key, usym = m.group(1), m.group(2).strip()
         if key != "T" and key not in KEY_DIMENSIONS:
-            if not re.fullmatch(r"[A-Za-z][A-Za-z0-9]*(_(molar|vol|mean_h|mean_s|mean_h_molar|mean_s_molar|"
-                                r"mean_h_vol|mean_s_vol))?", key) or key.split("_")[0] not in KEY_DIMENSIONS:
+            if not re.fullmatch(r"[A-Za-z][A-Za-z0-9]*(_mean_[hs])?_vol", key) or key.split("_")[0] not in KEY_DIMENSIONS:
                 raise TablegenError(f"{name}:{header_line}: unknown column key {key!r}; allowed: {_allowed_keys()}")
-            u = None            # a tablegen key (volumetric basis, mean cp) this comparison cannot evaluate
+            u = None            # a tablegen key of the volumetric basis: units per m³ are not known here
         else:
             dim = "temperature" if key == "T" else KEY_DIMENSIONS[key]
             try:
@@ -295,18 +314,34 @@ def _split_ws_header(s: str, name: str, line: int) -> list[str]:
 # ------------------------------------------------------------ tolerances
 @dataclass(frozen=True, slots=True)
 class Tolerance:
-    """|Δ| <= rel·|reference| + abs_si (+ half the printed quantum of the cell)."""
+    """|Δ| <= rel·|reference| + rel_change·|X(T) - X(298.15 K)| + abs_si + q/2.
+
+    q is one unit in the last printed place of the reference cell; X(298.15 K)
+    is tablegen's value (after alignment) at 298.15 K.
+    """
 
     rel: float = 0.0
     abs_si: float = 0.0
     text: str = ""
     origin: str = "default"       # "default" or "--tolerance"
+    rel_change: float = 0.0
 
-    def bound_si(self, ref_si, quantum_si):
-        return self.rel * np.abs(ref_si) + self.abs_si + 0.5 * quantum_si
+    def bound_si(self, ref_si, quantum_si, change_si=0.0):
+        return (self.rel * np.abs(ref_si) + self.rel_change * np.abs(change_si) + self.abs_si
+                + 0.5 * quantum_si)
 
 
-def default_tolerance(key: str) -> Tolerance:
+def default_tolerance(key: str, M_g_per_mol: float = 1.0, unit_=None) -> Tolerance:
+    """The documented default of a column (M converts the per-mole floors to per kg)."""
+    if key in CHANGE_KEYS:
+        kind = CHANGE_KEYS[key]
+        floor = CHANGE_FLOOR_MOLAR[kind]
+        floor_si = floor if key.endswith("_molar") else floor / (M_g_per_mol * 1e-3)
+        shown = (f"{floor:g} J/mol" if kind == "energy" else f"{floor:g} J/(mol K)")
+        if unit_ is not None and not key.endswith("_molar"):
+            shown = f"{floor_si / unit_.factor:.2g} {unit_.symbol}"
+        return Tolerance(0.0, floor_si, f"{CHANGE_REL * 100:g} % of change from 298.15 K + {shown}",
+                         "default", CHANGE_REL)
     rel = DEFAULT_REL[key]
     return Tolerance(rel, 0.0, f"{rel * 100:g} %", "default")
 
@@ -485,8 +520,37 @@ def substance_info(sub) -> dict:
             "T_min_K": sub.T_min, "T_max_K": sub.T_max}
 
 
+def mean_cp_from_default(sub) -> float:
+    """T_m of the mean heat capacities when none is given: the datum temperature of a
+    sensible datum, else 298.15 K (the table book's rule)."""
+    return sub.datum.T_ref_K if sub.datum.kind == "sensible" else 298.15
+
+
+def mean_cp(sub, T, T_m: float, key: str) -> np.ndarray:
+    """Mean heat capacity from T_m to T, SI (J/(kg K) or J/(mol K) for *_molar).
+
+    cp_mean_h = [h(T) - h(T_m)]/(T - T_m), cp_mean_s = [s°(T) - s°(T_m)]/ln(T/T_m);
+    both tend to cp(T_m) as T -> T_m, which is used within 1e-9 relative of T_m.
+    """
+    T = np.asarray(T, float)
+    p = sub.properties(T, extrapolate=True)
+    pm = sub.properties(np.array([T_m]), extrapolate=True)
+    sfx = "_molar" if key.endswith("_molar") else ""
+    cp_m = pm["cp" + sfx][0]
+    if key.startswith("cp_mean_h"):
+        d = T - T_m
+        num = p["h" + sfx] - pm["h" + sfx][0]
+    else:
+        d = np.log(T / T_m)
+        num = p["s0" + sfx] - pm["s0" + sfx][0]
+    near = np.abs(T - T_m) <= 1e-9 * T_m
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(near, cp_m, num / np.where(near, 1.0, d))
+
+
 def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
-            extrapolate: bool = False, version: str = "", options=None) -> Comparison:
+            extrapolate: bool = False, T_mean_ref_K: float | None = None, version: str = "",
+            options=None) -> Comparison:
     """Compare a substance with a reference table.
 
     Parameters
@@ -497,6 +561,7 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
     tolerances : key -> Tolerance (others take :func:`default_tolerance`)
     align : key -> "offset" | "scale"
     extrapolate : allow reference temperatures outside the data range (marked)
+    T_mean_ref_K : T_m of the mean heat capacities (default :func:`mean_cp_from_default`)
 
     Raises
     ------
@@ -512,8 +577,8 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
             raise TablegenError(f"--columns: {k!r} is not a column of {ref.path}; "
                                 f"its columns: {', '.join(ref.keys)}")
         if k not in ref.comparable_keys:
-            raise TablegenError(f"{ref.path}:{ref.header_line}: column {k!r} cannot be compared by tablegen "
-                                f"compare (it needs the table's reference conditions); compare the other "
+            raise TablegenError(f"{ref.path}:{ref.header_line}: column {k!r} cannot be compared (per-m³ "
+                                f"units are not known to tablegen.units); compare the other "
                                 f"columns with --columns {','.join(ref.comparable_keys)}")
     if len(set(keys)) != len(keys):
         raise TablegenError("--columns: a column is named twice; name each once")
@@ -538,7 +603,14 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
                              f"is outside the data range {sub.T_min:g}-{sub.T_max:g} K "
                              f"of {sub.id}; allowed: {sub.T_min:g} to {sub.T_max:g} K, or --extrapolate "
                              f"(every extrapolated value is marked)")
-    p = sub.properties(T, extrapolate=extrapolate)
+    p = dict(sub.properties(T, extrapolate=extrapolate))
+    options = dict(options or {})
+    if any(k in MEAN_KEYS for k in keys):
+        T_m = float(T_mean_ref_K) if T_mean_ref_K is not None else mean_cp_from_default(sub)
+        options["T_mean_ref_K"] = T_m
+        for k in MEAN_KEYS:
+            if k in keys:
+                p[k] = mean_cp(sub, T, T_m, k)
     extrap = np.asarray(p.get("extrapolated", np.zeros(T.shape, bool)), bool)
 
     results = []
@@ -554,12 +626,18 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
         aligned_si = calc_si
         if key in align:
             alignment, aligned_si = _fit(key, align[key], ref_si, calc_si, present, u, ref, sub, rc)
-        tol = tolerances.get(key) or default_tolerance(key)
+        tol = tolerances.get(key) or default_tolerance(key, sub.M, u)
+        change_si = 0.0
+        if tol.rel_change:
+            at0 = float(np.asarray(sub.properties(np.array([T_CHANGE_FROM]), extrapolate=True)[key])[0])
+            if alignment is not None:
+                at0 = at0 + alignment.value if alignment.kind == "offset" else at0 * alignment.value
+            change_si = aligned_si - at0
         dev_si = np.where(present, aligned_si - ref_si, np.nan)
         with np.errstate(divide="ignore", invalid="ignore"):
             rel = np.where(present & (ref_si != 0), dev_si / np.abs(ref_si), np.nan)
         quantum_si = np.where(present, rc.quantum * u.factor, np.nan)
-        bound_si = np.where(present, tol.bound_si(ref_si, quantum_si), np.nan)
+        bound_si = np.where(present, tol.bound_si(ref_si, quantum_si, change_si), np.nan)
         within = present & (np.abs(np.nan_to_num(dev_si, nan=np.inf)) <= np.nan_to_num(bound_si, nan=-1))
         ref_u, raw_u, cal_u = (u.from_si(x) for x in (ref_si, calc_si, aligned_si))
         dev_u = dev_si / u.factor
@@ -572,7 +650,7 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
             stats=_stats(dev_u, rel, bound_u, present, within, T, ref)))
     from . import __version__
     return Comparison(substance_info(sub), ref, T, extrap, tuple(results),
-                      version or __version__, dict(options or {}))
+                      version or __version__, options)
 
 
 def _fit(key, kind, ref_si, calc_si, present, u, ref, sub, rc):
@@ -696,6 +774,7 @@ def summary(cmp: Comparison) -> dict:
         t = c.tolerance
         cols.append({"key": c.key, "unit": c.unit.symbol, "header": c.header,
                      "tolerance": {"text": t.text, "relative": t.rel, "absolute": t.abs_si / c.unit.factor,
+                                   "relative_to_change_from_298.15K": t.rel_change,
                                    "origin": t.origin, "rounding_allowance": "half a unit in the last printed "
                                    "place of each reference cell"},
                      "stats": c.stats,
@@ -729,7 +808,8 @@ def _alignment_json(a: Alignment) -> dict:
 
 RULES = ("deviation = tablegen (after alignment) − reference, in the reference column's unit; "
          "a cell is within tolerance when |deviation| ≤ relative tolerance × |reference| + absolute tolerance "
-         "+ half a unit in the last printed place of the reference cell; offsets are fitted by least squares "
+         "+ half a unit in the last printed place of the reference cell (default tolerances of h, u and s° "
+         "take their relative part from the change since 298.15 K instead of the value); offsets are fitted by least squares "
          "(mean of reference − tablegen), scale factors by least squares on logarithms")
 
 CAUTION = ("This comparison checks agreement with the given reference only: it does not show that either "

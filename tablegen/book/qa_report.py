@@ -193,12 +193,18 @@ def _control(flow, cmp):
     a = sub["anchor"]
     rows = [("Substance", f"{sub['name']} ({sub['id']}), {sub['kind']}, M = {sub['M']:.4f} kg/kmol, "
                           f"data range {sub['T_min_K']:g}–{sub['T_max_K']:g} K")]
+    if o.get("target") and o["target"] != sub["id"]:
+        rows.append(("Spec table", str(o["target"])))
     for sid, ds, cite in sub["sources"]:
-        rows.append(("Data" if len(rows) == 1 else "", f"{sid}: {ds}, {cite}"))
+        rows.append(("Data" if rows[-1][0] in ("Substance", "Spec table") else "", f"{sid}: {ds}, {cite}"))
     rows += [
         ("Enthalpy datum", sub["h_datum"]),
         ("Entropy P°", f"{sub['P_ref_Pa'] / 1000:g} kPa"),
         ("Pr/vr anchor", f"Pr = {a['Pr']:g}, vr = {a['vr']:g} at {a['T_K']:g} K"),
+    ]
+    if "T_mean_ref_K" in o:
+        rows.append(("Mean cp from", f"Tm = {o['T_mean_ref_K']:g} K"))
+    rows += [
         ("Reference file", ref.path),
         ("Reference SHA-256", ref.sha256),
         ("Reference rows", f"{len(ref.lines)} rows, T {np.min(ref.T_K):g}–{np.max(ref.T_K):g} K "
@@ -213,7 +219,8 @@ def _control(flow, cmp):
             opts.append(f"--{k} {v}")
     if o.get("extrapolate"):
         opts.append("--extrapolate")
-    for k, flag in (("h_datum", "--h-datum"), ("p_ref", "--p-ref"), ("anchor", "--anchor")):
+    for k, flag in (("h_datum", "--h-datum"), ("p_ref", "--p-ref"), ("anchor", "--anchor"),
+                    ("mean_from", "--mean-from"), ("table", "--table")):
         if o.get(k):
             opts.append(f"{flag} {o[k]}")
     rows.append(("Options", " ".join(opts) if opts else "none (defaults)"))
@@ -250,28 +257,39 @@ def _alignments(flow, cmp):
     flow.add(4, lambda c, y: None)
 
 
+def _tolerances(flow, cmp):
+    from ..compare import KEY_LABELS
+    _heading(flow, "Tolerances (allowed |Δ| per cell, plus half the last printed digit)")
+    rows = []
+    for c in cmp.columns:
+        t = c.tolerance
+        rows.append((c.key, KEY_LABELS[c.key], c.unit.symbol, t.text,
+                     "--tolerance" if t.origin == "--tolerance" else "default (docs/compare.md)"))
+    _table(flow, ("column", "property", "unit", "tolerance", "set by"), rows, (70, 95, 62, 186, 110),
+           ("left",) * 5)
+
+
 def _statistics(flow, cmp):
     _heading(flow, "Per-column statistics (Δ = tablegen − reference)")
     ref = cmp.reference
     rows, fills = [], []
     for c in cmp.columns:
         s = c.stats
-        tol = c.tolerance.text + ("" if c.tolerance.origin == "--tolerance" else " (default)")
         if not s["n"]:
-            rows.append((c.key, c.unit.symbol, tol, "0", "0", "—", "—", "—", "—", "—"))
+            rows.append((c.key, c.unit.symbol, "0", "0", "—", "—", "—", "—", "—"))
             fills.append(None)
             continue
         rel = f"{s['max_rel'] * 100:.3g} %" if "max_rel" in s else "—"
-        rows.append((c.key, c.unit.symbol, tol, str(s["n"]),
+        rows.append((c.key, c.unit.symbol, str(s["n"]),
                      (f"{OUT_MARK} {s['n_out']}" if s["n_out"] else "0"),
                      f"{_num(s['max_signed'])} at {s['max_at_T']}", _num(s["mean"]), _num(s["rms"]), rel,
                      f"{s['max_use_of_tolerance'] * 100:.0f} %" if math.isfinite(s["max_use_of_tolerance"])
                      else "∞"))
         fills.append(FAIL_FILL if s["n_out"] else None)
-    _table(flow, ("column", "unit", "tolerance", "cells", "out", f"max Δ at T [{ref.T_unit.symbol}]",
+    _table(flow, ("column", "unit", "cells", "out", f"max Δ at T [{ref.T_unit.symbol}]",
                   "mean Δ", "RMS Δ", "max |Δ/ref|", "max used"),
-           rows, (62, 52, 66, 30, 30, 84, 46, 46, 56, 51),
-           ("left", "left", "left", "right", "right", "right", "right", "right", "right", "right"),
+           rows, (70, 62, 34, 36, 100, 54, 54, 58, 55),
+           ("left", "left", "right", "right", "right", "right", "right", "right", "right"),
            row_fills=fills)
     _paragraph(flow, "'max used' is the largest |Δ| as a share of the cell's allowed deviation; over 100 % "
                      "means out of tolerance. Statistics are in the reference column's unit.", 7.2, color=GREY)
@@ -591,6 +609,7 @@ def render_pdf(cmp) -> bytes:
     _heading(flow, "Document control")
     _control(flow, cmp)
     _alignments(flow, cmp)
+    _tolerances(flow, cmp)
     _statistics(flow, cmp)
     _rules(flow, cmp)
     _caution_and_signoff(flow, cmp)

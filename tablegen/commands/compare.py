@@ -39,6 +39,9 @@ def add_arguments(p):
     p.add_argument("--align", action="append", default=[], metavar="COL=offset|scale",
                    help="fit and report a constant before judging, repeatable: offset for h, u, s0, "
                         "h_molar, u_molar, s0_molar, dh298_molar; scale for Pr, vr")
+    p.add_argument("--mean-from", default=None, metavar="T",
+                   help="Tm of mean-cp columns (cp_mean_h, cp_mean_s): default the sensible-datum "
+                        "temperature, else 298.15 K; a spec table uses its own")
     p.add_argument("--table", default=None, metavar="NAME",
                    help="with a spec file: the table to compare (needed when the spec has several)")
     p.add_argument("--out", default=None, metavar="DIR",
@@ -56,7 +59,7 @@ def resolve(args):
     target = args.substance
     if target.lower().endswith(".toml"):
         given = [o for o, v in (("--h-datum", args.h_datum), ("--p-ref", args.p_ref),
-                                ("--anchor", args.anchor)) if v is not None]
+                                ("--anchor", args.anchor), ("--mean-from", args.mean_from)) if v is not None]
         if given:
             raise TablegenError(f"{given[0]} applies to a substance name; a spec table carries its own "
                                 f"datum, P° and anchor (set them in the spec)")
@@ -78,11 +81,15 @@ def resolve(args):
         else:
             raise TablegenError(f"{target} holds {len(tables)} tables; choose one with --table NAME "
                                 f"({', '.join(t.name for t in tables)})")
-        return table.substance, table.name, f"{target} [{table.name}]"
+        return table.substance, table.name, f"{target} [{table.name}]", float(table.T_mean_ref_K)
     if args.table is not None:
         raise TablegenError("--table applies to a spec file (*.toml), not to a substance name")
     sub = substance_with_options(args, target)
-    return sub, sub.id, sub.id
+    T_m = None
+    if args.mean_from is not None:
+        from ..units import temperature_K
+        T_m = temperature_K(args.mean_from, "--mean-from")
+    return sub, sub.id, sub.id, T_m
 
 
 def safe_name(text: str) -> str:
@@ -95,7 +102,7 @@ def compute(args):
     from ..compare import compare, deviations_csv, parse_align, parse_tolerance, read_reference, summary
     from ..errors import TablegenError
 
-    sub, name, target_label = resolve(args)
+    sub, name, target_label, T_m = resolve(args)
     ref = read_reference(args.reference)
     if args.columns is not None:
         keys = [k.strip() for k in args.columns.split(",")]
@@ -106,8 +113,8 @@ def compute(args):
         skipped = [k for k in keys if k not in ref.comparable_keys]
         if skipped and ref.comparable_keys:
             keys = list(ref.comparable_keys)
-            notice(args, f"note: columns {', '.join(skipped)} of {ref.path} need the table's reference "
-                         f"conditions and are not compared; name the columns with --columns to silence this")
+            notice(args, f"note: volumetric columns {', '.join(skipped)} of {ref.path} are not compared "
+                         f"(per-m³ units are not known here); name the columns with --columns to silence this")
     for k in keys:
         if k not in ref.keys:
             raise TablegenError(f"--columns: {k!r} is not a column of {ref.path}; its columns: {', '.join(ref.keys)}")
@@ -126,9 +133,10 @@ def compute(args):
     options = {"target": target_label, "reference": args.reference, "columns": keys,
                "tolerance": list(args.tolerance), "align": list(args.align),
                "extrapolate": bool(args.extrapolate),
-               "h_datum": args.h_datum, "p_ref": args.p_ref, "anchor": args.anchor}
+               "h_datum": args.h_datum, "p_ref": args.p_ref, "anchor": args.anchor,
+               "mean_from": args.mean_from, "table": args.table}
     cmp = compare(sub, ref, columns=keys, tolerances=tolerances, align=align,
-                  extrapolate=args.extrapolate, options=options)
+                  extrapolate=args.extrapolate, T_mean_ref_K=T_m, options=options)
     from ..book.qa_report import render_pdf
     out = Path(args.out) if args.out else Path("output") / f"compare-{safe_name(name)}"
     files = {out / "report.pdf": render_pdf(cmp),
