@@ -39,7 +39,8 @@ from pathlib import Path
 import numpy as np
 
 from .errors import RangeError, TablegenError, UnitError
-from .units import Unit, unit
+from .thermo.substance import R_MOLAR
+from .units import BTU, FT, PSI, Unit, canon, unit
 
 #: Property key -> unit dimension, for every key a REFERENCE column may carry.
 #: Pressure-dependent keys (s, v, rho) are left out: a reference table of
@@ -56,7 +57,48 @@ KEY_DIMENSIONS = {
     "cp_mean_h": "specific_entropy", "cp_mean_s": "specific_entropy",
     "cp_mean_h_molar": "molar_entropy", "cp_mean_s_molar": "molar_entropy",
 }
-MEAN_KEYS = ("cp_mean_h", "cp_mean_s", "cp_mean_h_molar", "cp_mean_s_molar")
+# volumetric basis (the book's _vol columns): per m³ at the reference conditions,
+# n = P/(R T) moles in each m³ (ideal gas)
+KEY_DIMENSIONS.update({
+    "cp_vol": "volumetric_entropy", "cv_vol": "volumetric_entropy", "s0_vol": "volumetric_entropy",
+    "cp_mean_h_vol": "volumetric_entropy", "cp_mean_s_vol": "volumetric_entropy",
+    "h_vol": "volumetric_energy", "u_vol": "volumetric_energy", "g0_vol": "volumetric_energy",
+})
+MEAN_KEYS = ("cp_mean_h", "cp_mean_s", "cp_mean_h_molar", "cp_mean_s_molar", "cp_mean_h_vol", "cp_mean_s_vol")
+VOL_KEYS = tuple(k for k in KEY_DIMENSIONS if k.endswith("_vol"))
+
+#: Units of the volumetric basis (tablegen.units has none): Btu/ft³ from the exact
+#: 1959 pound and foot and the International Table Btu, as in tablegen.units.
+_VOL_UNITS = {
+    "volumetric_energy": [("J/m³", 1.0), ("kJ/m³", 1e3), ("MJ/m³", 1e6), ("Btu/ft³", BTU / FT ** 3)],
+    "volumetric_entropy": [("J/(m³ K)", 1.0), ("kJ/(m³ K)", 1e3), ("MJ/(m³ K)", 1e6),
+                           ("Btu/(ft³ °R)", BTU / FT ** 3 * 9 / 5)],
+}
+_VOL_CANON = {canon(sym): Unit(sym, dim, f) for dim, lst in _VOL_UNITS.items() for sym, f in lst}
+_VOL_CANON.update({canon(sym.replace("K)", "°F)").replace("°R", "°F")): Unit(sym, dim, f)
+                   for dim, lst in _VOL_UNITS.items() for sym, f in lst if "K)" in sym or "°R" in sym})
+
+
+def _unit(text: str, dimension: str) -> Unit:
+    """tablegen.units lookup, extended by the per-m³ and per-ft³ units of the volumetric basis."""
+    if dimension in _VOL_UNITS:
+        c = canon(text)
+        alt = c.replace("/", "/(", 1) + ")" if "/" in c and "(" not in c else c
+        u = _VOL_CANON.get(c) or _VOL_CANON.get(alt)
+        if u is None or u.dimension != dimension:
+            allowed = ", ".join(sym for sym, _ in _VOL_UNITS[dimension])
+            raise UnitError(f"unit {text!r} does not fit this column; allowed: {allowed}")
+        return u
+    return unit(text, dimension)
+
+
+#: Reference conditions of the volumetric basis when no spec gives them:
+#: name -> (T_K, P_Pa, text); the same as the table book's.
+VOLUME_REFERENCES = {
+    "normal": (273.15, 101325.0, "normal conditions, 0 °C and 101.325 kPa (DIN 1343)"),
+    "standard-15C": (288.15, 101325.0, "standard conditions, 15 °C and 101.325 kPa (ISO 13443)"),
+    "standard-60F": ((60 + 459.67) * 5 / 9, 14.696 * PSI, "standard conditions, 60 °F and 14.696 psia"),
+}
 
 #: How each key is printed in reports.
 KEY_LABELS = {
@@ -66,6 +108,9 @@ KEY_LABELS = {
     "g0_molar": "molar g°", "dh298_molar": "H − H(298.15 K)",
     "cp_mean_h": "mean cp for h", "cp_mean_s": "mean cp for s°",
     "cp_mean_h_molar": "molar mean cp for h", "cp_mean_s_molar": "molar mean cp for s°",
+    "cp_vol": "cp per m³", "cv_vol": "cv per m³", "s0_vol": "s° per m³", "h_vol": "h per m³",
+    "u_vol": "u per m³", "g0_vol": "g° per m³", "cp_mean_h_vol": "mean cp for h per m³",
+    "cp_mean_s_vol": "mean cp for s° per m³",
 }
 
 #: Columns that may be aligned, and how. Offsets: the enthalpy datum and the
@@ -76,6 +121,7 @@ KEY_LABELS = {
 ALIGNABLE = {
     "h": "offset", "u": "offset", "s0": "offset", "h_molar": "offset", "u_molar": "offset",
     "s0_molar": "offset", "dh298_molar": "offset", "Pr": "scale", "vr": "scale",
+    "h_vol": "offset", "u_vol": "offset", "s0_vol": "offset",
 }
 
 #: Default tolerances, documented in docs/compare.md. The 0.5 % on cp is the
@@ -98,7 +144,8 @@ DEFAULT_REL.update({"k": 0.0025, "a": 0.0025, "Pr": 0.02, "vr": 0.02})
 #: S°(298.15 K) for N2, O2, H2, Ar, CO, CO2; a wrong P° of 1 atm for 1 bar is
 #: R ln 1.01325 = 0.109 J/(mol K) and stays visible). Converted per kg with M.
 CHANGE_KEYS = {"h": "energy", "u": "energy", "h_molar": "energy", "u_molar": "energy",
-               "dh298_molar": "energy", "s0": "entropy", "s0_molar": "entropy"}
+               "dh298_molar": "energy", "s0": "entropy", "s0_molar": "entropy",
+               "h_vol": "energy", "u_vol": "energy", "s0_vol": "entropy"}
 CHANGE_REL = 0.005
 CHANGE_FLOOR_MOLAR = {"energy": 10.0, "entropy": 0.02}     # J/mol, J/(mol K)
 T_CHANGE_FROM = 298.15
@@ -247,7 +294,7 @@ def read_reference(path) -> Reference:
         else:
             dim = "temperature" if key == "T" else KEY_DIMENSIONS[key]
             try:
-                u = unit(usym, dim)
+                u = _unit(usym, dim)
             except UnitError as e:
                 raise TablegenError(f"{name}:{header_line}: column {key!r}: {e}") from None
         ident = (key, u.symbol if u else usym)
@@ -331,12 +378,18 @@ class Tolerance:
                 + 0.5 * quantum_si)
 
 
-def default_tolerance(key: str, M_g_per_mol: float = 1.0, unit_=None) -> Tolerance:
-    """The documented default of a column (M converts the per-mole floors to per kg)."""
+def default_tolerance(key: str, M_g_per_mol: float = 1.0, unit_=None, n_per_m3: float = 1.0) -> Tolerance:
+    """The documented default of a column (M converts the per-mole floors to per kg,
+    n_per_m3 (mol/m³ at the reference conditions) to per m³)."""
     if key in CHANGE_KEYS:
         kind = CHANGE_KEYS[key]
         floor = CHANGE_FLOOR_MOLAR[kind]
-        floor_si = floor if key.endswith("_molar") else floor / (M_g_per_mol * 1e-3)
+        if key.endswith("_molar"):
+            floor_si = floor
+        elif key.endswith("_vol"):
+            floor_si = floor * n_per_m3
+        else:
+            floor_si = floor / (M_g_per_mol * 1e-3)
         shown = (f"{floor:g} J/mol" if kind == "energy" else f"{floor:g} J/(mol K)")
         if unit_ is not None and not key.endswith("_molar"):
             shown = f"{floor_si / unit_.factor:.2g} {unit_.symbol}"
@@ -397,7 +450,7 @@ def parse_tolerance(text: str, ref_units: dict) -> tuple[str, Tolerance]:
                 u = u[0]
             if m.group(3):
                 try:
-                    u = unit(m.group(3), u.dimension)
+                    u = _unit(m.group(3), u.dimension)
                 except UnitError as e:
                     raise TablegenError(f"--tolerance {text!r}: {e}") from None
             abs_si, seen_abs = v * u.factor, True
@@ -535,7 +588,7 @@ def mean_cp(sub, T, T_m: float, key: str) -> np.ndarray:
     T = np.asarray(T, float)
     p = sub.properties(T, extrapolate=True)
     pm = sub.properties(np.array([T_m]), extrapolate=True)
-    sfx = "_molar" if key.endswith("_molar") else ""
+    sfx = "_molar" if key.endswith(("_molar", "_vol")) else ""
     cp_m = pm["cp" + sfx][0]
     if key.startswith("cp_mean_h"):
         d = T - T_m
@@ -549,8 +602,8 @@ def mean_cp(sub, T, T_m: float, key: str) -> np.ndarray:
 
 
 def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
-            extrapolate: bool = False, T_mean_ref_K: float | None = None, version: str = "",
-            options=None) -> Comparison:
+            extrapolate: bool = False, T_mean_ref_K: float | None = None, volume_reference=None,
+            version: str = "", options=None) -> Comparison:
     """Compare a substance with a reference table.
 
     Parameters
@@ -562,6 +615,7 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
     align : key -> "offset" | "scale"
     extrapolate : allow reference temperatures outside the data range (marked)
     T_mean_ref_K : T_m of the mean heat capacities (default :func:`mean_cp_from_default`)
+    volume_reference : (T_K, P_Pa, text) of the volumetric basis (default: normal conditions)
 
     Raises
     ------
@@ -577,8 +631,8 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
             raise TablegenError(f"--columns: {k!r} is not a column of {ref.path}; "
                                 f"its columns: {', '.join(ref.keys)}")
         if k not in ref.comparable_keys:
-            raise TablegenError(f"{ref.path}:{ref.header_line}: column {k!r} cannot be compared (per-m³ "
-                                f"units are not known to tablegen.units); compare the other "
+            raise TablegenError(f"{ref.path}:{ref.header_line}: column {k!r} cannot be evaluated here; "
+                                f"compare the other "
                                 f"columns with --columns {','.join(ref.comparable_keys)}")
     if len(set(keys)) != len(keys):
         raise TablegenError("--columns: a column is named twice; name each once")
@@ -605,12 +659,20 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
                              f"(every extrapolated value is marked)")
     p = dict(sub.properties(T, extrapolate=extrapolate))
     options = dict(options or {})
+    n_per_m3 = 1.0
+    if any(k in VOL_KEYS for k in keys):
+        vT, vP, vtext = volume_reference or VOLUME_REFERENCES["normal"]
+        n_per_m3 = vP / (R_MOLAR * vT)
+        options["volume_reference"] = {"T_K": vT, "P_Pa": vP, "text": vtext, "n_mol_per_m3": n_per_m3}
     if any(k in MEAN_KEYS for k in keys):
         T_m = float(T_mean_ref_K) if T_mean_ref_K is not None else mean_cp_from_default(sub)
         options["T_mean_ref_K"] = T_m
         for k in MEAN_KEYS:
             if k in keys:
-                p[k] = mean_cp(sub, T, T_m, k)
+                p[k] = mean_cp(sub, T, T_m, k) * (n_per_m3 if k.endswith("_vol") else 1.0)
+    for k in VOL_KEYS:
+        if k in keys and k not in MEAN_KEYS:
+            p[k] = p[k[:-4] + "_molar"] * n_per_m3
     extrap = np.asarray(p.get("extrapolated", np.zeros(T.shape, bool)), bool)
 
     results = []
@@ -626,10 +688,12 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
         aligned_si = calc_si
         if key in align:
             alignment, aligned_si = _fit(key, align[key], ref_si, calc_si, present, u, ref, sub, rc)
-        tol = tolerances.get(key) or default_tolerance(key, sub.M, u)
+        tol = tolerances.get(key) or default_tolerance(key, sub.M, u, n_per_m3)
         change_si = 0.0
         if tol.rel_change:
-            at0 = float(np.asarray(sub.properties(np.array([T_CHANGE_FROM]), extrapolate=True)[key])[0])
+            p0 = sub.properties(np.array([T_CHANGE_FROM]), extrapolate=True)
+            at0 = (float(p0[key[:-4] + "_molar"][0]) * n_per_m3 if key.endswith("_vol")
+                   else float(np.asarray(p0[key])[0]))
             if alignment is not None:
                 at0 = at0 + alignment.value if alignment.kind == "offset" else at0 * alignment.value
             change_si = aligned_si - at0

@@ -325,6 +325,7 @@ number = "HMB-QA-0042"
 revision = "A"
 issue_date = 2026-11-02
 units = "both"
+reference = "standard-15C"
 
 [[tables]]
 name = "air-both"
@@ -343,6 +344,15 @@ P_ref = "1 atm"
 anchor = { T = "0 °C", Pr = 1.0, vr = 1.0 }
 columns = ["T", "cp", "h", "s0", "g0", "cp_mean_h", "Pr", "vr"]
 grid = { segments = [ { start = "250 K", stop = "3000 K", step = "50 K" } ] }
+
+[[tables]]
+name = "flue-vol"
+substance = "CO2:0.09,H2O:0.16,N2:0.72,O2:0.03"
+basis = "volumetric"
+datum = { kind = "sensible", T = "15 °C" }
+temperature_units = ["°C"]
+columns = ["T", "cp", "h", "s0", "cp_mean_h", "cp_mean_s", "k"]
+grid = { segments = [ { start = "15 °C", stop = "1500 °C", step = "15 °C" } ] }
 """
 
 
@@ -355,7 +365,7 @@ def build_spec(tmp_path, capsys):
     return spec
 
 
-@pytest.mark.parametrize("table", ["air-both", "co2-molar"])
+@pytest.mark.parametrize("table", ["air-both", "co2-molar", "flue-vol"])
 def test_built_table_csv_against_its_own_spec_gives_zero_deviation(table, tmp_path, capsys):
     """A table book's CSV (tablegen build) compared with its spec table: zero deviation in every column,
     SI and US columns alike, mean cp recomputed here independently of the book's code."""
@@ -394,6 +404,20 @@ def test_built_table_needs_its_datum_to_match(tmp_path, capsys):
     rc, _, err = run(["compare", spec, csv_path, "--table", "co2-molar", "--p-ref", "1atm",
                       "--out", tmp_path / "e"], capsys)
     assert rc == 2 and "spec table carries its own" in err
+
+
+def test_volumetric_columns_use_the_stated_reference_conditions(tmp_path, capsys):
+    """Per-m³ columns of a built table: with --vol-ref standard-15C (the spec's) they pass; at the default
+    normal conditions (0 °C) every one is off by 288.15/273.15 (ideal gas: n = P/(R T)), about 5.5 %."""
+    build_spec(tmp_path, capsys)
+    csv_path = tmp_path / "book" / "flue-vol.csv"
+    sub = ["compare", "CO2:0.09,H2O:0.16,N2:0.72,O2:0.03", csv_path, "--h-datum", "sensible:15C", "--json"]
+    rc, out, _ = run(sub + ["--out", tmp_path / "a", "--vol-ref", "standard-15C"], capsys)
+    assert rc == 0, json.loads(out)["out_of_tolerance"][:2]
+    rc, out, _ = run(sub + ["--out", tmp_path / "b", "--columns", "cp_vol"], capsys)
+    s = json.loads(out)
+    assert rc == 1 and s["options"]["volume_reference"]["T_K"] == 273.15
+    assert s["columns"][0]["stats"]["max_rel"] == pytest.approx(288.15 / 273.15 - 1, rel=1e-9)
 
 
 def test_spec_path_without_book_module_is_refused(tmp_path, capsys):

@@ -204,6 +204,9 @@ def _control(flow, cmp):
     ]
     if "T_mean_ref_K" in o:
         rows.append(("Mean cp from", f"Tm = {o['T_mean_ref_K']:g} K"))
+    if "volume_reference" in o:
+        v = o["volume_reference"]
+        rows.append(("Per m³ at", f"{v['text']} ({v['n_mol_per_m3']:.6g} mol/m³)"))
     rows += [
         ("Reference file", ref.path),
         ("Reference SHA-256", ref.sha256),
@@ -220,7 +223,7 @@ def _control(flow, cmp):
     if o.get("extrapolate"):
         opts.append("--extrapolate")
     for k, flag in (("h_datum", "--h-datum"), ("p_ref", "--p-ref"), ("anchor", "--anchor"),
-                    ("mean_from", "--mean-from"), ("table", "--table")):
+                    ("mean_from", "--mean-from"), ("vol_ref", "--vol-ref"), ("table", "--table")):
         if o.get(k):
             opts.append(f"{flag} {o[k]}")
     rows.append(("Options", " ".join(opts) if opts else "none (defaults)"))

@@ -42,6 +42,10 @@ def add_arguments(p):
     p.add_argument("--mean-from", default=None, metavar="T",
                    help="Tm of mean-cp columns (cp_mean_h, cp_mean_s): default the sensible-datum "
                         "temperature, else 298.15 K; a spec table uses its own")
+    p.add_argument("--vol-ref", default=None, metavar="REF",
+                   help="reference conditions of per-m³ columns (cp_vol, h_vol, ...): normal (default, "
+                        "0 °C and 101.325 kPa), standard-15C, standard-60F, or T,P (e.g. 20C,1atm); "
+                        "a spec uses its own")
     p.add_argument("--table", default=None, metavar="NAME",
                    help="with a spec file: the table to compare (needed when the spec has several)")
     p.add_argument("--out", default=None, metavar="DIR",
@@ -59,7 +63,8 @@ def resolve(args):
     target = args.substance
     if target.lower().endswith(".toml"):
         given = [o for o, v in (("--h-datum", args.h_datum), ("--p-ref", args.p_ref),
-                                ("--anchor", args.anchor), ("--mean-from", args.mean_from)) if v is not None]
+                                ("--anchor", args.anchor), ("--mean-from", args.mean_from),
+                                ("--vol-ref", args.vol_ref)) if v is not None]
         if given:
             raise TablegenError(f"{given[0]} applies to a substance name; a spec table carries its own "
                                 f"datum, P° and anchor (set them in the spec)")
@@ -81,7 +86,9 @@ def resolve(args):
         else:
             raise TablegenError(f"{target} holds {len(tables)} tables; choose one with --table NAME "
                                 f"({', '.join(t.name for t in tables)})")
-        return table.substance, table.name, f"{target} [{table.name}]", float(table.T_mean_ref_K)
+        r = book.document.reference
+        return (table.substance, table.name, f"{target} [{table.name}]", float(table.T_mean_ref_K),
+                (float(r.T_K), float(r.P_Pa), r.text))
     if args.table is not None:
         raise TablegenError("--table applies to a spec file (*.toml), not to a substance name")
     sub = substance_with_options(args, target)
@@ -89,7 +96,25 @@ def resolve(args):
     if args.mean_from is not None:
         from ..units import temperature_K
         T_m = temperature_K(args.mean_from, "--mean-from")
-    return sub, sub.id, sub.id, T_m
+    return sub, sub.id, sub.id, T_m, volume_reference(args.vol_ref)
+
+
+def volume_reference(text):
+    """--vol-ref: a named set of reference conditions or 'T,P'; None for the default."""
+    from ..compare import VOLUME_REFERENCES
+    from ..errors import TablegenError
+    from ..units import pressure_Pa, temperature_K
+    if text is None:
+        return None
+    t = text.strip()
+    if t in VOLUME_REFERENCES:
+        return VOLUME_REFERENCES[t]
+    parts = t.split(",")
+    if len(parts) != 2:
+        raise TablegenError(f"--vol-ref {text!r}: give {', '.join(VOLUME_REFERENCES)}, or T,P such as 20C,1atm")
+    T = temperature_K(parts[0], "--vol-ref temperature")
+    P = pressure_Pa(parts[1], "--vol-ref pressure")
+    return (T, P, f"{T:g} K and {P / 1000:g} kPa")
 
 
 def safe_name(text: str) -> str:
@@ -102,7 +127,7 @@ def compute(args):
     from ..compare import compare, deviations_csv, parse_align, parse_tolerance, read_reference, summary
     from ..errors import TablegenError
 
-    sub, name, target_label, T_m = resolve(args)
+    sub, name, target_label, T_m, vol_ref = resolve(args)
     ref = read_reference(args.reference)
     if args.columns is not None:
         keys = [k.strip() for k in args.columns.split(",")]
@@ -113,8 +138,8 @@ def compute(args):
         skipped = [k for k in keys if k not in ref.comparable_keys]
         if skipped and ref.comparable_keys:
             keys = list(ref.comparable_keys)
-            notice(args, f"note: volumetric columns {', '.join(skipped)} of {ref.path} are not compared "
-                         f"(per-m³ units are not known here); name the columns with --columns to silence this")
+            notice(args, f"note: columns {', '.join(skipped)} of {ref.path} cannot be evaluated and are "
+                         f"not compared; name the columns with --columns to silence this")
     for k in keys:
         if k not in ref.keys:
             raise TablegenError(f"--columns: {k!r} is not a column of {ref.path}; its columns: {', '.join(ref.keys)}")
@@ -134,9 +159,9 @@ def compute(args):
                "tolerance": list(args.tolerance), "align": list(args.align),
                "extrapolate": bool(args.extrapolate),
                "h_datum": args.h_datum, "p_ref": args.p_ref, "anchor": args.anchor,
-               "mean_from": args.mean_from, "table": args.table}
+               "mean_from": args.mean_from, "vol_ref": args.vol_ref, "table": args.table}
     cmp = compare(sub, ref, columns=keys, tolerances=tolerances, align=align,
-                  extrapolate=args.extrapolate, T_mean_ref_K=T_m, options=options)
+                  extrapolate=args.extrapolate, T_mean_ref_K=T_m, volume_reference=vol_ref, options=options)
     from ..book.qa_report import render_pdf
     out = Path(args.out) if args.out else Path("output") / f"compare-{safe_name(name)}"
     files = {out / "report.pdf": render_pdf(cmp),
