@@ -263,12 +263,13 @@ def _alignments(flow, cmp):
 def _tolerances(flow, cmp):
     from ..compare import KEY_LABELS
     _heading(flow, "Tolerances (allowed |Δ| per cell, plus half the last printed digit)")
+    _paragraph(flow, "Defaults and their grounds: docs/compare.md.", 7.2, color=GREY, gap=2)
     rows = []
     for c in cmp.columns:
         t = c.tolerance
         rows.append((c.key, KEY_LABELS[c.key], c.unit.symbol, t.text,
-                     "--tolerance" if t.origin == "--tolerance" else "default (docs/compare.md)"))
-    _table(flow, ("column", "property", "unit", "tolerance", "set by"), rows, (70, 95, 62, 186, 110),
+                     "--tolerance" if t.origin == "--tolerance" else "default"))
+    _table(flow, ("column", "property", "unit", "tolerance", "set by"), rows, (60, 74, 62, 262, 65),
            ("left",) * 5)
 
 
@@ -604,10 +605,10 @@ def render_pdf(cmp) -> bytes:
     fonts.register()
     flow = Flow()
 
-    def title(c, y):
-        _text(c, MARGIN, y - 16, f"QA comparison: {cmp.substance['name']} against the reference table",
-              fonts.SANS_BOLD, 14)
-    flow.add(26, title)
+    for ln in _wrap(f"QA comparison: {cmp.substance['name']} against the reference table",
+                    fonts.SANS_BOLD, 14, WIDTH)[:3]:
+        flow.add(19, lambda c, y, ln=ln: _text(c, MARGIN, y - 15, ln, fonts.SANS_BOLD, 14))
+    flow.add(7, lambda c, y: None)
     _verdict(flow, cmp)
     _heading(flow, "Document control")
     _control(flow, cmp)

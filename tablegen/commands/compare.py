@@ -16,6 +16,7 @@ EXAMPLE = """example:
   tablegen compare N2 janaf-n2.csv --tolerance cp_molar=0.5% --tolerance dh298_molar=0.5%+0.001
   tablegen compare air handbook-air.txt --h-datum sensible:0C --align Pr=scale --align vr=scale
   tablegen compare CO2 earlier-issue.csv --columns cp,h --tolerance h=0.2 --out qa/co2 --json
+  tablegen compare book.toml output/book/flue-nm3.csv --table flue-nm3
 
 REFERENCE: CSV or whitespace-separated text; header cells 'key [unit]' (keys of the
 state JSON: cp, cv, k, h, u, s0, g0, Pr, vr, a, cp_molar, h_molar, s0_molar,
@@ -35,7 +36,8 @@ def add_arguments(p):
     p.add_argument("--tolerance", action="append", default=[], metavar="COL=VALUE[%]",
                    help="tolerance of a column, repeatable: relative (cp=0.1%%), absolute in the column's "
                         "unit (h=0.5) or with a unit (h=0.5kJ/kg), or both (h=0.1%%+0.2); "
-                        "defaults: 0.5%% (k and a 0.25%%, Pr and vr 2%%), see docs/compare.md")
+                        "defaults: cp and mean cp 0.5%%; h, u, s0 0.5%% of the change since 298.15 K "
+                        "plus a small floor; k, a 0.25%%; Pr, vr 2%% (docs/compare.md)")
     p.add_argument("--align", action="append", default=[], metavar="COL=offset|scale",
                    help="fit and report a constant before judging, repeatable: offset for h, u, s0, "
                         "h_molar, u_molar, s0_molar, dh298_molar; scale for Pr, vr")
