@@ -712,6 +712,9 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
             deviation=dev_u, relative=rel, bound=bound_u, present=present, within=within,
             text=rc.text, alignment=alignment,
             stats=_stats(dev_u, rel, bound_u, present, within, T, ref)))
+    if not any(np.any(r.present) for r in results):
+        raise TablegenError(f"{ref.path}: the compared columns hold no values (every cell is a gap); "
+                            f"there is nothing to judge")
     from . import __version__
     return Comparison(substance_info(sub), ref, T, extrap, tuple(results),
                       version or __version__, options)

@@ -272,6 +272,7 @@ BAD = [
     ("not a number", "# a note\nT [C],cp [kJ/(kg K)]\n25,1.0x\n", ":3: cell '1.0x' in column 'cp' is not a number"),
     ("ragged", "T [K],cp [kJ/(kg K)]\n300,1.0,2\n", ":2: 3 cells, but the header names 2 columns"),
     ("no T", "cp [kJ/(kg K)],h [kJ/kg]\n1.0,2\n", ":1: no temperature column"),
+    ("only gaps", "T [K],cp [kJ/(kg K)]\n300,-\n400,\n", ": the compared columns hold no values"),
     ("twice", "T [K],cp [kJ/(kg K)],cp [kJ/(kg K)]\n300,1,1\n", ":1: column 'cp [kJ/(kg K)]' appears twice"),
 ]
 
@@ -458,3 +459,28 @@ def test_rounding_allowance_is_half_the_last_printed_place(tmp_path):
     assert not compare(sub, read_reference(ref), tolerances=zero).passed
     ref.write_text(f"T [K],cp_molar [J/(mol K)]\n1000,{cp + 0.0004:.6f}\n", encoding="utf-8")
     assert not compare(sub, read_reference(ref), tolerances=zero).passed
+
+
+# ------------------------------------------------------------ identities
+from hypothesis import given, settings, strategies as st  # noqa: E402
+
+
+@settings(max_examples=25, deadline=None)
+@given(offset=st.floats(-5000.0, 5000.0), scale=st.floats(1e-3, 1e3),
+       species=st.sampled_from(["N2", "CO2", "H2O", "air"]))
+def test_alignment_recovers_any_offset_and_scale(offset, scale, species, tmp_path_factory):
+    """Identity: a reference made as tablegen + c (h) and tablegen × f (Pr) aligns back to c and f,
+    with zero deviation left (17 significant digits written, so float64 round-off only)."""
+    import tablegen
+    sub = tablegen.substance(species)
+    T = np.linspace(250.0, 2500.0, 19)
+    p = sub.properties(T)
+    path = tmp_path_factory.mktemp("align") / "r.csv"
+    path.write_text("T [K],h [kJ/kg],Pr [-]\n" + "".join(
+        f"{t!r},{(h / 1000 + offset)!r},{(pr * scale)!r}\n" for t, h, pr in zip(T, p["h"], p["Pr"])),
+        encoding="utf-8")
+    cmp = compare(sub, read_reference(path), align={"h": "offset", "Pr": "scale"})
+    al = {c.key: c.alignment for c in cmp.columns}
+    assert al["h"].value_in_unit == pytest.approx(offset, abs=1e-9 * (1 + abs(offset) + np.max(np.abs(p["h"])) / 1000))
+    assert al["Pr"].value == pytest.approx(scale, rel=1e-12)
+    assert cmp.passed
