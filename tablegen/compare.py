@@ -799,9 +799,11 @@ def format_dev(value: float) -> str:
 
 
 def _neutral(text: str) -> str:
-    """Neutralise user text against spreadsheet formula injection."""
+    """Neutralise text against spreadsheet formula injection; numbers stay numbers."""
     s = str(text)
-    return "'" + s if s[:1] in ("=", "+", "-", "@", "\t", "\r") else s
+    if _NUMBER.match(s) or re.fullmatch(r"-?(inf|nan)", s):
+        return s
+    return "'" + s if s[:1] in ("=", "+", "-", "@", "\t", "\r", "|", "%") else s
 
 
 def deviations_csv(cmp: Comparison) -> str:
