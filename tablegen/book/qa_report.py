@@ -59,9 +59,25 @@ class Flow:
         self.y -= h
 
 
+def _fill(c, *rgb):
+    """Set the fill colour, skipping the operator when it is already set (big listings)."""
+    rgb = tuple(rgb[0]) if len(rgb) == 1 else tuple(rgb)
+    if getattr(c, "_tg_fill", None) != rgb:
+        c.setFillColorRGB(*rgb)
+        c._tg_fill = rgb
+
+
+def _forget(c):
+    """After showPage or restoreState the canvas state is reset: forget the cache."""
+    c._tg_fill = None
+    c._tg_font = None
+
+
 def _text(c, x, y, s, font=fonts.SANS, size=8.5, color=INK, align="left"):
-    c.setFillColorRGB(*color)
-    c.setFont(font, size)
+    _fill(c, *color)
+    if getattr(c, "_tg_font", None) != (font, size):
+        c.setFont(font, size)
+        c._tg_font = (font, size)
     if align == "right":
         c.drawRightString(x, y, s)
     elif align == "center":
@@ -124,7 +140,7 @@ def _table(flow, head, rows, widths, aligns, size=7.6, font=fonts.SANS, row_fill
     """Simple ruled table; repeats its head after a page break."""
     lead = size * 1.55
     def draw_head(c, y):
-        c.setFillColorRGB(0.93, 0.94, 0.95)
+        _fill(c, 0.93, 0.94, 0.95)
         c.rect(MARGIN, y - lead, sum(widths), lead, stroke=0, fill=1)
         x = MARGIN
         for h, w, a in zip(head, widths, aligns):
@@ -139,7 +155,7 @@ def _table(flow, head, rows, widths, aligns, size=7.6, font=fonts.SANS, row_fill
         fill = row_fills[k] if row_fills else None
         def draw(c, y, r=r, fill=fill):
             if fill:
-                c.setFillColorRGB(*fill)
+                _fill(c, *fill)
                 c.rect(MARGIN, y - lead, sum(widths), lead, stroke=0, fill=1)
             x = MARGIN
             for v, w, a in zip(r, widths, aligns):
@@ -176,7 +192,7 @@ def _verdict(flow, cmp):
 
     def draw(c, y):
         h = 58
-        c.setFillColorRGB(*fill)
+        _fill(c, *fill)
         c.setStrokeColorRGB(*ink)
         c.setLineWidth(1.4)
         c.rect(MARGIN, y - h, WIDTH, h, stroke=1, fill=1)
@@ -461,11 +477,13 @@ def draw_deviation_plot(c, col, T_disp, T_unit, x, y, w, h):
     c.setStrokeColorRGB(*TRACE)
     c.setLineWidth(0.7)
     _polyline(c, [(t, d) if mm else None for t, d, mm in zip(Ts, ds, ms)], ylo, yhi, X, Y)
-    c.setFillColorRGB(*TRACE)
-    for t, d, mm, ok in zip(Ts, ds, ms, ws):
-        if mm and ok:
-            c.circle(X(t), Y(d), 1.1, stroke=0, fill=1)
+    _fill(c, *TRACE)
+    if int(np.sum(ms)) <= 200:              # row markers while they stay distinguishable
+        for t, d, mm, ok in zip(Ts, ds, ms, ws):
+            if mm and ok:
+                c.rect(X(t) - 0.9, Y(d) - 0.9, 1.8, 1.8, stroke=0, fill=1)
     c.restoreState()
+    _forget(c)
     for t, d, mm, ok in zip(Ts, ds, ms, ws):
         if mm and not ok:
             yy = min(max(Y(d), py0), py0 + ph)
@@ -517,7 +535,7 @@ def _listing(flow, cmp):
         _paragraph(flow, note, 7.0, color=GREY, gap=2)
 
         def head(c, y, group=group):
-            c.setFillColorRGB(0.93, 0.94, 0.95)
+            _fill(c, 0.93, 0.94, 0.95)
             c.rect(MARGIN, y - 2 * lead, w_line + w_T + len(group) * (w_ref + w_tg + w_d + w_m), 2 * lead,
                    stroke=0, fill=1)
             _text(c, MARGIN + w_line - 2, y - 2 * lead + 2.5, "line", fonts.SANS_BOLD, size, INK, "right")
@@ -556,7 +574,7 @@ def _listing(flow, cmp):
                     gw = w_ref + w_tg + w_d + w_m
                     bad = bool(col.present[i] and not col.within[i])
                     if bad:
-                        c.setFillColorRGB(*FAIL_FILL)
+                        _fill(c, *FAIL_FILL)
                         c.rect(x, y - lead, gw, lead, stroke=0, fill=1)
                     ink = FAIL_INK if bad else INK
                     if col.present[i]:
@@ -620,6 +638,16 @@ def render_pdf(cmp) -> bytes:
     _plots(flow, cmp)
     _listing(flow, cmp)
 
+    from reportlab import rl_config
+    a85, rl_config.useA85 = rl_config.useA85, 0     # binary streams: smaller and faster
+    try:
+        return _render(cmp, flow)
+    finally:
+        rl_config.useA85 = a85
+
+
+def _render(cmp, flow) -> bytes:
+    from reportlab.pdfgen import canvas as rl_canvas
     buf = io.BytesIO()
     c = rl_canvas.Canvas(buf, pagesize=(PAGE_W, PAGE_H), invariant=1, initialFontName=fonts.SANS,
                          pageCompression=1)
@@ -629,6 +657,7 @@ def render_pdf(cmp) -> bytes:
     c.setSubject(cmp.verdict)
     total = len(flow.pages)
     for k, page in enumerate(flow.pages, start=1):
+        _forget(c)
         _running(c, cmp, k, total)
         for y, draw in page:
             draw(c, y)

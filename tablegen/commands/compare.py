@@ -75,7 +75,7 @@ def resolve(args):
         except ImportError:
             raise TablegenError(f"{target}: reading spec files needs the table-book module (tablegen.spec), "
                                 f"which this build lacks; give a substance name instead") from None
-        book = spec_module.load(target)
+        book = spec_module.load(target, source=args.source, data=args.data)
         tables = list(book.tables)
         if args.table is not None:
             hit = [t for t in tables if t.name == args.table]
@@ -89,6 +89,8 @@ def resolve(args):
             raise TablegenError(f"{target} holds {len(tables)} tables; choose one with --table NAME "
                                 f"({', '.join(t.name for t in tables)})")
         r = book.document.reference
+        if getattr(table, "extrapolate", False):
+            args.extrapolate = True          # the table itself was built with extrapolation (marked)
         return (table.substance, table.name, f"{target} [{table.name}]", float(table.T_mean_ref_K),
                 (float(r.T_K), float(r.P_Pa), r.text))
     if args.table is not None:
