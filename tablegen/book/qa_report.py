@@ -213,6 +213,8 @@ def _control(flow, cmp):
         rows.append(("Spec table", str(o["target"])))
     for sid, ds, cite in sub["sources"]:
         rows.append(("Data" if rows[-1][0] in ("Substance", "Spec table") else "", f"{sid}: {ds}, {cite}"))
+    for j, f in enumerate(o.get("data_files") or []):
+        rows.append(("Data files" if j == 0 else "", f"{f['file']}  SHA-256 {f['sha256']}"))
     rows += [
         ("Enthalpy datum", sub["h_datum"]),
         ("Entropy P°", f"{sub['P_ref_Pa'] / 1000:g} kPa"),

@@ -121,6 +121,20 @@ def volume_reference(text):
     return (T, P, f"{T:g} K and {P / 1000:g} kPa")
 
 
+def data_files(sub, args) -> list[dict]:
+    """Name and SHA-256 of each coefficient file the substance's species came from (traceability)."""
+    import hashlib
+
+    from ..data.library import library
+    lib = library(tuple(args.data or ()))
+    files = {}
+    for _species, dataset, _cite in sub.sources:
+        ds = lib.datasets.get(dataset)
+        if ds is not None and Path(ds.path).is_file():
+            files[Path(ds.path).name] = hashlib.sha256(Path(ds.path).read_bytes()).hexdigest()
+    return [{"file": k, "sha256": v} for k, v in sorted(files.items())]
+
+
 def safe_name(text: str) -> str:
     s = re.sub(r"[^A-Za-z0-9_.+-]+", "_", text).strip("._")
     return s or "substance"
@@ -163,7 +177,8 @@ def compute(args):
                "tolerance": list(args.tolerance), "align": list(args.align),
                "extrapolate": bool(args.extrapolate),
                "h_datum": args.h_datum, "p_ref": args.p_ref, "anchor": args.anchor,
-               "mean_from": args.mean_from, "vol_ref": args.vol_ref, "table": args.table}
+               "mean_from": args.mean_from, "vol_ref": args.vol_ref, "table": args.table,
+               "data_files": data_files(sub, args)}
     cmp = compare(sub, ref, columns=keys, tolerances=tolerances, align=align,
                   extrapolate=args.extrapolate, T_mean_ref_K=T_m, volume_reference=vol_ref, options=options)
     from ..book.qa_report import render_pdf
