@@ -188,7 +188,9 @@ def _verdict(flow, cmp):
     extra.append(f"after fitting {len(al)} alignment constant{'s' if len(al) != 1 else ''} (below)" if al
                  else "no alignment: values compared as computed with the datum and scales below")
     if cmp.extrapolated.any():
-        extra.append(f"{int(cmp.extrapolated.sum())} rows extrapolated beyond the data range ({EXTRAP_MARK})")
+        n = int(cmp.extrapolated.sum())
+        extra.append(f"{n} row{'s' if n > 1 else ''} extrapolated beyond the data range ({EXTRAP_MARK}), "
+                     f"not for design use")
 
     def draw(c, y):
         h = 58

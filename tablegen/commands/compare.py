@@ -227,8 +227,9 @@ def text_summary(cmp) -> str:
         if len(bad) > 50:
             lines.append(f"  ... and {len(bad) - 50} more (see deviations.csv)")
     if cmp.extrapolated.any():
-        lines.append(f"note: {int(cmp.extrapolated.sum())} rows lie outside the data range and were "
-                     f"extrapolated (marked in the report); not for design use")
+        n = int(cmp.extrapolated.sum())
+        lines.append(f"note: {n} row{'s lie' if n > 1 else ' lies'} outside the data range and "
+                     f"{'were' if n > 1 else 'was'} extrapolated (marked in the report); not for design use")
     return "\n".join(lines) + "\n"
 
 
