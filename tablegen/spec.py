@@ -777,7 +777,7 @@ def load(path, *, source: str | None = None, data=()) -> BookSpec:
     """
     p = Path(path)
     try:
-        text = p.read_text(encoding="utf-8")
+        text = p.read_text(encoding="utf-8-sig")     # a byte-order mark from an editor is fine
     except FileNotFoundError:
         raise SpecError(f"{p}: spec file not found") from None
     except (OSError, UnicodeDecodeError) as e:

@@ -289,3 +289,11 @@ def test_any_value_of_the_wrong_type_is_a_spec_error_never_a_crash():
                 assert str(e).split(":")[0], e
             checked += 1
     assert checked > 300
+
+
+def test_byte_order_mark_and_missing_file(tmp_path):
+    p = tmp_path / "bom.toml"
+    p.write_bytes(b"\xef\xbb\xbf" + BASE.encode("utf-8"))
+    assert len(spec.load(p).tables) == 2
+    with pytest.raises(SpecError, match="spec file not found"):
+        spec.load(tmp_path / "nothing.toml")
