@@ -623,7 +623,6 @@ def _pair(text, ref_value, tg_value, width, size):
 # ------------------------------------------------------------------ render
 def render_pdf(cmp) -> bytes:
     """The QA report as PDF bytes (same comparison, same bytes)."""
-    from reportlab.pdfgen import canvas as rl_canvas
     fonts.register()
     flow = Flow()
 
