@@ -1,0 +1,477 @@
+"""QA comparison: reading references, alignment, judging, report, exit status.
+
+External references: the NIST-JANAF Thermochemical Tables, 4th edition
+(M. W. Chase, J. Phys. Chem. Ref. Data Monograph 9, 1998), read through the
+`janaf` package. The agreement figure used for them (0.5 % in cp, and so in
+H - H(298.15 K) and s° which are integrals of cp) is the order of the spread
+between independent ideal-gas evaluations (JANAF against the Gurvich/TPIS
+tables behind NASA TM-4513) for small molecules up to 3000 K: from memory,
+see docs/compare.md. It is the tool's documented default tolerance.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import re
+
+import numpy as np
+import pytest
+
+from tablegen import cli
+from tablegen.book.qa_report import OUT_MARK
+from tablegen.compare import compare, parse_tolerance, read_reference
+from tablegen.units import unit
+
+import janaf  # a test dependency (pyproject [test]): missing, it is a failure, not a skip
+
+#: NIST-JANAF table index of each species (phase 'ref' for the elements' gas
+#: reference states, 'g' otherwise), found with janaf.search / janaf.db.
+JANAF_INDEX = {"N2": "N-023", "O2": "O-029", "H2": "H-050", "Ar": "Ar-001",
+               "CO": "C-093", "CO2": "C-095"}
+BAND_K = (200.0, 3000.0)     # engineering-table band; our data start at 200 K
+
+
+def janaf_rows(species, band=BAND_K):
+    df = janaf.Table(index=JANAF_INDEX[species]).df
+    T = df["T(K)"].to_numpy()
+    m = (T >= band[0]) & (T <= band[1])
+    return T[m], df["Cp"].to_numpy()[m], df["S"].to_numpy()[m], df["H-H(Tr)"].to_numpy()[m]
+
+
+def write_janaf_csv(path, species, band=BAND_K):
+    """JANAF columns as printed (3 decimals): Cp, S in J/(mol K), H-H(Tr) in kJ/mol."""
+    T, cp, S, H = janaf_rows(species, band)
+    lines = [f"# NIST-JANAF Thermochemical Tables, 4th ed., {species} ({JANAF_INDEX[species]})",
+             "T [K],cp_molar [J/(mol K)],s0_molar [J/(mol K)],dh298_molar [kJ/mol]"]
+    lines += [f"{t:g},{c:.3f},{s:.3f},{h:.3f}" for t, c, s, h in zip(T, cp, S, H)]
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    return path
+
+
+def run(argv, capsys):
+    rc = cli.main([str(a) for a in argv])
+    out, err = capsys.readouterr()
+    return rc, out, err
+
+
+# ------------------------------------------------------- NIST-JANAF references
+@pytest.mark.parametrize("species", sorted(JANAF_INDEX))
+def test_nist_janaf_tables_pass_at_documented_agreement(species, tmp_path, capsys):
+    """NIST-JANAF 4th ed. (janaf package) against NASA TM-4513 data: within the documented 0.5 %."""
+    ref = write_janaf_csv(tmp_path / f"janaf-{species}.csv", species)
+    # the documented defaults: cp 0.5 %; H-H298 and s° 0.5 % of their change since 298.15 K
+    # plus 10 J/mol and 0.02 J/(mol K) (the differences at 298.15 K itself)
+    rc, out, err = run(["compare", species, ref, "--out", tmp_path / "o", "--json"], capsys)
+    s = json.loads(out)
+    assert rc == 0, s["out_of_tolerance"][:3]
+    tol = {c["key"]: c["tolerance"] for c in s["columns"]}
+    assert tol["cp_molar"]["relative"] == 0.005 and tol["cp_molar"]["origin"] == "default"
+    assert tol["s0_molar"]["relative_to_change_from_298.15K"] == 0.005
+    assert tol["s0_molar"]["absolute"] == pytest.approx(0.02)
+    assert tol["dh298_molar"]["absolute"] == pytest.approx(0.010)       # kJ/mol, the column's unit
+    assert s["verdict"] == "pass" and s["cells_out_of_tolerance"] == 0
+    assert s["cells_compared"] == 3 * len(janaf_rows(species)[0])
+    assert {c["key"] for c in s["columns"]} == {"cp_molar", "s0_molar", "dh298_molar"}
+    for name in ("report.pdf", "deviations.csv", "summary.json"):
+        assert (tmp_path / "o" / name).stat().st_size > 0
+
+
+def test_nist_janaf_tighter_than_agreement_fails(tmp_path, capsys):
+    """NIST-JANAF CO2: NASA TM-4513 and JANAF differ by more than 0.05 % in cp, so this must fail."""
+    ref = write_janaf_csv(tmp_path / "janaf-CO2.csv", "CO2")
+    rc, out, _ = run(["compare", "CO2", ref, "--out", tmp_path / "o", "--json",
+                      "--tolerance", "cp_molar=0.05%"], capsys)
+    assert rc == 1
+    assert json.loads(out)["columns"][0]["stats"]["n_out"] > 0
+
+
+def test_nist_janaf_whitespace_table_in_other_units(tmp_path, capsys):
+    """NIST-JANAF CO2 as a whitespace text table in °C, kJ/(kmol K) and J/mol: converted, same verdict."""
+    T, cp, S, H = janaf_rows("CO2")
+    lines = ["# NIST-JANAF CO2 (C-095), temperatures in degrees Celsius",
+             "T [°C]   cp_molar [kJ/(kmol K)]   s0_molar [kJ/(kmol K)]   dh298_molar [J/mol]"]
+    lines += [f"{t - 273.15:.2f}  {c:.3f}  {s:.3f}  {h * 1000:.0f}" for t, c, s, h in zip(T, cp, S, H)]
+    ref = tmp_path / "co2.txt"
+    ref.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    rc, out, _ = run(["compare", "CO2", ref, "--out", tmp_path / "o", "--json"], capsys)
+    s = json.loads(out)
+    assert rc == 0
+    assert s["reference"]["layout"] == "whitespace" and s["reference"]["T_unit"] == "°C"
+    r = read_reference(ref)
+    assert np.allclose(r.T_K, T, rtol=0, atol=1e-9)               # °C -> K exactly (offset 273.15)
+    assert np.allclose(r.column("dh298_molar").values_si, np.round(H * 1000), atol=1e-9)
+
+
+def test_nist_janaf_corrupted_cells_fail_with_exactly_those_marked(tmp_path, capsys):
+    """NIST-JANAF N2 with three corrupted cells: exit 1 and exactly those cells marked (JSON, CSV, PDF)."""
+    ref = write_janaf_csv(tmp_path / "janaf-N2.csv", "N2")
+    text = ref.read_text().splitlines()
+    bad = {}                                      # line number -> (column, new text)
+    for n, line in enumerate(text, start=1):
+        cells = line.split(",")
+        if cells[0] == "1000":                    # cp +1.5 % (tolerance 0.5 %)
+            cells[1] = f"{float(cells[1]) * 1.015:.3f}"; bad[n] = "cp_molar"
+        elif cells[0] == "1500":                  # s° +3 J/(mol K) (tolerance about 1.2)
+            cells[2] = f"{float(cells[2]) + 3:.3f}"; bad[n] = "s0_molar"
+        elif cells[0] == "2000":                  # H-H298 -0.5 kJ/mol (tolerance about 0.28)
+            cells[3] = f"{float(cells[3]) - 0.5:.3f}"; bad[n] = "dh298_molar"
+        text[n - 1] = ",".join(cells)
+    corrupted = tmp_path / "janaf-N2-corrupted.csv"
+    corrupted.write_text("\n".join(text) + "\n", encoding="utf-8")
+    out_dir = tmp_path / "o"
+    rc, out, _ = run(["compare", "N2", corrupted, "--out", out_dir, "--json"], capsys)
+    s = json.loads(out)
+    assert rc == 1 and s["verdict"] == "fail" and s["exit_status"] == 1
+    assert {(c["line"], c["column"]) for c in s["out_of_tolerance"]} == set(bad.items())
+
+    rows = list(csv.reader(io.StringIO((out_dir / "deviations.csv").read_text(encoding="utf-8"))))
+    head = rows[0]
+    for r in rows[1:]:                   # every value cell reads back as a number (RFC 4180, full precision)
+        for h, v in zip(head, r):
+            if v and not h.endswith((".status [-]", "extrapolated [-]")):
+                float(v)
+    marked = set()
+    for r in rows[1:]:
+        for j, h in enumerate(head):
+            if h.endswith(".status [-]") and r[j] == "OUT":
+                marked.add((int(r[0]), h.split(".")[0]))
+    assert marked == set(bad.items())
+
+    assert pdf_marked_cells(out_dir / "report.pdf") == set(bad.items())
+
+
+def pdf_marked_cells(pdf_path) -> set:
+    """(file line, column key) of every ✗ in the PDF listing, from text positions."""
+    import pypdf
+    found = set()
+    for page in pypdf.PdfReader(str(pdf_path)).pages:
+        if "Side-by-side listing" not in page.extract_text():
+            continue
+        items = []
+        page.extract_text(visitor_text=lambda t, cm, tm, fd, fs: items.append((t, tm[4], tm[5])))
+        heads = sorted((x, re.match(r"(\w+) \[", t).group(1)) for t, x, y in items
+                       if re.match(r"^\w+ \[[^\]]*\]$", t.strip()) and not t.startswith("T ["))
+        lines_at = {}
+        for t, x, y in items:
+            if re.fullmatch(r"\d+", t.strip()) and x < 70:
+                lines_at[round(y, 1)] = int(t)
+        for t, x, y in items:
+            if t.strip() == OUT_MARK and round(y, 1) in lines_at:
+                key = [k for hx, k in heads if hx < x][-1]
+                found.add((lines_at[round(y, 1)], key))
+    return found
+
+
+# ------------------------------------------------------------- alignment
+def state_rows(capsys, substance, T, *extra):
+    rc = cli.main(["state", substance, "--T", ",".join(f"{t:g}K" for t in T), "--json", *extra])
+    out, _ = capsys.readouterr()
+    assert rc == 0
+    return json.loads(out)
+
+
+def test_pr_scaled_to_another_anchor_aligns_by_the_scale_used(tmp_path, capsys):
+    """A handbook-style Pr/vr anchored at Pr = 2.5, vr = 0.4 (298.15 K): the fitted scales are 2.5 and 0.4."""
+    T = np.arange(250.0, 2001.0, 50.0)
+    rows = state_rows(capsys, "air", T, "--anchor", "T=298.15K,Pr=2.5,vr=0.4")
+    ref = tmp_path / "air-pr.csv"
+    ref.write_text("T [K],Pr [-],vr [-]\n" + "".join(
+        f"{r['T_K']:g},{r['Pr']:.7g},{r['vr']:.7g}\n" for r in rows), encoding="utf-8")
+    rc, out, _ = run(["compare", "air", ref, "--out", tmp_path / "a", "--json",
+                      "--align", "Pr=scale", "--align", "vr=scale"], capsys)
+    s = json.loads(out)
+    assert rc == 0
+    al = {a["column"]: a for a in s["alignments"]}
+    # printed to 7 significant figures: each value within 5e-7 relative, so the fit too
+    assert al["Pr"]["kind"] == "scale" and abs(al["Pr"]["value"] / 2.5 - 1) < 5e-7
+    assert abs(al["vr"]["value"] / 0.4 - 1) < 5e-7
+    # without alignment the scaled columns fail everywhere ...
+    rc, out, _ = run(["compare", "air", ref, "--out", tmp_path / "b", "--json"], capsys)
+    assert rc == 1 and json.loads(out)["cells_out_of_tolerance"] == 2 * T.size
+    # ... and with the matching anchor they pass without any fit
+    rc, _, _ = run(["compare", "air", ref, "--out", tmp_path / "c", "--anchor", "T=298.15K,Pr=2.5,vr=0.4"], capsys)
+    assert rc == 0
+
+
+def test_enthalpy_offset_recovers_a_datum_shift(tmp_path, capsys):
+    """h on a sensible datum (h(0 °C) = 0) against the formation datum: offset = -h_formation-datum(0 °C)."""
+    T = np.arange(300.0, 1501.0, 100.0)
+    sens = state_rows(capsys, "CO2", T, "--h-datum", "sensible:0C")
+    form = state_rows(capsys, "CO2", [273.15])
+    ref = tmp_path / "co2-h.csv"
+    ref.write_text("T [K],h [kJ/kg]\n" + "".join(f"{r['T_K']:g},{r['h']!r}\n" for r in sens), encoding="utf-8")
+    rc, out, _ = run(["compare", "CO2", ref, "--out", tmp_path / "o", "--json", "--align", "h=offset",
+                      "--tolerance", "h=1e-6"], capsys)
+    s = json.loads(out)
+    assert rc == 0
+    assert s["alignments"][0]["value"] == pytest.approx(-form[0]["h"], rel=1e-12)
+
+
+# ----------------------------------------------------------- self comparison
+KEYS_UNITS = [("cp", "kJ/(kg K)"), ("cv", "kJ/(kg K)"), ("k", "-"), ("h", "kJ/kg"), ("u", "kJ/kg"),
+              ("s0", "kJ/(kg K)"), ("g0", "kJ/kg"), ("Pr", "-"), ("vr", "-"), ("a", "m/s"),
+              ("cp_molar", "J/(mol K)"), ("h_molar", "J/mol"), ("s0_molar", "J/(mol K)"),
+              ("dh298_molar", "J/mol")]
+
+
+@pytest.mark.parametrize("substance,extra", [("CO2", []), ("air", ["--h-datum", "sensible:0C"]),
+                                             ("CH4:0.9,C2H6:0.06,N2:0.04", ["--p-ref", "1atm"])])
+def test_own_values_as_reference_give_zero_deviation(substance, extra, tmp_path, capsys):
+    """The state output in the shared CSV convention compared with its own substance: zero deviation."""
+    T = np.concatenate([np.arange(200.0, 3001.0, 100.0), [298.15]])
+    rows = state_rows(capsys, substance, T, *extra)
+    ref = tmp_path / "own.csv"
+    ref.write_text("# made by tablegen state\n" + ",".join(["T [K]"] + [f"{k} [{u}]" for k, u in KEYS_UNITS]) + "\n"
+                   + "".join(",".join([repr(r["T_K"])] + [repr(r[k]) for k, _ in KEYS_UNITS]) + "\n" for r in rows),
+                   encoding="utf-8")
+    # 1e-12 relative: the kJ <-> J conversions of the state output round in the last bits of float64
+    tol = [a for k, _ in KEYS_UNITS for a in ("--tolerance", f"{k}=1e-10%")]
+    rc, out, _ = run(["compare", substance, ref, "--out", tmp_path / "o", "--json", *extra, *tol], capsys)
+    s = json.loads(out)
+    assert rc == 0, s["out_of_tolerance"][:2]
+    for c in s["columns"]:
+        ref_vals = np.array([r[c["key"]] for r in rows])
+        # the only difference is the kJ <-> J conversion: a few ulp of float64
+        assert c["stats"]["max_abs"] <= 1e-15 * np.max(np.abs(ref_vals)), (c["key"], c["stats"]["max_abs"])
+
+
+# ------------------------------------------------------------------ reports
+def test_report_bytes_are_reproducible(tmp_path, capsys):
+    """Same input, same bytes: the PDF, CSV and JSON of two runs are identical."""
+    ref = write_janaf_csv(tmp_path / "janaf-CO.csv", "CO")
+    for d in ("a", "b"):
+        assert run(["compare", "CO", ref, "--out", tmp_path / d], capsys)[0] == 0
+    for name in ("report.pdf", "deviations.csv", "summary.json"):
+        assert (tmp_path / "a" / name).read_bytes() == (tmp_path / "b" / name).read_bytes()
+    text = (tmp_path / "a" / "report.pdf").read_bytes()
+    assert b"/Helvetica" not in text          # only the embedded DejaVu faces
+    import pypdf
+    pages = pypdf.PdfReader(str(tmp_path / "a" / "report.pdf")).pages
+    first = pages[0].extract_text()
+    assert "PASS" in first and "agreement with the given reference only" in first
+    assert f"page 1 of {len(pages)}" in first
+
+
+def test_extrapolated_rows_are_marked(tmp_path, capsys):
+    """Rows beyond the data range are refused, or with --extrapolate compared and marked."""
+    ref = tmp_path / "hot.csv"
+    ref.write_text("T [K],cp_molar [J/(mol K)]\n1000,32.697\n6500,38.9\n", encoding="utf-8")
+    rc, _, err = run(["compare", "N2", ref, "--out", tmp_path / "o"], capsys)
+    assert rc == 2 and f"{ref}:3:" in err and "6500" in err and "--extrapolate" in err
+    assert not (tmp_path / "o").exists()
+    rc, out, _ = run(["compare", "N2", ref, "--out", tmp_path / "o", "--extrapolate", "--json",
+                      "--tolerance", "cp_molar=5%"], capsys)
+    assert json.loads(out)["extrapolated_rows"] == [3]
+
+
+# --------------------------------------------------------------- bad input
+BAD = [
+    ("missing", None, "not found"),
+    ("unknown key", "T [K],cp_mass [kJ/(kg K)]\n300,1.0\n", ":1: unknown column key 'cp_mass'"),
+    ("unit mismatch", "T [K],cp [kJ/kg]\n300,1.0\n", ":1: column 'cp': unit 'kJ/kg' is a specific energy unit"),
+    ("no unit", "T [K],cp\n300,1.0\n", ":1: header cell 'cp' is not in the form key [unit]"),
+    ("below range", "T [K],cp [kJ/(kg K)]\n300,1.0\n150,1.0\n", ":3: T = 150 K is outside the data range"),
+    ("not a number", "# a note\nT [C],cp [kJ/(kg K)]\n25,1.0x\n", ":3: cell '1.0x' in column 'cp' is not a number"),
+    ("ragged", "T [K],cp [kJ/(kg K)]\n300,1.0,2\n", ":2: 3 cells, but the header names 2 columns"),
+    ("no T", "cp [kJ/(kg K)],h [kJ/kg]\n1.0,2\n", ":1: no temperature column"),
+    ("only gaps", "T [K],cp [kJ/(kg K)]\n300,-\n400,\n", ": the compared columns hold no values"),
+    ("twice", "T [K],cp [kJ/(kg K)],cp [kJ/(kg K)]\n300,1,1\n", ":1: column 'cp [kJ/(kg K)]' appears twice"),
+]
+
+
+@pytest.mark.parametrize("what,content,message", BAD, ids=[b[0] for b in BAD])
+def test_bad_reference_exits_2_with_one_line_naming_file_and_line(what, content, message, tmp_path, capsys):
+    ref = tmp_path / "ref.csv"
+    if content is not None:
+        ref.write_text(content, encoding="utf-8")
+    rc, out, err = run(["compare", "N2", ref, "--out", tmp_path / "o"], capsys)
+    assert rc == 2 and out == ""
+    assert err.count("\n") == 1 and err.startswith(f"tablegen: {ref}")
+    assert message in err
+    assert not (tmp_path / "o").exists()
+
+
+BAD_OPTIONS = [
+    (["--tolerance", "cp=abc"], "--tolerance 'cp=abc'"),
+    (["--tolerance", "h=1"], "column 'h' is not compared"),
+    (["--tolerance", "cp=0.1kJ/kg"], "specific energy unit"),
+    (["--align", "cp=offset"], "cp cannot be aligned"),
+    (["--align", "Pr=offset"], "Pr aligns by scale"),
+    (["--columns", "cp,h"], "'h' is not a column of"),
+    (["--table", "x"], "--table applies to a spec file"),
+]
+
+
+@pytest.mark.parametrize("opts,message", BAD_OPTIONS, ids=[o[1][:20] for o in BAD_OPTIONS])
+def test_bad_options_exit_2(opts, message, tmp_path, capsys):
+    ref = tmp_path / "ref.csv"
+    ref.write_text("T [K],cp [kJ/(kg K)],Pr [-]\n300,1.04,1.0\n", encoding="utf-8")
+    rc, _, err = run(["compare", "N2", ref, "--out", tmp_path / "o", *opts], capsys)
+    assert rc == 2 and err.count("\n") == 1 and message in err, err
+    assert not (tmp_path / "o").exists()
+
+
+def test_existing_output_needs_force(tmp_path, capsys):
+    ref = write_janaf_csv(tmp_path / "janaf-Ar.csv", "Ar")
+    assert run(["compare", "Ar", ref, "--out", tmp_path / "o"], capsys)[0] == 0
+    before = (tmp_path / "o" / "report.pdf").read_bytes()
+    rc, _, err = run(["compare", "Ar", ref, "--out", tmp_path / "o"], capsys)
+    assert rc == 2 and "--force" in err
+    assert (tmp_path / "o" / "report.pdf").read_bytes() == before
+    assert run(["compare", "Ar", ref, "--out", tmp_path / "o", "--force"], capsys)[0] == 0
+
+
+SPEC = """
+[document]
+title = "Harrow Moss boiler house: QA copy"
+number = "HMB-QA-0042"
+revision = "A"
+issue_date = 2026-11-02
+units = "both"
+reference = "standard-15C"
+
+[[tables]]
+name = "air-both"
+substance = "air"
+datum = { kind = "sensible", T = "0 °C" }
+temperature_units = ["°C", "K"]
+columns = ["T", "cp", "h", "cp_mean_h", "s0", "cp_mean_s", "Pr", "vr", "k", "a"]
+grid = { segments = [ { start = "0 °C", stop = "1200 °C", step = "25 °C" } ] }
+
+[[tables]]
+name = "co2-molar"
+substance = "CO2"
+basis = "molar"
+units = "SI"
+P_ref = "1 atm"
+anchor = { T = "0 °C", Pr = 1.0, vr = 1.0 }
+columns = ["T", "cp", "h", "s0", "g0", "cp_mean_h", "Pr", "vr"]
+grid = { segments = [ { start = "250 K", stop = "3000 K", step = "50 K" } ] }
+
+[[tables]]
+name = "flue-vol"
+substance = "CO2:0.09,H2O:0.16,N2:0.72,O2:0.03"
+basis = "volumetric"
+datum = { kind = "sensible", T = "15 °C" }
+temperature_units = ["°C"]
+columns = ["T", "cp", "h", "s0", "cp_mean_h", "cp_mean_s", "k"]
+grid = { segments = [ { start = "15 °C", stop = "1500 °C", step = "15 °C" } ] }
+"""
+
+
+def build_spec(tmp_path, capsys):
+    spec = tmp_path / "harrow-moss.toml"
+    spec.write_text(SPEC, encoding="utf-8")
+    rc, _, err = run(["build", spec, "--out", tmp_path / "book"], capsys)
+    assert rc == 0, err
+    return spec
+
+
+@pytest.mark.parametrize("table", ["air-both", "co2-molar", "flue-vol"])
+def test_built_table_csv_against_its_own_spec_gives_zero_deviation(table, tmp_path, capsys):
+    """A table book's CSV (tablegen build) compared with its spec table: zero deviation in every column,
+    SI and US columns alike, mean cp recomputed here independently of the book's code."""
+    spec = build_spec(tmp_path, capsys)
+    csv_path = tmp_path / "book" / f"{table}.csv"
+    rc, out, err = run(["compare", spec, csv_path, "--table", table, "--out", tmp_path / "o", "--json"], capsys)
+    s = json.loads(out)
+    assert rc == 0, s["out_of_tolerance"][:2]
+    ref = read_reference(csv_path)
+    assert len(s["columns"]) == len(ref.columns) >= 7       # every column compared, none skipped
+    for c in s["columns"]:
+        scale = max(abs(float(x)) for x in ref.columns_of(c["key"])[0].text if x)
+        # the CSV holds the book's doubles (shortest round trip); only unit conversions
+        # and the independent mean-cp evaluation differ, in the last bits of float64
+        assert c["stats"]["max_abs"] <= 1e-12 * scale, (c["key"], c["unit"], c["stats"]["max_abs"])
+
+
+def test_built_table_needs_its_datum_to_match(tmp_path, capsys):
+    """The CO2 table is on P° = 1 atm with Pr = 1 at 0 °C: against plain CO2 its s° and Pr fail,
+    with the same datum options they pass, and --align recovers the entropy offset R ln(1.01325)."""
+    spec = build_spec(tmp_path, capsys)
+    csv_path = tmp_path / "book" / "co2-molar.csv"
+    rc, out, _ = run(["compare", "CO2", csv_path, "--out", tmp_path / "a", "--json"], capsys)
+    bad = {c["column"] for c in json.loads(out)["out_of_tolerance"]}
+    assert rc == 1 and {"s0_molar", "Pr", "vr"} <= bad
+    rc, _, _ = run(["compare", "CO2", csv_path, "--out", tmp_path / "b", "--p-ref", "1atm",
+                    "--anchor", "T=0C,Pr=1,vr=1", "--columns", "s0_molar,Pr,vr,cp_molar"], capsys)
+    assert rc == 0
+    rc, out, _ = run(["compare", "CO2", csv_path, "--out", tmp_path / "c", "--json", "--columns", "s0_molar",
+                      "--align", "s0_molar=offset", "--tolerance", "s0_molar=1e-9"], capsys)
+    assert rc == 0
+    # s°(1 atm) = s°(1 bar) - R ln(101325/100000), R from CODATA 2018
+    assert json.loads(out)["alignments"][0]["value"] == pytest.approx(-8.314462618 * np.log(1.01325), rel=1e-9)
+    rc, _, err = run(["compare", spec, csv_path, "--out", tmp_path / "d"], capsys)
+    assert rc == 2 and "--table" in err and "air-both" in err
+    rc, _, err = run(["compare", spec, csv_path, "--table", "co2-molar", "--p-ref", "1atm",
+                      "--out", tmp_path / "e"], capsys)
+    assert rc == 2 and "spec table carries its own" in err
+
+
+def test_volumetric_columns_use_the_stated_reference_conditions(tmp_path, capsys):
+    """Per-m³ columns of a built table: with --vol-ref standard-15C (the spec's) they pass; at the default
+    normal conditions (0 °C) every one is off by 288.15/273.15 (ideal gas: n = P/(R T)), about 5.5 %."""
+    build_spec(tmp_path, capsys)
+    csv_path = tmp_path / "book" / "flue-vol.csv"
+    sub = ["compare", "CO2:0.09,H2O:0.16,N2:0.72,O2:0.03", csv_path, "--h-datum", "sensible:15C", "--json"]
+    rc, out, _ = run(sub + ["--out", tmp_path / "a", "--vol-ref", "standard-15C"], capsys)
+    assert rc == 0, json.loads(out)["out_of_tolerance"][:2]
+    rc, out, _ = run(sub + ["--out", tmp_path / "b", "--columns", "cp_vol"], capsys)
+    s = json.loads(out)
+    assert rc == 1 and s["options"]["volume_reference"]["T_K"] == 273.15
+    assert s["columns"][0]["stats"]["max_rel"] == pytest.approx(288.15 / 273.15 - 1, rel=1e-9)
+
+
+# ------------------------------------------------------------- unit pieces
+def test_tolerance_forms():
+    """Relative, absolute in the column unit, absolute with its own unit, and both (common practice:
+    '% of reading + absolute', as instrument accuracies are stated)."""
+    units = {"h": unit("kJ/kg"), "cp": unit("kJ/(kg K)")}
+    assert parse_tolerance("cp=0.1%", units)[1].rel == pytest.approx(1e-3)
+    t = parse_tolerance("h=0.5", units)[1]
+    assert t.rel == 0 and t.abs_si == pytest.approx(500.0)
+    t = parse_tolerance("h=0.2%+10 J/kg", units)[1]
+    assert t.rel == pytest.approx(2e-3) and t.abs_si == pytest.approx(10.0)
+    assert parse_tolerance("h=1e+1", units)[1].abs_si == pytest.approx(1e4)
+
+
+def test_rounding_allowance_is_half_the_last_printed_place(tmp_path):
+    """A cell printed to 3 decimals is known to ±0.0005: its rounding passes a zero tolerance."""
+    import tablegen
+    sub = tablegen.substance("N2")
+    cp = sub.properties([1000.0])["cp_molar"][0]
+    ref = tmp_path / "r.csv"
+    ref.write_text(f"T [K],cp_molar [J/(mol K)]\n1000,{cp:.3f}\n", encoding="utf-8")
+    zero = {"cp_molar": parse_tolerance("cp_molar=0", {"cp_molar": unit("J/(mol K)")})[1]}
+    assert compare(sub, read_reference(ref), tolerances=zero).passed
+    ref.write_text(f"T [K],cp_molar [J/(mol K)]\n1000,{round(cp, 3) + 0.002:.3f}\n", encoding="utf-8")
+    assert not compare(sub, read_reference(ref), tolerances=zero).passed
+    ref.write_text(f"T [K],cp_molar [J/(mol K)]\n1000,{cp + 0.0004:.6f}\n", encoding="utf-8")
+    assert not compare(sub, read_reference(ref), tolerances=zero).passed
+
+
+# ------------------------------------------------------------ identities
+from hypothesis import given, settings, strategies as st  # noqa: E402
+
+
+@settings(max_examples=25, deadline=None)
+@given(offset=st.floats(-5000.0, 5000.0), scale=st.floats(1e-3, 1e3),
+       species=st.sampled_from(["N2", "CO2", "H2O", "air"]))
+def test_alignment_recovers_any_offset_and_scale(offset, scale, species, tmp_path_factory):
+    """Identity: a reference made as tablegen + c (h) and tablegen × f (Pr) aligns back to c and f,
+    with zero deviation left (17 significant digits written, so float64 round-off only)."""
+    import tablegen
+    sub = tablegen.substance(species)
+    T = np.linspace(250.0, 2500.0, 19)
+    p = sub.properties(T)
+    path = tmp_path_factory.mktemp("align") / "r.csv"
+    path.write_text("T [K],h [kJ/kg],Pr [-]\n" + "".join(
+        f"{float(t)!r},{float(h / 1000 + offset)!r},{float(pr * scale)!r}\n" for t, h, pr in zip(T, p["h"], p["Pr"])),
+        encoding="utf-8")
+    cmp = compare(sub, read_reference(path), align={"h": "offset", "Pr": "scale"})
+    al = {c.key: c.alignment for c in cmp.columns}
+    assert al["h"].value_in_unit == pytest.approx(offset, abs=1e-9 * (1 + abs(offset) + np.max(np.abs(p["h"])) / 1000))
+    assert al["Pr"].value == pytest.approx(scale, rel=1e-12)
+    assert cmp.passed
