@@ -234,6 +234,8 @@ def text_summary(cmp) -> str:
 
 
 def run(args) -> int:
+    from .common import data_notices
+    data_notices(args)
     from ..compare import summary
     from ..outfiles import write_all
     cmp, files = compute(args)
