@@ -26,6 +26,8 @@ from ..errors import DataError
 
 #: Number of coefficients per interval in the 9-coefficient layout.
 NCOEF = 9
+#: Points evaluated together: small enough that the temporaries stay in cache.
+BLOCK = 32768
 
 
 def nasa7_to_9(c7) -> list[float]:
@@ -98,53 +100,65 @@ class Polynomial:
         """cp/R, h/R (in K) and s/R at temperatures T (K), arrays broadcast.
 
         No range check here: callers (``Substance``) refuse or mark
-        out-of-range temperatures before calling.
+        out-of-range temperatures before calling. Large arrays are worked in
+        blocks that stay in the processor cache; inside a block each interval
+        is evaluated with scalar coefficients on its own contiguous run of
+        points (sorted input: slices; unsorted: a counting sort by interval).
         """
         T = np.asarray(T, dtype=float)
         shape = T.shape
         T = T.ravel()
         out = {k: np.empty_like(T) for k in want}
-        need_log = ("h" in want and self._has_neg) or "s" in want
-        lnT = np.log(T) if need_log else None
-        inv = 1.0 / T if self._has_neg else None
-        n = self.n_intervals
-        if n == 1:
-            self._eval_block(T, lnT, inv, self.coeffs[0], self._h[:, 0], self._s[:, 0], out)
-            return {k: v.reshape(shape) for k, v in out.items()}
-        idx = self.interval_index(T)
-        if T.size < 2 or not np.any(idx[1:] < idx[:-1]):
-            # sorted input (every table grid): contiguous slices, scalar coefficients
-            edges = np.searchsorted(idx, np.arange(n + 1), side="left")
-            for k in range(n):
-                sl = slice(edges[k], edges[k + 1])
-                if sl.start < sl.stop:
-                    part = {key: v[sl] for key, v in out.items()}
-                    self._eval_block(T[sl], None if lnT is None else lnT[sl], None if inv is None else inv[sl],
-                                     self.coeffs[k], self._h[:, k], self._s[:, k], part)
-        else:
-            # unsorted: the most populated interval over the whole array, the
-            # others on their own points only, all with scalar coefficients
-            counts = np.bincount(idx, minlength=n)
-            major = int(np.argmax(counts))
-            self._eval_block(T, lnT, inv, self.coeffs[major], self._h[:, major], self._s[:, major], out)
-            for k in range(n):
-                if k == major or counts[k] == 0:
-                    continue
-                sel = np.flatnonzero(idx == k)
-                part = {key: np.empty(sel.size) for key in want}
-                self._eval_block(T[sel], None if lnT is None else lnT[sel], None if inv is None else inv[sel],
-                                 self.coeffs[k], self._h[:, k], self._s[:, k], part)
-                for key in want:
-                    out[key][sel] = part[key]
+        for a in range(0, T.size, BLOCK):
+            b = min(a + BLOCK, T.size)
+            part = {k: v[a:b] for k, v in out.items()}
+            self._evaluate_block(T[a:b], part)
         return {k: v.reshape(shape) for k, v in out.items()}
 
-    def _eval_block(self, T, lnT, inv, c, h, s, out):
+    def _evaluate_block(self, T, out):
+        n = self.n_intervals
+        if n == 1:
+            self._eval_run(T, 0, out)
+            return
+        if T.size < 2 or not np.any(T[1:] < T[:-1]):
+            # sorted input (every table grid): each interval is a slice
+            edges = [0, *np.searchsorted(T, self._inner, side="right").tolist(), T.size]
+            for k in range(n):
+                if edges[k] < edges[k + 1]:
+                    sl = slice(edges[k], edges[k + 1])
+                    self._eval_run(T[sl], k, {key: v[sl] for key, v in out.items()})
+            return
+        # a breakpoint belongs to the lower interval: count the bounds strictly below T
+        # (a few vector compares beat a binary search per point)
+        idx = np.zeros(T.shape, np.uint8 if n < 256 else np.int32)
+        for b in self._inner:
+            idx += T > b
+        # unsorted: group the points by interval (stable radix sort of small ints), evaluate
+        # each run with scalar coefficients, scatter the results back
+        order = np.argsort(idx, kind="stable")
+        Ts = T[order]
+        edges = np.concatenate([[0], np.cumsum(np.bincount(idx, minlength=n))])
+        tmp = {key: np.empty_like(Ts) for key in out}
+        for k in range(n):
+            if edges[k] < edges[k + 1]:
+                sl = slice(edges[k], edges[k + 1])
+                self._eval_run(Ts[sl], k, {key: v[sl] for key, v in tmp.items()})
+        for key in out:
+            out[key][order] = tmp[key]
+
+    def _eval_run(self, T, k, out):
+        neg = self._has_neg and bool(np.any(self.coeffs[k, :2] != 0.0))
+        need_log = "s" in out or ("h" in out and neg)
+        lnT = np.log(T) if need_log else None
+        inv = 1.0 / T if neg else None
+        self._eval_block(T, lnT, inv, self.coeffs[k], self._h[:, k], self._s[:, k], out, neg)
+
+    def _eval_block(self, T, lnT, inv, c, h, s, out, neg):
         """Horner evaluation, in place, into the arrays of ``out``.
 
         In-place operations keep the cost at a few passes over memory per
         power of T, with no temporary arrays.
         """
-        neg = self._has_neg
         if "cp" in out:
             _horner(out["cp"], T, (c[2], c[3], c[4], c[5], c[6]))
             if neg:

@@ -137,12 +137,15 @@ class Substance:
         """
         if T.size == 0:
             return np.zeros(T.shape, bool) if extrapolate else None
-        if not np.all(np.isfinite(T)) or np.any(T <= 0):
+        t_lo, t_hi = float(T.min()), float(T.max())   # NaN propagates into both
+        if not (math.isfinite(t_lo) and math.isfinite(t_hi)) or t_lo <= 0:
             raise RangeError(f"{self.id}: temperatures must be finite and above 0 K")
         lo, hi = self.T_min, self.T_max
-        out = (T < lo) | (T > hi)
         if extrapolate:
-            return out
+            return (T < lo) | (T > hi)
+        if t_lo >= lo and t_hi <= hi:
+            return None
+        out = (T < lo) | (T > hi)
         if np.any(out):
             bad = float(T[out].flat[0])
             raise RangeError(
