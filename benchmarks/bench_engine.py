@@ -24,6 +24,7 @@ N = 100_000
 
 
 def best(f, repeat=7):
+    f()  # warm-up: first-call caches and fresh memory pages are not what a table run pays for
     ts = []
     for _ in range(repeat):
         t = time.perf_counter()
