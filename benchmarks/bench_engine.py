@@ -38,7 +38,6 @@ def main():
     T = rng.uniform(300.0, 3000.0, N)           # unsorted: the general path
     Ts = np.sort(T)                              # sorted: every table grid
     mix = tablegen.mixture(FLUE)
-    poly = mix.poly
     t_u = best(lambda: mix.cp_h_s0(T))
     t_s = best(lambda: mix.cp_h_s0(Ts))
     t_full = best(lambda: mix.properties(Ts))

@@ -61,7 +61,7 @@ from types import MappingProxyType
 import numpy as np
 
 from .errors import RangeError, TablegenError
-from .thermo.substance import R_MOLAR, T_REF, Substance
+from .thermo.substance import T_REF, Substance
 
 __all__ = ["process", "ProcessResult", "Estimate", "Incompressible", "incompressible",
            "shipped_incompressibles", "parse_incompressible", "STEPS"]
@@ -495,7 +495,7 @@ def _s_gen(step, ds, q, params, T1, T2):
         raise TablegenError("boundary temperature: heat cannot flow from a source colder than the "
                             "substance (or into a sink warmer than it); allowed: a heat source at or "
                             "above the hottest state, a sink at or below the coldest state")
-    return sg, f"heat crosses the boundary at T_boundary: s_gen = s2 - s1 - q/T_boundary"
+    return sg, "heat crosses the boundary at T_boundary: s_gen = s2 - s1 - q/T_boundary"
 
 
 def _range_T(sub, T, what):
@@ -521,7 +521,6 @@ def _gas(sub: Substance, step, T1, P1, params):
     _range_T(sub, T1, "start temperature")
     p1 = sub.properties(T1, P1)
     h1, u1, s1, v1 = p1["h"], p1["u"], p1["s"], p1["v"]
-    R = sub.R
     T2s = h2s = eta = None
     notes = []
     if step in ("compress", "expand"):

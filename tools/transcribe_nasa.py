@@ -14,7 +14,6 @@ Needs: pip install cantera ruamel.yaml (tools only, never at run time).
 
 from __future__ import annotations
 
-import re
 import sys
 from pathlib import Path
 

@@ -54,21 +54,7 @@ def sidecar(book, files: dict) -> dict:
     }
 
 
-def _clean(v):
-    """JSON-ready: numpy scalars to Python numbers; non-finite numbers refused as null."""
-    import math
-    if isinstance(v, dict):
-        return {str(k): _clean(x) for k, x in v.items()}
-    if isinstance(v, (list, tuple)):
-        return [_clean(x) for x in v]
-    if hasattr(v, "item") and not isinstance(v, (str, bytes)):
-        v = v.item()
-    if isinstance(v, float) and not math.isfinite(v):
-        return None
-    return v
-
-
 def render(book, files: dict) -> str:
     """The sidecar text: sorted keys, two-space indent, UTF-8 characters kept."""
-    import json
-    return json.dumps(_clean(sidecar(book, files)), indent=2, sort_keys=True, ensure_ascii=False) + "\n"
+    from ..jsonout import dumps
+    return dumps(sidecar(book, files))

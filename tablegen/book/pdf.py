@@ -13,7 +13,6 @@ ids; the fonts are the embedded DejaVu faces of :mod:`tablegen.book.fonts`.
 from __future__ import annotations
 
 import io
-import math
 from dataclasses import dataclass
 
 from reportlab.lib.pagesizes import A3, A4, A5, landscape, letter

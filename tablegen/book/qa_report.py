@@ -517,7 +517,7 @@ def _plots(flow, cmp):
 
 # ----------------------------------------------------------------- listing
 def _listing(flow, cmp):
-    from ..compare import format_dev, format_like
+    from ..compare import format_dev
     ref = cmp.reference
     cols = list(cmp.columns)
     per = 3

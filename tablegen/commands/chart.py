@@ -210,7 +210,6 @@ def run(args) -> int:
             raise TablegenError("no substance given; e.g. 'tablegen chart air' (or use --spec FILE)")
         sub_name = args.substance
         specs = charts_from_options(args)
-        units = (args.units or "SI").upper()
     sub = substance_with_options(args, sub_name)
     footer = f"tablegen {__version__} · " + (sub.name if sub.name == sub.id else f"{sub.name} ({sub.id})")
     try:

@@ -2,11 +2,10 @@
 
 from __future__ import annotations
 
-import json
-import math
 import sys
 
 from ..errors import TablegenError
+from ..jsonout import clean, dumps  # noqa: F401  (the commands import them from here)
 
 
 def add_datum_options(p, *, with_pressure: bool = True):
@@ -84,21 +83,7 @@ def substance_with_options(args, name: str):
                             anchor=anchor_from_text(getattr(args, "anchor", None)))
 
 
-def clean(v):
-    """JSON-ready: numpy scalars to float, NaN refused."""
-    if isinstance(v, dict):
-        return {k: clean(x) for k, x in v.items()}
-    if isinstance(v, (list, tuple)):
-        return [clean(x) for x in v]
-    if hasattr(v, "item") and not isinstance(v, (str, bytes)):
-        v = v.item()
-    if isinstance(v, float) and not math.isfinite(v):
-        return None
-    return v
 
-
-def dumps(obj) -> str:
-    return json.dumps(clean(obj), indent=2, sort_keys=True, ensure_ascii=False) + "\n"
 
 
 def notice(args, text: str):

@@ -26,7 +26,7 @@ from pathlib import Path
 
 import numpy as np
 
-from ..errors import DataError, NameLookupError, TablegenError
+from ..errors import DataError, NameLookupError
 from ..thermo.polynomial import Polynomial, nasa7_to_9
 from . import formats, validate
 
