@@ -84,8 +84,17 @@ def make_parser(selected: str | None) -> Parser:
         if name == selected:
             module = importlib.import_module(f"tablegen.commands.{mod}")
             module.add_arguments(sp)
+            sp.epilog = example_last(sp.epilog or "")
             sp.set_defaults(_run=module.run)
     return parser
+
+
+def example_last(epilog: str) -> str:
+    """Move the 'example:' block of a command's help to the end, where users look."""
+    blocks = epilog.strip("\n").split("\n\n")
+    ex = [b for b in blocks if b.lstrip().lower().startswith("example")]
+    rest = [b for b in blocks if b not in ex]
+    return "\n\n".join(rest + ex)
 
 
 def _selected(argv) -> str | None:

@@ -65,3 +65,14 @@ def test_help_is_quick_to_import_and_ends_with_an_example():
                          capture_output=True, text=True)
     assert res.returncode == 0 and "example:" in res.stdout
     assert "numpy" not in res.stderr  # heavy libraries load only in the commands that need them
+
+
+@pytest.mark.parametrize("cmd", ["demo", "build", "state", "species", "process", "combust", "compare",
+                                 "chart", "fit", "export"])
+def test_every_help_ends_with_an_example(capsys, cmd):
+    with pytest.raises(SystemExit) as e:
+        main([cmd, "--help"])
+    assert e.value.code == 0
+    out = capsys.readouterr().out.rstrip()
+    tail = out[out.rfind("example"):]
+    assert "example" in out and f"tablegen {cmd}" in tail or (cmd == "process" and "tablegen process" in tail)
