@@ -75,4 +75,4 @@ def test_every_help_ends_with_an_example(capsys, cmd):
     assert e.value.code == 0
     out = capsys.readouterr().out.rstrip()
     tail = out[out.rfind("example"):]
-    assert "example" in out and f"tablegen {cmd}" in tail or (cmd == "process" and "tablegen process" in tail)
+    assert out.rfind("example") > 0 and f"tablegen {cmd}" in tail
