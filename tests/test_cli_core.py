@@ -76,3 +76,22 @@ def test_every_help_ends_with_an_example(capsys, cmd):
     out = capsys.readouterr().out.rstrip()
     tail = out[out.rfind("example"):]
     assert out.rfind("example") > 0 and f"tablegen {cmd}" in tail
+
+
+def test_check_reports_the_jump_at_every_breakpoint(capsys):
+    import numpy as np
+
+    from tablegen.data.library import library
+    from tablegen.thermo.polynomial import Polynomial
+    code, out, _ = run(capsys, "species", "--check", "--json")
+    assert code == 0
+    jumps = json.loads(out)["breakpoint_jumps"]
+    lib = library()
+    expected = sum(r.poly.n_intervals - 1 for d in lib.search_order for r in lib.datasets[d].records())
+    assert len(jumps) == expected
+    # CO2 of TM-4513 at 1000 K, by evaluating each interval's own coefficients there
+    j = next(x for x in jumps if x["dataset"] == "nasa1993" and x["id"] == "CO2")
+    rec = lib.record("CO2", source="nasa1993")
+    lo = Polynomial(np.array([500.0, 2000.0]), rec.poly.coeffs[:1]).evaluate(np.array([1000.0]))
+    hi = Polynomial(np.array([500.0, 2000.0]), rec.poly.coeffs[1:2]).evaluate(np.array([1000.0]))
+    assert j["cp"] == pytest.approx(abs(hi["cp"][0] - lo["cp"][0]) / abs(lo["cp"][0]), rel=1e-6)

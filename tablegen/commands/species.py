@@ -127,6 +127,22 @@ def user_records_passed(lib) -> list[dict]:
     return out
 
 
+def breakpoint_jumps(lib) -> list[dict]:
+    """The relative jump of cp, h and s° at every inner breakpoint of every record."""
+    from ..errors import DataError
+    out = []
+    for d in lib.search_order:
+        ds = lib.datasets[d]
+        for i in range(len(ds)):
+            try:
+                r = ds._parse(i)
+            except DataError:
+                continue  # listed among the errors
+            for j in r.poly.boundary_jumps():
+                out.append({"dataset": d, "id": r.id, "T_K": j["T_K"], "cp": j["cp"], "h": j["h"], "s0": j["s"]})
+    return out
+
+
 def run(args) -> int:
     from ..data.library import library
     lib = library(args.data, strict=not args.check)
@@ -138,8 +154,10 @@ def run(args) -> int:
     if args.check:
         warnings, errors = check(lib)
         passed = user_records_passed(lib)
+        jumps = breakpoint_jumps(lib)
         if args.json:
             sys.stdout.write(dumps({"errors": errors, "warnings": warnings, "user_records_passed": passed,
+                                    "breakpoint_jumps": jumps,
                                     "datasets": {d: len(lib.datasets[d]) for d in lib.search_order}}))
         else:
             for d in lib.search_order:
@@ -151,6 +169,12 @@ def run(args) -> int:
                 print(f"error: {e}")
             for w in warnings:
                 print(f"warning: {w['dataset']} {w['id']} ({w['file']}:{w['line']}): {w['text']}")
+            for d in lib.search_order:
+                js = [j for j in jumps if j["dataset"] == d]
+                if js:
+                    worst = {k: max(js, key=lambda j: j[k]) for k in ("cp", "h", "s0")}
+                    print(f"{d}: {len(js)} breakpoints; largest relative jumps: " + ", ".join(
+                        f"{k} {w[k]:.1e} ({w['id']} at {w['T_K']:g} K)" for k, w in worst.items()))
             print("checked: fields and column widths, contiguous intervals, molar mass against the elements, "
                   "cp > 0, h and s° increasing, cp, h and s° continuous at breakpoints")
             print(f"{len(errors)} errors, {len(warnings)} warnings")
