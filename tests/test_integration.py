@@ -88,3 +88,37 @@ grid = { segments = [ { start = "300 K", stop = "1500 K", step = "100 K" } ] }
     i = head.index("U_cp [kJ/(kg K)]")
     got = np.array([float(r.split(",")[i]) for r in lines[1:]])
     np.testing.assert_allclose(got, b.U("cp") / 1e3, rtol=1e-12)
+
+
+def test_charts_grouped_after_the_tables(tmp_path):
+    spec = tmp_path / "g.toml"
+    chart = '''
+[[tables.charts]]
+kind = "ts"
+paper = "A4"
+T_range = ["300K", "900K"]
+pressures = ["1bar", "4bar"]
+'''
+    spec.write_text('''[document]
+title = "Grouped charts"
+number = "G-1"
+revision = "A"
+issue_date = 2026-12-01
+chart_placement = "grouped"
+
+[[tables]]
+name = "n2"
+substance = "N2"
+grid = { segments = [ { start = "300 K", stop = "900 K", step = "100 K" } ] }
+''' + chart + '''
+[[tables]]
+name = "co2"
+substance = "CO2"
+grid = { segments = [ { start = "300 K", stop = "900 K", step = "100 K" } ] }
+''' + chart)
+    assert main(["build", str(spec), "--out", str(tmp_path / "o"), "--quiet"]) == 0
+    pages = [p.extract_text() for p in PdfReader(tmp_path / "o" / "g.pdf").pages]
+    table2 = max(i for i, t in enumerate(pages) if "Table 2." in t)
+    charts = [i for i, t in enumerate(pages) if "Temperature-entropy (T-s) chart" in t]
+    assert len(charts) == 2 and min(charts) > table2
+    assert any("Charts" in t for t in pages[:3])

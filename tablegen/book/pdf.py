@@ -520,13 +520,21 @@ def plan(book):
     contents = [("How to read these tables", "read"), ("Substances and compositions", "subs"),
                 ("Data sources", "sources"), ("Caution", "caution")]
     contents += [(f"Table {i}. {t.title}", f"table{i}") for i, t in enumerate(book.tables, 1)]
+    grouped = d.chart_placement == "grouped" and any(t.charts for t in book.tables)
+    if grouped:
+        contents.append(("Charts", "charts"))
     contents += [(f"Appendix {chr(64 + i)}. {s.title}", f"appendix{i}") for i, s in enumerate(book.appendix, 1)]
     pages: list[Page] = []
     _front(book, L, pages, contents)
     for i, t in enumerate(book.tables, 1):
         table_pages(t, i, L, pages)
-        if t.charts:
+        if t.charts and not grouped:
             _chart_pages(t, L, pages)
+    if grouped:
+        first = len(pages)
+        for t in book.tables:
+            _chart_pages(t, L, pages)
+        pages[first].ops.insert(0, ("anchor", "charts"))
     if book.appendix:
         f = Flow(book, L, pages, "appendix")
         for i, s in enumerate(book.appendix, 1):
