@@ -125,7 +125,8 @@ class TableSpec:
     temperature_units: tuple
     T_mean_ref_K: float
     extrapolate: bool
-    charts: tuple = ()           # filled in by tablegen.book.charts (later)
+    charts: tuple = ()           # ChartSpec (tablegen.book.charts)
+    composition_u: tuple | None = None   # (basis, {species id: standard uncertainty}) of the fractions
 
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -313,12 +314,32 @@ def _reference(v, where) -> Reference:
 
 
 # ---------------------------------------------------------------- substances
-SUBSTANCE_KEYS = ("name", "of", "mixture", "basis", "combustion")
+SUBSTANCE_KEYS = ("name", "of", "mixture", "basis", "combustion", "fraction_uncertainty")
 
 
-def _substances(raw, where, source, data) -> dict:
-    """[substances.ID] tables -> {ID: Substance} (before per-table options)."""
+def _fraction_u(raw, comp, where, source, data) -> dict:
+    """fraction_uncertainty = {SPECIES = u}: standard uncertainties of the given fractions."""
+    from .data.library import library
+    if not isinstance(raw, dict) or not raw:
+        _fail(where, "must be a table of species = standard uncertainty of its fraction, e.g. {CH4 = 0.005}")
+    out = {}
+    for k, u in raw.items():
+        if k not in comp:
+            _fail(f"{where}.{k}", f"is not a component of this mixture; allowed: {', '.join(comp)}")
+        if isinstance(u, bool) or not isinstance(u, (int, float)) or not (math.isfinite(u) and 0 <= u < 1):
+            _fail(f"{where}.{k}", f"must be a standard uncertainty of a fraction, 0 <= u < 1, not {u!r}")
+        out[library(tuple(data)).record(k, source=source).id] = float(u)
+    return out
+
+
+def _substances(raw, where, source, data, comp_u=None) -> dict:
+    """[substances.ID] tables -> {ID: Substance} (before per-table options).
+
+    ``comp_u`` (a dict) receives {ID: (basis, {species id: u})} for mixtures that
+    state the uncertainty of their fractions.
+    """
     from . import api
+    comp_u = {} if comp_u is None else comp_u
     if not isinstance(raw, dict):
         _fail(where, f"must be a table of named substances, not {_typename(raw)}")
     out = {}
@@ -329,6 +350,8 @@ def _substances(raw, where, source, data) -> dict:
         if not isinstance(entry, dict):
             _fail(w, f"must be a table, not {_typename(entry)}")
         _check_keys(entry, SUBSTANCE_KEYS, w)
+        if "fraction_uncertainty" in entry and "mixture" not in entry:
+            _fail(f"{w}.fraction_uncertainty", "applies only to 'mixture' (the fractions it qualifies)")
         given = [k for k in ("of", "mixture", "combustion") if k in entry]
         if len(given) != 1:
             _fail(w, "give exactly one of 'of' (a species, alias or shipped mixture), "
@@ -355,6 +378,9 @@ def _substances(raw, where, source, data) -> dict:
                 basis = _choice(entry, "basis", ("mole", "mass"), w, "mole")
                 sub = api.mixture(dict(comp), basis=basis, source=source, data=data, id=sid,
                                   name=name or sid)
+                if "fraction_uncertainty" in entry:
+                    comp_u[sid] = (basis, _fraction_u(entry["fraction_uncertainty"], comp,
+                                                      f"{w}.fraction_uncertainty", source, data))
             else:
                 sub = _combustion(entry["combustion"], f"{w}.combustion", source=source, data=data)
                 sub = replace(sub, id=sid, name=name or sub.name, _cache={})
@@ -819,7 +845,8 @@ def parse(raw: dict, *, name: str, base: Path | None = None, source: str | None 
         if src not in known:
             w = "document.source" if source is None else "--source"
             _fail(w, f"unknown data set {src!r}; allowed: {', '.join(sorted(known))}")
-    subs = _substances(raw.get("substances", {}), "substances", src, data)
+    comp_u: dict = {}
+    subs = _substances(raw.get("substances", {}), "substances", src, data, comp_u)
     defaults = raw.get("defaults", {})
     if not isinstance(defaults, dict):
         _fail("defaults", f"must be a table, not {_typename(defaults)}")
@@ -838,6 +865,8 @@ def parse(raw: dict, *, name: str, base: Path | None = None, source: str | None 
     total = 0
     for i, t in enumerate(tabs):
         ts = _table(t, f"tables[{i}]", defaults, doc, subs, src, data)
+        if ts.substance_ref in comp_u:
+            ts = replace(ts, composition_u=comp_u[ts.substance_ref])
         if ts.name.casefold() in names:
             _fail(f"tables[{i}].name", f"{ts.name!r} is used by an earlier table; names must be unique")
         names.add(ts.name.casefold())
@@ -885,4 +914,8 @@ def normalise(spec: BookSpec, source) -> dict:
     for k, s in sorted(spec.substances.items()):
         subs[k] = {"id": s.id, "name": s.name, "kind": s.kind,
                    "mole_fractions": {c.id: c.mole_fraction for c in s.components}}
+    for t in spec.tables:
+        if t.composition_u is not None and t.substance_ref in subs:
+            subs[t.substance_ref]["fraction_uncertainty"] = {"basis": t.composition_u[0],
+                                                             "u": dict(sorted(t.composition_u[1].items()))}
     return {"name": spec.name, "document": doc, "substances": subs, "tables": tables}

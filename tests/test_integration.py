@@ -122,3 +122,46 @@ grid = { segments = [ { start = "300 K", stop = "900 K", step = "100 K" } ] }
     charts = [i for i, t in enumerate(pages) if "Temperature-entropy (T-s) chart" in t]
     assert len(charts) == 2 and min(charts) > table2
     assert any("Charts" in t for t in pages[:3])
+
+
+CU_SPEC = '''[document]
+title = "Composition uncertainty"
+number = "C-1"
+revision = "A"
+issue_date = 2026-12-01
+
+[substances.gas]
+mixture = { CH4 = 0.9, N2 = 0.1 }
+fraction_uncertainty = { %s }
+
+[[tables]]
+name = "gas"
+substance = "gas"
+columns = ["T", "cp"]
+grid = { segments = [ { start = "300 K", stop = "900 K", step = "100 K" } ] }
+'''
+
+
+def test_fraction_uncertainty_reaches_the_budget(tmp_path):
+    import numpy as np
+
+    import tablegen.uncertainty as unc
+    src = tmp_path / "cu.toml"
+    src.write_text(CU_SPEC % "CH4 = 0.01, N2 = 0.01")
+    assert main(["build", str(src), "--out", str(tmp_path / "o"), "--quiet"]) == 0
+    meta = json.loads((tmp_path / "o" / "cu.json").read_text())
+    band = meta["tables"][0]["uncertainty"]["keys"]["cp"]["bands"][0]
+    mix = tablegen.mixture({"CH4": 0.9, "N2": 0.1})
+    b = unc.budget(mix, np.arange(300.0, 901.0, 100.0), ["cp"], composition_u={"CH4": 0.01, "N2": 0.01},
+                   printed_step={"cp": 0.1})
+    assert band["components"]["composition"] == pytest.approx(b.to_json()["keys"]["cp"]["bands"][0]
+                                                              ["components"]["composition"], rel=1e-9)
+    assert meta["spec"]["substances"]["gas"]["fraction_uncertainty"]["u"] == {"CH4": 0.01, "N2": 0.01}
+
+
+def test_fraction_uncertainty_of_a_non_component_is_refused(tmp_path, capsys):
+    src = tmp_path / "bad.toml"
+    src.write_text(CU_SPEC % "CO2 = 0.01")
+    assert main(["build", str(src), "--out", str(tmp_path / "o")]) == 2
+    err = capsys.readouterr().err
+    assert "substances.gas.fraction_uncertainty.CO2" in err and not (tmp_path / "o").exists()

@@ -422,7 +422,10 @@ def _uncertainty(t, doc, sub, cols, notes):
         if c.decimals is not None:
             steps[k] = 10.0 ** (-c.decimals) * unit_factor(k, c.system, t.basis) / basis_scale(
                 k, sub, t.basis, doc.reference)
-    b = unc.budget(sub, t.T_K[inside], keys, P_max_Pa=doc.max_pressure_Pa, printed_step=steps)
+    cu = getattr(t, "composition_u", None)
+    b = unc.budget(sub, t.T_K[inside], keys, P_max_Pa=doc.max_pressure_Pa, printed_step=steps,
+                   composition_u=None if cu is None else cu[1],
+                   composition_basis="mole" if cu is None else cu[0])
     figures = []
     for k in keys:
         c = first[k]
