@@ -133,18 +133,15 @@ class Polynomial:
         idx = np.zeros(T.shape, np.uint8 if n < 256 else np.int32)
         for b in self._inner:
             idx += T > b
-        # unsorted: group the points by interval (stable radix sort of small ints), evaluate
-        # each run with scalar coefficients, scatter the results back
-        order = np.argsort(idx, kind="stable")
-        Ts = T[order]
-        edges = np.concatenate([[0], np.cumsum(np.bincount(idx, minlength=n))])
-        tmp = {key: np.empty_like(Ts) for key in out}
+        # unsorted: the points of each interval (index lists are cheaper than a sort),
+        # evaluated as one run with scalar coefficients, results scattered back
         for k in range(n):
-            if edges[k] < edges[k + 1]:
-                sl = slice(edges[k], edges[k + 1])
-                self._eval_run(Ts[sl], k, {key: v[sl] for key, v in tmp.items()})
-        for key in out:
-            out[key][order] = tmp[key]
+            sel = np.flatnonzero(idx == k)
+            if sel.size:
+                part = {key: np.empty(sel.size) for key in out}
+                self._eval_run(T[sel], k, part)
+                for key in out:
+                    out[key][sel] = part[key]
 
     def _eval_run(self, T, k, out):
         neg = self._has_neg and bool(np.any(self.coeffs[k, :2] != 0.0))
