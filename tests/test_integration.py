@@ -165,3 +165,22 @@ def test_fraction_uncertainty_of_a_non_component_is_refused(tmp_path, capsys):
     assert main(["build", str(src), "--out", str(tmp_path / "o")]) == 2
     err = capsys.readouterr().err
     assert "substances.gas.fraction_uncertainty.CO2" in err and not (tmp_path / "o").exists()
+
+
+def test_chart_of_combustion_products_shows_their_cautions(tmp_path):
+    assert main(["chart", "flue@CH4@excess-air=15", "--kind", "ts", "--format", "pdf", "--out", str(tmp_path),
+                 "--quiet"]) == 0
+    pdf = next(tmp_path.glob("*.pdf"))
+    text = " ".join(p.extract_text() for p in PdfReader(pdf).pages)
+    assert "toxic and asphyxiant" in " ".join(text.split())
+
+
+def test_state_and_process_print_the_cautions_of_combustion_products(capsys):
+    name = "flue@CH4@excess-air=15"
+    assert main(["state", name, "--T", "400K"]) == 0
+    out = capsys.readouterr().out
+    assert "caution: Flue gas is toxic and asphyxiant" in out
+    assert main(["state", name, "--T", "400K", "--json"]) == 0
+    assert any("asphyxiant" in c for c in json.loads(capsys.readouterr().out)[0]["cautions"])
+    assert main(["process", name, "--from", "T=600K,P=1bar", "--heat-to", "420K", "--json"]) == 0
+    assert any("asphyxiant" in c for c in json.loads(capsys.readouterr().out)["cautions"])

@@ -960,6 +960,11 @@ def _panel(substance, spec, cv, ov_states, ov_steps, points, system, notes, fs, 
         text.append("Contains water vapour: below its dew point water (and any acid formed from "
                     "SO2 or SO3) condenses; lines there do not describe the gas, and condensing "
                     "acid attacks metal surfaces.")
+    if getattr(substance, "cautions", ()):
+        # combustion products: the cautions that travel with the gas, in short
+        text.append("Combustion products (frozen complete combustion, no dissociation): flue gas is "
+                    "toxic and asphyxiant; the acid dew point of sulfur-bearing flue gas lies well "
+                    "above the water dew point and is not computed.")
     text.append("Ideal-gas model: not valid near saturation or at high pressure, where real-gas "
                 "effects matter; for design, check against real-gas data and follow local codes "
                 "and licensed engineering practice.")

@@ -263,7 +263,7 @@ def result_to_json(res, sub, step, params) -> dict:
         out["h_datum"] = sub.datum.describe()
         out["P_ref_Pa"] = sub.P_ref_Pa
         out["sources"] = [list(s) for s in sub.sources]
-        out["cautions"] = [CAUTION_GAS, CAUTION_CODES]
+        out["cautions"] = [CAUTION_GAS, *getattr(sub, "cautions", ()), CAUTION_CODES]
     else:
         out["h_datum"] = f"u = 0 and s = 0 at {sub.T_ref_K:g} K; h = u + P v"
         out["incompressible"] = {"c_J_per_kgK": list(sub.c_J_per_kgK), "rho_kg_per_m3": sub.rho_kg_per_m3,

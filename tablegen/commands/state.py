@@ -61,6 +61,8 @@ def compute(args) -> tuple[list[dict], object]:
             row["P_Pa"] = P
         if "extrapolated" in p:
             row["extrapolated"] = bool(p["extrapolated"][i])
+        if sub.cautions:
+            row["cautions"] = list(sub.cautions)
         rows.append(row)
     return rows, sub
 
@@ -89,6 +91,7 @@ def run(args) -> int:
         out.append("  ".join(c.rjust(w) for c, w in zip(row, widths)))
     if any(r.get("extrapolated") for r in rows):
         out.append("* extrapolated beyond the data range: not for design use")
+    out.extend(f"caution: {c}" for c in sub.cautions)
     sys.stdout.write("\n".join(out) + "\n")
     if sub.kind == "mixture":
         notice(args, "note: mixture s° includes the ideal mixing term -R Σ y ln y")
