@@ -101,6 +101,7 @@ class ColumnSpec:
     unit: str            # unit symbol as printed (temperature unit for T)
     decimals: int | None
     significant: int | None
+    auto: bool = False   # digits not set by the spec: the book chooses decimals from the uncertainty
 
 
 @dataclass(frozen=True, slots=True)
@@ -674,7 +675,7 @@ def _columns(raw, where, system, basis, t_units, decimals, significant) -> tuple
             elif c in SIGNIFICANT_BY_DEFAULT:
                 out.append(ColumnSpec(c, s, u, None, SIGNIFICANT_BY_DEFAULT[c]))
             else:
-                out.append(ColumnSpec(c, s, u, default_decimals(c, s, basis), None))
+                out.append(ColumnSpec(c, s, u, default_decimals(c, s, basis), None, auto=True))
     return tuple(out)
 
 
@@ -900,7 +901,8 @@ def normalise(spec: BookSpec, source) -> dict:
             "units": t.units, "basis": t.basis, "temperature_units": list(t.temperature_units),
             "grid": t.grid, "rows": int(t.T_K.size), "T_K": [float(x) for x in t.T_K],
             "extra_rows": [{"T_K": e.T_K, "label": e.label} for e in t.extra_rows],
-            "columns": [{"key": c.key, "system": c.system, "unit": c.unit, "decimals": c.decimals,
+            "columns": [{"key": c.key, "system": c.system, "unit": c.unit,
+                         "decimals": "auto" if c.auto else c.decimals,
                          "significant": c.significant} for c in t.columns],
             "datum": {"kind": s.datum.kind, "T_ref_K": s.datum.T_ref_K, "h_ref_J_per_kg": s.datum.h_ref_J_per_kg},
             "P_ref_Pa": s.P_ref_Pa,

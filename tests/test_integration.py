@@ -83,8 +83,11 @@ grid = { segments = [ { start = "300 K", stop = "1500 K", step = "100 K" } ] }
     import tablegen.uncertainty as unc
     import numpy as np
     sp = specmod.load(str(src))
+    meta = json.loads((tmp_path / "out" / "u.json").read_text())
+    dec = {c["key"]: c["decimals"] for c in meta["tables"][0]["columns"]}
+    # printed in kJ/(kg K) and kJ/kg: one unit of the last digit is 10^-d kJ
     b = unc.budget(sp.tables[0].substance, sp.tables[0].T_K, ["cp", "h"], P_max_Pa=1e6,
-                   printed_step={"cp": 1e-4 * 1e3, "h": 1e-2 * 1e3})
+                   printed_step={"cp": 10.0 ** -dec["cp"] * 1e3, "h": 10.0 ** -dec["h"] * 1e3})
     i = head.index("U_cp [kJ/(kg K)]")
     got = np.array([float(r.split(",")[i]) for r in lines[1:]])
     np.testing.assert_allclose(got, b.U("cp") / 1e3, rtol=1e-12)
@@ -140,6 +143,25 @@ substance = "gas"
 columns = ["T", "cp"]
 grid = { segments = [ { start = "300 K", stop = "900 K", step = "100 K" } ] }
 '''
+
+
+def test_default_decimals_follow_the_uncertainty(tmp_path):
+    """No thrown-away precision: where the spec sets no digits, half a unit of the last
+    printed digit stays at or below U/4 (U: the data part, as the budget's digit rule) at every
+    row (tablegen.uncertainty.digits_for rule)."""
+    import numpy as np
+
+    import tablegen.uncertainty as unc
+    src = tmp_path / "d.toml"
+    src.write_text(CU_SPEC.replace("fraction_uncertainty = { %s }\n", ""))
+    assert main(["build", str(src), "--out", str(tmp_path / "o"), "--quiet"]) == 0
+    meta = json.loads((tmp_path / "o" / "d.json").read_text())
+    d = {c["key"]: c["decimals"] for c in meta["tables"][0]["columns"]}["cp"]
+    assert {c["key"]: c["decimals"] for c in meta["spec"]["tables"][0]["columns"]}["cp"] == "auto"
+    mix = tablegen.mixture({"CH4": 0.9, "N2": 0.1})
+    U = unc.budget(mix, np.arange(300.0, 901.0, 100.0), ["cp"]).U("cp", "data") / 1e3   # kJ/(kg K)
+    assert 0.5 * 10.0 ** -d <= U.min() / 4 * (1 + 1e-12)
+    assert 0.5 * 10.0 ** -(d - 1) > U.min() / 4      # one digit fewer would throw precision away
 
 
 def test_fraction_uncertainty_reaches_the_budget(tmp_path):

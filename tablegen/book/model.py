@@ -112,7 +112,10 @@ ROUNDING_RULE = ("Each printed value is the computed double-precision value roun
                  "printed number of decimals (or of significant digits, for Pr and vr), ties to even "
                  "on the exact binary value; the CSV files carry the unrounded values. A value of n "
                  "significant digits below 0.0001 or from 10ⁿ⁺² up is printed in exponent form: "
-                 "2.0182e-05 = 2.0182 × 10⁻⁵.")
+                 "2.0182e-05 = 2.0182 × 10⁻⁵. Where the spec does not set them, the decimals of a "
+                 "column are chosen from its stated uncertainty U: the last printed digit is the "
+                 "largest power of ten not above U/2 at the row where U is smallest, so rounding "
+                 "adds at most 4 % to U there and no precision is thrown away at any row.")
 
 CAUTIONS = (
     "These tables follow the ideal-gas model: the properties depend on temperature only "
@@ -401,6 +404,33 @@ def basis_scale(key: str, sub, basis: str, reference) -> float:
     return Mk * reference.P_Pa / (R_MOLAR * reference.T_K)
 
 
+def _auto_decimals(t, doc, sub) -> dict:
+    """Decimals of the columns whose digits the spec leaves open, from their uncertainty.
+
+    (key, system) -> decimals: tablegen.uncertainty.digits_for at the row where the
+    data part of U is smallest. Digits follow the data uncertainty, as the budget's own
+    rule does: the pressure- and composition-dependent parts differ between users of one
+    table, and the rounding part depends on this very choice.
+    """
+    want = [c for c in t.columns if getattr(c, "auto", False) and c.decimals is not None
+            and c.key in BUDGET_KEYS]
+    inside = (t.T_K >= sub.T_min) & (t.T_K <= sub.T_max)
+    if not want or not inside.any():
+        return {}
+    from .. import uncertainty as unc
+    keys = list(dict.fromkeys(c.key for c in want))
+    # one row for T_rows: the interpolation part is not needed for this choice
+    b = unc.budget(sub, t.T_K[inside], keys, P_max_Pa=doc.max_pressure_Pa, T_rows=t.T_K[inside][:1])
+    out = {}
+    for c in want:
+        U = b.U(c.key, "data")
+        ok = np.isfinite(U) & (U > 0)
+        if ok.any():
+            uf = unit_factor(c.key, c.system, t.basis) / basis_scale(c.key, sub, t.basis, doc.reference)
+            out[(c.key, c.system)] = int(np.clip(np.max(unc.digits_for(U[ok], unit_factor=uf)), 0, 8))
+    return out
+
+
 def _uncertainty(t, doc, sub, cols, notes):
     """Budget of the table's printed columns: notes per column, JSON figures, CSV columns.
 
@@ -471,8 +501,12 @@ def build_table(t, doc) -> TableModel:
     keys = list(dict.fromkeys(c.key for c in t.columns))
     vals = column_values_SI(sub, t.T_K, keys, extrapolate=t.extrapolate, basis=t.basis,
                             reference=doc.reference, T_mean_ref_K=t.T_mean_ref_K)
+    auto = _auto_decimals(t, doc, sub)
     cols = []
     for c in t.columns:
+        if getattr(c, "auto", False) and (c.key, c.system) in auto:
+            from dataclasses import replace as _replace
+            c = _replace(c, decimals=auto[(c.key, c.system)])
         if c.key == "T":
             # grid temperatures are exact decimals in their own unit; conversion leaves binary
             # noise (-59.66999999999996 °F) that 1e-9 rounding removes without loss
