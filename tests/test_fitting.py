@@ -190,7 +190,11 @@ def test_constraints_hold_for_any_breakpoints(bps, h298, s298, form):
         assert "ill-conditioned" in str(e)
         assume(False)
     ref = fit.poly.evaluate(np.array([298.15]))
+    # The anchors are imposed on the coefficients in the scaled variable T/1000 and carried
+    # over to raw-T coefficients; that conversion keeps them to about 1e-11 relative, and
+    # hypothesis found a case at 1e-11 (nasa7 with breakpoints 2000 and 3000 K). 1e-9
+    # relative is a millionth of the last digit any table prints.
     assert math.isclose(ref["h"][0] * R_MOLAR, h298, abs_tol=1e-6 * (1 + abs(h298)))
-    assert math.isclose(ref["s"][0] * R_MOLAR, s298, rel_tol=1e-11)
+    assert math.isclose(ref["s"][0] * R_MOLAR, s298, rel_tol=1e-9)
     for j in fit.poly.boundary_jumps():
         assert j["cp"] < 1e-10 and j["h"] < 1e-10 and j["s"] < 1e-10
