@@ -40,7 +40,7 @@ import numpy as np
 
 from .errors import RangeError, TablegenError, UnitError
 from .thermo.substance import R_MOLAR
-from .units import BTU, FT, PSI, Unit, canon, unit
+from .units import PSI, Unit, unit
 
 #: Property key -> unit dimension, for every key a REFERENCE column may carry.
 #: Pressure-dependent keys (s, v, rho) are left out: a reference table of
@@ -67,28 +67,8 @@ KEY_DIMENSIONS.update({
 MEAN_KEYS = ("cp_mean_h", "cp_mean_s", "cp_mean_h_molar", "cp_mean_s_molar", "cp_mean_h_vol", "cp_mean_s_vol")
 VOL_KEYS = tuple(k for k in KEY_DIMENSIONS if k.endswith("_vol"))
 
-#: Units of the volumetric basis (tablegen.units has none): Btu/ft³ from the exact
-#: 1959 pound and foot and the International Table Btu, as in tablegen.units.
-_VOL_UNITS = {
-    "volumetric_energy": [("J/m³", 1.0), ("kJ/m³", 1e3), ("MJ/m³", 1e6), ("Btu/ft³", BTU / FT ** 3)],
-    "volumetric_entropy": [("J/(m³ K)", 1.0), ("kJ/(m³ K)", 1e3), ("MJ/(m³ K)", 1e6),
-                           ("Btu/(ft³ °R)", BTU / FT ** 3 * 9 / 5)],
-}
-_VOL_CANON = {canon(sym): Unit(sym, dim, f) for dim, lst in _VOL_UNITS.items() for sym, f in lst}
-_VOL_CANON.update({canon(sym.replace("K)", "°F)").replace("°R", "°F")): Unit(sym, dim, f)
-                   for dim, lst in _VOL_UNITS.items() for sym, f in lst if "K)" in sym or "°R" in sym})
-
-
 def _unit(text: str, dimension: str) -> Unit:
-    """tablegen.units lookup, extended by the per-m³ and per-ft³ units of the volumetric basis."""
-    if dimension in _VOL_UNITS:
-        c = canon(text)
-        alt = c.replace("/", "/(", 1) + ")" if "/" in c and "(" not in c else c
-        u = _VOL_CANON.get(c) or _VOL_CANON.get(alt)
-        if u is None or u.dimension != dimension:
-            allowed = ", ".join(sym for sym, _ in _VOL_UNITS[dimension])
-            raise UnitError(f"unit {text!r} does not fit this column; allowed: {allowed}")
-        return u
+    """tablegen.units lookup (which knows the per-m³ and per-ft³ units of the volumetric basis)."""
     return unit(text, dimension)
 
 

@@ -9,7 +9,8 @@ Exact conversion factors, each by definition:
   lbm = 0.45359237 kg, ft = 0.3048 m (International Yard and Pound Agreement, 1959);
   Btu (International Table) = 1055.05585262 J, so Btu/lbm = 2326 J/kg and
   Btu/(lbm·°R) = 4186.8 J/(kg·K); atm = 101325 Pa; bar = 1e5 Pa;
-  psi = lbf/in² = 6894.757293168361 Pa (lbf = 4.4482216152605 N).
+  psi = lbf/in² = 6894.757293168361 Pa (lbf = 4.4482216152605 N);
+  Btu/ft³ = 1055.05585262 / 0.3048³ J/m³.
 """
 
 from __future__ import annotations
@@ -75,6 +76,15 @@ _TABLE = dict(
     + _u("kg/m³", "density", 1.0, 0.0, "kg/m3")
     + _u("lbm/ft³", "density", LBM / FT ** 3, 0.0, "lbm/ft3", "lb/ft3")
     + _u("kg/kmol", "molar_mass", 1.0, 0.0, "g/mol")
+    # the volumetric basis: per m³ (or ft³) of gas at stated reference conditions
+    + _u("J/m³", "volumetric_energy", 1.0, 0.0, "J/m3")
+    + _u("kJ/m³", "volumetric_energy", 1e3, 0.0, "kJ/m3")
+    + _u("MJ/m³", "volumetric_energy", 1e6, 0.0, "MJ/m3")
+    + _u("Btu/ft³", "volumetric_energy", BTU / FT ** 3, 0.0, "Btu/ft3")
+    + _u("J/(m³ K)", "volumetric_entropy", 1.0)
+    + _u("kJ/(m³ K)", "volumetric_entropy", 1e3)
+    + _u("MJ/(m³ K)", "volumetric_entropy", 1e6)
+    + _u("Btu/(ft³ °R)", "volumetric_entropy", BTU / FT ** 3 * 9 / 5, 0.0, "Btu/(ft³ °F)")
     + _u("-", "dimensionless", 1.0, 0.0, "1", "", "none")
 )
 
@@ -89,7 +99,7 @@ def canon(text: str) -> str:
     m = re.fullmatch(r"([^/]+)/([^/()]+)/([^/()]+)", s)
     if m:                                   # J/kg/K -> J/(kgK)
         s = f"{m.group(1)}/({m.group(2)}{m.group(3)})"
-    m = re.fullmatch(r"([^/]+)/((?:kg|kmol|mol|lbmol|lbm|lb)(?:K|R|F|C))", s)
+    m = re.fullmatch(r"([^/]+)/((?:kg|kmol|mol|lbmol|lbm|lb|m3|ft3)(?:K|R|F|C))", s)
     if m:                                   # J/kgK -> J/(kgK)
         s = f"{m.group(1)}/({m.group(2)})"
     return s
