@@ -177,6 +177,20 @@ def read_nasa7(text: str, path) -> tuple[list[RawRecord], list[str]]:
     ------
     DataError naming file, line and record for any malformed line.
     """
+    def one(lines, i):
+        rec, phase = _nasa7_record(lines, i, path)
+        return rec, phase, 4
+
+    return _read_cards(text, path, one, "no TM-4513 record found; a record is 4 lines of 80 columns "
+                                        "numbered 1-4 in column 80")
+
+
+def _read_cards(text, path, one, none_found: str):
+    """Records of a card file, one after the other; non-gas records counted in one note.
+
+    ``one(lines, i)`` reads the record starting at line i and returns (record,
+    phase, number of lines it took).
+    """
     lines = _lines(text)
     out, notes = [], []
     i = 0
@@ -184,19 +198,17 @@ def read_nasa7(text: str, path) -> tuple[list[RawRecord], list[str]]:
         i = _skip_header(lines, i)
         if i >= len(lines):
             break
-        ln = lines[i]
-        if _is_comment(ln) or _MARKERS.match(ln):
+        if _is_comment(lines[i]) or _MARKERS.match(lines[i]):
             i += 1
             continue
-        rec, phase = _nasa7_record(lines, i, path)
+        rec, phase, n_lines = one(lines, i)
         if phase == "gas":
             out.append(rec)
         else:
             notes.append((i + 1, rec.raw["id"], phase))
-        i += 4
+        i += n_lines
     if not out and not notes:
-        raise DataError(f"{path}: no TM-4513 record found; a record is 4 lines of 80 columns "
-                        f"numbered 1-4 in column 80")
+        raise DataError(f"{path}: {none_found}")
     return out, _skipped(path, notes)
 
 
@@ -263,26 +275,11 @@ def _nasa7_record(lines, i, path) -> tuple[RawRecord, str]:
 # --------------------------------------------------------------------- nasa9
 def read_nasa9(text: str, path) -> tuple[list[RawRecord], list[str]]:
     """Read a NASA/TP-2002-211556 coefficient file; see :func:`read_nasa7`."""
-    lines = _lines(text)
-    out, notes = [], []
-    i = 0
-    while i < len(lines):
-        i = _skip_header(lines, i)
-        if i >= len(lines):
-            break
-        ln = lines[i]
-        if _is_comment(ln) or _MARKERS.match(ln):
-            i += 1
-            continue
+    def one(lines, i):
         rec, n_lines = _nasa9_record(lines, i, path)
-        if rec.raw["phase"] == "gas":
-            out.append(rec)
-        else:
-            notes.append((i + 1, rec.raw["id"], rec.raw["phase"]))
-        i += n_lines
-    if not out and not notes:
-        raise DataError(f"{path}: no NASA/TP-2002-211556 record found")
-    return out, _skipped(path, notes)
+        return rec, rec.raw["phase"], n_lines
+
+    return _read_cards(text, path, one, "no NASA/TP-2002-211556 record found")
 
 
 def _skipped(path, notes) -> list[str]:
