@@ -805,17 +805,24 @@ def load(path, *, source: str | None = None, data=()) -> BookSpec:
     SpecError naming the key path and the rule, for any broken rule.
     """
     p = Path(path)
+    raw = read_toml(p, missing="spec file not found")
+    return parse(raw, name=p.stem, base=p.parent, source=source, data=data)
+
+
+def read_toml(path, label: str = "", missing: str = "no such file") -> dict:
+    """A TOML file as a dict, or a SpecError naming the file (a byte-order mark is fine)."""
+    p = Path(path)
+    name = f"{label} {p}" if label else str(p)
     try:
-        text = p.read_text(encoding="utf-8-sig")     # a byte-order mark from an editor is fine
+        text = p.read_text(encoding="utf-8-sig")
     except FileNotFoundError:
-        raise SpecError(f"{p}: spec file not found") from None
+        raise SpecError(f"{name}: {missing}") from None
     except (OSError, UnicodeDecodeError) as e:
-        raise SpecError(f"{p}: cannot read the spec ({e}); it must be a UTF-8 TOML file") from None
+        raise SpecError(f"{name}: cannot be read ({e}); it must be a UTF-8 TOML file") from None
     try:
-        raw = tomllib.loads(text)
+        return tomllib.loads(text)
     except tomllib.TOMLDecodeError as e:
         raise SpecError(f"{p.name}: not valid TOML ({e})") from None
-    return parse(raw, name=p.stem, base=p.parent, source=source, data=data)
 
 
 def parse(raw: dict, *, name: str, base: Path | None = None, source: str | None = None,

@@ -362,7 +362,7 @@ def anchor_text_of(an, unit_symbol: str = "K") -> str:
     return f"Pr = {an.Pr:g} and vr = {an.vr:g} at {_fmtT(an.T_K, unit_symbol)}"
 
 
-def _pressure_text(P: float) -> str:
+def pressure_text(P: float) -> str:
     if abs(P - 1e5) < 1e-6:
         return "1 bar (100 kPa)"
     if abs(P - 101325.0) < 1e-6:
@@ -540,12 +540,12 @@ def build_table(t, doc) -> TableModel:
     an = sub.anchor
     anchor_text = anchor_text_of(an, t.temperature_units[0])
     subtitle = (f"{sub.name} ({sub.id}), M = {sub.M:.4f} kg/kmol · {basis_text} · "
-                f"P° = {_pressure_text(sub.P_ref_Pa)}")
+                f"P° = {pressure_text(sub.P_ref_Pa)}")
     t_unit = t.temperature_units[0]
     datum_text = _datum_text(sub.datum, t_unit)
     head_lines = (f"{sub.name} ({sub.id}), M = {sub.M:.4f} kg/kmol, R = {sub.R:.3f} J/(kg K); "
                   f"data valid {sub.T_min:g}-{sub.T_max:g} K",
-                  f"Values {basis_text}; entropy at P° = {_pressure_text(sub.P_ref_Pa)}",
+                  f"Values {basis_text}; entropy at P° = {pressure_text(sub.P_ref_Pa)}",
                   f"Enthalpy datum {datum_text}; Pr/vr anchor: {anchor_text_of(sub.anchor, t_unit)}")
     unc, U_cols = _uncertainty(t, doc, sub, cols, notes)
     if sub.cautions:

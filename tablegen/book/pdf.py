@@ -23,6 +23,7 @@ from reportlab.pdfgen import canvas as rl_canvas
 
 from . import fonts
 from .fonts import MONO, SANS, SANS_BOLD, SANS_OBLIQUE
+from .model import pressure_text
 
 MINUS = "\u2212"
 
@@ -253,7 +254,7 @@ def _front(book, L: Layout, pages: list, contents: list):
     rows = []
     for i, t in enumerate(book.tables, 1):
         rows.append((f"{i}. {t.title}", f"{t.substance.name}", t.datum_text,
-                     _p_text(t.P_ref_Pa), t.anchor_text, f"{t.mean_cp_from_K:g} K", t.grid_text))
+                     pressure_text(t.P_ref_Pa), t.anchor_text, f"{t.mean_cp_from_K:g} K", t.grid_text))
     f.grid(("Table", "Substance", "Enthalpy datum", "P°", "Pr/vr anchor", "Tₘ", "Grid"), rows,
            (0.15, 0.12, 0.2, 0.1, 0.15, 0.08, 0.2), size=L.text * 0.8)
 
@@ -314,14 +315,6 @@ def _signatures(f: Flow, d):
         f.page.ops.append(("l", colx[2], f.y, colx[3] - 10, f.y, 0.5, 0.0))
         f.page.ops.append(("l", colx[3], f.y, f.left + f.width, f.y, 0.5, 0.0))
     f.y -= size * 1.6
-
-
-def _p_text(P: float) -> str:
-    if abs(P - 1e5) < 1e-6:
-        return "1 bar"
-    if abs(P - 101325) < 1e-6:
-        return "1 atm"
-    return f"{P / 1000:g} kPa"
 
 
 # ---------------------------------------------------------------- table pages

@@ -147,20 +147,11 @@ def charts_from_options(args):
 
 def load_spec(path: str):
     """A chart spec file -> (substance name or None, unit system, date, name, ChartSpecs)."""
-    import tomllib
 
     from ..book.charts import parse_charts
+    from ..spec import read_toml
     p = Path(path)
-    try:
-        text = p.read_text(encoding="utf-8")
-    except FileNotFoundError:
-        raise SpecError(f"--spec {path}: no such file") from None
-    except (OSError, UnicodeDecodeError) as e:
-        raise SpecError(f"--spec {path}: cannot be read as UTF-8 text ({e})") from None
-    try:
-        raw = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as e:
-        raise SpecError(f"{p.name}: not valid TOML: {e}") from None
+    raw = read_toml(p, "--spec")
     for k in raw:
         if k not in SPEC_KEYS:
             raise SpecError(f"{p.name}: {k}: unknown key; allowed: {', '.join(SPEC_KEYS)}")
