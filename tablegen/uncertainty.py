@@ -51,7 +51,7 @@ COVERAGE = 2.0
 BAND_EDGES_K = (200.0, 300.0, 600.0, 1000.0, 1500.0, 2000.0, 3000.0, 6000.0, 20000.0)
 
 #: Relative floor of every cp, dh and ds uncertainty: the NASA fits used R = 8.31451
-#: J/(mol K) (1993) or 8.314472 (2002) against 8.314462618 today, a
+#: J/(mol K) (1993) or 8.314472 (2002) against 8.31446261815324 today, a
 #: disagreement of up to 5.7e-6 that no source spread can undercut.
 CP_FLOOR_REL = 1.0e-5
 

@@ -10,6 +10,7 @@ import json
 from pathlib import Path
 
 import numpy as np
+import scipy.constants
 import pytest
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
@@ -110,7 +111,7 @@ def test_element_and_mass_balance_random_analysis_fuels(c, h, o, n, s, moist, as
     m_w = moist / (LIB.record("H2O").M * 1e-3)
     into["H"] += 2 * m_w
     into["O"] += m_w
-    n_ox = r.summary["oxidant_volume_per_kg"] / (8.314462618 * 273.15 / 101325.0)
+    n_ox = r.summary["oxidant_volume_per_kg"] / (scipy.constants.R * 273.15 / 101325.0)
     for e, k in elements_of({sp: y * n_ox for sp, y in AIR.items()}).items():
         into[e] = into.get(e, 0.0) + k
     out = elements_of(r.moles_per_kg)
@@ -251,7 +252,7 @@ def test_dew_point_vs_iapws_saturation_temperature(fuel, excess):
     Td = r.summary["dew_point_K"]
     assert abs(Td - _TSat_P(pw / 1e6)) <= 1e-6
     T95 = IAPWS95(P=pw / 1e6, x=1).T
-    dlnp_dT = float(h_vap_J_per_kg(T95)) / (8.314462618 / 0.018015268 * T95 ** 2)
+    dlnp_dT = float(h_vap_J_per_kg(T95)) / (scipy.constants.R / 0.018015268 * T95 ** 2)
     assert abs(Td - T95) <= 2.5e-4 / dlnp_dT
 
 

@@ -22,6 +22,7 @@ from ruamel.yaml import YAML
 
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
+from tablegen.constants import R_MOLAR  # noqa: E402
 from tablegen.data.tomlout import table  # noqa: E402
 from tablegen.thermo.polynomial import Polynomial, nasa7_to_9  # noqa: E402
 
@@ -154,7 +155,7 @@ def record(sp: dict, w: dict, source_key: str, used: set) -> dict:
     c9 = [nasa7_to_9(r) for r in data] if form == "nasa7" else data
     poly = Polynomial(bounds, c9, form)
     import numpy as np
-    h298 = float(poly.evaluate(np.array([298.15]), want=("h",))["h"][0]) * 8.314462618
+    h298 = float(poly.evaluate(np.array([298.15]), want=("h",))["h"][0]) * R_MOLAR
     rec = {
         "id": sid,
         "name": common,

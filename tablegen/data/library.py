@@ -26,6 +26,7 @@ from pathlib import Path
 
 import numpy as np
 
+from ..constants import R_MOLAR
 from ..errors import DataError, NameLookupError
 from ..thermo.polynomial import Polynomial, nasa7_to_9
 from . import formats, validate
@@ -370,13 +371,13 @@ def build_record(raw: dict, *, dataset: Dataset, where: str, line: int) -> Recor
     errors = [f for f in found if f.severity == "error"]
     if errors and getattr(dataset, "user", False):
         raise DataError(f"{where}{errors[0].text}")
-    found += validate.check_printed_enthalpy(poly, checks, 8.314462618)
+    found += validate.check_printed_enthalpy(poly, checks, R_MOLAR)
     for f in found:
         if f.severity == "warning" and getattr(dataset, "user", False):
             dataset.notes.append(f"{where}{f.text}")
     h298 = None
     if poly.T_min <= 298.15 <= poly.T_max:
-        h298 = float(poly.evaluate(np.array([298.15]), want=("h",))["h"][0]) * 8.314462618
+        h298 = float(poly.evaluate(np.array([298.15]), want=("h",))["h"][0]) * R_MOLAR
     known = {"id", "name", "aliases", "elements", "molar_mass_g_per_mol", "phase", "form", "T_bounds_K",
              "coefficients", "h_formation_298_J_per_mol", "source", "source_note"}
     return Record(

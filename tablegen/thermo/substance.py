@@ -19,15 +19,10 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
+from ..constants import P_STD, R_MOLAR, T_REF  # noqa: F401  (re-exported)
 from ..errors import RangeError, TablegenError
 from .polynomial import Polynomial
 
-#: Molar gas constant, J/(mol K): CODATA 2018, exact by the 2019 SI redefinition.
-R_MOLAR = 8.314462618
-#: Standard-state pressure of the polynomials, Pa (IUPAC 1982 standard, 1 bar).
-P_STD = 100000.0
-#: Thermochemical reference temperature, K.
-T_REF = 298.15
 #: Relative tolerance of the inverse functions (in T).
 INVERSE_RTOL = 1e-10
 
