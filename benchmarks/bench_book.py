@@ -49,7 +49,9 @@ def main() -> int:
         data = pdf.render(book)
         t3 = time.perf_counter()
         names = {"pdf": "bench.pdf", "csv": [f"{t.name}.csv" for t in book.tables]}
+        names["csv_metadata"] = [csvout.metadata_name(n) for n in names["csv"]]
         csvs = [csvout.render_table(book, t) for t in book.tables]
+        metas = [csvout.metadata(book, t, n) for t, n in zip(book.tables, names["csv"])]
         js = jsonout.render(book, names)
         t4 = time.perf_counter()
     _, pages = pdf.plan(book)

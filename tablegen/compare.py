@@ -184,6 +184,9 @@ class Reference:
         return tuple(dict.fromkeys(c.key for c in self.columns if c.unit is not None))
 
 
+#: Header of the row-mark column of tablegen's own CSV files (read, never compared).
+MARK_KEY = "mark"
+
 _HEADER_CELL = re.compile(r"^\s*([A-Za-z][A-Za-z0-9_]*)\s*\[([^\[\]]*)\]\s*$")
 _HEADER_WS = re.compile(r"([A-Za-z][A-Za-z0-9_]*)\s*\[([^\[\]]*)\]")
 _NUMBER = re.compile(r"^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$")
@@ -262,6 +265,10 @@ def read_reference(path) -> Reference:
 
     keys, units, seen = [], [], set()
     for cell in header:
+        if cell.strip() == MARK_KEY:       # the row marks of a tablegen CSV: text, not compared
+            keys.append(MARK_KEY)
+            units.append(None)
+            continue
         m = _HEADER_CELL.match(cell)
         if not m:
             raise TablegenError(f"{name}:{header_line}: header cell {cell.strip()!r} is not in the form "
@@ -286,7 +293,7 @@ def read_reference(path) -> Reference:
     if "T" not in keys:
         raise TablegenError(f"{name}:{header_line}: no temperature column; one column must be T [K] "
                             f"(or T [°C], T [°F], T [°R])")
-    if all(k == "T" for k in keys):
+    if all(k in ("T", MARK_KEY) for k in keys):
         raise TablegenError(f"{name}:{header_line}: only a temperature column; add property columns, "
                             f"allowed keys: {', '.join(KEY_DIMENSIONS)}")
     if not rows:
@@ -299,6 +306,9 @@ def read_reference(path) -> Reference:
             hint = "; in a whitespace table write '-' for an empty cell" if layout == "whitespace" else ""
             raise TablegenError(f"{name}:{line}: {len(cells)} cells, but the header names {n} columns{hint}")
         for j, c in enumerate(cells):
+            if keys[j] == MARK_KEY:
+                cells_by_col[j].append(c)
+                continue
             if c in ("", "-", "—") and keys[j] != "T":
                 cells_by_col[j].append("")
                 continue
@@ -316,7 +326,7 @@ def read_reference(path) -> Reference:
             raise TablegenError(f"{name}:{line}: temperature {T:g} K is not above 0 K")
     columns = []
     for j, key in enumerate(keys):
-        if key == "T":          # the first T column is the temperature; others (T in °F ...) are ignored
+        if key in ("T", MARK_KEY):   # the first T column is the temperature; others (T in °F ...) are ignored
             continue
         txt = tuple(cells_by_col[j])
         vals = np.array([float(c) if c else np.nan for c in txt])

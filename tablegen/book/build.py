@@ -30,9 +30,12 @@ def render_files(spec, out_dir, progress=None) -> tuple[dict, object]:
             progress(i + 1, total, t.name)
     book = model.build_book(spec, tables=tuple(tables))
     files = {}
+    from ..jsonout import dumps
     names = {"pdf": f"{spec.name}.pdf", "csv": [f"{t.name}.csv" for t in book.tables]}
-    for t, name in zip(book.tables, names["csv"]):
+    names["csv_metadata"] = [csvout.metadata_name(n) for n in names["csv"]]
+    for t, name, meta in zip(book.tables, names["csv"], names["csv_metadata"]):
         files[out_dir / name] = csvout.render_table(book, t).encode("utf-8")
+        files[out_dir / meta] = dumps(csvout.metadata(book, t, name)).encode("utf-8")
     pdf_bytes = pdf.render(book)
     if progress:
         progress(n + 1, total, "PDF")

@@ -23,10 +23,10 @@ def sidecar(book, files: dict) -> dict:
             "sources": [{"species": a, "data_set": b, "citation": c} for a, b, c in s.sources],
         })
     tables = []
-    for t, csv in zip(book.tables, files["csv"]):
+    for t, csv, meta in zip(book.tables, files["csv"], files["csv_metadata"]):
         tables.append({
             "name": t.name, "title": t.title, "substance_id": t.substance.id, "basis": t.basis,
-            "units": t.units, "rows": t.rows, "csv": csv,
+            "units": t.units, "rows": t.rows, "csv": csv, "csv_metadata": meta,
             "datum": dict(t.datum, text=t.datum_text), "P_ref_Pa": t.P_ref_Pa,
             "anchor": dict(t.anchor), "mean_cp_from_K": t.mean_cp_from_K, "grid": t.grid_text,
             "columns": [{"key": c.key, "csv_header": c.csv_header, "unit": c.unit, "system": c.system,
@@ -50,7 +50,7 @@ def sidecar(book, files: dict) -> dict:
         "rounding_rule": book.rounding_rule,
         "cautions": list(book.cautions),
         "appendix": [{"title": s.title, "paragraphs": list(s.paragraphs)} for s in book.appendix],
-        "files": {"pdf": files["pdf"], "csv": list(files["csv"])},
+        "files": {"pdf": files["pdf"], "csv": list(files["csv"]), "csv_metadata": list(files["csv_metadata"])},
     }
 
 

@@ -111,6 +111,8 @@ def read_table(path: str, M_g_per_mol: float) -> dict:
     head_line, head = body[0][0], rows[0]
     cols = {}
     for j, cell in enumerate(head):
+        if cell.strip() == "mark":      # the row marks of a tablegen CSV
+            continue
         m = _HEAD.match(cell)
         if not m:
             raise TablegenError(f"{path}:{head_line}: header cell {cell!r} is not 'key [unit]', e.g. 'T [K]' "
