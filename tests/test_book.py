@@ -21,6 +21,7 @@ import textwrap
 from pathlib import Path
 
 import numpy as np
+import scipy.constants
 import pytest
 
 from tablegen.data.library import library
@@ -38,7 +39,7 @@ SCHEMA = json.loads((ROOT / "docs" / "book-json-schema.json").read_text(encoding
 BTU = 1055.05585262
 LBM = 0.45359237
 FT = 0.3048
-R_MOLAR = 8.314462618           # CODATA 2018
+R_MOLAR = scipy.constants.R     # CODATA 2018 (N_A k, exact) via scipy.constants
 #: SI factor of each printed unit (value in SI = factor * printed value)
 FACTOR = {
     "kJ/(kg K)": 1e3, "kJ/kg": 1e3, "J/(mol K)": 1.0, "kJ/mol": 1e3,
@@ -349,8 +350,7 @@ def test_fonts_are_embedded_and_no_standard_font_is_used(a4):
 def test_mean_cp_at_its_reference_temperature_prints_the_limit_cp(a4):
     out, meta, reader = a4
     tj = meta["tables"][0]
-    rows = list(csv.reader(l for l in (out / tj["csv"]).read_text(encoding="utf-8").splitlines()
-                           if not l.startswith("#")))
+    rows = list(csv.reader((out / tj["csv"]).read_text(encoding="utf-8").splitlines()))
     head = rows[0]
     i_T, i_cp, i_mh, i_ms = (head.index(h) for h in ("T [K]", "cp [kJ/(kg K)]", "cp_mean_h [kJ/(kg K)]",
                                                       "cp_mean_s [kJ/(kg K)]"))
@@ -369,12 +369,12 @@ def test_csv_values_equal_the_engine_at_full_precision(a4):
         raw = (out / tj["csv"]).read_bytes()
         assert b"\r\n" in raw and raw.endswith(b"\r\n")                 # RFC 4180 line ends
         lines = raw.decode("utf-8").split("\r\n")[:-1]
-        body = [l for l in lines if not l.startswith("#")]
-        rows = list(csv.reader(body))
-        assert rows[0] == [c["csv_header"] for c in tj["columns"]]
-        for h in rows[0]:
+        assert not any(l.startswith("#") for l in lines)               # plain CSV by default
+        rows = list(csv.reader(lines))
+        assert rows[0] == [c["csv_header"] for c in tj["columns"]] + ["mark"]
+        for h in rows[0][:-1]:
             assert re.fullmatch(r"[A-Za-z0-9_]+ \[[^\]]+\]", h)
-        got = np.array([[float(x) for x in r] for r in rows[1:]])
+        got = np.array([[float(x) for x in r[:-1]] for r in rows[1:]])
         assert got.shape == (tj["rows"], len(tj["columns"]))
         # independent evaluation: same engine, SI factors written out in this file
         decimals_free = [dict(c, decimals=17, significant=None) for c in tj["columns"]]
@@ -389,16 +389,32 @@ def test_csv_values_equal_the_engine_at_full_precision(a4):
             assert printed(got[0, k], col) == expected_columns(tj, st, ref)[k][0]
 
 
-def test_csv_comment_text_is_neutralised_against_formula_injection(tmp_path):
+def test_csv_extra_rows_carry_the_pdf_mark(a4):
+    # the spec's extra rows (298.15 K) are marked '*' in the mark column, as in the PDF
+    out, meta, reader = a4
+    tj = meta["tables"][0]
+    rows = list(csv.reader((out / tj["csv"]).read_text(encoding="utf-8").splitlines()))
+    i_T = rows[0].index("T [K]")
+    marks = {float(r[i_T]): r[-1] for r in rows[1:]}
+    assert marks[298.15] == "*"
+    assert {m for T, m in marks.items() if T != 298.15} == {""}
+
+
+def test_csv_comment_form_on_request_is_neutralised_against_formula_injection(tmp_path):
     text = SPEC.replace('title = "Grebe Hollow rig tables"', 'title = "=HYPERLINK(\\"http://x\\"),+SUM(A1),-2+3,@x"')
     text = text.replace('organisation = "Grebe Hollow test rig (invented)"', 'organisation = "@cmd"')
+    text = text.replace("[document]\n", "[document]\ncsv_comments = true\n", 1)
     out = build(tmp_path, "A4", name="inj", text=text)
+    n_comments = 0
     for f in out.glob("*.csv"):
-        for row in csv.reader(io.StringIO(f.read_text(encoding="utf-8"))):
+        lines = f.read_text(encoding="utf-8").splitlines()
+        n_comments += sum(l.startswith("#") for l in lines)
+        for row in csv.reader(io.StringIO("\n".join(lines))):
             for cell in row:
                 s = cell.lstrip()
                 if s and not re.fullmatch(r"-?[0-9.e+-]+", s):
                     assert s[0] not in "=+-@", (f.name, cell)
+    assert n_comments > 0
 
 
 # ---------------------------------------------------------------- JSON
@@ -528,7 +544,8 @@ def test_no_progress_bar_when_not_a_terminal(tmp_path, capsys):
     p.write_text(many, encoding="utf-8")
     assert cli.main(["build", str(p), "--out", str(tmp_path / "o")]) == 0
     err = capsys.readouterr().err
-    assert "[" not in err and "\r" not in err and "wrote 10 files" in err
+    # 8 tables: a CSV and its CSVW metadata each, the PDF and the JSON sidecar
+    assert "[" not in err and "\r" not in err and "wrote 18 files" in err
 
 
 def test_progress_bar_draws_on_its_stream():
@@ -541,7 +558,8 @@ def test_progress_bar_draws_on_its_stream():
 
 def test_demo_builds_the_invented_plant_books(tmp_path, capsys):
     assert cli.main(["demo", "--out", str(tmp_path), "--quiet"]) == 0
-    metas = [json.loads(p.read_text(encoding="utf-8")) for p in sorted(tmp_path.glob("*.json"))]
+    metas = [json.loads(p.read_text(encoding="utf-8")) for p in sorted(tmp_path.glob("*.json"))
+             if not p.name.endswith(".csv-metadata.json")]
     assert len(metas) >= 2
     papers = {m["spec"]["document"]["paper"] for m in metas}
     assert {"A4", "A5-pocket"} <= papers
@@ -590,8 +608,8 @@ def test_extrapolated_rows_are_marked_in_pdf_csv_and_notes(tmp_path):
         grid = { list = ["150 K", "300 K"] }
     ''')
     out = build(tmp_path, "A4", name="ext", text=text)
-    csv_text = (out / "n2-cold.csv").read_bytes().decode("utf-8")
-    assert "# extrapolated beyond the data range at T_K = 150.0\r\n" in csv_text
+    rows = list(csv.reader((out / "n2-cold.csv").read_text(encoding="utf-8").splitlines()))
+    assert [(r[0], r[-1]) for r in rows[1:]] == [("150.0", "x"), ("300.0", "")]
     reader = PdfReader(str(out / "ext.pdf"))
     pages = [p for p in parse_table_pages(reader) if p is not None and p[0] == 4]
     assert len(pages) == 1
@@ -599,3 +617,74 @@ def test_extrapolated_rows_are_marked_in_pdf_csv_and_notes(tmp_path):
     assert marks == ["x", ""] and rows[0][0] == "150"
     assert "x extrapolated beyond the data range 200-6000 K" in text
 
+
+
+def _cell_positions(pdf_bytes):
+    """(x, y, text) of each text run on page 1: the content stream read operator by
+    operator (pypdf), each Tj decoded through its font's ToUnicode map (PDF 32000-1:2008,
+    9.10.3), a run being the text shown after one Tm."""
+    from pypdf.generic import ContentStream
+    reader = PdfReader(io.BytesIO(pdf_bytes))
+    page = reader.pages[0]
+    maps = {}
+    for name, ref in page["/Resources"]["/Font"].items():
+        cmap = ref.get_object()["/ToUnicode"].get_object().get_data().decode("latin-1")
+        m = {}
+        for block in re.findall(r"beginbfchar(.*?)endbfchar", cmap, re.S):
+            for src, dst in re.findall(r"<([0-9A-Fa-f]+)>\s*<([0-9A-Fa-f]+)>", block):
+                m[int(src, 16)] = chr(int(dst, 16))
+        for block in re.findall(r"beginbfrange(.*?)endbfrange", cmap, re.S):
+            for lo, hi, dst in re.findall(r"<([0-9A-Fa-f]+)>\s*<([0-9A-Fa-f]+)>\s*<([0-9A-Fa-f]+)>", block):
+                for k in range(int(lo, 16), int(hi, 16) + 1):
+                    m[k] = chr(int(dst, 16) + k - int(lo, 16))
+        maps[name] = m
+    runs, font = [], None
+    for operands, op in ContentStream(page.get_contents(), reader).operations:
+        if op == b"Tf":
+            font = maps[operands[0]]
+        elif op == b"Tm":
+            runs.append([round(float(operands[4]), 2), round(float(operands[5]), 2), ""])
+        elif op == b"Tj":
+            raw = operands[0]
+            raw = raw if isinstance(raw, bytes) else raw.get_original_bytes()
+            runs[-1][2] += "".join(font[b] for b in raw)
+    return [tuple(r) for r in runs if r[2]]
+
+
+@pytest.mark.parametrize("distinct", [40, 400])
+def test_fast_cell_drawing_matches_reportlab_public_text_object(distinct):
+    # book/pdf.py draws table cells through one literal text object and needs the
+    # canvas's document (Canvas._doc, not public) for reportlab's own font subsetting;
+    # pyproject.toml bounds reportlab to the releases this has been checked with. This
+    # test is that check: the same cells drawn by the fast path and by reportlab's public
+    # text-object API (setTextOrigin, textOut, drawText) read back as the same text at the
+    # same places, with one font subset (40 distinct characters) and several (400).
+    from reportlab.pdfgen import canvas as rl_canvas
+    from tablegen.book import fonts, pdf
+    fonts.register()
+    alphabet = [chr(c) for c in range(0x21, 0x7f)] + [chr(c) for c in range(0xc0, 0x24f)]
+    chars = alphabet[:distinct]
+    # one cell a line (pypdf joins the runs of a line), x varying as in a table
+    n = max(60, distinct // 2)
+    cells = [(60.0 + 70 * (k % 7), 20.0 + 12 * (n - k), "".join(chars[(k * 3 + i) % len(chars)] for i in range(5)))
+             for k in range(n)]
+
+    def page(fast: bool) -> bytes:
+        buf = io.BytesIO()
+        c = rl_canvas.Canvas(buf, pagesize=(600, 40 + 12 * n), invariant=1, initialFontName=fonts.SANS)
+        if fast:
+            pdf._draw_cells(c, fonts.SANS, 8.0, cells)
+        else:
+            t = c.beginText()
+            t.setFont(fonts.SANS, 8.0)
+            for x, y, s in cells:
+                t.setTextOrigin(x, y)
+                t.textOut(s)
+            c.drawText(t)
+        c.showPage()
+        c.save()
+        return buf.getvalue()
+
+    fast, public = _cell_positions(page(True)), _cell_positions(page(False))
+    assert fast == [(round(x, 2), round(y, 2), t) for x, y, t in cells]
+    assert fast == public

@@ -7,6 +7,7 @@ import math
 from pathlib import Path
 
 import numpy as np
+import scipy.constants
 import pytest
 
 import tablegen
@@ -77,7 +78,7 @@ def test_ts_isobar_matches_nist_janaf_n2_entropy():
     m = C.build_chart(n2, spec, T_range_K=(300.0, 1500.0))
     ln, = [ln for ln in m.lines if ln.family == "isobar"]
     s_line = np.interp(T_j[keep], ln.T_K, ln.x * 1000.0)     # kJ/(kg K) -> J/(kg K)
-    R_molar = 8.314462618                                  # CODATA 2018
+    R_molar = scipy.constants.R                            # CODATA 2018 (N_A k, exact) via scipy
     expect = (S_j[keep] - R_molar * math.log(10.0)) / (n2.M * 1e-3)
     # interpolation error on a 240-point geometric grid is far below the band
     assert np.max(np.abs(s_line - expect)) * n2.M * 1e-3 < 0.05
@@ -368,7 +369,7 @@ def test_cli_bytes_identical_across_processes_and_hash_seeds(tmp_path):
     assert digests[0] == digests[1]
 
 
-from hypothesis import given, settings, strategies as st  # noqa: E402
+from hypothesis import assume, given, settings, strategies as st  # noqa: E402
 
 
 @settings(max_examples=25, deadline=None)
@@ -380,8 +381,14 @@ def test_overlay_machine_step_identities(T1, ratio, eta, expand):
     air = tablegen.substance("air")
     T0 = T1 * 2.0 if expand else T1
     step = {"step": "expand" if expand else "compress", "ratio": ratio, "eta": eta}
-    spec, = charts({"kind": "ts", "overlays": [{"start": {"T": f"{T0}K", "P": "2bar"}, "steps": [step]}]})
-    m = C.build_chart(air, spec, T_range_K=(250.0, 1500.0))
+    try:
+        spec, = charts({"kind": "ts", "overlays": [{"start": {"T": f"{T0}K", "P": "2bar"}, "steps": [step]}]})
+        m = C.build_chart(air, spec, T_range_K=(250.0, 1500.0))
+    except tablegen.errors.TablegenError as e:
+        # a large expansion ratio from a cold start leaves the 200 K end of the data:
+        # refusing it is the documented behaviour, not a broken identity
+        assert "leaves the data range" in str(e)
+        assume(False)
     p = {q.name: q for q in m.points}
     one, two, iso = p["1"], p["2"], p["2s"]
     assert iso.s == pytest.approx(one.s, abs=1e-7 * air.R)

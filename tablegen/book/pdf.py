@@ -247,8 +247,8 @@ def _front(book, L: Layout, pages: list, contents: list):
     f.heading("Columns", L.text * 1.2)
     rows = [(sym, name, formula, ", ".join(units)) for key, sym, name, formula, units in book.definitions]
     f.grid(("Symbol", "Quantity", "Definition", "Units"), rows, (0.1, 0.2, 0.5, 0.2))
-    f.para("R is the specific gas constant of the substance: the molar gas constant 8.314462618 J/(mol K) "
-           "(CODATA 2018, exact) divided by the molar mass M. T₀ is the datum temperature, Tₐ the anchor "
+    f.para("R is the specific gas constant of the substance: the molar gas constant 8.31446261815324 J/(mol K) "
+           "(N_A k, exact since the 2019 SI) divided by the molar mass M. T₀ is the datum temperature, Tₐ the anchor "
            "temperature and Tₘ the temperature from which mean heat capacities are taken.", size=L.text * 0.92)
     f.heading("Datums, reference pressure and anchors per table", L.text * 1.2)
     rows = []
@@ -648,9 +648,13 @@ def _draw_cells(c, fontname: str, size: float, cells):
     """Many short strings at given positions in one text object.
 
     This writes the text operators directly (what reportlab's text object would write,
-    less its per-string width bookkeeping): characters are mapped to the embedded font's
-    subsets once per character through reportlab's own ``splitString``, so subsetting and
-    embedding stay reportlab's.
+    less its per-string width bookkeeping, which doubles the time of a table page):
+    characters are mapped to the embedded font's subsets once per character through
+    reportlab's own ``splitString``, so subsetting and embedding stay reportlab's, and the
+    operators go into the page through the canvas's public ``addLiteral``. The one
+    non-public name used is the canvas's document (``Canvas._doc``), which ``splitString``
+    needs; that is why pyproject.toml bounds reportlab to the releases tested, and
+    tests/test_book.py checks this path against the public text-object path page by page.
     """
     from reportlab.pdfbase.pdfdoc import escapePDF
     font = getFont(fontname)
@@ -670,15 +674,17 @@ def _draw_cells(c, fontname: str, size: float, cells):
             out.append(f"{font.getSubsetInternalName(subsets.pop(), doc)} {tf}")
         out.extend([f"1 0 0 1 {x:.2f} {y:.2f} Tm ({s.translate(table)}) Tj" for x, y, s in cells])
         out.append("ET")
-        c._code.append(" ".join(out))
+        c.addLiteral(" ".join(out))
         return
-    chars = enc
+    # characters from more than one subset: the font changes inside the text object,
+    # each cell placed first, then its runs of one subset each
     out = ["BT"]
     cur = None
     for x, y, s in cells:
+        out.append(f"1 0 0 1 {x:.2f} {y:.2f} Tm")
         pieces = []
         for ch in s:
-            e = chars[ch]
+            e = enc[ch]
             if e[0] != cur:
                 if pieces:
                     out.append(f"({''.join(pieces)}) Tj")
@@ -686,10 +692,10 @@ def _draw_cells(c, fontname: str, size: float, cells):
                 cur = e[0]
                 out.append(f"{font.getSubsetInternalName(cur, doc)} {tf}")
             pieces.append(e[1])
-        out.append(f"1 0 0 1 {x:.2f} {y:.2f} Tm ({''.join(pieces)}) Tj")
+        if pieces:
+            out.append(f"({''.join(pieces)}) Tj")
     out.append("ET")
-    # the canvas's page stream (reportlab keeps it in Canvas._code)
-    c._code.append(" ".join(out))
+    c.addLiteral(" ".join(out))
 
 
 def page_count(book) -> int:

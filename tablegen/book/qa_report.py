@@ -59,25 +59,32 @@ class Flow:
         self.y -= h
 
 
+#: Drawing state last set on each canvas being drawn (fill colour, font), so that big
+#: listings skip operators that change nothing; keyed by the canvas's id, never stored
+#: on the library's object. render_pdf removes its entry when the document is done.
+_STATE: dict = {}
+
+
 def _fill(c, *rgb):
     """Set the fill colour, skipping the operator when it is already set (big listings)."""
     rgb = tuple(rgb[0]) if len(rgb) == 1 else tuple(rgb)
-    if getattr(c, "_tg_fill", None) != rgb:
+    st = _STATE.setdefault(id(c), {})
+    if st.get("fill") != rgb:
         c.setFillColorRGB(*rgb)
-        c._tg_fill = rgb
+        st["fill"] = rgb
 
 
 def _forget(c):
     """After showPage or restoreState the canvas state is reset: forget the cache."""
-    c._tg_fill = None
-    c._tg_font = None
+    _STATE[id(c)] = {}
 
 
 def _text(c, x, y, s, font=fonts.SANS, size=8.5, color=INK, align="left"):
     _fill(c, *color)
-    if getattr(c, "_tg_font", None) != (font, size):
+    st = _STATE.setdefault(id(c), {})
+    if st.get("font") != (font, size):
         c.setFont(font, size)
-        c._tg_font = (font, size)
+        st["font"] = (font, size)
     if align == "right":
         c.drawRightString(x, y, s)
     elif align == "center":
@@ -659,13 +666,16 @@ def _render(cmp, flow) -> bytes:
     c.setCreator(f"tablegen {cmp.version}")
     c.setSubject(cmp.verdict)
     total = len(flow.pages)
-    for k, page in enumerate(flow.pages, start=1):
-        _forget(c)
-        _running(c, cmp, k, total)
-        for y, draw in page:
-            draw(c, y)
-        c.showPage()
-    c.save()
+    try:
+        for k, page in enumerate(flow.pages, start=1):
+            _forget(c)
+            _running(c, cmp, k, total)
+            for y, draw in page:
+                draw(c, y)
+            c.showPage()
+        c.save()
+    finally:
+        _STATE.pop(id(c), None)
     return buf.getvalue()
 
 
