@@ -219,7 +219,7 @@ def test_species_check_reports_every_refusal(capsys, tmp_path):
 
 
 # ------------------------------------------------------------------ export
-FLUE = "CO2:0.09,H2O:0.18,N2:0.7,O2:0.021,Ar:0.009"   # invented boiler flue gas
+FLUE = "CO2=0.09,H2O=0.18,N2=0.7,O2=0.021,Ar=0.009"   # invented boiler flue gas
 
 
 @pytest.mark.parametrize("name", ["air", FLUE, "flue@CH4@excess-air=15%"])

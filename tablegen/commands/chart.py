@@ -33,7 +33,8 @@ SPEC_KEYS = ("substance", "units", "date", "name", "charts")
 def add_arguments(p):
     p.epilog = EXAMPLE
     p.add_argument("substance", nargs="?", default=None,
-                   help="species id or alias, shipped mixture (air), or inline NAME:x,NAME:y "
+                   help="species id or alias, shipped mixture (air), or a composition NAME=x,NAME=y "
+                        "(mole fractions; NAME=x%%,... or basis=mass,...) "
                         "(optional with --spec if the spec names it)")
     g = p.add_argument_group("what to draw")
     g.add_argument("--kind", default=None, choices=("ts", "hs", "both"),

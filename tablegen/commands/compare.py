@@ -29,7 +29,7 @@ FILES = ("report.pdf", "deviations.csv", "summary.json")
 def add_arguments(p):
     p.epilog = EXAMPLE
     p.add_argument("substance", metavar="SUBSTANCE-OR-SPEC",
-                   help="species id or alias, shipped or inline mixture, or a table-book spec (*.toml)")
+                   help="species id or alias, shipped mixture, composition (NAME=x,NAME=y), or a table-book spec (*.toml)")
     p.add_argument("reference", metavar="REFERENCE", help="reference table (CSV or whitespace-separated text)")
     p.add_argument("--columns", default=None, metavar="KEYS",
                    help="comma-separated keys to compare (default: every property column of REFERENCE)")

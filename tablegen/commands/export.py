@@ -21,7 +21,7 @@ from ..errors import TablegenError
 from .common import data_notices
 
 EXAMPLE = """example:
-  tablegen export "CH4:0.9,C2H6:0.06,N2:0.04" --format toml --id SITE-GAS --out site-gas.toml
+  tablegen export "CH4=0.9,C2H6=0.06,N2=0.04" --format toml --id SITE-GAS --out site-gas.toml
   tablegen export air --format nasa9
   tablegen export CO2 --format nasa7 --out co2.dat
   tablegen state SITE-GAS --data site-gas.toml --T 25C,800C"""
@@ -36,7 +36,8 @@ _CLEAN_ID = re.compile(r"^[A-Za-z0-9_()+\-.,]+$")
 
 def add_arguments(p):
     p.epilog = EXAMPLE
-    p.add_argument("substance", help="species id or alias, shipped mixture (air), or inline NAME:x,NAME:y")
+    p.add_argument("substance", help="species id or alias, shipped mixture (air), or a composition "
+                                      "NAME=x,NAME=y (mole fractions; NAME=x%%,... or basis=mass,...)")
     p.add_argument("--format", required=True, choices=FORMATS, metavar="FORMAT",
                    help="nasa7 (NASA TM-4513 cards), nasa9 (NASA/TP-2002-211556) or toml (gasdata)")
     p.add_argument("--id", default=None, metavar="ID",
