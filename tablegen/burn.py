@@ -720,7 +720,10 @@ def is_oxidant_base(head: str) -> bool:
 
 
 def oxidant_colon_fix(text: str) -> str | None:
-    """The BASE,KEY=VALUE spelling of an oxidant in the refused 'air:rh=60,T=25C' form, else None."""
+    """The BASE,KEY=VALUE spelling of an oxidant written with ':' after its base word, else None.
+
+    Bare numbers gain the unit the key needs: '%' for O2 and rh, kg/kg for w.
+    """
     base, sep, rest = str(text).strip().partition(":")
     if not sep or "=" not in rest or not base.strip() or "," in base:
         return None

@@ -210,8 +210,9 @@ _COLON_PART = re.compile(r"^\s*([^:=,][^:=]*?)\s*:\s*([-+]?(?:\d+\.?\d*|\.\d+)(?
 def colon_form_fix(text: str) -> str | None:
     """The new spelling of a composition typed in the refused ':' form, else None.
 
-    'CH4:0.9,N2:0.1' -> 'CH4=0.9,N2=0.1'; 'CH4:90,C2H6:6,N2:4' (a sum of 100) ->
-    'CH4=90%,C2H6=6%,N2=4%'.
+    Each part NAME, colon, number becomes NAME=number, and NAME=number% when the
+    numbers sum to 100 (the ':' form allowed bare percentages); tests/test_composition.py
+    has the cases.
     """
     t = str(text).strip()
     if ":" not in t or "=" in t:
