@@ -38,7 +38,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .errors import TablegenError
-from .thermo.polynomial import NCOEF, Polynomial
+from .thermo.polynomial import NCOEF, NINE, SEVEN, Polynomial
 from .thermo.substance import R_MOLAR, T_REF
 
 #: The scaled variable is tau = T / T_SCALE.
@@ -77,7 +77,7 @@ class FitResult:
     Attributes
     ----------
     poly : Polynomial in the 9-coefficient layout (molar, dimensionless)
-    form : "nasa9" or "nasa7"
+    form : "9-coefficient" or "7-coefficient"
     T_bounds : tuple of interval bounds, K (first and last: the fitted range)
     coefficients : tuple of tuples in the published layout (9 or 7 per interval)
     residuals : dict with cp_max_rel, cp_rms_rel (|Δcp|/cp), h_max_J_per_mol,
@@ -202,7 +202,7 @@ class _Problem:
 def _solve(prob: _Problem, bounds: np.ndarray) -> tuple[np.ndarray, float]:
     """Raw-T coefficients (n, 9) on ``bounds`` and the condition number."""
     n_int = bounds.size - 1
-    cols = list(range(NCOEF)) if prob.form == "nasa9" else list(range(2, NCOEF))
+    cols = list(range(NCOEF)) if prob.form == NINE else list(range(2, NCOEF))
     m = len(cols)
     n_shape = m - 2                         # coefficients that shape cp
     inner = bounds[1:-1]
@@ -279,7 +279,7 @@ def _solve(prob: _Problem, bounds: np.ndarray) -> tuple[np.ndarray, float]:
     if not cond <= COND_LIMIT:
         raise FitError(f"the fit is ill-conditioned (condition number {cond:.2g} > {COND_LIMIT:.0g}); "
                        "the tabulated range is too narrow or the points too few for this form: "
-                       "use form nasa7, fewer breakpoints, or a wider range of temperatures")
+                       "use the 7-coefficient form, fewer breakpoints, or a wider range of temperatures")
     x = (y_p + N @ z) / scale
     Ak = np.zeros((n_int, NCOEF))
     Ak[:, cols] = x.reshape(n_int, m)
@@ -343,7 +343,7 @@ def _fit_on(prob: _Problem, bounds: np.ndarray) -> tuple[Polynomial, dict, float
     return poly, _residuals(prob, poly), cond, coeffs
 
 
-def fit_cp_table(T_K, cp_J_per_molK, *, form: str = "nasa9", breakpoints=None,
+def fit_cp_table(T_K, cp_J_per_molK, *, form: str = NINE, breakpoints=None,
                  h298_J_per_mol: float | None = None, s298_J_per_molK: float | None = None,
                  dh_J_per_mol=None, s_J_per_molK=None, target=None) -> FitResult:
     """Fit a NASA polynomial to a tabulation of cp (and optionally h, s°).
@@ -352,7 +352,7 @@ def fit_cp_table(T_K, cp_J_per_molK, *, form: str = "nasa9", breakpoints=None,
     ----------
     T_K : increasing temperatures, K (the fitted range is their span)
     cp_J_per_molK : cp at T_K, J/(mol K), positive
-    form : "nasa9" (NASA/TP-2002-211556) or "nasa7" (NASA TM-4513)
+    form : "9-coefficient" (NASA/TP-2002-211556) or "7-coefficient" (NASA TM-4513)
     breakpoints : inner interval bounds in K, or None to choose them so that the
         target is met (see the module text)
     h298_J_per_mol : h(298.15 K), the enthalpy of formation in the NASA/JANAF
@@ -380,8 +380,8 @@ def fit_cp_table(T_K, cp_J_per_molK, *, form: str = "nasa9", breakpoints=None,
     B. J. McBride, M. J. Zehe, S. Gordon, NASA/TP-2002-211556 (2002), eq. 1-3.
     B. J. McBride, S. Gordon, M. A. Reno, NASA TM-4513 (1993).
     """
-    if form not in ("nasa9", "nasa7"):
-        raise FitError(f"form {form!r} is not known; allowed: nasa9, nasa7")
+    if form not in (NINE, SEVEN):
+        raise FitError(f"form {form!r} is not known; allowed: {NINE}, {SEVEN}")
     T = _as_table("T_K", T_K)
     if T.size < 2 or not np.all(np.diff(T) > 0) or T[0] <= 0:
         raise FitError("T_K must hold at least two positive, strictly increasing temperatures")
@@ -401,7 +401,7 @@ def fit_cp_table(T_K, cp_J_per_molK, *, form: str = "nasa9", breakpoints=None,
     lo, hi = float(T[0]), float(T[-1])
 
     def result(poly, res, cond, coeffs):
-        pub = coeffs if form == "nasa9" else coeffs[:, 2:]
+        pub = coeffs if form == NINE else coeffs[:, 2:]
         return FitResult(poly=poly, form=form, T_bounds=tuple(float(x) for x in poly.T_bounds),
                          coefficients=tuple(tuple(float(c) for c in row) for row in pub),
                          residuals=res, n_points=int(T.size), condition=cond, target=tgt)

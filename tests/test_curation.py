@@ -50,7 +50,7 @@ def test_janaf_set_holds_the_required_species_with_nasa1993_ids():
     nasa = library().datasets["nasa1993"]
     for sid in REQUIRED:
         rec = JANAF_SET.get(sid)
-        assert rec is not None and rec.id == sid and rec.form == "nasa9"
+        assert rec is not None and rec.id == sid and rec.form == "9-coefficient"
         assert nasa.get(sid).id == sid
 
 

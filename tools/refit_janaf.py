@@ -31,6 +31,7 @@ from tablegen.data.library import library  # noqa: E402
 from tablegen.data.tomlout import table  # noqa: E402
 from tablegen.fitting import FitError, fit_cp_table, residuals_against  # noqa: E402
 from tablegen.outfiles import write_bytes  # noqa: E402
+from tablegen.thermo.polynomial import NINE  # noqa: E402
 from tablegen.thermo.substance import R_MOLAR  # noqa: E402
 
 #: tablegen species id (= the NASA TM-4513 id in gasdata/nasa1993.toml) ->
@@ -128,7 +129,7 @@ def fit_one(sid: str, index: str, formula: str, base) -> dict:
         "elements": dict(base.elements),
         "molar_mass_g_per_mol": round(base.M, 6),
         "phase": "gas",
-        "form": "nasa9",
+        "form": NINE,
         "T_bounds_K": list(fit.T_bounds),
         "coefficients": [list(r) for r in fit.coefficients],
         "h_formation_298_J_per_mol": dfH,
