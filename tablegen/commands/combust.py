@@ -16,7 +16,8 @@ EXAMPLE = """example:
 A fuel file holds a [fuel] table: composition = {CH4 = 90, ...} with basis = "mole",
 "mass", "volume-dry" (then water_percent) or "volume-wet"; or analysis = {C = 0.85,
 H = 0.11, ...} with basis = "as-received", "dry" or "daf" and hhv, lhv or h_formation;
-or formula = "C12H23" with a heating value. See docs/combustion.md.
+or formula = "C12H23" with a heating value. See docs/combustion.md; fuels/heavy-oil.toml is in
+the project's docs/examples/ folder.
 The products can be tabulated: tablegen state "flue@CH4@excess-air=15" --T 400K,1500K"""
 
 #: JSON key -> unit, stated in the JSON output under "units".

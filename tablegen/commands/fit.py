@@ -30,12 +30,14 @@ OUTPUT_FORMATS = (TM4513, TP2002, "toml")
 CARD_OF_FORM = {SEVEN: TM4513, NINE: TP2002}
 
 EXAMPLE = """example:
-  tablegen fit site-gas-cp.csv --form 9-coefficient --formula C1.02H3.9O0.1N0.08 --id SITE-GAS \\
-      --h298=-78.2kJ/mol --s298 "190.1J/(mol K)" --out site-gas.inp
-  tablegen fit co2-table.csv --form 7-coefficient --formula CO2 --breakpoint 1000K --format toml
+  tablegen fit janaf-co2.csv --form 9-coefficient --formula CO2 --id CO2-JANAF \\
+      --h298=-393.522kJ/mol --out co2-janaf.inp
+  tablegen fit janaf-co2.csv --form 7-coefficient --formula CO2 --breakpoint 1000K \\
+      --h298=-393.522kJ/mol --target-cp 0.01 --format toml
 
 The CSV has header cells 'key [unit]': T [K] (or °C, °F, °R), cp_molar [J/(mol K)]
-or cp [kJ/(kg K)], and optionally dh298_molar [J/mol] and s0_molar [J/(mol K)]."""
+or cp [kJ/(kg K)], and optionally dh298_molar [J/mol] and s0_molar [J/(mol K)].
+janaf-co2.csv (the NIST-JANAF CO2 table) is in the project's docs/examples/ folder."""
 
 #: Columns the fit reads: key -> dimension of its unit.
 COLUMNS = {"T": "temperature", "cp_molar": "molar_entropy", "cp": "specific_entropy",
