@@ -1289,7 +1289,7 @@ def flue_gas_from_analysis(composition: dict, basis: str = "volume-dry", *, wate
         recs = [(r, v * (1 - wp / 100)) for r, v in recs]
         if wp:
             recs.append((_record("H2O", data, source), wp / 100))
-    label = id or "flue gas analysis " + ",".join(f"{r.id}:{v:.6g}" for r, v in recs)
+    label = id or "flue gas analysis " + write_composition({r.id: v for r, v in recs}, digits=6)
     sub = mixture_substance(recs, "mole", id=label, name=name or label, what=what)
     # a measured flue gas: the combustion cautions but the first (nothing was computed)
     return replace(sub, cautions=CAUTIONS[1:], _cache={})
