@@ -21,7 +21,7 @@ OVERLAY = {"label": "GT-2, invented Harwick site", "start": {"T": "15C", "P": "1
            "steps": [{"step": "compress", "P2": "12bar", "eta": 0.86},
                      {"step": "heat_p", "T2": "1300K"},
                      {"step": "expand", "P2": "1.05bar", "eta": 0.89}]}
-SUBSTANCES = ["air", "CO2", "H2O", "N2", "CO2:0.085,H2O:0.17,N2:0.725,O2:0.02"]
+SUBSTANCES = ["air", "CO2", "H2O", "N2", "CO2=0.085,H2O=0.17,N2=0.725,O2=0.02"]
 
 
 def main() -> int:

@@ -49,7 +49,7 @@ def main():
         species = [s for s in ct.Species.list_from_file("nasa_gas.yaml") if s.name in FLUE]
         gas = ct.Solution(thermo="ideal-gas", species=species)
         arr = ct.SolutionArray(gas, N)
-        X = ",".join(f"{k}:{v}" for k, v in FLUE.items())
+        X = ",".join(f"{k}={v}" for k, v in FLUE.items())
 
         def ref():
             arr.TPX = T, ct.one_atm, X

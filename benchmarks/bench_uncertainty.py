@@ -29,7 +29,7 @@ def main():
     t = time.perf_counter()
     un.load_agreement()
     print(f"{'load agreement figures (first call)':55s} {(time.perf_counter() - t) * 1e3:8.1f} ms")
-    sub = tablegen.substance("CO2:0.09,H2O:0.18,N2:0.71,O2:0.02")
+    sub = tablegen.substance("CO2=0.09,H2O=0.18,N2=0.71,O2=0.02")
     T = np.arange(250.0, 3001.0, 10.0)
     keys = ("cp", "cv", "k", "h", "u", "s0", "g0", "Pr", "vr", "a")
     timed("budget, 276 rows x 10 columns, 10 bar", lambda: un.budget(sub, T, keys, P_max_Pa=10e5))

@@ -1,5 +1,5 @@
 """Speed of loading users' own data: a full TM-4513 card file (every nasa1993
-record, 748 species, written by the nasa7 writer) read, built and validated,
+record, 748 species, written by the tm-4513 writer) read, built and validated,
 and the same set as a gasdata TOML file. Run by hand:
 
     python3 benchmarks/bench_userdata.py
@@ -34,7 +34,7 @@ def main():
             continue
         hR = float(r.poly.evaluate(np.array([298.15]))["h"][0])
         try:
-            cards.append(formats.write_nasa7({"id": r.id[:18].replace(" ", "_"), "elements": r.elements,
+            cards.append(formats.write_tm4513({"id": r.id[:18].replace(" ", "_"), "elements": r.elements,
                                               "M": r.M, "T_bounds_K": [r.T_min, 1000.0, r.T_max],
                                               "coefficients": [lo[2:], up[2:]], "h298_over_R_K": hR}))
         except Exception:

@@ -11,6 +11,7 @@ from __future__ import annotations
 import tomllib
 from functools import lru_cache
 
+from . import composition
 from .data.library import library, norm_name
 from .errors import NameLookupError, TablegenError
 from .thermo.build import mixture_substance, species_substance
@@ -41,8 +42,9 @@ def substance(name: str, *, source: str | None = None, data=()) -> Substance:
 
     Parameters
     ----------
-    name : "CO2", "carbon dioxide", "air", or "CH4:0.9,C2H6:0.06,N2:0.04"
-        (mole fractions)
+    name : "CO2", "carbon dioxide", "air", or a composition such as
+        "CH4=0.9,C2H6=0.06,N2=0.04", "CH4=90%,C2H6=6%,N2=4%" or
+        "basis=mass,CH4=0.8,N2=0.2" (tablegen.composition)
     source : data set id to take species from (e.g. "nasa1993"); default: each
         species' default source
     data : extra gasdata files or folders (--data)
@@ -65,27 +67,17 @@ def substance(name: str, *, source: str | None = None, data=()) -> Substance:
         sub = mixture(m["components"], basis=m.get("basis", "mole"), source=source, data=data,
                       id=m["id"], name=m.get("name", m["id"]))
         return sub
-    if ":" in name:
-        return mixture(parse_inline(name), basis="mole", source=source, data=data, id=name)
+    if composition.looks_like(name):
+        from .burn import is_oxidant_base
+        head, comma, _ = name.partition(",")
+        if comma and "=" not in head and is_oxidant_base(head):
+            raise NameLookupError(f"{name!r} is an oxidant ({head.strip()} with conditions) for combust --oxidant "
+                                  f"and the oxidant part of flue@ names, not a substance; write a mixture as "
+                                  f"NAME=fraction pairs, e.g. N2=0.77,O2=0.21,H2O=0.02")
+        c = composition.parse(name, "mixture")
+        return mixture(c.fractions, basis=c.basis, source=source, data=data, id=name)
     rec = library(tuple(data)).record(name, source=source)
     return species_substance(rec)
-
-
-def parse_inline(text: str, what: str = "mixture") -> dict:
-    """'CH4:0.9,N2:0.1' -> {'CH4': 0.9, 'N2': 0.1}; duplicates refused."""
-    out = {}
-    for part in text.split(","):
-        if ":" not in part:
-            raise TablegenError(f"{what} {text!r}: each component is NAME:FRACTION, e.g. CH4:0.9,N2:0.1")
-        k, v = part.rsplit(":", 1)
-        k = k.strip()
-        if k in out:
-            raise TablegenError(f"{what} {text!r}: {k!r} is given twice")
-        try:
-            out[k] = float(v)
-        except ValueError:
-            raise TablegenError(f"{what} {text!r}: fraction {v.strip()!r} of {k!r} is not a number") from None
-    return out
 
 
 def mixture(components: dict, basis: str = "mole", *, source: str | None = None, data=(),

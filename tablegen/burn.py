@@ -39,6 +39,8 @@ from pathlib import Path
 
 import numpy as np
 
+from .composition import colon_form_fix, looks_like as is_composition, parse as parse_composition, \
+    write as write_composition
 from .errors import NameLookupError, RangeError, SpecError, TablegenError
 from .thermo.substance import R_MOLAR, T_REF
 
@@ -279,7 +281,7 @@ def gas_fuel(composition: dict, basis: str = "mole", *, water_percent: float = 0
             el[e] = el.get(e, 0.0) + v * n / (M * 1e-3)
     from .thermo.build import mixture_substance
     gas = mixture_substance([(recs[k][0], v) for k, v in y.items()], "mole",
-                            id=id or "+".join(f"{k}:{v:.6g}" for k, v in y.items()), what=what)
+                            id=id or write_composition(y, digits=6), what=what)
     fid = id or gas.id
     return Fuel(id=fid, name=name or fid, kind="gas", elements=el, M=M, gas=gas, composition=y,
                 notes=tuple(notes))
@@ -519,13 +521,13 @@ def fuel_from_table(t: dict, where: str = "fuel", *, data=(), source=None) -> Fu
 
 
 def fuel_from_text(text: str, *, data=(), source=None) -> Fuel:
-    """--fuel: 'CH4:0.9,C2H6:0.06,N2:0.04' (mole fractions or %), a species name, or a TOML file."""
-    from .api import parse_inline
+    """--fuel: a composition ('CH4=0.9,C2H6=0.06,N2=0.04', 'CH4=90%,...', 'basis=mass,...';
+    tablegen.composition), a species name, or a TOML file."""
     t = str(text).strip()
     if not t:
-        raise TablegenError("fuel is empty; give species fractions (CH4:0.9,N2:0.1), a species or a TOML file")
+        raise TablegenError("fuel is empty; give a composition (CH4=0.9,N2=0.1), a species or a TOML file")
     p = Path(t)
-    if t.lower().endswith(".toml") or (p.is_file() and ":" not in t):
+    if t.lower().endswith(".toml") or (p.is_file() and not is_composition(t)):
         if not p.is_file():
             raise TablegenError(f"fuel file {t!r} does not exist")
         try:
@@ -537,8 +539,9 @@ def fuel_from_text(text: str, *, data=(), source=None) -> Fuel:
         return replace(f, spec=t if "@" not in t else None)
     if "@" in t:
         raise TablegenError(f"fuel {t!r}: '@' is not allowed in a fuel text (it separates the parts of flue-gas names)")
-    if ":" in t:
-        f = gas_fuel(parse_inline(t, "fuel"), "mole", id=t, data=data, source=source)
+    if is_composition(t):
+        c = parse_composition(t, "fuel")
+        f = gas_fuel(c.fractions, c.basis, id=t, data=data, source=source)
     else:
         f = gas_fuel({t: 1.0}, "mole", id=t, name=t, data=data, source=source)
     return replace(f, spec=t)
@@ -601,7 +604,7 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
     notes = []
     if composition is not None:
         dry, _ = _fractions(composition, f"{what}.composition")
-        label = "+".join(f"{k}:{v:.4g}" for k, v in dry.items())
+        label = write_composition(dry, digits=4)
     else:
         b = norm_name(str(base))
         if b in ("oxygen", "o2"):
@@ -675,15 +678,14 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
         comp["H2O"] = yw
         recs["H2O"] = _record("H2O", data, source)
     M = sum(v * recs[k].M for k, v in comp.items())
-    opts = [f"{k}={_g(v)}" for k, v in (("o2", o2_percent), ("rh", relative_humidity), ("w", humidity_ratio))
-            if v is not None]
+    opts = [f"{k}={_g(v)}{unit}" for k, v, unit in (("O2", o2_percent, "%"), ("rh", relative_humidity, "%"),
+                                                     ("w", humidity_ratio, "kg/kg")) if v is not None]
     if relative_humidity is not None:
         opts += [f"T={_g(float(temperature_K))}K", f"P={_g(float(pressure_Pa))}Pa"]
     if composition is None:
-        spec = ("oxygen" if dry == {"O2": 1.0} and not opts else str(base).strip().lower()) + \
-            (":" + ",".join(opts) if opts else "")
+        spec = ",".join(["oxygen" if dry == {"O2": 1.0} and not opts else str(base).strip().lower(), *opts])
     else:
-        spec = None if opts else ",".join(f"{k}:{_g(v)}" for k, v in composition.items())
+        spec = None if opts else write_composition({k: float(v) for k, v in composition.items()})
     return Oxidant(id=label, name=name or label, composition=comp, M=M, humidity_ratio=w, notes=tuple(notes),
                    spec=spec)
 
@@ -694,36 +696,127 @@ def _g(v) -> str:
     return r[:-2] if r.endswith(".0") else r
 
 
-def oxidant_from_text(text: str, *, data=(), source=None) -> Oxidant:
-    """--oxidant: 'air', 'oxygen', 'air:o2=30,rh=60,T=25C,P=1atm', 'air:w=0.01' or 'O2:0.3,N2:0.7'."""
-    from .api import parse_inline
-    from .units import pressure_Pa, temperature_K
-    t = str(text).strip()
-    base, _, rest = t.partition(":")
-    if rest and "=" not in rest:                       # inline mole fractions
-        return replace(make_oxidant(composition=parse_inline(t, "oxidant"), data=data, source=source), spec=t)
-    kw = {}
-    for part in filter(None, (p.strip() for p in rest.split(","))):
-        if "=" not in part:
-            raise TablegenError(f"oxidant {text!r}: options are KEY=VALUE (o2, rh, T, P, w)")
-        k, v = (x.strip() for x in part.split("=", 1))
-        v = v.rstrip("%")
-        if k == "o2":
-            kw["o2_percent"] = _num(v, "oxidant o2 (%)")
-        elif k == "rh":
-            kw["relative_humidity"] = _num(v, "oxidant rh (%)")
-        elif k == "T":
-            kw["temperature_K"] = temperature_K(v, "oxidant T")
-        elif k == "P":
-            kw["pressure_Pa"] = pressure_Pa(v, "oxidant P")
-        elif k == "w":
-            kw["humidity_ratio"] = _num(v, "oxidant w (kg/kg)")
+#: Conditions of an oxidant written BASE,KEY=VALUE,... (docs/combustion.md), with what they mean.
+OXIDANT_CONDITIONS = {
+    "O2": "O2 content of the dry oxidant after enrichment with pure O2 (O2=30% or O2=0.3)",
+    "rh": "relative humidity over liquid water at T and P (rh=60%)",
+    "T": "air temperature of the relative humidity (T=25C)",
+    "P": "air pressure of the relative humidity (P=1atm; default 101.325 kPa)",
+    "w": "humidity ratio, water per dry oxidant (w=8g/kg or w=0.008kg/kg)",
+}
+#: Base words of the BASE,KEY=VALUE form.
+OXIDANT_BASES = ("air", "oxygen")
+OXIDANT_FORMS = "air, oxygen, air,rh=60%,T=25C[,P=1atm], air,w=8g/kg, air,O2=30%, or O2=0.3,N2=0.7"
+_HUMIDITY_RATIO = re.compile(r"^([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(kg/kg|g/kg)$")
+
+
+def is_oxidant_base(head: str) -> bool:
+    """Whether ``head`` is a base word of the BASE,KEY=VALUE oxidant form (air and its aliases, oxygen)."""
+    from .api import shipped_mixtures
+    from .data.library import norm_name
+    b = norm_name(head)
+    m = shipped_mixtures().get(b)
+    return b in ("oxygen", "o2") or (m is not None and m["id"] == "air")
+
+
+def oxidant_colon_fix(text: str) -> str | None:
+    """The BASE,KEY=VALUE spelling of an oxidant written with ':' after its base word, else None.
+
+    Bare numbers gain the unit the key needs: '%' for O2 and rh, kg/kg for w.
+    """
+    base, sep, rest = str(text).strip().partition(":")
+    if not sep or "=" not in rest or not base.strip() or "," in base:
+        return None
+    out = [base.strip()]
+    for item in rest.split(","):
+        k, _, v = (x.strip() for x in item.partition("="))
+        bare = bool(re.fullmatch(r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?", v))
+        if k.lower() == "o2":
+            out.append(f"O2={v}%" if bare else f"O2={v}")
+        elif k.lower() == "rh":
+            out.append(f"rh={v}%" if bare else f"rh={v}")
+        elif k.lower() == "w":
+            out.append(f"w={v}kg/kg" if bare else f"w={v}")
         else:
-            raise TablegenError(f"oxidant {text!r}: unknown option {k!r}; allowed: o2 (% O2, dry), "
-                                f"rh (%), T, P, w (kg water per kg dry air)")
+            out.append(f"{k}={v}")
+    return ",".join(out)
+
+
+def _oxidant_conditions(t: str, head: str, rest: str) -> dict:
+    """'rh=60%,T=25C' of 'air,rh=60%,T=25C' -> make_oxidant keywords; every value carries its unit."""
+    from .units import pressure_Pa, temperature_K
+    keys = {k.lower(): k for k in OXIDANT_CONDITIONS}
+    kw, seen = {}, set()
+    for item in rest.split(","):
+        k, eq, v = (x.strip() for x in item.partition("="))
+        key = k if k in OXIDANT_CONDITIONS else keys.get(k.lower())
+        if not eq or key is None:
+            raise TablegenError(f"oxidant {t!r}: {item.strip()!r} is not a condition of {head}; allowed: "
+                                f"O2 (O2=30%), rh (rh=60%), T (T=25C), P (P=1atm), w (w=8g/kg)")
+        if key in seen:
+            raise TablegenError(f"oxidant {t!r}: {key} is given twice")
+        seen.add(key)
+        if key == "O2":
+            kw["o2_percent"] = _o2_content(t, v)
+        elif key == "rh":
+            if not v.endswith("%"):
+                raise TablegenError(f"oxidant {t!r}: rh={v} is a relative humidity in %; write rh={v}%")
+            kw["relative_humidity"] = _num(v[:-1].strip(), f"oxidant {t!r}: rh (%)")
+        elif key == "T":
+            kw["temperature_K"] = temperature_K(v, f"oxidant {t!r}: T")
+        elif key == "P":
+            kw["pressure_Pa"] = pressure_Pa(v, f"oxidant {t!r}: P")
+        else:
+            m = _HUMIDITY_RATIO.match(v)
+            if not m:
+                raise TablegenError(f"oxidant {t!r}: w={v} is a humidity ratio with its unit; write e.g. "
+                                    f"w=0.008kg/kg or w=8g/kg")
+            kw["humidity_ratio"] = float(m.group(1)) * (1e-3 if m.group(2) == "g/kg" else 1.0)
+    if "P" in seen and "rh" not in seen:
+        raise TablegenError(f"oxidant {t!r}: P is the pressure of the relative humidity; give it with rh and T")
+    if "T" in seen and "rh" not in seen:
+        raise TablegenError(f"oxidant {t!r}: T is the temperature of the relative humidity; give it with rh, "
+                            f"e.g. {head},rh=60%,T=25C")
+    return kw
+
+
+def _o2_content(t: str, v: str) -> float:
+    """O2=30% or O2=0.3 -> 30.0 (% by volume)."""
+    s = v[:-1].strip() if v.endswith("%") else v
+    x = _num(s, f"oxidant {t!r}: O2")
+    if not v.endswith("%"):
+        if x > 1:
+            raise TablegenError(f"oxidant {t!r}: O2={v} is above 1; give the O2 content as a fraction "
+                                f"(O2={x / 100:g}) or with its sign (O2={v}%)")
+        x *= 100.0
+    return x
+
+
+def oxidant_from_text(text: str, *, data=(), source=None) -> Oxidant:
+    """--oxidant: 'air', 'oxygen', 'air,rh=60%,T=25C,P=1atm', 'air,w=8g/kg', 'air,O2=30%' or 'O2=0.3,N2=0.7'.
+
+    A base word (air or oxygen) alone or followed by conditions (OXIDANT_CONDITIONS),
+    or a dry composition by mole (tablegen.composition).
+    """
+    t = str(text).strip()
+    if not t:
+        raise TablegenError(f"oxidant is empty; allowed: {OXIDANT_FORMS}")
     if "@" in t:
         raise TablegenError(f"oxidant {t!r}: '@' is not allowed (it separates the parts of flue-gas names)")
-    return replace(make_oxidant(base=base or "air", data=data, source=source, **kw), spec=t)
+    fix = oxidant_colon_fix(t)
+    if fix is not None:
+        raise TablegenError(f"oxidant {t!r} uses ':' after {t.partition(':')[0].strip()}; write {fix}")
+    head, sep, rest = t.partition(",")
+    if "=" not in head and is_oxidant_base(head):
+        kw = _oxidant_conditions(t, head.strip(), rest) if sep else {}
+        return replace(make_oxidant(base=head.strip(), data=data, source=source, **kw), spec=t)
+    if not is_composition(t):
+        raise TablegenError(f"oxidant {t!r} is not known; allowed: {OXIDANT_FORMS}")
+    c = parse_composition(t, "oxidant")
+    if c.basis != "mole":
+        raise TablegenError(f"oxidant {t!r}: an oxidant composition is by mole (= by volume); "
+                            f"remove basis={c.basis}")
+    return replace(make_oxidant(composition=c.fractions, data=data, source=source), spec=t)
 
 
 def oxidant_from_table(t, where="oxidant", *, data=(), source=None) -> Oxidant:
@@ -733,7 +826,7 @@ def oxidant_from_table(t, where="oxidant", *, data=(), source=None) -> Oxidant:
         except TablegenError as e:
             raise SpecError(f"{where}: {e}") from None
     if not isinstance(t, dict):
-        raise SpecError(f"{where}: must be a string (air, oxygen, air:rh=60,T=25C) or a table")
+        raise SpecError(f"{where}: must be a string ({OXIDANT_FORMS}) or a table")
     for k in t:
         if k not in OXIDANT_KEYS:
             raise SpecError(f"{where}.{k} is not known; allowed: {', '.join(OXIDANT_KEYS)}")
@@ -845,8 +938,8 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
 
     Parameters
     ----------
-    fuel : Fuel, spec table (dict), or text ('CH4:0.9,C2H6:0.06,N2:0.04', a species, a TOML file)
-    oxidant : Oxidant, table, or text ('air', 'air:rh=60,T=25C', 'air:o2=30', 'O2:0.3,N2:0.7')
+    fuel : Fuel, spec table (dict), or text ('CH4=0.9,C2H6=0.06,N2=0.04', a species, a TOML file)
+    oxidant : Oxidant, table, or text ('air', 'air,rh=60%,T=25C', 'air,O2=30%', 'O2=0.3,N2=0.7')
     excess_air : %; or air_ratio (λ, also accepted as ``lambda=``), phi (φ = 1/λ),
         o2_dry / o2_wet (measured flue-gas O2, % by volume): exactly one
     T_ref_K : combustion reference temperature of the heating values: 298.15, 293.15,
@@ -1116,7 +1209,7 @@ PREFIX = "flue@"
 NAME_AMOUNTS = {"excess-air": "excess_air", "lambda": "air_ratio", "phi": "phi", "o2-dry": "o2_dry",
                 "o2-wet": "o2_wet"}
 NAME_HELP = ("flue-gas names read flue@FUEL@AMOUNT[@OXIDANT][@dry], e.g. "
-             "flue@CH4:0.9,C2H6:0.06,N2:0.04@excess-air=15@air:rh=60,T=25C; AMOUNT is excess-air=P, "
+             "flue@CH4=0.9,C2H6=0.06,N2=0.04@excess-air=15@air,rh=60%,T=25C; AMOUNT is excess-air=P, "
              "lambda=L, phi=F, o2-dry=P or o2-wet=P")
 
 
@@ -1131,6 +1224,13 @@ def parse_name(name: str):
     if len(parts) not in (2, 3) or not parts[0].strip():
         raise NameLookupError(f"flue-gas name {name!r} is incomplete; {NAME_HELP}")
     fuel_text, amount = parts[0].strip(), parts[1].strip()
+    ox_text = parts[2].strip() if len(parts) == 3 else None
+    fuel_fix = colon_form_fix(fuel_text)
+    ox_fix = ox_text and (colon_form_fix(ox_text) or oxidant_colon_fix(ox_text))
+    if fuel_fix or ox_fix:
+        new = PREFIX + "@".join([fuel_fix or fuel_text, amount] + ([ox_fix or ox_text] if ox_text else [])) \
+            + ("@dry" if dry else "")
+        raise NameLookupError(f"flue-gas name {name!r} uses ':' where '=' or ',' belongs; write {new}")
     if "=" not in amount:
         raise NameLookupError(f"flue-gas name {name!r}: amount {amount!r} needs KEY=VALUE; {NAME_HELP}")
     k, v = (x.strip() for x in amount.split("=", 1))
@@ -1189,7 +1289,7 @@ def flue_gas_from_analysis(composition: dict, basis: str = "volume-dry", *, wate
         recs = [(r, v * (1 - wp / 100)) for r, v in recs]
         if wp:
             recs.append((_record("H2O", data, source), wp / 100))
-    label = id or "flue gas analysis " + ",".join(f"{r.id}:{v:.6g}" for r, v in recs)
+    label = id or "flue gas analysis " + write_composition({r.id: v for r, v in recs}, digits=6)
     sub = mixture_substance(recs, "mole", id=label, name=name or label, what=what)
     # a measured flue gas: the combustion cautions but the first (nothing was computed)
     return replace(sub, cautions=CAUTIONS[1:], _cache={})
@@ -1229,7 +1329,7 @@ def substance_from_spec(table: dict, where: str, *, data=(), source=None):
         if k not in SPEC_KEYS:
             raise SpecError(f"{where}.{k} is not known; allowed: {', '.join(SPEC_KEYS)}")
     if "fuel" not in table:
-        raise SpecError(f"{where}.fuel is missing; give a fuel text (CH4:0.9,N2:0.1) or table")
+        raise SpecError(f"{where}.fuel is missing; give a fuel text (CH4=0.9,N2=0.1) or table")
     basis = table.get("flue_basis", "wet")
     if basis not in ("wet", "dry"):
         raise SpecError(f"{where}.flue_basis {basis!r} is not known; allowed: wet, dry")

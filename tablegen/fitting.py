@@ -41,7 +41,7 @@ from decimal import Context, Decimal
 import numpy as np
 
 from .errors import TablegenError
-from .thermo.polynomial import NCOEF, Polynomial
+from .thermo.polynomial import NCOEF, NINE, SEVEN, Polynomial
 from .thermo.substance import R_MOLAR, T_REF
 
 #: The scaled variable is tau = T / T_SCALE.
@@ -80,7 +80,7 @@ class FitResult:
     Attributes
     ----------
     poly : Polynomial in the 9-coefficient layout (molar, dimensionless)
-    form : "nasa9" or "nasa7"
+    form : "9-coefficient" or "7-coefficient"
     T_bounds : tuple of interval bounds, K (first and last: the fitted range)
     coefficients : tuple of tuples in the published layout (9 or 7 per interval)
     residuals : dict with cp_max_rel, cp_rms_rel (|Δcp|/cp), h_max_J_per_mol,
@@ -359,11 +359,11 @@ def _shape_map(lo: float, hi: float, form: str) -> np.ndarray:
     of the published form, but its columns are nearly orthogonal on the interval where
     the powers tau^-2..tau^4 are not.
     """
-    n = 7 if form == "nasa9" else 5
+    n = 7 if form == NINE else 5
     P = _chebyshev_to_tau(lo, hi, n)
     # 9-form: the coefficient of tau^i in T_j multiplies tau^(i-2), which is A[i];
     # 7-form: it multiplies tau^i, which is A[2 + i]
-    first = 0 if form == "nasa9" else 2
+    first = 0 if form == NINE else 2
     Mp = np.zeros((NCOEF, n + 2))
     for j in range(n):
         for i in range(n):
@@ -376,7 +376,7 @@ def _shape_map(lo: float, hi: float, form: str) -> np.ndarray:
 def _solve(prob: _Problem, bounds: np.ndarray) -> tuple[np.ndarray, float]:
     """Raw-T coefficients (n, 9) on ``bounds`` and the condition of the fit."""
     n_int = bounds.size - 1
-    n_shape = 7 if prob.form == "nasa9" else 5     # coefficients that shape cp
+    n_shape = 7 if prob.form == NINE else 5     # coefficients that shape cp
     m = n_shape + 2
     inner = bounds[1:-1]
     T = prob.T
@@ -454,7 +454,7 @@ def _solve(prob: _Problem, bounds: np.ndarray) -> tuple[np.ndarray, float]:
     if not diag.min() > 0 or not cond <= COND_LIMIT:
         raise FitError(f"the fit is ill-conditioned (condition number {cond:.2g} > {COND_LIMIT:.0g}); "
                        "the tabulated range is too narrow or the points too few for this form: "
-                       "use form nasa7, fewer breakpoints, or a wider range of temperatures")
+                       "use the 7-coefficient form, fewer breakpoints, or a wider range of temperatures")
     r = b - _matmul(As, y_p[:, None])[:, 0]
     z = _back_substitute(R, _apply_qt(refl, r)[:R.shape[0]])
     x = (y_p + _matmul(N, z[:, None])[:, 0]) / scale
@@ -465,8 +465,8 @@ def _solve(prob: _Problem, bounds: np.ndarray) -> tuple[np.ndarray, float]:
     cancel = _cancellation(bounds, raw, T, idx)
     if not cancel <= COND_LIMIT:
         raise FitError(f"the fit is ill-conditioned (the published form loses {math.log10(cancel):.0f} "
-                       "digits to cancellation); the tabulated range is too narrow for this form: use form "
-                       "nasa7, fewer breakpoints, or a wider range of temperatures")
+                       "digits to cancellation); the tabulated range is too narrow for this form: use the "
+                       "7-coefficient form, fewer breakpoints, or a wider range of temperatures")
     return raw, max(cond, cancel)
 
 
@@ -545,7 +545,7 @@ def _fit_on(prob: _Problem, bounds: np.ndarray) -> tuple[Polynomial, dict, float
     return poly, _residuals(prob, poly), cond, coeffs
 
 
-def fit_cp_table(T_K, cp_J_per_molK, *, form: str = "nasa9", breakpoints=None,
+def fit_cp_table(T_K, cp_J_per_molK, *, form: str = NINE, breakpoints=None,
                  h298_J_per_mol: float | None = None, s298_J_per_molK: float | None = None,
                  dh_J_per_mol=None, s_J_per_molK=None, target=None,
                  check_dh_J_per_mol=None, check_s_J_per_molK=None) -> FitResult:
@@ -555,7 +555,7 @@ def fit_cp_table(T_K, cp_J_per_molK, *, form: str = "nasa9", breakpoints=None,
     ----------
     T_K : increasing temperatures, K (the fitted range is their span)
     cp_J_per_molK : cp at T_K, J/(mol K), positive
-    form : "nasa9" (NASA/TP-2002-211556) or "nasa7" (NASA TM-4513)
+    form : "9-coefficient" (NASA/TP-2002-211556) or "7-coefficient" (NASA TM-4513)
     breakpoints : inner interval bounds in K, or None to choose them so that the
         target is met (see the module text)
     h298_J_per_mol : h(298.15 K), the enthalpy of formation in the NASA/JANAF
@@ -588,8 +588,8 @@ def fit_cp_table(T_K, cp_J_per_molK, *, form: str = "nasa9", breakpoints=None,
     B. J. McBride, M. J. Zehe, S. Gordon, NASA/TP-2002-211556 (2002), eq. 1-3.
     B. J. McBride, S. Gordon, M. A. Reno, NASA TM-4513 (1993).
     """
-    if form not in ("nasa9", "nasa7"):
-        raise FitError(f"form {form!r} is not known; allowed: nasa9, nasa7")
+    if form not in (NINE, SEVEN):
+        raise FitError(f"form {form!r} is not known; allowed: {NINE}, {SEVEN}")
     T = _as_table("T_K", T_K)
     if T.size < 2 or not np.all(np.diff(T) > 0) or T[0] <= 0:
         raise FitError("T_K must hold at least two positive, strictly increasing temperatures")
@@ -611,7 +611,7 @@ def fit_cp_table(T_K, cp_J_per_molK, *, form: str = "nasa9", breakpoints=None,
     lo, hi = float(T[0]), float(T[-1])
 
     def result(poly, res, cond, coeffs):
-        pub = coeffs if form == "nasa9" else coeffs[:, 2:]
+        pub = coeffs if form == NINE else coeffs[:, 2:]
         return FitResult(poly=poly, form=form, T_bounds=tuple(float(x) for x in poly.T_bounds),
                          coefficients=tuple(tuple(float(c) for c in row) for row in pub),
                          residuals=res, n_points=int(T.size), condition=cond, target=tgt)

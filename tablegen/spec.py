@@ -20,6 +20,7 @@ from pathlib import Path
 
 import numpy as np
 
+from .composition import looks_like as looks_like_composition
 from .errors import SpecError, TablegenError
 
 #: Largest number of rows one table may have. A printed table of 20 000 rows
@@ -713,7 +714,7 @@ def _table(raw, where, defaults, doc, subs, source, data) -> TableSpec:
             sub = api.substance(ref, source=source, data=data)
         except TablegenError as e:
             _fail(f"{where}.substance", f"{e}; or define it under [substances.{ref}]"
-                  if ":" not in ref else str(e))
+                  if not looks_like_composition(ref) else str(e))
     system = _choice(merged, "units", UNIT_SYSTEMS, where, doc.units)
     basis = _choice(merged, "basis", BASES, where, doc.basis)
     try:

@@ -235,7 +235,7 @@ def test_saturation_pressure_vs_iapws_if97(T):
     assert abs(float(T_sat_K(p)) - _TSat_P(p / 1e6)) <= 1e-9 * T
 
 
-FUELS_FOR_DEW = ["CH4", "H2", "C3H8", "CH4:0.9,C2H6:0.06,N2:0.04", "CO:0.5,H2:0.3,CO2:0.2"]
+FUELS_FOR_DEW = ["CH4", "H2", "C3H8", "CH4=0.9,C2H6=0.06,N2=0.04", "CO=0.5,H2=0.3,CO2=0.2"]
 
 
 @pytest.mark.parametrize("fuel", FUELS_FOR_DEW)
@@ -328,7 +328,7 @@ def test_flame_temperature_above_2000K_is_flagged_as_upper_bound():
 
 
 def test_cautions_always_present():
-    r = tablegen.combustion("H2S:0.1,CH4:0.9", excess_air=10)
+    r = tablegen.combustion("H2S=0.1,CH4=0.9", excess_air=10)
     text = " ".join(r.cautions)
     for phrase in ("complete combustion", "dissociation", "acid dew point", "toxic", "asphyxiant",
                    "local codes", "licensed"):
@@ -338,7 +338,7 @@ def test_cautions_always_present():
 
 def test_oxygen_enriched_to_pure_oxygen():
     """Identity: methane in pure O2 at λ = 1 gives only CO2 and H2O in the ratio 1:2."""
-    r = tablegen.combustion("CH4", "air:o2=100", excess_air=0)
+    r = tablegen.combustion("CH4", "air,O2=100%", excess_air=0)
     y = r.summary["products_wet"]
     assert set(y) == {"CO2", "H2O"}
     assert abs(y["CO2"] - 1 / 3) <= 1e-14
@@ -349,9 +349,9 @@ def test_oxygen_enriched_to_pure_oxygen():
 
 # ------------------------------------------------------------------ names, specs, API
 def test_flue_name_resolves_in_substance_and_state():
-    name = "flue@CH4:0.9,C2H6:0.06,N2:0.04@excess-air=15@air:rh=60,T=25C"
+    name = "flue@CH4=0.9,C2H6=0.06,N2=0.04@excess-air=15@air,rh=60%,T=25C"
     sub = tablegen.substance(name)
-    r = tablegen.combustion("CH4:0.9,C2H6:0.06,N2:0.04", "air:rh=60,T=25C", excess_air=15)
+    r = tablegen.combustion("CH4=0.9,C2H6=0.06,N2=0.04", "air,rh=60%,T=25C", excess_air=15)
     assert sub.id == name and sub.kind == "mixture"
     for c in sub.components:
         assert abs(c.mole_fraction - r.summary["products_wet"][c.id]) <= 1e-14
@@ -417,7 +417,7 @@ def run_cli(*argv, capsys=None):
 
 
 def test_cli_json_keys(capsys):
-    code, out, err = run_cli("combust", "--fuel", "CH4:0.9,C2H6:0.06,N2:0.04", "--excess-air", "15", "--json",
+    code, out, err = run_cli("combust", "--fuel", "CH4=0.9,C2H6=0.06,N2=0.04", "--excess-air", "15", "--json",
                              capsys=capsys)
     assert code == 0, err
     d = json.loads(out)
@@ -440,7 +440,7 @@ def test_cli_text_shows_cautions(tmp_path, capsys):
 
 
 @pytest.mark.parametrize("argv", [
-    ["--fuel", "CH4:abc", "--excess-air", "10"],
+    ["--fuel", "CH4=abc", "--excess-air", "10"],
     ["--fuel", "CH4", "--excess-air", "-5"],
     ["--fuel", "CH4", "--lambda", "0.8"],
     ["--fuel", "CH4", "--phi", "1.5"],
@@ -449,11 +449,11 @@ def test_cli_text_shows_cautions(tmp_path, capsys):
     ["--fuel", "CH4"],
     ["--fuel", "CH4", "--excess-air", "10", "--lambda", "1.2"],
     ["--fuel", "CH4", "--excess-air", "10", "--ref-temperature", "30C"],
-    ["--fuel", "CH4", "--excess-air", "10", "--oxidant", "air:rh=150,T=20C"],
-    ["--fuel", "CH4", "--excess-air", "10", "--oxidant", "air:colour=red"],
+    ["--fuel", "CH4", "--excess-air", "10", "--oxidant", "air,rh=150%,T=20C"],
+    ["--fuel", "CH4", "--excess-air", "10", "--oxidant", "air,colour=red"],
     ["--fuel", "missing-file.toml", "--excess-air", "10"],
     ["--fuel", "CO2", "--excess-air", "10"],
-    ["--fuel", "CH4:0.5,N2:0.3", "--excess-air", "10"],
+    ["--fuel", "CH4=0.5,N2=0.3", "--excess-air", "10"],
 ])
 def test_cli_bad_input_exits_2_with_one_line(argv, capsys):
     code, out, err = run_cli("combust", *argv, capsys=capsys)
@@ -486,7 +486,7 @@ def test_measured_flue_gas_analysis_dry_to_wet():
 def test_flame_temperature_beyond_the_data_is_not_given():
     """Sulfur-bearing fuel in near-pure O2: the frozen flame lies above the 5000 K end of the
     TM-4513 SO2 data (the JANAF refit reaches 6000 K, hence source="nasa1993")."""
-    r = tablegen.combustion("CH4:0.34,H2S:0.33,C2H6:0.33", "air:o2=88", excess_air=0, source="nasa1993")
+    r = tablegen.combustion("CH4=0.34,H2S=0.33,C2H6=0.33", "air,O2=88%", excess_air=0, source="nasa1993")
     assert r.summary["t_adiabatic_K"] is None
     assert any("not given" in c for c in r.cautions)
     assert r.summary["hhv_mass"] > 0 and r.summary["dew_point_K"] > 273.15

@@ -41,7 +41,7 @@ def test_state_text_table(capsys):
     (["state", "CO2", "--T", "7000K"], "outside the data range"),
     (["state", "CO2", "--T", "300K", "--P", "-1bar"], "--P"),
     (["state", "CO2", "--T", "abc"], "not a number"),
-    (["state", "CH4:0.5,N2:0.4", "--T", "300K"], "sum to"),
+    (["state", "CH4=0.5,N2=0.4", "--T", "300K"], "sum to"),
     (["state", "CO2", "--T", "300K", "--h-datum", "elsewhere"], "--h-datum"),
     (["state", "CO2"], "required"),
     (["nosuchcommand"], "invalid choice"),

@@ -221,7 +221,7 @@ KEYS_UNITS = [("cp", "kJ/(kg K)"), ("cv", "kJ/(kg K)"), ("k", "-"), ("h", "kJ/kg
 
 
 @pytest.mark.parametrize("substance,extra", [("CO2", []), ("air", ["--h-datum", "sensible:0C"]),
-                                             ("CH4:0.9,C2H6:0.06,N2:0.04", ["--p-ref", "1atm"])])
+                                             ("CH4=0.9,C2H6=0.06,N2=0.04", ["--p-ref", "1atm"])])
 def test_own_values_as_reference_give_zero_deviation(substance, extra, tmp_path, capsys):
     """The state output in the shared CSV convention compared with its own substance: zero deviation."""
     T = np.concatenate([np.arange(200.0, 3001.0, 100.0), [298.15]])
@@ -356,7 +356,7 @@ grid = { segments = [ { start = "250 K", stop = "3000 K", step = "50 K" } ] }
 
 [[tables]]
 name = "flue-vol"
-substance = "CO2:0.09,H2O:0.16,N2:0.72,O2:0.03"
+substance = "CO2=0.09,H2O=0.16,N2=0.72,O2=0.03"
 basis = "volumetric"
 datum = { kind = "sensible", T = "15 °C" }
 temperature_units = ["°C"]
@@ -419,7 +419,7 @@ def test_volumetric_columns_use_the_stated_reference_conditions(tmp_path, capsys
     normal conditions (0 °C) every one is off by 288.15/273.15 (ideal gas: n = P/(R T)), about 5.5 %."""
     build_spec(tmp_path, capsys)
     csv_path = tmp_path / "book" / "flue-vol.csv"
-    sub = ["compare", "CO2:0.09,H2O:0.16,N2:0.72,O2:0.03", csv_path, "--h-datum", "sensible:15C", "--json"]
+    sub = ["compare", "CO2=0.09,H2O=0.16,N2=0.72,O2=0.03", csv_path, "--h-datum", "sensible:15C", "--json"]
     rc, out, _ = run(sub + ["--out", tmp_path / "a", "--vol-ref", "standard-15C"], capsys)
     assert rc == 0, json.loads(out)["out_of_tolerance"][:2]
     rc, out, _ = run(sub + ["--out", tmp_path / "b", "--columns", "cp_vol"], capsys)

@@ -52,7 +52,7 @@ def test_janaf_set_holds_the_required_species_with_nasa1993_ids():
     nasa = library().datasets["nasa1993"]
     for sid in REQUIRED:
         rec = JANAF_SET.get(sid)
-        assert rec is not None and rec.id == sid and rec.form == "nasa9"
+        assert rec is not None and rec.id == sid and rec.form == "9-coefficient"
         assert nasa.get(sid).id == sid
 
 
@@ -201,7 +201,7 @@ def _properties(rec):
     """cp/R, h/R, s/R of a record on a dense grid (500 points an interval)."""
     b = np.array(rec["T_bounds_K"])
     T = np.concatenate([np.linspace(lo, hi, 500) for lo, hi in zip(b[:-1], b[1:])])
-    return T, Polynomial(b, np.array(rec["coefficients"]), "nasa9").evaluate(T)
+    return T, Polynomial(b, np.array(rec["coefficients"]), "9-coefficient").evaluate(T)
 
 
 def _assert_same_physics(fresh, shipped, rtol):

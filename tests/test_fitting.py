@@ -35,7 +35,7 @@ def test_scaled_to_raw_conversion_is_exact_substitution():
     # Identity check: the raw-T polynomial equals the scaled one at every T.
     rng = np.random.default_rng(1)
     A = rng.normal(size=(1, 9))
-    raw = Polynomial(np.array([200.0, 6000.0]), scaled_to_raw(A), "nasa9")
+    raw = Polynomial(np.array([200.0, 6000.0]), scaled_to_raw(A), "9-coefficient")
     T = np.linspace(200, 6000, 50)
     tau = T / T_SCALE
     v = raw.evaluate(T)
@@ -65,16 +65,16 @@ def test_refit_of_nasa_tp_2002_n2_recovers_its_cp_h_s():
     assert all(len(row) == 9 for row in fit.coefficients)
 
 
-def test_nasa7_refit_of_nasa_tm_4513_co2_recovers_it():
+def test_seven_coefficient_refit_of_nasa_tm_4513_co2_recovers_it():
     # NASA TM-4513 CO2 (gasdata/nasa1993.toml), 7-coefficient form, 1000 K break.
     rec = library().datasets["nasa1993"].get("CO2")
     T = np.arange(200.0, 6000.1, 50.0)
     v = rec.poly.evaluate(T)
     ref = rec.poly.evaluate(np.array([298.15]))
-    fit = fit_cp_table(T, v["cp"] * R_MOLAR, form="nasa7", breakpoints=[1000.0],
+    fit = fit_cp_table(T, v["cp"] * R_MOLAR, form="7-coefficient", breakpoints=[1000.0],
                        h298_J_per_mol=ref["h"][0] * R_MOLAR, s298_J_per_molK=ref["s"][0] * R_MOLAR,
                        target=1e-3)
-    assert fit.form == "nasa7" and all(len(row) == 7 for row in fit.coefficients)
+    assert fit.form == "7-coefficient" and all(len(row) == 7 for row in fit.coefficients)
     # TM-4513 intervals are fitted separately, so the published cp jumps a
     # little at 1000 K; the continuous refit stays within 0.1 % of it.
     np.testing.assert_allclose(fit.poly.evaluate(T)["cp"], v["cp"], rtol=1e-3)
@@ -137,7 +137,7 @@ def test_too_few_points_refused():
     (dict(T_K=[300, 200, 400], cp_J_per_molK=[1, 2, 3]), "increasing"),
     (dict(T_K=[200, 300, 400], cp_J_per_molK=[1, -2, 3]), "positive"),
     (dict(T_K=[200, 300, 400], cp_J_per_molK=[1, 2]), "one value per temperature"),
-    (dict(T_K=[200, 300, 400], cp_J_per_molK=[1, 2, 3], form="nasa8"), "allowed: nasa9, nasa7"),
+    (dict(T_K=[200, 300, 400], cp_J_per_molK=[1, 2, 3], form="8-coefficient"), "allowed: 9-coefficient, 7-coefficient"),
     (dict(T_K=[200, 300, 400], cp_J_per_molK=[1, 2, float("nan")]), "non-finite"),
     (dict(T_K=[200, 300, 400], cp_J_per_molK=[1, 2, 3], breakpoints=[500]), "outside"),
     (dict(T_K=[200, 300, 400], cp_J_per_molK=[1, 2, 3], target={"cp": 1}), "allowed"),
@@ -177,7 +177,7 @@ from hypothesis import assume, given, settings, strategies as st  # noqa: E402
 @given(bps=st.lists(st.sampled_from([1000.0, 2000.0, 3000.0, 4000.0, 5000.0]),
                     min_size=0, max_size=3, unique=True),
        h298=st.floats(-5e5, 5e5), s298=st.floats(100.0, 300.0),
-       form=st.sampled_from(["nasa9", "nasa7"]))
+       form=st.sampled_from(["9-coefficient", "7-coefficient"]))
 def test_constraints_hold_for_any_breakpoints(bps, h298, s298, form):
     # Identity: continuity of cp, h, s° and the 298.15 K anchors hold to
     # rounding whatever the breakpoints (NIST-JANAF CO2 as the data).
@@ -192,7 +192,7 @@ def test_constraints_hold_for_any_breakpoints(bps, h298, s298, form):
     ref = fit.poly.evaluate(np.array([298.15]))
     # The anchors are imposed on the coefficients in the scaled variable T/1000 and carried
     # over to raw-T coefficients; that conversion keeps them to about 1e-11 relative, and
-    # hypothesis found a case at 1e-11 (nasa7 with breakpoints 2000 and 3000 K). 1e-9
+    # hypothesis found a case at 1e-11 (7-coefficient form with breakpoints 2000 and 3000 K). 1e-9
     # relative is a millionth of the last digit any table prints.
     assert math.isclose(ref["h"][0] * R_MOLAR, h298, abs_tol=1e-6 * (1 + abs(h298)))
     assert math.isclose(ref["s"][0] * R_MOLAR, s298, rel_tol=1e-9)

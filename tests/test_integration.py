@@ -36,7 +36,7 @@ def test_combustion_cautions_reach_the_book(demo):
 
 def test_demo_flue_gas_is_the_combustion_result():
     # the book's flue gas is the products substance of the fuel at 15 % excess air
-    r = tablegen.combustion("CH4:0.86,C2H6:0.025,C3H8:0.005,CO2:0.075,N2:0.035", excess_air=15)
+    r = tablegen.combustion("CH4=0.86,C2H6=0.025,C3H8=0.005,CO2=0.075,N2=0.035", excess_air=15)
     assert r.summary["lambda"] == pytest.approx(1.15)
     assert r.products.cautions and "asphyxiant" in " ".join(r.products.cautions)
 

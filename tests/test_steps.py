@@ -53,7 +53,7 @@ def jump_rtol(sub) -> float:
 def constant_cp_gas(cp_over_R: float = 3.5, M: float = 28.0) -> Substance:
     """An ideal gas with exactly constant cp (k = cp/(cp - R)), by a one-interval Polynomial."""
     coeffs = np.array([[0.0, 0.0, cp_over_R, 0.0, 0.0, 0.0, 0.0, -cp_over_R * 298.15, 0.0]])
-    poly = Polynomial(np.array([100.0, 5000.0]), coeffs, "nasa9")
+    poly = Polynomial(np.array([100.0, 5000.0]), coeffs, "9-coefficient")
     return Substance(id="const-cp", name="constant-cp test gas", kind="species", M=M, poly=poly)
 
 

@@ -207,7 +207,7 @@ def test_virial_statement_names_pressure_limit():
 
 
 # ---------------------------------------------------------- interpolation
-@pytest.mark.parametrize("name", ["N2", "CO2", "air", "CO2:0.09,H2O:0.18,N2:0.71,O2:0.02"])
+@pytest.mark.parametrize("name", ["N2", "CO2", "air", "CO2=0.09,H2O=0.18,N2=0.71,O2=0.02"])
 def test_interpolation_bound_never_exceeded_at_10000_random_temperatures(name):
     """The stated bound of linear interpolation between printed rows is never
     exceeded at 10,000 random temperatures (rows cross the data's 1000 K

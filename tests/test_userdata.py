@@ -67,7 +67,7 @@ def test_tm4513_sample_reproduces_shipped_nasa1993_records(capsys):
         mine = lib.record(sid)
         assert mine.file == str(TM4513) and mine.dataset == "tm4513-sample"
         ref = shipped.get(sid)
-        assert mine.form == "nasa7"
+        assert mine.form == "7-coefficient"
         np.testing.assert_array_equal(mine.poly.T_bounds, ref.poly.T_bounds)
         # the sample carries the shipped values' 9 significant digits: exact
         np.testing.assert_allclose(mine.poly.coeffs, ref.poly.coeffs, rtol=1e-15, atol=0)
@@ -87,7 +87,7 @@ def test_tp2002_sample_reproduces_shipped_nasa2002_record(capsys):
     lib = library((str(TP2002),))
     mine = lib.record("N2")
     ref = lib.datasets["nasa2002-air"].get("N2")
-    assert mine.form == "nasa9" and mine.poly.n_intervals == 3
+    assert mine.form == "9-coefficient" and mine.poly.n_intervals == 3
     np.testing.assert_array_equal(mine.poly.T_bounds, ref.poly.T_bounds)
     np.testing.assert_allclose(mine.poly.coeffs, ref.poly.coeffs, rtol=1e-15, atol=0)
     rows, _ = state(capsys, "N2", TP2002, T="300K,1000K,5000K,15000K")
@@ -220,7 +220,7 @@ def test_species_check_reports_every_refusal(capsys, tmp_path):
 
 
 # ------------------------------------------------------------------ export
-FLUE = "CO2:0.09,H2O:0.18,N2:0.7,O2:0.021,Ar:0.009"   # invented boiler flue gas
+FLUE = "CO2=0.09,H2O=0.18,N2=0.7,O2=0.021,Ar=0.009"   # invented boiler flue gas
 
 
 @pytest.mark.parametrize("name", ["air", FLUE, "flue@CH4@excess-air=15%"])
@@ -240,7 +240,7 @@ def test_exported_mixture_round_trips_through_toml_to_1e9(capsys, tmp_path, name
         assert cite in text and ds in text
 
 
-@pytest.mark.parametrize("fmt,digits", [("nasa7", 9), ("nasa9", 10)])
+@pytest.mark.parametrize("fmt,digits", [("tm-4513", 9), ("tp-2002", 10)])
 def test_exported_mixture_card_keeps_the_digits_of_its_fields(capsys, tmp_path, fmt, digits):
     # TM-4513 E15.8 fields written 1PE15.8 hold 9 significant digits, the
     # TP-2002-211556 D16 fields 10: each coefficient read back within half a unit
@@ -259,17 +259,17 @@ def test_exported_mixture_card_keeps_the_digits_of_its_fields(capsys, tmp_path, 
     assert abs(rec.M - tablegen.substance("air", source="nasa1993").M) <= 1e-8
 
 
-def test_export_refuses_nasa7_for_a_nine_coefficient_polynomial(capsys):
-    rc, out, err = run(capsys, "export", "N2", "--source", "nasa2002-air", "--format", "nasa7")
+def test_export_refuses_tm4513_cards_for_a_nine_coefficient_polynomial(capsys):
+    rc, out, err = run(capsys, "export", "N2", "--source", "nasa2002-air", "--format", "tm-4513")
     assert rc == 2 and out == ""
-    assert "9-coefficient" in err and "nasa9 or toml" in err
+    assert "9-coefficient" in err and "tp-2002 or toml" in err
 
 
-def test_export_refuses_nasa7_when_breakpoints_do_not_fit(capsys):
+def test_export_refuses_tm4513_cards_when_breakpoints_do_not_fit(capsys):
     # n-hexane of the shipped nuig2015 set breaks at 1394 K, not 1000 K.
-    rc, out, err = run(capsys, "export", "n-C6H14", "--source", "nuig2015", "--format", "nasa7")
+    rc, out, err = run(capsys, "export", "n-C6H14", "--source", "nuig2015", "--format", "tm-4513")
     assert rc == 2 and out == ""
-    assert "1000 K" in err and "nasa9 or toml" in err
+    assert "1000 K" in err and "tp-2002 or toml" in err
 
 
 def test_export_keeps_an_existing_file_without_force(capsys, tmp_path):
@@ -304,7 +304,7 @@ def test_fit_reproduces_nist_janaf_s_and_h_within_reported_residuals(capsys, tmp
     csv = tmp_path / f"{formula}.csv"
     T, cp, H, S = janaf_csv(csv, index)
     out = tmp_path / f"{formula}-fit.toml"
-    rc, _, err = run(capsys, "fit", str(csv), "--form", "nasa9", "--formula", formula, "--id", f"J{formula}",
+    rc, _, err = run(capsys, "fit", str(csv), "--form", "9-coefficient", "--formula", formula, "--id", f"J{formula}",
                      f"--h298={dfH}kJ/mol", "--format", "toml", "--out", str(out))
     assert rc == 0, err
     assert "largest residuals" in err
@@ -322,16 +322,16 @@ def test_fit_reproduces_nist_janaf_s_and_h_within_reported_residuals(capsys, tmp
     assert res["cp_max_rel"] <= 1e-3
 
 
-def test_fit_nasa7_cards_round_trip_through_import(capsys, tmp_path):
+def test_fit_tm4513_cards_round_trip_through_import(capsys, tmp_path):
     csv = tmp_path / "co2.csv"
     janaf_csv(csv, "C-095", with_h_s=False)
     out = tmp_path / "co2.dat"
-    rc, _, err = run(capsys, "fit", str(csv), "--form", "nasa7", "--formula", "CO2", "--id", "CO2FIT",
+    rc, _, err = run(capsys, "fit", str(csv), "--form", "7-coefficient", "--formula", "CO2", "--id", "CO2FIT",
                      "--h298=-393.522kJ/mol", "--s298", "213.795J/(mol K)", "--target-cp", "0.01",
                      "--out", str(out))
     assert rc == 0, err
     rec = library((str(out),)).record("CO2FIT")
-    assert rec.form == "nasa7" and list(rec.poly.T_bounds) == [200.0, 1000.0, 6000.0]
+    assert rec.form == "7-coefficient" and list(rec.poly.T_bounds) == [200.0, 1000.0, 6000.0]
     # s°(298.15 K) anchored to the JANAF value (NIST-JANAF C-095: 213.795 J/(mol K));
     # 9 printed digits of b2 ~ 10 limit the agreement to ~1e-8 R
     rows, _ = state(capsys, "CO2FIT", out, T="298.15K")
@@ -343,7 +343,7 @@ def test_fit_refuses_a_poor_fit_with_the_reason(capsys, tmp_path):
     # one 1000 K breakpoint cannot meet 0.1 % on CO2 from 200 to 6000 K in 7 terms
     csv = tmp_path / "co2.csv"
     janaf_csv(csv, "C-095")
-    rc, out, err = run(capsys, "fit", str(csv), "--form", "nasa7", "--formula", "CO2")
+    rc, out, err = run(capsys, "fit", str(csv), "--form", "7-coefficient", "--formula", "CO2")
     assert rc == 2 and out == ""
     assert "misses its residual target" in err and "1000 K breakpoint" in err
 
@@ -351,14 +351,14 @@ def test_fit_refuses_a_poor_fit_with_the_reason(capsys, tmp_path):
 def test_fit_refuses_too_few_points(capsys, tmp_path):
     csv = tmp_path / "few.csv"
     csv.write_text("T [K],cp_molar [J/(mol K)]\n300,29.1\n400,29.3\n500,29.6\n")
-    rc, out, err = run(capsys, "fit", str(csv), "--form", "nasa9", "--formula", "N2", "--s298", "191.6J/(mol K)")
+    rc, out, err = run(capsys, "fit", str(csv), "--form", "9-coefficient", "--formula", "N2", "--s298", "191.6J/(mol K)")
     assert rc == 2 and out == "" and "refused" in err
 
 
 def test_fit_names_the_bad_cell(capsys, tmp_path):
     csv = tmp_path / "bad.csv"
     csv.write_text("# a comment\nT [K],cp [kJ/(kg K)]\n300,1.04\n400,one\n")
-    rc, out, err = run(capsys, "fit", str(csv), "--form", "nasa9", "--formula", "N2")
+    rc, out, err = run(capsys, "fit", str(csv), "--form", "9-coefficient", "--formula", "N2")
     assert rc == 2 and out == ""
     assert f"{csv}:4:" in err and "'one' is not a number" in err
 
@@ -371,7 +371,7 @@ def test_fit_mass_basis_cp_uses_the_molar_mass_of_the_formula(capsys, tmp_path):
     mass.write_text("T [K],cp [kJ/(kg K)]\n" + "".join(f"{float(t)!r},{float(c) / M!r}\n" for t, c in zip(T, cp)))
     outs = []
     for f in (tmp_path / "ref.csv", mass):
-        rc, out, err = run(capsys, "fit", str(f), "--form", "nasa9", "--formula", "N2",
+        rc, out, err = run(capsys, "fit", str(f), "--form", "9-coefficient", "--formula", "N2",
                            "--s298", "191.609J/(mol K)", "--format", "toml", "--quiet")
         assert rc == 0, err
         outs.append(out)
@@ -394,18 +394,18 @@ _coef = st.floats(min_value=-1e12, max_value=1e12, allow_nan=False).filter(lambd
 @settings(max_examples=25, deadline=None)
 @given(st.lists(_coef, min_size=9, max_size=9), st.lists(_coef, min_size=9, max_size=9),
        st.floats(min_value=0.0001, max_value=60.0))
-def test_nasa9_fields_hold_ten_significant_digits(a, b, count):
+def test_tp2002_fields_hold_ten_significant_digits(a, b, count):
     # NASA/TP-2002-211556 D16 fields: written with 10 significant digits, read back
     # within half a unit of the 10th digit (identity of the format, no source needed).
     rec = {"id": "X", "elements": {"C": count}, "M": 12.011 * count, "T_bounds_K": [200.0, 1000.0, 6000.0],
            "coefficients": [a, b], "h_formation_J_per_mol": 0.0}
     try:
-        text = formats.write_nasa9(rec)
+        text = formats.write_tp2002(rec)
     except DataError:
         # refused only when the field would round the count to a whole number
         assert abs(count - round(count)) < 0.5e-4 and count != round(count)
         return
-    got, _ = formats.read_nasa9(text, "mem")
+    got, _ = formats.read_tp2002(text, "mem")
     raw = got[0].raw
     for row_in, row_out in zip([a, b], raw["coefficients"]):
         for x, y in zip(row_in, row_out):
@@ -418,11 +418,11 @@ def test_nasa9_fields_hold_ten_significant_digits(a, b, count):
 @settings(max_examples=25, deadline=None)
 @given(st.lists(_coef, min_size=7, max_size=7), st.lists(_coef, min_size=7, max_size=7),
        _coef.filter(lambda x: abs(x) < 1e9))
-def test_nasa7_fields_hold_nine_significant_digits(lo, up, h):
+def test_tm4513_fields_hold_nine_significant_digits(lo, up, h):
     # NASA TM-4513 E15.8 fields written 1PE15.8: 9 significant digits.
     rec = {"id": "X", "elements": {"N": 2}, "M": 28.014, "T_bounds_K": [200.0, 1000.0, 6000.0],
            "coefficients": [lo, up], "h298_over_R_K": h}
-    got, _ = formats.read_nasa7(formats.write_nasa7(rec), "mem")
+    got, _ = formats.read_tm4513(formats.write_tm4513(rec), "mem")
     raw = got[0].raw
     for row_in, row_out in zip([lo, up], raw["coefficients"]):
         for x, y in zip(row_in, row_out):

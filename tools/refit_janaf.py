@@ -36,7 +36,7 @@ from tablegen.data.library import library  # noqa: E402
 from tablegen.data.tomlout import table  # noqa: E402
 from tablegen.fitting import FitError, fit_cp_table, residuals_against  # noqa: E402
 from tablegen.outfiles import write_bytes  # noqa: E402
-from tablegen.thermo.polynomial import Polynomial  # noqa: E402
+from tablegen.thermo.polynomial import NINE, Polynomial  # noqa: E402
 from tablegen.thermo.substance import R_MOLAR  # noqa: E402
 
 #: tablegen species id (= the NASA TM-4513 id in gasdata/nasa1993.toml) ->
@@ -139,7 +139,7 @@ def fit_one(sid: str, index: str, formula: str, base) -> dict:
         raise SystemExit(f"{sid}: no acceptable fit ({last})")
     target = {("s0_max_J_per_molK" if k == "s_max_J_per_molK" else k): v for k, v in tgt.items()}
     coefficients = [[round_significant(c) for c in row] for row in fit.coefficients]
-    poly = Polynomial(np.array(fit.T_bounds), np.array(coefficients), "nasa9")
+    poly = Polynomial(np.array(fit.T_bounds), np.array(coefficients), NINE)
     res = residuals_against(poly, T, cp, dh_J_per_mol=H, s_J_per_molK=S)
     notes = []
     top = cp[-1]
@@ -158,7 +158,7 @@ def fit_one(sid: str, index: str, formula: str, base) -> dict:
         "elements": dict(base.elements),
         "molar_mass_g_per_mol": round(base.M, 6),
         "phase": "gas",
-        "form": "nasa9",
+        "form": NINE,
         "T_bounds_K": list(fit.T_bounds),
         "coefficients": coefficients,
         "h_formation_298_J_per_mol": dfH,

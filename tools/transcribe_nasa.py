@@ -24,7 +24,7 @@ ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 from tablegen.constants import R_MOLAR  # noqa: E402
 from tablegen.data.tomlout import table  # noqa: E402
-from tablegen.thermo.polynomial import Polynomial, nasa7_to_9  # noqa: E402
+from tablegen.thermo.polynomial import NINE, SEVEN, Polynomial, seven_to_nine  # noqa: E402
 
 DATA = Path(cantera.__file__).parent / "data"
 
@@ -144,15 +144,15 @@ def record(sp: dict, w: dict, source_key: str, used: set) -> dict:
     aliases = [a for a in dict.fromkeys([*aliases, name]) if a != sid]
     th = sp["thermo"]
     model = th["model"]
-    form = {"NASA7": "nasa7", "NASA9": "nasa9"}[model]
+    form = {"NASA7": SEVEN, "NASA9": NINE}[model]          # cantera's model names -> ours
     bounds = [float(x) for x in th["temperature-ranges"]]
     data = [[float(x) for x in row] for row in th["data"]]
-    if form == "nasa7" and len(bounds) == 3 and bounds[1] >= bounds[2]:
+    if form == SEVEN and len(bounds) == 3 and bounds[1] >= bounds[2]:
         raise SystemExit(f"{name}: odd bounds {bounds}")
-    if form == "nasa7" and len(data) == 1:
+    if form == SEVEN and len(data) == 1:
         # one interval over the whole range (monatomic gases with constant cp)
         bounds = [bounds[0], bounds[-1]]
-    c9 = [nasa7_to_9(r) for r in data] if form == "nasa7" else data
+    c9 = [seven_to_nine(r) for r in data] if form == SEVEN else data
     poly = Polynomial(bounds, c9, form)
     import numpy as np
     h298 = float(poly.evaluate(np.array([298.15]), want=("h",))["h"][0]) * R_MOLAR

@@ -15,7 +15,8 @@ def add_arguments(p):
                    help="overwrite files that already exist in the output folder")
     p.epilog = ("The spec is checked in full before anything is computed; a broken rule is named by its\n"
                 "key path (e.g. tables[2].grid.segments[0].step) and nothing is written.\n"
-                "Files: <spec name>.pdf, <spec name>.json and <table name>.csv per table.\n\n"
+                "Files: <spec name>.pdf, <spec name>.json and <table name>.csv per table.\n"
+                "plant-tables.toml (the annotated spec of docs/spec.md) is in the project's docs/examples/ folder.\n\n"
                 "example:\n"
                 "  tablegen build plant-tables.toml\n"
                 "  tablegen build plant-tables.toml --out issued/rev-C --force")

@@ -16,12 +16,13 @@ EXAMPLE = """example:
       --overlay "T=15C P=1.013bar label=GT-2; compress P2=12bar eta=0.86; heat_p T2=1350K; expand P2=1.05bar eta=0.89" \\
       --format both --out output/gt2
   tablegen chart CO2 --units US --T-unit F --paper A3 --format png
-  tablegen chart --spec plant-charts.toml --force
+  tablegen chart --spec harwick-gt2-charts.toml --force
 
 overlay text: 'T=.. P=.. [label=..]' then ';'-separated steps:
   compress P2=..|ratio=.. eta=..   expand P2=..|ratio=.. eta=..
   heat_p T2=..   heat_v T2=..   throttle P2=..
-bare numbers are read in the unit system's units (SI: K, bar, m3/kg; US: °R, psia, ft3/lbm)."""
+bare numbers are read in the unit system's units (SI: K, bar, m3/kg; US: °R, psia, ft3/lbm).
+harwick-gt2-charts.toml (a chart spec) is in the project's docs/examples/ folder."""
 
 #: command-line option of each chart key (for messages)
 OPTION_OF = {"kind": "--kind", "pressures": "--pressures", "volumes": "--volumes",
@@ -33,7 +34,8 @@ SPEC_KEYS = ("substance", "units", "date", "name", "charts")
 def add_arguments(p):
     p.epilog = EXAMPLE
     p.add_argument("substance", nargs="?", default=None,
-                   help="species id or alias, shipped mixture (air), or inline NAME:x,NAME:y "
+                   help="species id or alias, shipped mixture (air), or a composition NAME=x,NAME=y "
+                        "(mole fractions; NAME=x%%,... or basis=mass,...) "
                         "(optional with --spec if the spec names it)")
     g = p.add_argument_group("what to draw")
     g.add_argument("--kind", default=None, choices=("ts", "hs", "both"),

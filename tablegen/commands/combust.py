@@ -8,14 +8,16 @@ from ..errors import TablegenError
 from .common import dumps
 
 EXAMPLE = """example:
-  tablegen combust --fuel CH4:0.9,C2H6:0.06,N2:0.04 --excess-air 15
-  tablegen combust --fuel propane --o2-dry 3.5 --oxidant air:rh=60,T=20C,P=1atm --json
+  tablegen combust --fuel CH4=0.9,C2H6=0.06,N2=0.04 --excess-air 15
+  tablegen combust --fuel CH4=90%,C2H6=6%,N2=4% --excess-air 15 --oxidant air,O2=25%
+  tablegen combust --fuel propane --o2-dry 3.5 --oxidant air,rh=60%,T=20C,P=1atm --json
   tablegen combust --fuel fuels/heavy-oil.toml --lambda 1.2 --ref-temperature 15C
 
 A fuel file holds a [fuel] table: composition = {CH4 = 90, ...} with basis = "mole",
 "mass", "volume-dry" (then water_percent) or "volume-wet"; or analysis = {C = 0.85,
 H = 0.11, ...} with basis = "as-received", "dry" or "daf" and hhv, lhv or h_formation;
-or formula = "C12H23" with a heating value. See docs/combustion.md.
+or formula = "C12H23" with a heating value. See docs/combustion.md; fuels/heavy-oil.toml is in
+the project's docs/examples/ folder.
 The products can be tabulated: tablegen state "flue@CH4@excess-air=15" --T 400K,1500K"""
 
 #: JSON key -> unit, stated in the JSON output under "units".
@@ -50,8 +52,9 @@ REF_CHOICES = {"25C": 298.15, "20C": 293.15, "15.55C": 288.705555555556, "60F": 
 def add_arguments(p):
     p.epilog = EXAMPLE
     p.add_argument("--fuel", required=True, metavar="SPEC",
-                   help="species mole fractions (CH4:0.9,C2H6:0.06,N2:0.04; percentages summing to 100 "
-                        "also accepted), one species (propane), or a TOML fuel file")
+                   help="a composition, mole fractions CH4=0.9,C2H6=0.06,N2=0.04 or percentages "
+                        "CH4=90%%,C2H6=6%%,N2=4%% (basis=mass,... for mass fractions), one species (propane), "
+                        "or a TOML fuel file")
     g = p.add_argument_group("amount of oxidant (give exactly one)").add_mutually_exclusive_group(required=True)
     g.add_argument("--excess-air", metavar="P", help="excess air in %% (0 = stoichiometric)")
     g.add_argument("--lambda", dest="air_ratio", metavar="L", help="air ratio λ (>= 1)")
@@ -59,8 +62,9 @@ def add_arguments(p):
     g.add_argument("--o2-dry", metavar="P", help="measured flue-gas O2, %% by volume, dry basis")
     g.add_argument("--o2-wet", metavar="P", help="measured flue-gas O2, %% by volume, wet basis")
     p.add_argument("--oxidant", default="air", metavar="SPEC",
-                   help="air (default, dry), oxygen, air:rh=60,T=25C,P=1atm (humid), air:w=0.008 "
-                        "(humidity ratio, kg/kg), air:o2=30 (O2-enriched, %% dry), or O2:0.3,N2:0.7")
+                   help="air (default, dry), oxygen, air,rh=60%%,T=25C[,P=1atm] (humid, relative "
+                        "humidity at T and P), air,w=8g/kg (humid, humidity ratio), air,O2=30%% (enriched "
+                        "to 30 %% O2, dry), or a dry composition O2=0.3,N2=0.7")
     p.add_argument("--ref-temperature", default="25C", metavar="T",
                    help="combustion reference temperature of the heating values: 25C (default), 20C, "
                         "15.55C (= 60F), 15C or 0C")

@@ -14,9 +14,12 @@ from .common import add_datum_options, dumps, notice, substance_with_options
 
 EXAMPLE = """example:
   tablegen compare N2 janaf-n2.csv --tolerance cp_molar=0.5% --tolerance dh298_molar=0.5%+0.001
-  tablegen compare air handbook-air.txt --h-datum sensible:0C --align Pr=scale --align vr=scale
+  tablegen compare air air-rev-b.txt --h-datum sensible:0C --align Pr=scale --align vr=scale
   tablegen compare CO2 earlier-issue.csv --columns cp,h --tolerance h=0.2 --out qa/co2 --json
-  tablegen compare book.toml output/book/flue-nm3.csv --table flue-nm3
+  tablegen build plant-tables.toml
+  tablegen compare plant-tables.toml output/plant-tables/flue-nm3.csv --table flue-nm3
+
+The files named here are in the project's docs/examples/ folder.
 
 REFERENCE: CSV or whitespace-separated text; header cells 'key [unit]' (keys of the
 state JSON: cp, cv, k, h, u, s0, g0, Pr, vr, a, cp_molar, h_molar, s0_molar,
@@ -29,7 +32,7 @@ FILES = ("report.pdf", "deviations.csv", "summary.json")
 def add_arguments(p):
     p.epilog = EXAMPLE
     p.add_argument("substance", metavar="SUBSTANCE-OR-SPEC",
-                   help="species id or alias, shipped or inline mixture, or a table-book spec (*.toml)")
+                   help="species id or alias, shipped mixture, composition (NAME=x,NAME=y), or a table-book spec (*.toml)")
     p.add_argument("reference", metavar="REFERENCE", help="reference table (CSV or whitespace-separated text)")
     p.add_argument("--columns", default=None, metavar="KEYS",
                    help="comma-separated keys to compare (default: every property column of REFERENCE)")

@@ -5,8 +5,8 @@ mole-fraction-weighted sum of its components' coefficients on the union of
 their breakpoints, molar, at 1 bar, with the ideal mixing term -Σ y ln y
 already in the s°/R constant b2. Read back with ``--data``, the record gives
 the mixture's own values; in TOML every coefficient survives bit for bit, the
-card formats keep the digits their fields hold (nasa7: 9 significant digits,
-nasa9: 10).
+card formats keep the digits their fields hold (tm-4513: 9 significant digits,
+tp-2002: 10).
 """
 
 from __future__ import annotations
@@ -17,16 +17,19 @@ import sys
 
 import numpy as np
 
+from ..data.formats import TM4513, TP2002
 from ..errors import TablegenError
+from ..thermo.polynomial import NINE, SEVEN
 from .common import data_notices
 
 EXAMPLE = """example:
-  tablegen export "CH4:0.9,C2H6:0.06,N2:0.04" --format toml --id SITE-GAS --out site-gas.toml
-  tablegen export air --format nasa9
-  tablegen export CO2 --format nasa7 --out co2.dat
+  tablegen export "CH4=0.9,C2H6=0.06,N2=0.04" --format toml --id SITE-GAS --out site-gas.toml
+  tablegen export air --format tp-2002
+  tablegen export CO2 --source nasa1993 --format tm-4513 --out co2.dat
   tablegen state SITE-GAS --data site-gas.toml --T 25C,800C"""
 
-FORMATS = ("nasa7", "nasa9", "toml")
+#: --format values: the card layouts named after their reports, and gasdata TOML.
+FORMATS = (TM4513, TP2002, "toml")
 
 #: Card name fields are 18 columns (NASA TM-4513 and NASA/TP-2002-211556).
 NAME_WIDTH = 18
@@ -36,9 +39,11 @@ _CLEAN_ID = re.compile(r"^[A-Za-z0-9_()+\-.,]+$")
 
 def add_arguments(p):
     p.epilog = EXAMPLE
-    p.add_argument("substance", help="species id or alias, shipped mixture (air), or inline NAME:x,NAME:y")
+    p.add_argument("substance", help="species id or alias, shipped mixture (air), or a composition "
+                                      "NAME=x,NAME=y (mole fractions; NAME=x%%,... or basis=mass,...)")
     p.add_argument("--format", required=True, choices=FORMATS, metavar="FORMAT",
-                   help="nasa7 (NASA TM-4513 cards), nasa9 (NASA/TP-2002-211556) or toml (gasdata)")
+                   help="tm-4513 (NASA TM-4513 cards, 7-coefficient form), tp-2002 (NASA/TP-2002-211556 "
+                        "records, 9-coefficient form) or toml (gasdata)")
     p.add_argument("--id", default=None, metavar="ID",
                    help="species id of the record (default: the species id; for a mixture its name "
                         "plus '-mix', or MIX- and a digest of the composition)")
@@ -107,35 +112,35 @@ def citation(r: dict, version: str | None = None) -> str:
     return f"tablegen{v} export of {r['name']}{r['origin']}"
 
 
-def to_nasa7(r: dict) -> str:
+def to_tm4513(r: dict) -> str:
     from ..data import formats
     b = r["T_bounds_K"]
     c = r["coeffs9"]
     if not r["a7_form"]:
         raise TablegenError(f"{r['id']}: the polynomial has T^-2 and T^-1 terms (9-coefficient form), which "
-                            f"the 7-coefficient nasa7 format cannot hold; use --format nasa9 or toml")
+                            f"the 7-coefficient {TM4513} format cannot hold; use --format {TP2002} or toml")
     inner = b[1:-1]
-    T0 = formats.NASA7_COMMON_T
+    T0 = formats.TM4513_COMMON_T
     if not (b[0] < T0 < b[-1]) or any(abs(t - T0) > 1e-9 for t in inner):
-        raise TablegenError(f"{r['id']}: the nasa7 (TM-4513) format holds two intervals that meet at "
+        raise TablegenError(f"{r['id']}: the {TM4513} format holds two intervals that meet at "
                             f"{T0:g} K; this polynomial covers {b[0]:g}-{b[-1]:g} K with breakpoints at "
-                            f"{[float(t) for t in inner] or 'none'} K; use --format nasa9 or toml")
+                            f"{[float(t) for t in inner] or 'none'} K; use --format {TP2002} or toml")
     if len(inner) == 0:
         lower = upper = c[0]
     else:
         lower, upper = c[0], c[1]
     if len(r["elements"]) > 4:
         raise TablegenError(f"{r['id']}: the TM-4513 formula field holds 4 elements, this record has "
-                            f"{len(r['elements'])} ({', '.join(r['elements'])}); use --format nasa9 or toml")
+                            f"{len(r['elements'])} ({', '.join(r['elements'])}); use --format {TP2002} or toml")
     rec = {"id": r["id"], "elements": r["elements"], "M": r["M"], "T_bounds_K": [b[0], T0, b[-1]],
            "coefficients": [lower[2:], upper[2:]], "date": r.get("date", "export"), "h298_over_R_K": r["h298_over_R_K"]}
     try:
-        return formats.write_nasa7(rec, comments=[f"citation: {citation(r)}", *r["comments"]])
+        return formats.write_tm4513(rec, comments=[f"citation: {citation(r)}", *r["comments"]])
     except TablegenError as e:
-        raise TablegenError(f"{r['id']}: {e}; use --format nasa9 or toml") from None
+        raise TablegenError(f"{r['id']}: {e}; use --format {TP2002} or toml") from None
 
 
-def to_nasa9(r: dict) -> str:
+def to_tp2002(r: dict) -> str:
     from ..data import formats
     if len(r["elements"]) > 5:
         raise TablegenError(f"{r['id']}: the NASA/TP-2002-211556 formula field holds 5 elements, this record "
@@ -145,7 +150,7 @@ def to_nasa9(r: dict) -> str:
            "elements": r["elements"], "M": r["M"], "h_formation_J_per_mol": r["h_formation_J_per_mol"],
            "T_bounds_K": r["T_bounds_K"], "coefficients": r["coeffs9"]}
     try:
-        return formats.write_nasa9(rec, comments=[f"citation: {citation(r)}", *r["comments"]])
+        return formats.write_tp2002(rec, comments=[f"citation: {citation(r)}", *r["comments"]])
     except TablegenError as e:
         raise TablegenError(f"{r['id']}: {e}; use --format toml") from None
 
@@ -153,8 +158,8 @@ def to_nasa9(r: dict) -> str:
 def to_toml(r: dict) -> str:
     from .. import __version__
     from ..data.tomlout import table
-    form = "nasa7" if r["a7_form"] else "nasa9"
-    coeffs = [[float(x) for x in (row[2:] if form == "nasa7" else row)] for row in r["coeffs9"]]
+    form = SEVEN if r["a7_form"] else NINE
+    coeffs = [[float(x) for x in (row[2:] if form == SEVEN else row)] for row in r["coeffs9"]]
     ds = {"id": r.get("dataset_id", f"export-{r['id']}"),
           "title": r.get("title", f"tablegen export of {r['name']}"),
           "citation": citation(r, __version__),
@@ -183,10 +188,10 @@ def to_toml(r: dict) -> str:
 def write_record(r: dict, fmt: str) -> str:
     """A record dict (see record_of, with_poly) in one of FORMATS."""
     rid = r["id"]
-    if fmt in ("nasa7", "nasa9") and (len(rid) > NAME_WIDTH or " " in rid):
+    if fmt in (TM4513, TP2002) and (len(rid) > NAME_WIDTH or " " in rid):
         raise TablegenError(f"record id {rid!r} does not fit the {NAME_WIDTH}-column name field of the "
                             f"{fmt} format (no spaces); give a shorter --id or use --format toml")
-    return {"nasa7": to_nasa7, "nasa9": to_nasa9, "toml": to_toml}[fmt](r)
+    return {TM4513: to_tm4513, TP2002: to_tp2002, "toml": to_toml}[fmt](r)
 
 
 def check_id(rid: str) -> str:
@@ -210,7 +215,7 @@ def run(args) -> int:
         print(f"note: record id {rid} (choose another with --id)", file=sys.stderr)
     text = render(sub, lib, args.format, rid)
     if args.format != "toml" and sub.kind == "mixture" and not args.quiet:
-        digits = 9 if args.format == "nasa7" else 10
+        digits = 9 if args.format == TM4513 else 10
         print(f"note: the {args.format} format holds {digits} significant digits a coefficient; "
               f"--format toml keeps every digit of the collapsed polynomial", file=sys.stderr)
     if args.out:

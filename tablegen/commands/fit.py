@@ -21,15 +21,23 @@ from pathlib import Path
 
 import numpy as np
 
+from ..data.formats import TM4513, TP2002
 from ..errors import TablegenError
+from ..thermo.polynomial import FORMS, NINE, SEVEN
+
+#: Output formats of the fitted record, and the card format written by default for each form.
+OUTPUT_FORMATS = (TM4513, TP2002, "toml")
+CARD_OF_FORM = {SEVEN: TM4513, NINE: TP2002}
 
 EXAMPLE = """example:
-  tablegen fit site-gas-cp.csv --form nasa9 --formula C1.02H3.9O0.1N0.08 --id SITE-GAS \\
-      --h298=-78.2kJ/mol --s298 "190.1J/(mol K)" --out site-gas.inp
-  tablegen fit co2-table.csv --form nasa7 --formula CO2 --breakpoint 1000K --format toml
+  tablegen fit janaf-co2.csv --form 9-coefficient --formula CO2 --id CO2-JANAF \\
+      --h298=-393.522kJ/mol --out co2-janaf.inp
+  tablegen fit janaf-co2.csv --form 7-coefficient --formula CO2 --breakpoint 1000K \\
+      --h298=-393.522kJ/mol --target-cp 0.01 --format toml
 
 The CSV has header cells 'key [unit]': T [K] (or °C, °F, °R), cp_molar [J/(mol K)]
-or cp [kJ/(kg K)], and optionally dh298_molar [J/mol] and s0_molar [J/(mol K)]."""
+or cp [kJ/(kg K)], and optionally dh298_molar [J/mol] and s0_molar [J/(mol K)].
+janaf-co2.csv (the NIST-JANAF CO2 table) is in the project's docs/examples/ folder."""
 
 #: Columns the fit reads: key -> dimension of its unit.
 COLUMNS = {"T": "temperature", "cp_molar": "molar_entropy", "cp": "specific_entropy",
@@ -42,11 +50,11 @@ _FORMULA = re.compile(r"([A-Z][a-z]?)(\d+(?:\.\d*)?|\.\d+)?")
 def add_arguments(p):
     p.epilog = EXAMPLE
     p.add_argument("table", metavar="TABLE.csv", help="tabulated cp(T), columns 'key [unit]'")
-    p.add_argument("--form", required=True, choices=("nasa7", "nasa9"), metavar="FORM",
-                   help="polynomial form: nasa7 (NASA TM-4513) or nasa9 (NASA/TP-2002-211556)")
+    p.add_argument("--form", required=True, choices=FORMS, metavar="FORM",
+                   help="polynomial form: 7-coefficient (NASA TM-4513) or 9-coefficient (NASA/TP-2002-211556)")
     p.add_argument("--breakpoint", action="append", default=None, metavar="T",
                    help="inner interval bound with a unit (repeatable); default: chosen by the fit "
-                        "(1000 K for nasa7 card output)")
+                        "(1000 K for tm-4513 card output)")
     p.add_argument("--formula", required=True, metavar="FORMULA",
                    help="elements and counts, e.g. CO2 or C1.02H3.9O0.1 (gives the molar mass)")
     p.add_argument("--id", default=None, metavar="ID", help="species id of the record (default: the formula)")
@@ -58,8 +66,10 @@ def add_arguments(p):
                    help="s°(298.15 K) at 1 bar with a unit (e.g. 213.79J/(mol K)); needed without an s0 column")
     p.add_argument("--target-cp", type=float, default=1e-3, metavar="REL",
                    help="largest |Δcp|/cp accepted at the tabulated points (default 1e-3)")
-    p.add_argument("--format", default=None, choices=("nasa7", "nasa9", "toml"), metavar="FORMAT",
-                   help="output format: nasa7, nasa9 or toml (default: the card format of --form)")
+    p.add_argument("--format", default=None, choices=OUTPUT_FORMATS, metavar="FORMAT",
+                   help="output format: tm-4513 (NASA TM-4513 cards, 7-coefficient only), tp-2002 "
+                        "(NASA/TP-2002-211556) or toml (gasdata); default: tm-4513 for the 7-coefficient "
+                        "form, tp-2002 for the 9-coefficient form")
     p.add_argument("--out", default=None, metavar="FILE", help="write to FILE instead of stdout")
     p.add_argument("--force", action="store_true", help="overwrite FILE if it exists")
 
@@ -185,10 +195,10 @@ def run(args) -> int:
     from ..units import quantity, temperature_K
     from .common import data_notices, notice
     from .export import check_id, with_poly, write_record
-    fmt = args.format or args.form
-    if fmt == "nasa7" and args.form != "nasa7":
-        raise TablegenError("--format nasa7 holds only the 7-coefficient form; use --form nasa7, or "
-                            "--format nasa9 or toml")
+    fmt = args.format or CARD_OF_FORM[args.form]
+    if fmt == TM4513 and args.form != SEVEN:
+        raise TablegenError(f"--format {TM4513} holds only the 7-coefficient form; use --form {SEVEN}, or "
+                            f"--format {TP2002} or toml")
     lib = data_notices(args)
     elements = parse_formula(args.formula)
     M = lib.weights.molar_mass(elements, f"--formula {args.formula}: ")
@@ -197,15 +207,15 @@ def run(args) -> int:
     bps = None
     if args.breakpoint:
         bps = [temperature_K(b, "--breakpoint") for b in args.breakpoint]
-    if fmt == "nasa7":
+    if fmt == TM4513:
         if bps is None:
             bps = [1000.0]
         if len(bps) != 1 or abs(bps[0] - 1000.0) > 1e-9:
-            raise TablegenError("the nasa7 (TM-4513) card format has one breakpoint, at 1000 K; give "
-                                "--breakpoint 1000K or choose --format toml")
+            raise TablegenError(f"the {TM4513} card format has one breakpoint, at 1000 K; give "
+                                f"--breakpoint 1000K or choose --format toml")
         if not tab["T_K"][0] < 1000.0 < tab["T_K"][-1]:
-            raise TablegenError("the nasa7 (TM-4513) card format needs a table that spans 1000 K; "
-                                "choose --format toml")
+            raise TablegenError(f"the {TM4513} card format needs a table that spans 1000 K; "
+                                f"choose --format toml")
     h298 = quantity(args.h298, "molar_energy", "--h298") if args.h298 is not None else None
     s298 = quantity(args.s298, "molar_entropy", "--s298") if args.s298 is not None else None
     if not 0 < args.target_cp < 1:
@@ -219,8 +229,8 @@ def run(args) -> int:
                            s298_J_per_molK=s298, dh_J_per_mol=tab.get("dh"), s_J_per_molK=tab.get("s"),
                            target={"cp_max_rel": args.target_cp})
     except FitError as e:
-        hint = (" (the nasa7 card format allows only the 1000 K breakpoint; --format toml allows more)"
-                if fmt == "nasa7" else "")
+        hint = (f" (the {TM4513} card format allows only the 1000 K breakpoint; --format toml allows more)"
+                if fmt == TM4513 else "")
         raise FitError(f"fit of {args.table} refused: {e}{hint}") from None
     errors = [f for f in check_polynomial(fit.poly, user=True) if f.severity == "error"]
     if errors:

@@ -16,7 +16,7 @@ from .common import anchor_from_text, datum_from_text, dumps
 EXAMPLE = """example:
   tablegen process air --from T=300K,P=1bar --compress-ratio 8
   tablegen process air --from T=25C,P=1bar --compress-to 8bar --eta 0.85
-  tablegen process "CO2:0.12,H2O:0.1,N2:0.74,O2:0.04" --from T=1400K,P=12bar --expand-to 1.05bar --eta 0.9
+  tablegen process "CO2=0.12,H2O=0.1,N2=0.74,O2=0.04" --from T=1400K,P=12bar --expand-to 1.05bar --eta 0.9
   tablegen process N2 --from T=300K,P=2bar --heat-to 800K --boundary-T 1100K --json
   tablegen process air --from T=400K,P=5bar --cool-by 80kJ/kg
   tablegen process --incompressible water --from T=20C,P=1bar --compress-to 12bar --eta 0.7
@@ -59,7 +59,8 @@ CAUTION_CODES = ("check machines, vessels and heaters against local codes and li
 def add_arguments(p):
     p.epilog = EXAMPLE
     p.add_argument("substance", nargs="?", default=None,
-                   help="gas: species id or alias, shipped mixture (air), or inline NAME:x,NAME:y "
+                   help="gas: species id or alias, shipped mixture (air), or a composition NAME=x,NAME=y "
+                        "(mole fractions; NAME=x%%,... or basis=mass,...) "
                         "(leave out with --incompressible)")
     p.add_argument("--incompressible", default=None, metavar="NAME|c=..,rho=..",
                    help="a liquid or solid instead of a gas: a shipped entry (water-liquid, ice-Ih), "

@@ -10,7 +10,9 @@ EXAMPLE = """example:
   tablegen species
   tablegen species --json
   tablegen species --check --data my-gases.toml
-  tablegen species --sources H2O"""
+  tablegen species --sources H2O
+
+my-gases.toml (a user record in the gasdata format) is in the project's docs/examples/ folder."""
 
 #: A jump in h or s° at a breakpoint above this (relative) is a data warning.
 JUMP_WARN = 1e-4

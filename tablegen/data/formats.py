@@ -2,7 +2,7 @@
 
 Readers and writers follow the format descriptions printed in the reports:
 
-* **nasa7**: the 7-coefficient, two-interval card format of NASA TM-4513
+* **tm-4513**: the 7-coefficient, two-interval card format of NASA TM-4513
   (B. J. McBride, S. Gordon and M. A. Reno, 1993). Four 80-column lines a
   species, the line number (1-4) in column 80::
 
@@ -20,7 +20,7 @@ Readers and writers follow the format descriptions printed in the reports:
   The common temperature of the two intervals is 1000 K in every record of
   that report, so the format has no field for it.
 
-* **nasa9**: the 9-coefficient, multi-interval format of NASA/TP-2002-211556
+* **tp-2002**: the 9-coefficient, multi-interval format of NASA/TP-2002-211556
   (B. J. McBride, M. J. Zehe and S. Gordon, 2002), Appendix C::
 
       record 1  species name (first word), then comments and data source
@@ -57,16 +57,23 @@ import re
 from dataclasses import dataclass
 
 from ..errors import DataError
+from ..thermo.polynomial import NINE, SEVEN
+from . import former_names
+
+#: Names of the two card layouts, after the reports that define them (``export --format``, ``fit --format``).
+TM4513 = "tm-4513"
+TP2002 = "tp-2002"
+CARD_FORMATS = (TM4513, TP2002)
 
 #: The exponents of T in eq. (1) of NASA/TP-2002-211556, then the unused 8th slot.
-NASA9_EXPONENTS = (-2.0, -1.0, 0.0, 1.0, 2.0, 3.0, 4.0, 0.0)
+TP2002_EXPONENTS = (-2.0, -1.0, 0.0, 1.0, 2.0, 3.0, 4.0, 0.0)
 
 #: Common temperature of the two intervals of a TM-4513 record, K.
-NASA7_COMMON_T = 1000.0
+TM4513_COMMON_T = 1000.0
 
 #: File extensions read from a data folder (a file named with --data is read
-#: whatever its name).
-FOLDER_EXTENSIONS = (".toml", ".dat", ".inp", ".nasa7", ".nasa9", ".thermo")
+#: whatever its name); the former extensions too (tablegen.data.former_names).
+FOLDER_EXTENSIONS = (".toml", ".dat", ".inp", ".thermo", *former_names.EXTENSIONS)
 
 _MARKERS = re.compile(r"^\s*(thermo\b|end\b)", re.I)
 _SYMBOL = re.compile(r"^[A-Za-z][A-Za-z]?$")
@@ -165,8 +172,8 @@ def _skip_header(lines: list[str], i: int) -> int:
     return i
 
 
-# --------------------------------------------------------------------- nasa7
-def read_nasa7(text: str, path) -> tuple[list[RawRecord], list[str]]:
+# --------------------------------------------------------------------- tm-4513
+def read_tm4513(text: str, path) -> tuple[list[RawRecord], list[str]]:
     """Read a TM-4513 card file.
 
     Returns
@@ -178,7 +185,7 @@ def read_nasa7(text: str, path) -> tuple[list[RawRecord], list[str]]:
     DataError naming file, line and record for any malformed line.
     """
     def one(lines, i):
-        rec, phase = _nasa7_record(lines, i, path)
+        rec, phase = _tm4513_record(lines, i, path)
         return rec, phase, 4
 
     return _read_cards(text, path, one, "no TM-4513 record found; a record is 4 lines of 80 columns "
@@ -227,7 +234,7 @@ def _card(lines, i, n, path, name):
     return ln.ljust(80), where
 
 
-def _nasa7_record(lines, i, path) -> tuple[RawRecord, str]:
+def _tm4513_record(lines, i, path) -> tuple[RawRecord, str]:
     first, where = _card(lines, i, 1, path, None)
     name = first[0:18].strip()
     if not name:
@@ -258,25 +265,25 @@ def _nasa7_record(lines, i, path) -> tuple[RawRecord, str]:
             raise DataError(f"{w}columns 76-79 should be blank but hold {ln[75:79].strip()!r}; "
                             f"check the column widths (5 fields of E15.8)")
     upper, lower, h298R = c[0:7], c[7:14], c[14]
-    if not T_lo < NASA7_COMMON_T < T_hi:
+    if not T_lo < TM4513_COMMON_T < T_hi:
         raise DataError(f"{where}temperature range {T_lo:g}-{T_hi:g} K does not contain the common "
-                        f"temperature {NASA7_COMMON_T:g} K of the TM-4513 format; the two intervals "
+                        f"temperature {TM4513_COMMON_T:g} K of the TM-4513 format; the two intervals "
                         f"must be contiguous at 1000 K")
     raw = {
         "id": sid, "name": name, "elements": elements, "molar_mass_g_per_mol": M,
-        "phase": "gas" if ph == "G" else "condensed", "form": "nasa7",
-        "T_bounds_K": [T_lo, NASA7_COMMON_T, T_hi], "coefficients": [lower, upper],
+        "phase": "gas" if ph == "G" else "condensed", "form": SEVEN,
+        "T_bounds_K": [T_lo, TM4513_COMMON_T, T_hi], "coefficients": [lower, upper],
         "source_note": date,
-        "_checks": {"h298_over_R_K": h298R, "count_resolution": res, "format": "nasa7"},
+        "_checks": {"h298_over_R_K": h298R, "count_resolution": res, "format": TM4513},
     }
     return RawRecord(i + 1, raw), raw["phase"]
 
 
-# --------------------------------------------------------------------- nasa9
-def read_nasa9(text: str, path) -> tuple[list[RawRecord], list[str]]:
-    """Read a NASA/TP-2002-211556 coefficient file; see :func:`read_nasa7`."""
+# --------------------------------------------------------------------- tp-2002
+def read_tp2002(text: str, path) -> tuple[list[RawRecord], list[str]]:
+    """Read a NASA/TP-2002-211556 coefficient file; see :func:`read_tm4513`."""
     def one(lines, i):
-        rec, n_lines = _nasa9_record(lines, i, path)
+        rec, n_lines = _tp2002_record(lines, i, path)
         return rec, rec.raw["phase"], n_lines
 
     return _read_cards(text, path, one, "no NASA/TP-2002-211556 record found")
@@ -302,7 +309,7 @@ def _line80(lines, i, path, name, what):
     return ln.ljust(80), _where(path, i + 1, name)
 
 
-def _nasa9_record(lines, i, path) -> tuple[RawRecord, int]:
+def _tp2002_record(lines, i, path) -> tuple[RawRecord, int]:
     head = lines[i].rstrip()
     words = head.split()
     sid = words[0]
@@ -344,9 +351,9 @@ def _nasa9_record(lines, i, path) -> tuple[RawRecord, int]:
                             f"the format always has 7; check the column widths")
         exps = tuple(_float(r3[23 + 5 * m: 28 + 5 * m], w3, f"{what}: exponent {m + 1}",
                             (24 + 5 * m, 28 + 5 * m), "F5.1") for m in range(8))
-        if any(abs(a - b) > 1e-9 for a, b in zip(exps, NASA9_EXPONENTS)):
+        if any(abs(a - b) > 1e-9 for a, b in zip(exps, TP2002_EXPONENTS)):
             raise DataError(f"{w3}{what}: exponents {list(exps)} are not those of eq. (1) "
-                            f"{list(NASA9_EXPONENTS)}; only that form is read")
+                            f"{list(TP2002_EXPONENTS)}; only that form is read")
         dh0 = r3[65:80].strip()
         h0.append(_float(dh0, w3, f"{what}: H(298.15)-H(0)", (66, 80), "F15.3") if dh0 else 0.0)
         r4, w4 = _line80(lines, j + 1, path, sid, f"the first coefficient line of {what}")
@@ -373,10 +380,10 @@ def _nasa9_record(lines, i, path) -> tuple[RawRecord, int]:
         j += 3
     raw = {
         "id": sid, "name": sid, "elements": elements, "molar_mass_g_per_mol": M,
-        "phase": "gas" if ph == 0 else "condensed", "form": "nasa9",
+        "phase": "gas" if ph == 0 else "condensed", "form": NINE,
         "T_bounds_K": bounds, "coefficients": rows,
         "source_note": " ".join(x for x in (refcode, comment) if x),
-        "_checks": {"h_formation_J_per_mol": hf, "count_resolution": res, "format": "nasa9"},
+        "_checks": {"h_formation_J_per_mol": hf, "count_resolution": res, "format": TP2002},
     }
     if any(h0):
         raw["dh298_0_J_per_mol"] = h0[0]
@@ -385,7 +392,7 @@ def _nasa9_record(lines, i, path) -> tuple[RawRecord, int]:
 
 # -------------------------------------------------------------------- detect
 def detect(path, text: str) -> str:
-    """Format of a data file: "toml", "nasa7" or "nasa9".
+    """Format of a data file: "toml", TM4513 ("tm-4513") or TP2002 ("tp-2002").
 
     By content first (a ``[dataset]`` table, a line numbered 1 in column 80,
     a second record line with an interval count), then by extension.
@@ -401,17 +408,15 @@ def detect(path, text: str) -> str:
     if i < len(lines):
         ln = lines[i].rstrip()
         if len(ln) >= 80 and ln[79] == "1":
-            return "nasa7"
+            return TM4513
         nxt = lines[i + 1] if i + 1 < len(lines) else ""
         if re.match(r"^(\s\d|\d\d)\s", nxt[:3] + " "):
-            return "nasa9"
+            return TP2002
     ext = Path(path).suffix.lower()
     if ext == ".toml":
         return "toml"
-    if ext == ".nasa7":
-        return "nasa7"
-    if ext == ".nasa9":
-        return "nasa9"
+    if ext in former_names.EXTENSIONS:
+        return former_names.EXTENSIONS[ext]
     raise DataError(f"{path}: cannot tell the format of this file; allowed: a gasdata TOML file "
                     f"(with a [dataset] table), the NASA TM-4513 card format (80 columns, line numbers "
                     f"in column 80) or the NASA/TP-2002-211556 format (see docs/user-data.md)")
@@ -472,7 +477,7 @@ def _formula_text(elements: dict, slots: int, width: int, fmt: str) -> str:
     return out
 
 
-def write_nasa7(rec: dict, comments=()) -> str:
+def write_tm4513(rec: dict, comments=()) -> str:
     """A TM-4513 card record (4 lines) from a dict with id, elements, M,
     T_bounds_K (3 values, middle 1000 K) and coefficients (2 rows of 7, lower
     interval first), optional date (6 characters), h298_over_R_K."""
@@ -495,7 +500,7 @@ def write_nasa7(rec: dict, comments=()) -> str:
     return "\n".join(out) + "\n"
 
 
-def write_nasa9(rec: dict, comments=()) -> str:
+def write_tp2002(rec: dict, comments=()) -> str:
     """A NASA/TP-2002-211556 record from a dict with id, comment, refcode,
     elements, M, h_formation_J_per_mol, T_bounds_K, coefficients (rows of 9)."""
     sid = str(rec["id"])
@@ -513,7 +518,7 @@ def write_nasa9(rec: dict, comments=()) -> str:
     out.append(f"{len(rows):2d} " + str(rec.get("refcode", ""))[:6].ljust(6) + " "
                + _formula_text(rec["elements"], 5, 6, "TP-2002-211556") + " 0"
                + " " + fixed(float(rec["M"]), 12) + fixed(float(rec.get("h_formation_J_per_mol", 0.0)), 15, 5))
-    exps = "".join(f"{e:5.1f}" for e in NASA9_EXPONENTS)
+    exps = "".join(f"{e:5.1f}" for e in TP2002_EXPONENTS)
     for k, r in enumerate(rows):
         out.append(fixed(b[k], 11, 3) + fixed(b[k + 1], 11, 3) + "7" + exps + "  "
                    + fixed(float(rec.get("dh298_0_J_per_mol", 0.0)), 15, 3))

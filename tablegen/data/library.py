@@ -28,7 +28,8 @@ import numpy as np
 
 from ..constants import R_MOLAR
 from ..errors import DataError, NameLookupError
-from ..thermo.polynomial import Polynomial, nasa7_to_9
+from ..thermo.polynomial import FORMS, SEVEN, Polynomial, seven_to_nine
+from . import former_names
 from . import formats, validate
 
 #: Files in gasdata/ that are not coefficient sets.
@@ -230,7 +231,7 @@ class Dataset:
 
 
 class CardDataset(Dataset):
-    """A user file in the TM-4513 (nasa7) or TP-2002-211556 (nasa9) card format.
+    """A user file in the NASA TM-4513 (tm-4513) or NASA/TP-2002-211556 (tp-2002) card format.
 
     Every record is read when the file is opened; records are built (and
     validated) on demand like those of a TOML file. The data set id is the
@@ -245,10 +246,10 @@ class CardDataset(Dataset):
         self.label = str(self.path)
         self.text = text
         self.format = fmt
-        reader = formats.read_nasa7 if fmt == "nasa7" else formats.read_nasa9
+        reader = formats.read_tm4513 if fmt == formats.TM4513 else formats.read_tp2002
         self._raws, self.notes = reader(text, self.label)
         cite = re.search(r"^\s*[!#]\s*citation:\s*(.+?)\s*$", text, re.M | re.I)
-        report = "NASA TM-4513" if fmt == "nasa7" else "NASA/TP-2002-211556"
+        report = "NASA TM-4513" if fmt == formats.TM4513 else "NASA/TP-2002-211556"
         self.id = self.path.stem
         self.citation = cite.group(1) if cite else f"user data file {self.path.name} ({report} format)"
         self.meta = {"id": self.id, "citation": self.citation, "format": fmt}
@@ -324,14 +325,14 @@ def build_record(raw: dict, *, dataset: Dataset, where: str, line: int) -> Recor
     sid = _req(raw, "id", str, where)
     where = f"{where}{sid}: "
     elements = _req(raw, "elements", dict, where)
-    form = _req(raw, "form", str, where)
-    if form not in ("nasa7", "nasa9"):
-        raise DataError(f"{where}form {form!r} is not known; allowed: nasa7, nasa9")
+    form = former_names.form(_req(raw, "form", str, where))
+    if form not in FORMS:
+        raise DataError(f"{where}form {form!r} is not known; allowed: {', '.join(FORMS)}")
     bounds = [float(x) for x in _req(raw, "T_bounds_K", list, where)]
     rows = _req(raw, "coefficients", list, where)
     if len(rows) != len(bounds) - 1 or not rows:
         raise DataError(f"{where}{len(bounds)} bounds need {len(bounds) - 1} coefficient rows, found {len(rows)}")
-    n_expect = 7 if form == "nasa7" else 9
+    n_expect = 7 if form == SEVEN else 9
     c9 = []
     for k, r in enumerate(rows):
         if not isinstance(r, list) or len(r) != n_expect:
@@ -342,7 +343,7 @@ def build_record(raw: dict, *, dataset: Dataset, where: str, line: int) -> Recor
             raise DataError(f"{where}interval {k + 1} has a non-numeric coefficient") from None
         if not all(math.isfinite(x) for x in r):
             raise DataError(f"{where}interval {k + 1} has a non-finite coefficient")
-        c9.append(nasa7_to_9(r) if form == "nasa7" else r)
+        c9.append(seven_to_nine(r) if form == SEVEN else r)
     c9 = np.array(c9)
     if bounds != sorted(bounds) or len(set(bounds)) != len(bounds):
         raise DataError(f"{where}temperature bounds {bounds} must increase: the intervals must be "

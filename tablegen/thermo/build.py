@@ -4,12 +4,10 @@ from __future__ import annotations
 
 import math
 
+from ..composition import SUM_TOLERANCE, write
 from ..errors import TablegenError
 from .polynomial import combine
 from .substance import Component, Substance
-
-#: Fractions that sum to 1 within this are normalised; others are refused.
-SUM_TOLERANCE = 1e-6
 
 
 def species_substance(rec) -> Substance:
@@ -73,7 +71,7 @@ def mixture_substance(records_fractions, basis: str = "mole", *, id: str | None 
         raise TablegenError(f"{what}: {e}") from None
     comps = tuple(Component(r.id, y[r.id], y[r.id] * r.M / M, r.M, r.dataset) for r, _ in recs)
     if id is None:
-        id = "+".join(f"{c.id}:{c.mole_fraction:.4g}" for c in comps)
+        id = write({c.id: c.mole_fraction for c in comps})
     return Substance(
         id=id, name=name or id, kind="mixture", M=M, poly=poly, components=comps,
         sources=tuple((r.id, r.dataset, r.source_text) for r, _ in recs),

@@ -26,11 +26,15 @@ from ..errors import DataError
 
 #: Number of coefficients per interval in the 9-coefficient layout.
 NCOEF = 9
+#: Names of the two published forms (``Polynomial.form``, the gasdata ``form`` key, ``fit --form``).
+SEVEN = "7-coefficient"      # NASA TM-4513 (1993)
+NINE = "9-coefficient"       # NASA/TP-2002-211556 (2002)
+FORMS = (SEVEN, NINE)
 #: Points evaluated together: small enough that the temporaries stay in cache.
 BLOCK = 32768
 
 
-def nasa7_to_9(c7) -> list[float]:
+def seven_to_nine(c7) -> list[float]:
     """Map NASA TM-4513 coefficients (a1..a7) onto the 9-coefficient layout."""
     c7 = [float(x) for x in c7]
     if len(c7) != 7:
@@ -46,12 +50,12 @@ class Polynomial:
     ----------
     T_bounds : array of n+1 increasing temperatures in K
     coeffs : array (n, 9) in the 9-coefficient layout
-    form : "nasa7" or "nasa9", the layout the data were published in
+    form : "7-coefficient" (SEVEN) or "9-coefficient" (NINE), the form the data were published in
     """
 
     T_bounds: np.ndarray
     coeffs: np.ndarray
-    form: str = "nasa9"
+    form: str = NINE
     _inner: np.ndarray = field(init=False, repr=False)
     _h: np.ndarray = field(init=False, repr=False)
     _s: np.ndarray = field(init=False, repr=False)
@@ -238,7 +242,7 @@ def combine(polys, weights, extra_s: float = 0.0) -> Polynomial:
     for p, w in zip(polys, weights):
         coeffs += float(w) * p.on_bounds(bounds)
     coeffs[:, 8] += extra_s
-    form = "nasa7" if all(p.form == "nasa7" for p in polys) else "nasa9"
+    form = SEVEN if all(p.form == SEVEN for p in polys) else NINE
     return Polynomial(bounds, coeffs, form)
 
 
