@@ -112,12 +112,7 @@ def summary(cmp: Comparison) -> dict:
                      "stats": c.stats,
                      "alignment": None if c.alignment is None else _alignment_json(c.alignment)})
     return {
-        "verdict": "pass" if cmp.passed else "fail",
-        "verdict_text": cmp.verdict,
-        "exit_status": 0 if cmp.passed else 1,
-        "exit_status_meaning": EXIT_MEANING,
-        "cells_compared": cmp.n_cells,
-        "cells_out_of_tolerance": cmp.n_out,
+        **_verdict_json(cmp),
         "substance": cmp.substance,
         "reference": {"file": ref.path, "sha256": ref.sha256, "layout": ref.layout, "rows": len(ref.lines),
                       "T_unit": ref.T_unit.symbol, "T_min_K": float(np.min(ref.T_K)),
@@ -158,6 +153,13 @@ CAUTION = ("This comparison checks agreement with the given reference only: it d
 EXIT_MEANING = {"0": "every compared cell is within tolerance", "1": "some cell is out of tolerance",
                 "2": "bad input (the reference or the options); nothing written",
                 "3": "an output problem (the folder's files exist without --force, or cannot be written)"}
+
+
+def _verdict_json(result) -> dict:
+    """The verdict keys of a summary (a Comparison or a BookComparison)."""
+    return {"verdict": "pass" if result.passed else "fail", "verdict_text": result.verdict,
+            "exit_status": 0 if result.passed else 1, "exit_status_meaning": EXIT_MEANING,
+            "cells_compared": result.n_cells, "cells_out_of_tolerance": result.n_out}
 
 
 def suggested(cmp: Comparison) -> list[str]:
@@ -213,12 +215,7 @@ def book_summary(bc) -> dict:
         wide += [dict(w, table=t.name) for w in t.comparison.wide]
     f = bc.folder
     return {
-        "verdict": "pass" if bc.passed else "fail",
-        "verdict_text": bc.verdict,
-        "exit_status": 0 if bc.passed else 1,
-        "exit_status_meaning": EXIT_MEANING,
-        "cells_compared": bc.n_cells,
-        "cells_out_of_tolerance": bc.n_out,
+        **_verdict_json(bc),
         "tables_compared": len(bc.tables),
         "tables_failed": bc.n_failed_tables,
         "spec": bc.spec,

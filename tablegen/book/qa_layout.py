@@ -102,12 +102,9 @@ def wrap_text(s: str, font: str, size: float, width: float) -> list[str]:
 
 
 def fit_text(s: str, font: str, size: float, width: float) -> str:
-    from reportlab.pdfbase.pdfmetrics import stringWidth
-    if stringWidth(s, font, size) <= width:
-        return s
-    while s and stringWidth(s + "…", font, size) > width:
-        s = s[:-1]
-    return s + "…"
+    """Text cut with '…' to fit a width (the book pages' rule)."""
+    from .pdf import _fit
+    return _fit(s, font, size, width)
 
 
 def fmt_num(x, digits=3) -> str:

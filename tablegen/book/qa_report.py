@@ -46,7 +46,7 @@ def _dev(x) -> str:
 
 def _size(x) -> str:
     from ..compare_output import format_size
-    return format_size(x)
+    return format_size(x).replace("-", MINUS)
 
 
 def _title(flow, text: str):
