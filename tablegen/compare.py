@@ -524,7 +524,7 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
     h298 = float(sub.properties(np.array([T_CHANGE_FROM]), extrapolate=True)["h"][0])
     context = {"M": sub.M, "n_per_m3": n_per_m3, "P_ref_Pa": sub.P_ref_Pa, "h298_J_per_kg": h298,
                "anchor": {"T_K": sub.anchor.T_K, "Pr": sub.anchor.Pr, "vr": sub.anchor.vr},
-               "spec": bool(spec_table)}
+               "spec": bool(spec_table), "T_text": ref.T_text, "T_unit": ref.T_unit.symbol}
     return Comparison(substance_info(sub), ref, T, extrap, tuple(results),
                       version or __version__, options, wide, comparison_hints(results, context))
 

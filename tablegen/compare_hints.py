@@ -95,8 +95,9 @@ def column_hints(col, context: dict) -> list[Hint]:
     context : what the options would change, from the substance compared:
         ``M`` (g/mol), ``n_per_m3`` (mol/m³ of the volumetric basis), ``P_ref_Pa``,
         ``anchor`` {T_K, Pr, vr}, ``h298_J_per_kg`` (h at 298.15 K on the current datum)
-        and ``spec`` (True when the substance is a spec table, whose datum, P° and anchor
-        are set in the spec and not by options)
+        ``spec`` (True when the substance is a spec table, whose datum, P° and anchor
+        are set in the spec and not by options), ``T_text`` and ``T_unit`` (the reference's
+        temperatures as printed, to name cells)
     """
     if col.alignment is not None or col.n_out == 0 or col.key not in ALIGNABLE:
         return []
@@ -130,10 +131,20 @@ def column_hints(col, context: dict) -> list[Hint]:
             text += f"; try {align}"
         return [Hint(col.key, "offset", shift, col.unit.symbol, text, tuple(opts), spec)]
     med = float(np.median(dev))
-    left = int(np.sum(np.abs(dev - med) > bound))
+    off = np.abs(dev - med) > bound
+    left = int(np.sum(off))
     if left < col.n_out and left <= max(1, MOSTLY * dev.size):
-        text = (f"{col.key}: the deviations are the same {format_constant(med, q)}{u} except in {left} "
-                f"cell{'s' if left != 1 else ''}: with {align} those {left} would still be out of tolerance")
+        T_all = context.get("T_text") or ()
+        T_text = [t for t, p in zip(T_all, m) if p]
+        where = ", ".join(T_text[i] for i in np.flatnonzero(off)[:3]) if T_text else ""
+        where += f" {context.get('T_unit', '')}".rstrip() if where and left <= 3 else ""
+        after = int(np.sum(np.abs(dev - c) > bound))      # --align fits the mean, which those cells pull
+        text = (f"{col.key}: the deviations are the same {format_constant(med, q)}{u} (median) except in "
+                f"{left} cell{'s' if left != 1 else ''}" + (f" (T = {where}{', ...' if left > 3 else ''})"
+                                                           if where else "")
+                + f": a datum and {'a wrong cell' if left == 1 else 'wrong cells'}? With {align}, "
+                f"{after} cell{'s' if after != 1 else ''} would still be out of tolerance (the fitted mean "
+                f"includes {'that cell' if left == 1 else 'those cells'})")
         return [Hint(col.key, "offset-except", -med, col.unit.symbol, text, (align,), "", left)]
     return []
 

@@ -757,3 +757,24 @@ def test_exactly_matching_column_is_not_plotted_at_round_off_scale(tmp_path, cap
     assert run(["compare", "CO2", ref, "--out", tmp_path / "o"], capsys)[0] == 0
     text = pdf_text(tmp_path / "o" / "report.pdf")
     assert "Identical to round-off" in text and "Δ in kJ/(kg K)" not in text
+
+
+def test_datum_plus_one_wrong_cell_is_hinted_as_such(tmp_path, capsys):
+    """The from-memory air table with one h cell 20 kJ/kg off: h is still one constant but for that
+    cell; the hint says so and counts the cell left (it never hides it)."""
+    write_air_from_memory(tmp_path / "air.txt")
+    text = (tmp_path / "air.txt").read_text(encoding="utf-8").replace("\n700 713.27 ", "\n700 733.27 ")
+    (tmp_path / "bad.txt").write_text(text, encoding="utf-8")
+    rc, out, _ = run(["compare", "air", tmp_path / "bad.txt", "--columns", "h", "--out", tmp_path / "o",
+                      "--json"], capsys)
+    s = json.loads(out)
+    (hint,) = s["hints"]
+    assert rc == 1 and hint["kind"] == "offset-except" and hint["cells_left"] == 1
+    assert "except in 1 cell (T = 700 K)" in hint["text"]
+    assert hint["value"] == pytest.approx(298.2, abs=0.3)        # the datum the other cells agree on
+    rc, out, _ = run(["compare", "air", tmp_path / "bad.txt", "--columns", "h", "--align", "h=offset",
+                      "--out", tmp_path / "p", "--json"], capsys)
+    bad = [c["T"] for c in json.loads(out)["out_of_tolerance"]]
+    assert rc == 1 and "700" in bad
+    # the hint states how many cells --align would leave failing (its fitted mean includes the bad cell)
+    assert f"With --align h=offset, {len(bad)} cell" in hint["text"]
