@@ -92,20 +92,6 @@ class Polynomial:
         object.__setattr__(self, "_h", np.ascontiguousarray(h))
         object.__setattr__(self, "_s", np.ascontiguousarray(s))
         object.__setattr__(self, "_has_neg", bool(np.any(c[:, :2] != 0.0)))
-        # Small arrays: cp/R, h/R, s/R as one product of the basis
-        # [T^-2, T^-1, 1, T, T^2, T^3, T^4, T^5, ln T] with a (3, 9) table per interval.
-        z = np.zeros_like(a1)
-        basis = np.stack([
-            np.stack([a1, a2, a3, a4, a5, a6, a7, z, z], axis=1),
-            np.stack([z, h[0], h[7], h[2], h[3], h[4], h[5], h[6], h[1]], axis=1),
-            np.stack([s[0], s[1], s[7], s[3], s[4], s[5], s[6], z, s[2]], axis=1),
-        ], axis=1)
-        object.__setattr__(self, "_basis", np.ascontiguousarray(basis))
-        # One state: per interval one flat tuple of plain floats (unpacked in one step):
-        # has negative powers, cp a1..a7, h as in _h, s as in _s
-        py = tuple((bool(c[k, 0] != 0.0 or c[k, 1] != 0.0), *c[k, :7].tolist(), *h[:, k].tolist(),
-                    *s[:, k].tolist()) for k in range(c.shape[0]))
-        object.__setattr__(self, "_py", py)
         object.__setattr__(self, "_inner_list", b[1:-1].tolist())
         object.__setattr__(self, "_lo", float(b[0]))
         object.__setattr__(self, "_hi", float(b[-1]))
@@ -129,11 +115,36 @@ class Polynomial:
         return np.searchsorted(self._inner, T, side="left")
 
     # -------------------------------------------------------------- evaluation
+    def _tables(self):
+        """The small-array table and the one-state tuples, made on first use (a library
+        builds hundreds of polynomials that are never evaluated)."""
+        c, h, s = self.coeffs, self._h, self._s
+        a1, a2, a3, a4, a5, a6, a7 = c[:, :7].T
+        z = np.zeros_like(a1)
+        # cp/R, h/R, s/R as one product of [T^-2, T^-1, 1, T, T^2, T^3, T^4, T^5, ln T]
+        # with a (3, 9) table per interval
+        basis = np.stack([
+            np.stack([a1, a2, a3, a4, a5, a6, a7, z, z], axis=1),
+            np.stack([z, h[0], h[7], h[2], h[3], h[4], h[5], h[6], h[1]], axis=1),
+            np.stack([s[0], s[1], s[7], s[3], s[4], s[5], s[6], z, s[2]], axis=1),
+        ], axis=1)
+        object.__setattr__(self, "_basis", np.ascontiguousarray(basis))
+        # one state: per interval one flat tuple of plain floats (unpacked in one step):
+        # has negative powers, cp a1..a7, h as in _h, s as in _s
+        py = tuple((bool(c[k, 0] != 0.0 or c[k, 1] != 0.0), *c[k, :7].tolist(), *h[:, k].tolist(),
+                    *s[:, k].tolist()) for k in range(c.shape[0]))
+        object.__setattr__(self, "_py", py)
+
     def point(self, T: float) -> tuple[float, float, float]:
         """cp/R, h/R (K) and s/R at one temperature, in plain floats: the path for a
         program that asks for one state at a time (no array is made)."""
+        try:
+            py = self._py
+        except AttributeError:
+            self._tables()
+            py = self._py
         (neg, a1, a2, a3, a4, a5, a6, a7, h0, h1, h2, h3, h4, h5, h6, h7,
-         s0, s1, s2, s3, s4, s5, s6, s7) = self._py[bisect_left(self._inner_list, T)]
+         s0, s1, s2, s3, s4, s5, s6, s7) = py[bisect_left(self._inner_list, T)]
         lnT = _log(T)
         cp = a3 + T * (a4 + T * (a5 + T * (a6 + T * a7)))
         hv = (h2 + T * (h3 + T * (h4 + T * (h5 + T * h6)))) * T + h7
@@ -160,7 +171,12 @@ class Polynomial:
         np.multiply(V[5], T, out=V[6])
         np.multiply(V[6], T, out=V[7])
         np.log(T, out=V[8])
-        vals = np.einsum("kn,njk->jn", V, self._basis[k])
+        try:
+            basis = self._basis
+        except AttributeError:
+            self._tables()
+            basis = self._basis
+        vals = np.einsum("kn,njk->jn", V, basis[k])
         return {key: vals[_ROW[key]] for key in want}
 
     def evaluate(self, T, *, want=("cp", "h", "s")) -> dict[str, np.ndarray]:
