@@ -52,6 +52,38 @@ class Datum:
         return f"h({self.T_ref_K:g} K) = {self.h_ref_J_per_kg / 1000:g} kJ/kg (sensible enthalpy)"
 
 
+#: Temperature of the sensible datum a substance gets by default, K (0 °C).
+SENSIBLE_DATUM_T_K = 273.15
+
+
+def default_datum(substance=None, *, reacting: bool = False) -> Datum:
+    """The enthalpy datum a substance gets where the user names none.
+
+    The rule: a substance that does not react in the calculation at hand gets
+    the sensible datum h = 0 at 0 °C (273.15 K); a substance in a reacting
+    energy balance gets the formation datum (h(298.15 K) = ΔfH°).
+
+    Why: without reaction only differences of h enter an answer (work, heat,
+    duty), and h read as the heat content above 0 °C is what a person checks
+    against a gauge or a heat balance (air at 15 °C: h = +15.07 kJ/kg rather
+    than the -10.05 kJ/kg of the formation datum). In a reacting balance the
+    enthalpies of formation must be in h, or the heat of reaction is lost.
+    Every state and process step of tablegen keeps the composition frozen, so
+    ``state`` and ``process`` use the sensible datum; a table book or a
+    combustion balance passes ``reacting=True`` where its gas reacts.
+
+    Parameters
+    ----------
+    substance : the Substance (the rule does not yet depend on its kind; the
+        argument is there so that callers need not change when it does)
+    reacting : the substance takes part in a reaction whose energy balance
+        uses these enthalpies
+    """
+    if reacting:
+        return Datum("formation")
+    return Datum("sensible", SENSIBLE_DATUM_T_K, 0.0)
+
+
 @dataclass(frozen=True, slots=True)
 class Anchor:
     """Scale of relative pressure and relative volume: Pr(T_K) = Pr, vr(T_K) = vr."""
