@@ -14,7 +14,7 @@ Exact conversion factors, each by definition:
   mechanical horsepower hp = 550 ft·lbf/s = 745.69987158227022 W;
   inch = 0.0254 m; hPa = 100 Pa.
 
-Gauge pressures (``barg``, ``kPag``, ``psig``) are read against a barometric
+Gauge pressures (``barg``, ``mbarg``, ``kPag``, ``psig``) are read against a barometric
 pressure the caller states (:func:`parse_pressure`); where none is stated they
 are refused, so no gauge value is ever converted silently.
 
@@ -141,9 +141,9 @@ _TABLE = dict(
 
 #: Gauge units: spelling -> the absolute unit of the same scale. A gauge value is read
 #: against a stated barometric pressure: absolute = barometer + factor * value.
-GAUGE_UNITS = {"barg": "bar", "kPag": "kPa", "psig": "psia"}
+GAUGE_UNITS = {"barg": "bar", "mbarg": "mbar", "kPag": "kPa", "psig": "psia"}
 _GAUGE_SPELLINGS = {**{g.lower(): g for g in GAUGE_UNITS},
-                    "bar(g)": "barg", "kpa(g)": "kPag", "psi(g)": "psig"}
+                    "bar(g)": "barg", "mbar(g)": "mbarg", "kpa(g)": "kPag", "psi(g)": "psig"}
 
 
 def canon(text: str) -> str:
