@@ -19,8 +19,9 @@ from .common import add_unit_options, anchor_from_text, datum_from_text, dumps
 EXAMPLE = """Gauge pressures (barg, kPag, psig) are read against --barometer (default 1.01325 bar).
 Flows: kg/s, kg/h, t/h, lb/h, lb/s, kmol/h, Nm3/h (0 °C, 101.325 kPa) or SCFM (60 °F,
 14.696 psia); power and duty are flow times w and q. The answer comes in the units you
-typed (--units SI or US to choose). The mixing-term note (a mixture's s° includes
--R Σ y ln y, which cancels in s2 - s1) is printed only with --verbose.
+typed (--units SI or US to choose). A mixture's s° includes the ideal mixing term
+-R Σ y ln y, which cancels in s2 - s1 (said again only with --verbose). The hand-method
+comparison (constant cp, constant k) is off unless --compare; h = 0 at 0 °C unless --h-datum.
 Steps through a machine and heaters are steady flow (w is shaft work); --heat-v-*
 is a closed rigid vessel. Work and heat are positive into the substance.
 Negative amounts need '=': --heat-by=-80kJ/kg (or use --cool-by 80kJ/kg).
@@ -97,7 +98,7 @@ def add_arguments(p):
                      help="add the method comparison: how far constant cp and the constant-k power law "
                           "are off the exact result (off by default; always in --json)")
     out.add_argument("--verbose", action="store_true",
-                     help="add the notes that hold for every case of this kind (the mixing term of a mixture)")
+                     help="add the notes that are true of every mixture (see below)")
     out.add_argument("--json", action="store_true",
                      help="one JSON object (SI-based units, listed under 'units'; the input as typed under 'input')")
     d = p.add_argument_group("datums and scales (gases)")

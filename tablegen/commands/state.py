@@ -48,7 +48,7 @@ def add_arguments(p):
                    help="a JSON array, one object per temperature (SI-based; each with its 'units' and "
                         "the 'input' as typed)")
     p.add_argument("--verbose", action="store_true",
-                   help="add the notes that hold for every case of this kind (the mixing term of a mixture)")
+                   help="add the notes that are true of every mixture (see below)")
     add_unit_options(p)
     add_datum_options(p, default=None)
 
