@@ -27,7 +27,7 @@ def add_arguments(p):
                 "The specs it builds from are named on stderr: copy one to start a book of your own.\n\n"
                 "example:\n"
                 "  tablegen demo\n"
-                "  tablegen demo --out /tmp/demo")
+                "  tablegen demo --out issued/demo")
 
 
 def run(args) -> int:

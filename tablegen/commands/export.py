@@ -23,7 +23,7 @@ from .common import data_notices
 EXAMPLE = """example:
   tablegen export "CH4:0.9,C2H6:0.06,N2:0.04" --format toml --id SITE-GAS --out site-gas.toml
   tablegen export air --format nasa9
-  tablegen export CO2 --format nasa7 --out co2.dat
+  tablegen export CO2 --source nasa1993 --format nasa7 --out co2.dat
   tablegen state SITE-GAS --data site-gas.toml --T 25C,800C"""
 
 FORMATS = ("nasa7", "nasa9", "toml")

@@ -26,7 +26,8 @@ from ..errors import TablegenError
 EXAMPLE = """example:
   tablegen fit site-gas-cp.csv --form nasa9 --formula C1.02H3.9O0.1N0.08 --id SITE-GAS \\
       --h298=-78.2kJ/mol --s298 "190.1J/(mol K)" --out site-gas.inp
-  tablegen fit co2-table.csv --form nasa7 --formula CO2 --breakpoint 1000K --format toml
+  tablegen fit co2-table.csv --form nasa7 --formula CO2 --breakpoint 1000K --target-cp 0.01 \\
+      --h298=-393.522kJ/mol --s298 "213.795J/(mol K)" --format toml
 
 The CSV has header cells 'key [unit]': T [K] (or °C, °F, °R), cp_molar [J/(mol K)]
 or cp [kJ/(kg K)], and optionally dh298_molar [J/mol] and s0_molar [J/(mol K)]."""
