@@ -86,10 +86,8 @@ def add_arguments(p):
     p.add_argument("--flue-pressure", default=None, metavar="P",
                    help="flue-gas pressure for the water dew point (default 101.325kPa; gauge values "
                         "such as 5mbarg are read against --barometer)")
-    p.add_argument("--flow", default=None, metavar="FLOW",
-                   help="fuel flow, e.g. 50kg/h, 1.2t/h, 400lb/h, or for a gas 120Nm3/h, 2000SCFM, 5kmol/h: "
-                        "adds heat input and flue-gas and air flows")
-    add_unit_options(p)
+    add_unit_options(p, flow="fuel flow, e.g. 50kg/h, 1.2t/h, 400lb/h, or for a gas 120Nm3/h, 2000SCFM, "
+                             "5kmol/h: adds heat input and flue-gas and air flows")
     p.add_argument("--json", action="store_true",
                    help="all figures as one JSON object (SI-based; units under 'units', input as typed under 'input')")
 

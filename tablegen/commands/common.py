@@ -29,9 +29,11 @@ def add_datum_options(p, *, with_pressure: bool = True, default: str | None = "f
                    help="allow temperatures outside the data range; such values are marked")
 
 
-def add_unit_options(p, *, pressure: bool = True):
-    """--units, --T-unit and, for commands that take pressures, --P-unit and --barometer."""
+def add_unit_options(p, *, pressure: bool = True, flow: str | None = None):
+    """--units, --T-unit; --P-unit and --barometer where pressures are taken; --flow with help ``flow``."""
     g = p.add_argument_group("units of the answer (default: the units you typed)")
+    if flow:
+        g.add_argument("--flow", default=None, metavar="FLOW", help=flow)
     g.add_argument("--units", default=None, metavar="SYSTEM",
                    help="auto (default: the units of the question), SI (°C and K, bar, kJ/kg, kW, kg/s) "
                         "or US (°F and °R, psia, Btu/lbm, hp, lb/h)")

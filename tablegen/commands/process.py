@@ -88,10 +88,8 @@ def add_arguments(p):
     o.add_argument("--boundary-T", default=None, metavar="T",
                    help="temperature at which heat crosses the boundary (furnace, cooling water), "
                         "for the entropy generated; default: internally reversible")
-    o.add_argument("--flow", default=None, metavar="FLOW",
-                   help="flow through the step, e.g. 2.5kg/s, 9t/h, 1000lb/h, 40kmol/h, 8000Nm3/h or "
-                        "1200SCFM: adds power (kW and hp), heat duty and the volume flows at inlet and outlet")
-    add_unit_options(p)
+    add_unit_options(p, flow="flow through the step, e.g. 2.5kg/s, 9t/h, 1000lb/h, 40kmol/h, 8000Nm3/h or "
+                             "1200SCFM: adds power (kW and hp), heat duty and the volume flows at inlet and outlet")
     out = p.add_argument_group("output")
     out.add_argument("--brief", action="store_true", help="print only the one-line answer")
     out.add_argument("--compare", action="store_true",
