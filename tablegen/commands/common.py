@@ -31,7 +31,7 @@ def add_datum_options(p, *, with_pressure: bool = True, default: str | None = "f
 
 def add_unit_options(p, *, pressure: bool = True, flow: str | None = None):
     """--units, --T-unit; --P-unit and --barometer where pressures are taken; --flow with help ``flow``."""
-    g = p.add_argument_group("units of the answer (default: the units you typed)")
+    g = p.add_argument_group(("flow, and " if flow else "") + "units of the answer (default: the units you typed)")
     if flow:
         g.add_argument("--flow", default=None, metavar="FLOW", help=flow)
     g.add_argument("--units", default=None, metavar="SYSTEM",
@@ -42,9 +42,9 @@ def add_unit_options(p, *, pressure: bool = True, flow: str | None = None):
     if pressure:
         g.add_argument("--P-unit", dest="P_unit", default=None, metavar="UNIT",
                        help="pressure unit of the answer: bar, kPa, MPa, psia, ..., or a gauge unit "
-                            "barg, kPag, psig (then the absolute pressure is printed beside)")
+                            "barg, mbarg, kPag, psig (then the absolute pressure is printed beside)")
         g.add_argument("--barometer", default=None, metavar="P",
-                       help="barometric pressure that gauge values (barg, kPag, psig) are read against, "
+                       help="barometric pressure that gauge values (barg, mbarg, kPag, psig) are read against, "
                             "absolute, e.g. 0.95bar or 950mbar (default 1.01325bar); printed beside "
                             "every converted value")
 

@@ -16,7 +16,7 @@ import sys
 from ..errors import TablegenError
 from .common import add_unit_options, anchor_from_text, datum_from_text, dumps
 
-EXAMPLE = """Gauge pressures (barg, kPag, psig) are read against --barometer (default 1.01325 bar).
+EXAMPLE = """Gauge pressures (barg, mbarg, kPag, psig) are read against --barometer (default 1.01325 bar).
 Flows: kg/s, kg/h, t/h, lb/h, lb/s, kmol/h, Nm3/h (0 °C, 101.325 kPa) or SCFM (60 °F,
 14.696 psia); power and duty are flow times w and q. The answer comes in the units you
 typed (--units SI or US to choose). A mixture's s° includes the ideal mixing term
