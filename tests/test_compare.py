@@ -170,7 +170,9 @@ def pdf_marked_cells(pdf_path) -> set:
 
 # ------------------------------------------------------------- alignment
 def state_rows(capsys, substance, T, *extra):
-    rc = cli.main(["state", substance, "--T", ",".join(f"{t:g}K" for t in T), "--json", *extra])
+    """State rows on the datum compare uses by default (formation) unless extra names one."""
+    datum = [] if "--h-datum" in extra else ["--h-datum", "formation"]
+    rc = cli.main(["state", substance, "--T", ",".join(f"{t:g}K" for t in T), "--json", *datum, *extra])
     out, _ = capsys.readouterr()
     assert rc == 0
     return json.loads(out)

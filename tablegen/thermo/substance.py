@@ -61,6 +61,38 @@ class Datum:
         return f"h({self.T_ref_K:g} K) = {self.h_ref_J_per_kg / 1000:g} kJ/kg (sensible enthalpy)"
 
 
+#: Temperature of the sensible datum a substance gets by default, K (0 °C).
+SENSIBLE_DATUM_T_K = 273.15
+
+
+def default_datum(substance=None, *, reacting: bool = False) -> Datum:
+    """The enthalpy datum a substance gets where the user names none.
+
+    The rule: a substance that does not react in the calculation at hand gets
+    the sensible datum h = 0 at 0 °C (273.15 K); a substance in a reacting
+    energy balance gets the formation datum (h(298.15 K) = ΔfH°).
+
+    Why: without reaction only differences of h enter an answer (work, heat,
+    duty), and h read as the heat content above 0 °C is what a person checks
+    against a gauge or a heat balance (air at 15 °C: h = +15.07 kJ/kg rather
+    than the -10.05 kJ/kg of the formation datum). In a reacting balance the
+    enthalpies of formation must be in h, or the heat of reaction is lost.
+    Every state and process step of tablegen keeps the composition frozen, so
+    ``state`` and ``process`` use the sensible datum; a table book or a
+    combustion balance passes ``reacting=True`` where its gas reacts.
+
+    Parameters
+    ----------
+    substance : the Substance (the rule does not yet depend on its kind; the
+        argument is there so that callers need not change when it does)
+    reacting : the substance takes part in a reaction whose energy balance
+        uses these enthalpies
+    """
+    if reacting:
+        return Datum("formation")
+    return Datum("sensible", SENSIBLE_DATUM_T_K, 0.0)
+
+
 @dataclass(frozen=True, slots=True)
 class Anchor:
     """Scale of relative pressure and relative volume: Pr(T_K) = Pr, vr(T_K) = vr."""
@@ -240,10 +272,11 @@ class Substance:
         if "h" in funcs:
             hR = raw["h"]
             if "dh298_molar" in want:
-                out["dh298_molar"] = (hR - c["h298R"]) * R_MOLAR
+                out["dh298_molar"] = _set_where((hR - c["h298R"]) * R_MOLAR, T == T_REF, 0.0)
             h_m = hR
             h_m *= R_MOLAR
             h_m += c["h_off"]
+            h_m = self._exact_at_datum(T, h_m, self.M * 1e-3)
             out["h_molar"] = h_m
             if want & {"u", "u_molar"}:
                 u_m = h_m - R_MOLAR * T
@@ -301,6 +334,15 @@ class Substance:
             out.update(uncertainty_columns(self, T, P))
         return out
 
+    def _exact_at_datum(self, T: np.ndarray, h, per_kg: float):
+        """h at the datum temperature is the datum value by definition: set it exactly,
+        not as the difference of two evaluations that the paths (one state, small array,
+        blocked) round apart by an ulp of the formation enthalpy. ``per_kg``: kg per unit
+        of ``h``'s amount (M/1000 for molar values, 1 for mass values)."""
+        if self.datum.kind != "sensible":
+            return h
+        return _set_where(h, T == self.datum.T_ref_K, self.datum.h_ref_J_per_kg * per_kg)
+
     def _point_constants(self) -> tuple:
         """(R/M, h offset per kg, ln(P°/1 bar)) for the one-state paths."""
         c = self._cache.get("point")
@@ -330,6 +372,8 @@ class Substance:
         cp_m = cpR * R_MOLAR
         cv_m = cp_m - R_MOLAR
         h_m = hR * R_MOLAR + c["h_off"]
+        if self.datum.kind == "sensible" and T == self.datum.T_ref_K:
+            h_m = self.datum.h_ref_J_per_kg * Mk
         u_m = h_m - R_MOLAR * T
         s0_m = (sR - c["lnP"]) * R_MOLAR
         g0_m = h_m - T * s0_m
@@ -337,7 +381,8 @@ class Substance:
         k = cp_m / cv_m
         vals = {
             "T_K": T, "cp_molar": cp_m, "cv_molar": cv_m, "h_molar": h_m, "u_molar": u_m,
-            "s0_molar": s0_m, "g0_molar": g0_m, "dh298_molar": (hR - c["h298R"]) * R_MOLAR,
+            "s0_molar": s0_m, "g0_molar": g0_m,
+            "dh298_molar": 0.0 if T == T_REF else (hR - c["h298R"]) * R_MOLAR,
             "k": k, "Pr": math.exp(lnPr),
             "vr": self.anchor.vr * (T / self.anchor.T_K) * math.exp(math.log(self.anchor.Pr) - lnPr),
         }
@@ -365,7 +410,10 @@ class Substance:
                 self._check_point(T, extrapolate)
             cpR, hR, sR = poly.point(T)
             f, h_off, lnP = self._point_constants()
-            return cpR * f, hR * f + h_off, (sR - lnP) * f
+            h = hR * f + h_off
+            if self.datum.kind == "sensible" and T == self.datum.T_ref_K:
+                h = self.datum.h_ref_J_per_kg
+            return cpR * f, h, (sR - lnP) * f
         T = _as_temperatures(T)
         self.check_T(T, extrapolate)
         c = self._constants()
@@ -376,6 +424,7 @@ class Substance:
         h = raw["h"]
         h *= f
         h += c["h_off"] / (self.M * 1e-3)
+        h = self._exact_at_datum(T, h, 1.0)
         s0 = raw["s"]
         s0 -= c["lnP"]
         s0 *= f
@@ -550,6 +599,14 @@ _FUNCTIONS = {"cp_molar": "c", "cv_molar": "c", "k": "c", "cp": "c", "cv": "c", 
 
 #: Types taken as one temperature by the no-array paths (a 0-d array is not among them).
 _SCALARS = (float, int, np.float64, np.float32, np.int64, np.int32)
+
+
+def _set_where(a, mask, value):
+    """a with ``value`` where ``mask``; also for the numpy scalars that 0-d arithmetic gives."""
+    if np.ndim(a) == 0:
+        return np.float64(value) if bool(mask) else a
+    a[mask] = value
+    return a
 
 
 def _as_numbers(values, what: str, unit: str) -> np.ndarray:
