@@ -88,14 +88,16 @@ def bibliography() -> dict:
     out = {}
     for m in re.finditer(r"@\w+\{([^,]+),(.*?)\n\}", text, re.S):
         fields = {k.lower(): re.sub(r"[{}]", "", v).strip()
-                  for k, v in re.findall(r"(\w+)\s*=\s*(\{.*?\})\s*,?\s*\n", m.group(2), re.S)}
+                  for k, v in re.findall(r"(\w+)\s*=\s*(\{.*?\})\s*,?\s*\n", m.group(2) + "\n", re.S)}
         parts = [fields.get("author", "").replace(" and ", ", "), fields.get("title", "")]
         where = " ".join(x for x in (fields.get("journal", ""), fields.get("volume", "")) if x)
         if fields.get("year"):
             where += f" ({fields['year']})"
         if fields.get("pages"):
             where += f" {fields['pages']}"
-        out[m.group(1).strip()] = ", ".join(p for p in (*parts, where.strip()) if p)
+        if fields.get("note"):
+            where += f" ({fields['note']})"
+        out[m.group(1).strip()] = ", ".join(p for p in (*parts, where.strip()) if p).replace("\\ss", "ß")
     return out
 
 
