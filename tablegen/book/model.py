@@ -203,6 +203,9 @@ class TableModel:
     charts: tuple = ()      # chart models (tablegen.book.charts), drawn after the table
     uncertainty: dict | None = None   # the budget's figures (tablegen.uncertainty), for the JSON
     U_columns: tuple = ()   # (csv header, values) of U_<key> columns, when the spec asks for them
+    #: (csv header, values, description) of the Z and real-gas departure columns
+    #: (document.validity_columns): where the ideal-gas values apply, not their uncertainty
+    validity_columns: tuple = ()
 
     @property
     def rows(self) -> int:
@@ -444,7 +447,7 @@ def build_table(t, doc) -> TableModel:
                   f"data valid {sub.T_min:g}-{sub.T_max:g} K",
                   f"Values {basis_text}; entropy at P° = {pressure_text(sub.P_ref_Pa)}",
                   f"Enthalpy datum {datum_text}; Pr/vr anchor: {anchor_text_of(sub.anchor, t_unit)}")
-    unc, U_cols = uncertainty_notes(t, doc, sub, cols, notes)
+    unc, U_cols, V_cols = uncertainty_notes(t, doc, sub, cols, notes)
     if sub.cautions:
         notes.append(f"{sub.name}: read the cautions for this gas in the Caution section "
                      f"(combustion products: toxic, asphyxiant, acid dew point not computed).")
@@ -461,7 +464,7 @@ def build_table(t, doc) -> TableModel:
         grid_text=_grid_text(t.grid),
         datum={"kind": sub.datum.kind, "T_ref_K": sub.datum.T_ref_K, "h_ref_J_per_kg": sub.datum.h_ref_J_per_kg},
         anchor={"T_K": an.T_K, "Pr": an.Pr, "vr": an.vr}, T_K=np.asarray(t.T_K, float), marks=tuple(marks),
-        columns=tuple(cols), notes=notes, uncertainty=unc, U_columns=U_cols)
+        columns=tuple(cols), notes=notes, uncertainty=unc, U_columns=U_cols, validity_columns=V_cols)
 
 
 # ---------------------------------------------------------------- fingerprint

@@ -83,7 +83,7 @@ def uncertainty_notes(t, doc, sub, cols, notes):
     keys = [k for k in dict.fromkeys(c.key for c in cols) if k in BUDGET_KEYS]
     inside = (t.T_K >= sub.T_min) & (t.T_K <= sub.T_max)
     if not keys or not inside.any():
-        return None, ()
+        return None, (), ()
     first = {}
     for c in cols:
         first.setdefault(c.key, c)
@@ -137,7 +137,34 @@ def uncertainty_notes(t, doc, sub, cols, notes):
                 full[inside] = b.U(c.key) / _printed_factor(c.key, c, t, doc, sub)
                 U_cols.append((f"U_{c.csv_header}", full))
         U_cols = tuple(U_cols)
-    return b.to_json(), U_cols
+    return b.to_json(), U_cols, _validity_columns(t, doc, sub, cols, b, inside) if doc.validity_columns else ()
+
+
+def _validity_columns(t, doc, sub, cols, b, inside) -> tuple:
+    """Z at max_pressure and the departure bound of every column it applies to, on the
+    table's rows (NaN outside the data range), as (csv header, values, description)."""
+    from ..realgas import virial_mixture
+    P_bar = doc.max_pressure_Pa / 1e5
+    out = []
+    T = t.T_K[inside]
+    vir = virial_mixture(sub.components, T)
+    if vir is None:
+        return ()
+    full = np.full(t.T_K.shape, np.nan)
+    full[inside] = vir.Z(T, doc.max_pressure_Pa)
+    out.append(("Z [-]", full, f"compressibility factor of the real gas at {P_bar:g} bar (max_pressure), "
+                               f"second-virial estimate; 1 for the ideal gas of the table"))
+    for c in cols:
+        dep = b.departures.get(c.key)
+        if dep is None:
+            continue
+        full = np.full(t.T_K.shape, np.nan)
+        full[inside] = dep / _printed_factor(c.key, c, t, doc, sub)
+        out.append((f"realgas_{c.csv_header}", full,
+                    f"upper bound of |real gas - ideal gas| of the column named at {P_bar:g} bar "
+                    f"(second-virial estimate with its uncertainty): where the table applies, not "
+                    f"part of its uncertainty; empty outside the data range"))
+    return tuple(out)
 
 
 def _uncertainty_section(tables, doc):
