@@ -209,12 +209,17 @@ def model_statements(substance, vir: VirialEstimate, T: np.ndarray, P: float, pr
             parts.append(f"up to {_round_down(X / 1e5)} bar above {Y:g} K")
         out.append(f"ideal-gas values (Z, cp) within {tol * 100:g} % " + ", ".join(parts))
     dep = model_departures(vir, T, P)
+    bnd = departure_bounds(vir, T, P)
     Mk = substance.M * 1e-3
+
+    def figures(d):
+        return (f"|Z-1| {np.max(np.abs(d['Z'])) * 100:.2g} %, "
+                f"cp {np.max(np.abs(d['cp']) / props['cp_molar']) * 100:.2g} %, "
+                f"h {np.max(np.abs(d['h'])) / Mk / 1e3:.2g} kJ/kg, s {np.max(np.abs(d['s'])) / Mk:.2g} J/(kg K)")
     out.append(
         f"at {P / 1e5:g} bar over {T_lo:g}-{T_hi:g} K the real gas departs from these values by up to "
-        f"|Z-1| {np.max(np.abs(dep['Z'])) * 100:.2g} %, cp {np.max(np.abs(dep['cp']) / props['cp_molar']) * 100:.2g} %, "
-        f"h {np.max(np.abs(dep['h'])) / Mk / 1e3:.2g} kJ/kg, s {np.max(np.abs(dep['s'])) / Mk:.2g} J/(kg K) "
-        f"(second virial coefficient, Tsonopoulos 1974)")
+        f"{figures(dep)} (second virial coefficient, Tsonopoulos 1974); with the estimate's own "
+        f"uncertainty, by at most {figures(bnd)}")
     rho_vc = P * vir.Vc / (R_MOLAR * T * np.maximum(1 + vir.B * P / (R_MOLAR * T), 0.1))
     if np.any(rho_vc > 0.1):
         bad = float(T[rho_vc > 0.1].max())

@@ -122,12 +122,12 @@ def uncertainty_notes(t, doc, sub, cols, notes):
                              f"supports (the last {c.decimals - hi - 1} digit(s) are not significant).")
     P_bar = doc.max_pressure_Pa / 1e5
     if figures:
-        notes.append("Uncertainty U (k = 2) of the printed ideal-gas values (data, composition, rounding), "
+        notes.append("Uncertainty U (k = 2) of the printed ideal-gas values (data and fit, composition, rounding), "
                      "largest over the table: " + ", ".join(figures) + "; per band in the appendix.")
     if departs:
         notes.append(f"Range of validity, stated apart from U: at {P_bar:g} bar the real gas departs from "
-                     f"these ideal-gas values by up to " + ", ".join(departs) +
-                     " (second-virial estimate with its uncertainty); the pressure limits are in the appendix.")
+                     f"these ideal-gas values by at most " + ", ".join(departs) +
+                     " (second-virial estimate with its own uncertainty); pressure limits in the appendix.")
     U_cols = ()
     if doc.uncertainty_columns:
         U_cols = []
