@@ -36,10 +36,6 @@ REFERENCES = {"janaf": "janaf", "iapws95": "eos", "eos": "eos"}
 #: Species of the targets (their default sources), 200-3000 K.
 TARGET_SPECIES = ("N2", "O2", "CO", "Ar", "CO2", "H2O", "SO2")
 
-#: JANAF table of each species (NIST-JANAF 4th ed., as indexed by the janaf package).
-JANAF_TABLE = {"N2": "N-023", "O2": "O-029", "CO": "C-093", "Ar": "Ar-001", "CO2": "C-095",
-               "H2O": "H-064", "SO2": "O-034", "H2": "H-050", "CH4": "C-067"}
-
 T_LO, T_HI = 200.0, 3000.0
 N_POINTS = 41
 NEAR_298_K = 20.0
@@ -68,10 +64,12 @@ def reference_values(reference: str, species: str):
     reference's last printed digit (cp, dh, ds), zero for an equation.
     """
     if reference == "janaf":
-        if species not in JANAF_TABLE:
+        from .data.library import library
+        refit = library().datasets["janaf1998"].get(species)     # names its JANAF table
+        if refit is None or refit.id != species:
             return None
         import janaf
-        df = janaf.Table(JANAF_TABLE[species]).df
+        df = janaf.Table(refit.extra["janaf_table"]).df
         T = np.asarray(df["T(K)"].to_numpy(), float)
         i298 = int(np.argmin(np.abs(T - T_REF)))
         S = np.asarray(df["S"].to_numpy(), float)

@@ -45,12 +45,11 @@ import numpy as np
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 sys.path.insert(0, str(ROOT / "tools"))
-from refit_janaf import COEFFICIENT_DIGITS, round_significant, round_up  # noqa: E402
+from refit_janaf import (COEFFICIENT_DIGITS, record_head, refit_arguments, round_significant,  # noqa: E402
+                         stated_residuals, write_dataset)
 from tablegen.agreement import coolprop_ideal  # noqa: E402
 from tablegen.data.library import library  # noqa: E402
-from tablegen.data.tomlout import table  # noqa: E402
 from tablegen.fitting import FitError, fit_cp_table, residuals_against  # noqa: E402
-from tablegen.outfiles import write_bytes  # noqa: E402
 from tablegen.thermo.polynomial import Polynomial  # noqa: E402
 from tablegen.thermo.substance import R_MOLAR, T_REF  # noqa: E402
 
@@ -151,16 +150,7 @@ def fit_one(sid: str, fluid: str, lib, bib: dict) -> dict:
             + (f", its ideal-gas part is extrapolated {' and '.join(beyond)}" if beyond else "")
             + f"; ΔfH° and S°(298.15 K) from {src}")
     rec = {
-        "id": base.id,
-        "name": base.name,
-        "aliases": list(base.aliases),
-        "elements": dict(base.elements),
-        "molar_mass_g_per_mol": round(base.M, 6),
-        "phase": "gas",
-        "form": "nasa9",
-        "T_bounds_K": list(fit.T_bounds),
-        "coefficients": coefficients,
-        "h_formation_298_J_per_mol": round(h298, 6),
+        **record_head(base, fit.T_bounds, coefficients, round(h298, 6)),
         "source": "eos-ideal",
         "source_note": note,
         "equation_of_state": citation(fluid, bib),
@@ -171,34 +161,16 @@ def fit_one(sid: str, fluid: str, lib, bib: dict) -> dict:
         "fit_n_points": int(T.size),
         "fit_method": "cp0 fitted; h and s° by exact integration from the anchors at 298.15 K",
         "fit_target": {("s0_max_J_per_molK" if k == "s_max_J_per_molK" else k): v for k, v in TARGET.items()},
-        "fit_residuals": {
-            "cp_max_rel": round_up(res["cp_max_rel"]),
-            "cp_rms_rel": round_up(res["cp_rms_rel"]),
-            "h_max_J_per_mol": round_up(res["h_max_J_per_mol"]),
-            "h_rms_J_per_mol": round_up(res["h_rms_J_per_mol"]),
-            "s0_max_J_per_molK": round_up(res["s_max_J_per_molK"]),
-            "s0_rms_J_per_molK": round_up(res["s_rms_J_per_molK"]),
-        },
+        "fit_residuals": stated_residuals(res),
     }
     print(f"{sid:9s} {fluid:15s} bounds {fit.T_bounds}  {fit.describe()}", file=sys.stderr)
     return rec
 
 
 def main(argv=None) -> int:
-    import argparse
-
     import CoolProp
-    ap = argparse.ArgumentParser(description="Refit the reference equations' ideal-gas parts into "
-                                             "gasdata/eos-ideal.toml")
-    ap.add_argument("--out", type=Path, default=ROOT / "gasdata" / "eos-ideal.toml",
-                    help="file to write (default: gasdata/eos-ideal.toml)")
-    ap.add_argument("--only", default="", help="comma-separated species ids to refit (default: all); "
-                    "for checks only: the shipped file holds all of them")
-    args = ap.parse_args(argv)
-    only = [x for x in args.only.split(",") if x]
-    unknown = sorted(set(only) - set(SPECIES))
-    if unknown:
-        raise SystemExit(f"--only: {', '.join(unknown)} not refitted by this tool")
+    out, only = refit_arguments(argv, "Refit the reference equations' ideal-gas parts into "
+                                      "gasdata/eos-ideal.toml", "eos-ideal.toml", SPECIES)
     lib = library()
     bib = bibliography()
     records = [fit_one(sid, fluid, lib, bib) for sid, fluid in SPECIES.items() if not only or sid in only]
@@ -222,18 +194,7 @@ def main(argv=None) -> int:
                            "and its integrals h - h(298.15 K) and s° - s°(298.15 K) on the fitted 10 K grid, "
                            "rounded up to two significant figures"),
     }
-    text = [
-        "# tablegen gasdata file: one [dataset] table, then one [[species]] table a record.",
-        "# Written by tools/refit_eos_ideal.py from the CoolProp package; do not edit numbers by hand.",
-        "# Format: gasdata/README.md; method: docs/data-curation.md.",
-        "",
-        table("dataset", header),
-    ]
-    for r in records:
-        text.append("")
-        text.append(table("species", r, array=True))
-    write_bytes(args.out, "\n".join(text).encode("utf-8"))
-    print(f"wrote {args.out} ({len(records)} records)", file=sys.stderr)
+    write_dataset(out, header, records, "tools/refit_eos_ideal.py from the CoolProp package")
     return 0
 
 
