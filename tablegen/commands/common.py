@@ -83,9 +83,29 @@ def substance_with_options(args, name: str):
                             anchor=anchor_from_text(getattr(args, "anchor", None)))
 
 
+#: Notices of the running command, printed only once it has succeeded (None: print at once).
+_held: list | None = None
 
+
+def hold_notices() -> None:
+    """Keep notices until the command ends, so a refusal is the only line on stderr."""
+    global _held
+    _held = []
+
+
+def release_notices(print_them: bool) -> None:
+    """Print the held notices (after success) or drop them (after a refusal)."""
+    global _held
+    held, _held = _held or [], None
+    if print_them:
+        for text in held:
+            print(text, file=sys.stderr)
 
 
 def notice(args, text: str):
-    if not getattr(args, "quiet", False):
+    if getattr(args, "quiet", False):
+        return
+    if _held is not None:
+        _held.append(text)
+    else:
         print(text, file=sys.stderr)

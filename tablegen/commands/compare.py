@@ -55,7 +55,7 @@ def add_arguments(p):
                    help="with a spec file: the table to compare (needed when the spec has several)")
     p.add_argument("--out", default=None, metavar="DIR",
                    help="folder for report.pdf, deviations.csv, summary.json (default output/compare-NAME/)")
-    p.add_argument("--force", action="store_true", help="overwrite existing output files")
+    p.add_argument("--force", action="store_true", help="replace the earlier comparison in the output folder")
     p.add_argument("--json", action="store_true", help="print the JSON summary on stdout")
     add_datum_options(p)
     # None marks "not given", so a spec table's own datum can be kept.
@@ -144,11 +144,14 @@ def safe_name(text: str) -> str:
 
 
 def compute(args):
-    """Read, check and compare; returns (Comparison, {path: bytes})."""
+    """Read, check and compare; returns (Comparison, {file name: bytes}, output folder)."""
     from ..compare import compare, deviations_csv, parse_align, parse_tolerance, read_reference, summary
     from ..errors import TablegenError
 
     sub, name, target_label, T_m, vol_ref = resolve(args)
+    from .. import outfiles
+    out = out_folder(args, name)
+    outfiles.check_folder(out, FILES, force=args.force, what="comparison")
     ref = read_reference(args.reference)
     if args.columns is not None:
         keys = [k.strip() for k in args.columns.split(",")]
@@ -185,11 +188,13 @@ def compute(args):
     cmp = compare(sub, ref, columns=keys, tolerances=tolerances, align=align,
                   extrapolate=args.extrapolate, T_mean_ref_K=T_m, volume_reference=vol_ref, options=options)
     from ..book.qa_report import render_pdf
-    out = Path(args.out) if args.out else Path("output") / f"compare-{safe_name(name)}"
-    files = {out / "report.pdf": render_pdf(cmp),
-             out / "deviations.csv": deviations_csv(cmp),
-             out / "summary.json": dumps(summary(cmp))}
-    return cmp, files
+    files = {"report.pdf": render_pdf(cmp), "deviations.csv": deviations_csv(cmp),
+             "summary.json": dumps(summary(cmp))}
+    return cmp, files, out
+
+
+def out_folder(args, name: str) -> Path:
+    return Path(args.out) if args.out else Path("output") / f"compare-{safe_name(name)}"
 
 
 def text_summary(cmp) -> str:
@@ -239,14 +244,17 @@ def text_summary(cmp) -> str:
 def run(args) -> int:
     from .common import data_notices
     data_notices(args)
+    from .. import outfiles
     from ..compare import summary
-    from ..outfiles import write_all
-    cmp, files = compute(args)
-    write_all(files, args.force)
+    cmp, files, out = compute(args)
+    about = [f"issue: comparison of {cmp.substance['id']} against {cmp.reference.path} "
+             f"(sha256 {cmp.reference.sha256}): {cmp.verdict}"]
+    notes = outfiles.publish_folder(out, files, force=args.force, about=about, what="comparison")
     if args.json:
         sys.stdout.write(dumps(summary(cmp)))
     else:
         sys.stdout.write(text_summary(cmp))
-    folder = Path(next(iter(files))).parent
-    notice(args, f"wrote {folder}/: {', '.join(FILES)}")
+    for n in notes:
+        notice(args, n)
+    notice(args, f"wrote {out}/: {', '.join(FILES)} and their manifest {outfiles.MANIFEST}")
     return 0 if cmp.passed else 1
