@@ -92,16 +92,20 @@ def _count(n: int, word: str) -> str:
 
 # ---------------------------------------------------------------- low-level writing
 def _write_new(path: Path, data: bytes) -> None:
-    """Create path (it must not exist), write data, fsync; mode 0666 less the umask."""
+    """Create path (it must not exist), write data, fsync; mode 0666 less the umask; removed on failure."""
     fd = os.open(path, os.O_WRONLY | os.O_CREAT | os.O_EXCL | getattr(os, "O_BINARY", 0), 0o666)
     try:
-        view = memoryview(data)
-        while view:
-            n = os.write(fd, view)
-            view = view[n:]
-        os.fsync(fd)
-    finally:
-        os.close(fd)
+        try:
+            view = memoryview(data)
+            while view:
+                n = os.write(fd, view)
+                view = view[n:]
+            os.fsync(fd)
+        finally:
+            os.close(fd)
+    except BaseException:
+        _unlink_quietly(path)
+        raise
 
 
 def _fsync_dir(path: Path) -> None:
@@ -158,16 +162,26 @@ def _exchange(a: Path, b: Path) -> None:
 
 @contextlib.contextmanager
 def _signals_held():
-    """Hold Ctrl-C and termination signals for a few system calls, so a run knows what it did."""
-    sigs = {getattr(signal, n) for n in ("SIGINT", "SIGTERM", "SIGHUP") if hasattr(signal, n)}
-    if not hasattr(signal, "pthread_sigmask") or threading.current_thread() is not threading.main_thread():
+    """Hold Ctrl-C and termination signals for a few system calls, so a run knows what it did.
+
+    The handlers are swapped for one that notes the signal, and the signal is raised again
+    once the block is done (main thread only: Python runs signal handlers there).
+    """
+    if threading.current_thread() is not threading.main_thread():
         yield
         return
-    old = signal.pthread_sigmask(signal.SIG_BLOCK, sigs)
+    got, saved = [], {}
+    for name in ("SIGINT", "SIGTERM", "SIGHUP"):
+        sig = getattr(signal, name, None)
+        if sig is not None and signal.getsignal(sig) is not None:
+            saved[sig] = signal.signal(sig, lambda n, frame: got.append(n))
     try:
         yield
     finally:
-        signal.pthread_sigmask(signal.SIG_SETMASK, old)
+        for sig, handler in saved.items():
+            signal.signal(sig, handler)
+        if got:
+            signal.raise_signal(got[0])
 
 
 # ---------------------------------------------------------------- the lock
@@ -212,7 +226,12 @@ class Lock:
                 fd = os.open(self.path, os.O_RDWR | os.O_CREAT, 0o666)
             except OSError as e:
                 raise fault(e, self.path, f"the lock beside {_show(self.dest)}/; nothing was written") from None
-            if not _try_lock(fd):
+            try:
+                locked = _try_lock(fd)
+            except BaseException:
+                os.close(fd)
+                raise
+            if not locked:
                 holder = _read_text(fd)
                 os.close(fd)
                 who = f"process {holder}" if holder else "another process"
@@ -228,12 +247,16 @@ class Lock:
         else:  # pragma: no cover - a hundred releases in a row between open and lock
             raise OutputBusyError(f"{_show(self.dest)}/ is being written by other tablegen runs; try again")
         self.fd = fd
-        self.previous = _read_text(fd)
-        with contextlib.suppress(OSError):      # who holds it: for the messages of other runs only
-            os.ftruncate(fd, 0)
-            os.lseek(fd, 0, os.SEEK_SET)
-            import platform
-            os.write(fd, f"{os.getpid()} on {platform.node()}\n".encode())
+        try:
+            self.previous = _read_text(fd)
+            with contextlib.suppress(OSError):      # who holds it: for the messages of other runs only
+                import platform
+                os.ftruncate(fd, 0)
+                os.lseek(fd, 0, os.SEEK_SET)
+                os.write(fd, f"{os.getpid()} on {platform.node()}\n".encode())
+        except BaseException:
+            self.__exit__()
+            raise
         return self
 
     def __exit__(self, *exc):
@@ -438,6 +461,18 @@ def publish_folder(dest, files: dict, *, force: bool, about=(), what: str = "boo
     files = {n: (d.encode("utf-8") if isinstance(d, str) else bytes(d)) for n, d in files.items()}
     _check_names(files)
     _refuse_location(dest, what)
+    state = {"published": False}
+    try:
+        notes = _publish(dest, files, force, about, what, state)
+    except (KeyboardInterrupt, Terminated) as e:
+        shown = _show(dest)
+        raise _interrupted(e, f"{shown}/ holds the new issue, complete" if state["published"]
+                           else f"nothing was published; {shown}/ is as it was") from None
+    WRITTEN.extend(dest / n for n in sorted([*files, MANIFEST]))
+    return notes
+
+
+def _publish(dest: Path, files: dict, force: bool, about, what: str, state: dict) -> list[str]:
     shown = _show(dest)
     try:
         dest.parent.mkdir(parents=True, exist_ok=True)
@@ -452,7 +487,7 @@ def publish_folder(dest, files: dict, *, force: bool, about=(), what: str = "boo
                                         f"nothing was written") from None
         had = _inspect(dest, files, force, what)
         stage = dest.parent / f".{dest.name}.tablegen-stage-{os.urandom(4).hex()}"
-        leftover, published = None, False
+        leftover = None
         try:
             try:
                 os.mkdir(stage)
@@ -465,13 +500,13 @@ def publish_folder(dest, files: dict, *, force: bool, about=(), what: str = "boo
                 allowed = _allowed(dest, files) if had else set()
                 with _signals_held():
                     leftover = _swap(stage, dest, had)
-                    published = True
+                    state["published"] = True
                     if leftover is not None:
                         # a file saved into dest while this run staged its set must not go with the old issue
                         foreign = _foreign(leftover, allowed)
                         if foreign:
                             _swap_back(leftover, dest, stage)
-                            leftover, published = None, False
+                            leftover, state["published"] = None, False
                             raise OutputExistsError(_foreign_message(dest, foreign, what))
             except OSError as e:
                 raise fault(e, dest, f"nothing was published; {shown}/ is as it was") from None
@@ -480,12 +515,8 @@ def publish_folder(dest, files: dict, *, force: bool, about=(), what: str = "boo
             except OSError as e:
                 raise fault(e, dest.parent, f"{shown}/ holds the new issue, but the disk did not confirm "
                                             f"it is stored: check the drive") from None
-        except (KeyboardInterrupt, Terminated) as e:
-            state = (f"{shown}/ holds the new issue, complete" if published
-                     else f"nothing was published; {shown}/ is as it was")
-            raise _interrupted(e, state) from None
         finally:
-            if not published:
+            if not state["published"]:
                 with contextlib.suppress(OSError):
                     if os.path.isdir(stage):
                         _remove_tree(stage)
@@ -495,7 +526,6 @@ def publish_folder(dest, files: dict, *, force: bool, about=(), what: str = "boo
                 except OSError as e:
                     notes.append(f"note: could not remove the previous issue from {_show(leftover)} "
                                  f"({e.strerror}); the next run into {shown}/ removes it")
-    WRITTEN.extend(dest / n for n in sorted([*files, MANIFEST]))
     return notes
 
 
