@@ -20,11 +20,16 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from ..constants import P_STD, R_MOLAR, T_REF  # noqa: F401  (re-exported)
-from ..errors import RangeError, TablegenError
+from ..errors import InputError, RangeError, TablegenError
 from .polynomial import Polynomial
 
 #: Relative tolerance of the inverse functions (in T).
 INVERSE_RTOL = 1e-10
+#: Extrapolation reaches at most this factor beyond the data range: from T_min / 2 to
+#: 2 T_max (a polynomial fit says nothing further out; docs/spec.md, "extrapolate").
+EXTRAPOLATION_FACTOR = 2.0
+#: Largest |ln Pr| and |ln vr| printed: Pr and vr stay between 1e-300 and 1e300.
+LN_SCALE_MAX = 690.0
 
 
 @dataclass(frozen=True, slots=True)
@@ -137,6 +142,13 @@ class Substance:
             raise RangeError(f"{self.id}: temperatures must be finite and above 0 K")
         lo, hi = self.T_min, self.T_max
         if extrapolate:
+            x_lo, x_hi = lo / EXTRAPOLATION_FACTOR, hi * EXTRAPOLATION_FACTOR
+            if t_lo < x_lo or t_hi > x_hi:
+                bad = t_lo if t_lo < x_lo else t_hi
+                raise RangeError(
+                    f"{self.id}: T = {bad:g} K is beyond the extrapolation range {x_lo:g}-{x_hi:g} K "
+                    f"(data {lo:g}-{hi:g} K); allowed: from half the lowest to twice the highest "
+                    f"temperature of the data")
             return (T < lo) | (T > hi)
         if t_lo >= lo and t_hi <= hi:
             return None
@@ -189,7 +201,7 @@ class Substance:
         ------
         RangeError for T <= 0 or out of range (unless extrapolating).
         """
-        T = np.asarray(T, dtype=float)
+        T = real_array(T, "T", "K, e.g. 300.0")
         mask = self.check_T(T, extrapolate)
         c = self._constants()
         raw = self.poly.evaluate(T)
@@ -202,8 +214,19 @@ class Substance:
         s0_m = (sR - c["lnP"]) * R_MOLAR
         g0_m = h_m - T * s0_m
         lnPr = math.log(self.anchor.Pr) + (sR - c["sR_anchor"])
+        ln_vr = math.log(self.anchor.vr) + np.log(T / self.anchor.T_K) + math.log(self.anchor.Pr) - lnPr
+        if T.size and not (np.max(np.abs(lnPr)) < LN_SCALE_MAX and np.max(np.abs(ln_vr)) < LN_SCALE_MAX):
+            raise RangeError(
+                f"{self.id}: Pr or vr would be beyond 1e300 or below 1e-300 with the anchor Pr = "
+                f"{self.anchor.Pr:g}, vr = {self.anchor.vr:g} at {self.anchor.T_K:g} K; allowed: an "
+                f"anchor that keeps Pr and vr between 1e-300 and 1e300 over the temperatures asked")
+        if mask is not None and mask.any() and not np.all(cv_m[mask] > 0):
+            bad = float(T[mask][~(cv_m[mask] > 0)][0])
+            raise RangeError(f"{self.id}: extrapolated to T = {bad:g} K the polynomial gives cp <= R "
+                             f"(cv <= 0), which no gas has; allowed: temperatures nearer the data "
+                             f"range {self.T_min:g}-{self.T_max:g} K")
         Pr = np.exp(lnPr)
-        vr = self.anchor.vr * (T / self.anchor.T_K) * np.exp(math.log(self.anchor.Pr) - lnPr)
+        vr = np.exp(ln_vr)
         k = cp_m / cv_m
         out = {
             "T_K": T,
@@ -217,7 +240,12 @@ class Substance:
             out.update(cp=cp_m / Mk, cv=cv_m / Mk, h=h_m / Mk, u=u_m / Mk, s0=s0_m / Mk,
                        g0=g0_m / Mk, a=np.sqrt(k * self.R * T))
         if P is not None:
-            P = np.asarray(P, dtype=float)
+            P = real_array(P, "P", "Pa, e.g. 1e5")
+            try:
+                np.broadcast_shapes(P.shape, T.shape)
+            except ValueError:
+                raise InputError(f"P of shape {P.shape} does not fit T of shape {T.shape}; give one pressure "
+                                 f"or one per temperature") from None
             if not np.all(np.isfinite(P)) or np.any(P <= 0):
                 raise RangeError(f"{self.id}: pressures must be finite and above 0 Pa")
             s_m = s0_m - R_MOLAR * np.log(P / self.P_ref_Pa)
@@ -235,7 +263,7 @@ class Substance:
 
     def cp_h_s0(self, T, *, extrapolate: bool = False):
         """Just cp, h and s° (J/(kg K), J/kg, J/(kg K)) at T: the fast path for bulk work."""
-        T = np.asarray(T, dtype=float)
+        T = real_array(T, "T", "K, e.g. 300.0")
         self.check_T(T, extrapolate)
         c = self._constants()
         raw = self.poly.evaluate(T)
@@ -296,7 +324,7 @@ class Substance:
         """
         if key not in INVERTIBLE:
             raise TablegenError(f"cannot solve for T from {key!r}; allowed: {', '.join(INVERTIBLE)}")
-        y = np.asarray(values, dtype=float)
+        y = real_array(values, f"values of {key}", "SI units")
         shape = y.shape
         if key == "Pr":
             y = np.log(y) if np.all(y > 0) else _bad_value(self, key, values)
@@ -331,6 +359,31 @@ class Substance:
             raise RangeError(f"{self.id}: T from {key} did not converge (a value may fall in a "
                              f"jump of the data at a breakpoint)")
         return T.reshape(shape)
+
+
+def real_array(x, what: str, unit_text: str) -> np.ndarray:
+    """x as an array of floats, or an InputError (also a ValueError) saying what is allowed.
+
+    Text (even with a unit), complex numbers and ragged lists are refused; a complex
+    value is never silently cut to its real part.
+    """
+    if isinstance(x, np.ndarray) and x.dtype.kind == "f":
+        return x if x.dtype == np.float64 else x.astype(float)
+    if x is None:
+        raise InputError(f"{what} must be numbers in {unit_text}, as a number or an array; got None")
+    try:
+        a = np.asarray(x)
+    except (ValueError, TypeError):
+        a = None
+    if a is None or a.dtype.kind not in "biuf" and a.dtype.kind != "c" and a.dtype != object:
+        raise InputError(f"{what} must be numbers in {unit_text}, as a number or an array; got {x!r:.60}"
+                         + ("; a text with a unit is read by tablegen.units" if isinstance(x, str) else ""))
+    if a.dtype.kind == "c" or a.dtype == object and any(isinstance(v, complex) for v in a.flat):
+        raise InputError(f"{what} must be real numbers; got complex values")
+    try:
+        return a.astype(float)
+    except (ValueError, TypeError):
+        raise InputError(f"{what} must be numbers in {unit_text}, as a number or an array; got {x!r:.60}") from None
 
 
 def _bad_value(sub, key, values):
