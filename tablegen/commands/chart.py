@@ -203,6 +203,9 @@ def run(args) -> int:
             raise TablegenError("no substance given; e.g. 'tablegen chart air' (or use --spec FILE)")
         sub_name = args.substance
         specs = charts_from_options(args)
+    from ..texts import bad_character, one_line_rule
+    if date is not None and (len(date) > 100 or bad_character(date)):
+        raise TablegenError(f"--date: {one_line_rule()}, at most 100 characters")
     sub = substance_with_options(args, sub_name)
     footer = f"tablegen {__version__} · " + (sub.name if sub.name == sub.id else f"{sub.name} ({sub.id})")
     try:
