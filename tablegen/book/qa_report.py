@@ -657,10 +657,8 @@ def render_pdf(cmp) -> bytes:
 
 
 def _render(cmp, flow) -> bytes:
-    from reportlab.pdfgen import canvas as rl_canvas
     buf = io.BytesIO()
-    c = rl_canvas.Canvas(buf, pagesize=(PAGE_W, PAGE_H), invariant=1, initialFontName=fonts.SANS,
-                         pageCompression=1)
+    c = fonts.canvas(buf, pagesize=(PAGE_W, PAGE_H), initialFontName=fonts.SANS, pageCompression=1)
     c.setTitle(f"QA comparison: {cmp.substance['id']} against {cmp.reference.path}")
     c.setAuthor("tablegen")
     c.setCreator(f"tablegen {cmp.version}")
