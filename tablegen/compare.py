@@ -131,6 +131,9 @@ CHANGE_FLOOR_MOLAR = {"energy": 10.0, "entropy": 0.02}     # J/mol, J/(mol K)
 T_CHANGE_FROM = 298.15
 
 COMMENT = "#"
+#: Largest reference table read: rows (a book table has at most 20 000) and bytes.
+MAX_REFERENCE_ROWS = 20000
+MAX_REFERENCE_BYTES = 8 << 20
 
 
 # ---------------------------------------------------------------- reading
@@ -202,7 +205,7 @@ def _quantum(text: str) -> float:
     mant, exp = m.group(1), m.group(2)
     decimals = len(mant.split(".", 1)[1]) if "." in mant else 0
     e = int(exp[1:]) if exp else 0
-    return 10.0 ** (e - decimals)
+    return 10.0 ** min(max(e - decimals, -400), 300)     # the cell is finite, so its exponent is too
 
 
 def read_reference(path) -> Reference:
@@ -222,6 +225,14 @@ def read_reference(path) -> Reference:
     """
     p = Path(path)
     name = str(path)
+    try:
+        size = p.stat().st_size
+    except OSError:
+        size = 0                       # the read below says what is wrong
+    if size > MAX_REFERENCE_BYTES:
+        raise TablegenError(f"{name}: {size} bytes; a reference table may have at most "
+                            f"{MAX_REFERENCE_BYTES} bytes ({MAX_REFERENCE_BYTES >> 20} MiB) and "
+                            f"{MAX_REFERENCE_ROWS} rows")
     try:
         raw = p.read_bytes()
     except FileNotFoundError:
@@ -259,6 +270,9 @@ def read_reference(path) -> Reference:
         else:
             cells = s.split()
         rows.append((i, [c.strip() for c in cells]))
+        if len(rows) > MAX_REFERENCE_ROWS:
+            raise TablegenError(f"{name}:{i}: more than {MAX_REFERENCE_ROWS} data rows; a reference table "
+                                f"may have at most {MAX_REFERENCE_ROWS} rows (split it and compare each part)")
     if header is None:
         raise TablegenError(f"{name}: no header line; the first line that is not a '#' comment must name "
                             f"each column as key [unit], e.g. T [K],cp [kJ/(kg K)]")
@@ -315,6 +329,9 @@ def read_reference(path) -> Reference:
             if not _NUMBER.match(c):
                 raise TablegenError(f"{name}:{line}: cell {c!r} in column {keys[j]!r} is not a number; "
                                     f"write plain decimal numbers (an empty cell or '-' marks a gap)")
+            if not math.isfinite(float(c)):
+                raise TablegenError(f"{name}:{line}: cell {c!r} in column {keys[j]!r} is beyond the range "
+                                    f"of a double (about 1.8e308); write a finite number")
             cells_by_col[j].append(c)
 
     lines = tuple(r[0] for r in rows)
@@ -389,6 +406,11 @@ def default_tolerance(key: str, M_g_per_mol: float = 1.0, unit_=None, n_per_m3: 
     return Tolerance(rel, 0.0, f"{rel * 100:g} %", "default")
 
 
+#: Largest tolerances accepted: 100 % relative; 1e12 in SI units absolute (beyond any
+#: property value a table holds, so a bound and its plot stay finite).
+MAX_RELATIVE_PERCENT = 100.0
+MAX_ABSOLUTE_SI = 1e12
+
 _TOL_PART = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(%?)\s*(.*?)\s*$")
 
 
@@ -424,6 +446,9 @@ def parse_tolerance(text: str, ref_units: dict) -> tuple[str, Tolerance]:
         v = float(m.group(1))
         if not (math.isfinite(v) and v >= 0):
             raise TablegenError(f"--tolerance {text!r}: tolerances must be numbers >= 0")
+        if m.group(2) and v > MAX_RELATIVE_PERCENT:
+            raise TablegenError(f"--tolerance {text!r}: a relative tolerance is at most "
+                                f"{MAX_RELATIVE_PERCENT:g} %")
         if m.group(2):
             if m.group(3) or seen_rel:
                 raise TablegenError(f"--tolerance {text!r}: write one relative part, e.g. {key}=0.1%")
@@ -444,6 +469,9 @@ def parse_tolerance(text: str, ref_units: dict) -> tuple[str, Tolerance]:
                 except UnitError as e:
                     raise TablegenError(f"--tolerance {text!r}: {e}") from None
             abs_si, seen_abs = v * u.factor, True
+            if not abs_si <= MAX_ABSOLUTE_SI:
+                raise TablegenError(f"--tolerance {text!r}: an absolute tolerance is at most "
+                                    f"{MAX_ABSOLUTE_SI / u.factor:.3g} {u.symbol} ({MAX_ABSOLUTE_SI:g} in SI units)")
     return key, Tolerance(rel, abs_si, val, "--tolerance")
 
 
