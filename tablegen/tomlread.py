@@ -22,8 +22,14 @@ MAX_BYTES = 4 << 20
 MAX_DEPTH = 16
 
 _TOKEN = re.compile(r'"""|\'\'\'|["\'#\[\]{}]')
-_BASIC_END = re.compile(r'(?:[^"\\\n]|\\.)*"')
-_ML_BASIC_END = re.compile(r'(?s)(?:[^"\\]|\\.|"(?!""))*"""')
+#: What ends a string or a comment, matched from just after its opening token.
+_CLOSE = {
+    '"""': re.compile(r'(?s)(?:[^"\\]|\\.|"(?!""))*"""'),
+    "'''": re.compile(r"(?s).*?'{3}"),
+    '"': re.compile(r'(?:[^"\\\n]|\\.)*"'),
+    "'": re.compile(r"[^'\n]*'"),
+    "#": re.compile(r"[^\n]*"),
+}
 
 
 def nesting_depth(text: str, stop_above: int = MAX_DEPTH) -> tuple[int, int]:
@@ -38,32 +44,18 @@ def nesting_depth(text: str, stop_above: int = MAX_DEPTH) -> tuple[int, int]:
         m = _TOKEN.search(text, i)
         if m is None:
             break
-        t, j = m.group(), m.end()
-        if t == "#":
-            k = text.find("\n", j)
-            i = n if k < 0 else k
-        elif t == '"""':
-            e = _ML_BASIC_END.match(text, j)
+        t, i = m.group(), m.end()
+        if t in _CLOSE:
+            e = _CLOSE[t].match(text, i)
             i = e.end() if e else n
-        elif t == "'''":
-            k = text.find("'''", j)
-            i = n if k < 0 else k + 3
-        elif t == '"':
-            e = _BASIC_END.match(text, j)
-            i = e.end() if e else n
-        elif t == "'":
-            k = text.find("'", j)
-            i = n if k < 0 else k + 1
         elif t in "[{":
             depth += 1
             if depth > deepest:
                 deepest, line_at = depth, text.count("\n", 0, m.start()) + 1
                 if deepest > stop_above:
                     break
-            i = j
         else:
             depth = max(depth - 1, 0)
-            i = j
     return deepest, line_at
 
 

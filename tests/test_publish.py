@@ -18,7 +18,6 @@ import json
 import os
 import pickle
 import random
-import re
 import signal
 import subprocess
 import sys
@@ -31,7 +30,7 @@ from pypdf import PdfReader
 
 from tablegen import cli, outfiles, spec
 from tablegen.book.build import issue_text, render_files
-from tablegen.errors import Interrupted, OutputBusyError, OutputError, OutputExistsError
+from tablegen.errors import Interrupted, OutputError, OutputExistsError
 
 ROOT = Path(__file__).resolve().parents[1]
 

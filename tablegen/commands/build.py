@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from .common import data_notices, notice
+from .common import data_notices, published
 
 
 def add_arguments(p):
@@ -39,10 +39,6 @@ def run(args) -> int:
     bar = progress_for(args, len(spec.tables), f"building {spec.name}")
     files, book = render_files(spec, bar)
     notes = outfiles.publish_folder(out, files, force=args.force, about=[f"issue: {issue_text(book)}"])
-    for n in notes:
-        notice(args, n)
-    notice(args, f"wrote {len(files)} files and their manifest {outfiles.MANIFEST} to {out}/ "
-                 f"({pdf_pages(files[spec.name + '.pdf'])} PDF pages, fingerprint {book.fingerprint[:16]}…)")
-    for name in sorted([*files, outfiles.MANIFEST]):
-        print(out / name)
+    published(args, out, files, notes, "files", f" ({pdf_pages(files[spec.name + '.pdf'])} PDF pages, "
+                                                f"fingerprint {book.fingerprint[:16]}…)")
     return 0

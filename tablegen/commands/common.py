@@ -83,6 +83,17 @@ def substance_with_options(args, name: str):
                             anchor=anchor_from_text(getattr(args, "anchor", None)))
 
 
+def published(args, out, files, notes, what: str, detail: str = "", paths: bool = True) -> None:
+    """After a folder was published: its notes, one 'wrote' line, and (paths) every file on stdout."""
+    from ..outfiles import MANIFEST
+    for n in notes:
+        notice(args, n)
+    notice(args, f"wrote {len(files)} {what} and their manifest {MANIFEST} to {out}/{detail}")
+    if paths:
+        for name in sorted([*files, MANIFEST]):
+            print(out / name)
+
+
 #: Notices of the running command, printed only once it has succeeded (None: print at once).
 _held: list | None = None
 

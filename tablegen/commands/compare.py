@@ -10,7 +10,7 @@ import re
 import sys
 from pathlib import Path
 
-from .common import add_datum_options, dumps, notice, substance_with_options
+from .common import add_datum_options, dumps, notice, published, substance_with_options
 
 EXAMPLE = """example:
   tablegen compare N2 janaf-n2.csv --tolerance cp_molar=0.5% --tolerance dh298_molar=0.5%+0.001
@@ -54,7 +54,8 @@ def add_arguments(p):
     p.add_argument("--table", default=None, metavar="NAME",
                    help="with a spec file: the table to compare (needed when the spec has several)")
     p.add_argument("--out", default=None, metavar="DIR",
-                   help="folder for report.pdf, deviations.csv, summary.json (default output/compare-NAME/)")
+                   help="folder for report.pdf, deviations.csv, summary.json and their manifest, published "
+                        "together (default output/compare-NAME/)")
     p.add_argument("--force", action="store_true", help="replace the earlier comparison in the output folder")
     p.add_argument("--json", action="store_true", help="print the JSON summary on stdout")
     add_datum_options(p)
@@ -254,7 +255,5 @@ def run(args) -> int:
         sys.stdout.write(dumps(summary(cmp)))
     else:
         sys.stdout.write(text_summary(cmp))
-    for n in notes:
-        notice(args, n)
-    notice(args, f"wrote {out}/: {', '.join(FILES)} and their manifest {outfiles.MANIFEST}")
+    published(args, out, files, notes, f"files ({', '.join(FILES)})", paths=False)
     return 0 if cmp.passed else 1

@@ -5,7 +5,7 @@ from __future__ import annotations
 from importlib import resources
 from pathlib import Path
 
-from .common import notice
+from .common import notice, published
 
 OUT = Path("output") / "demo"
 
@@ -46,10 +46,5 @@ def run(args) -> int:
         all_files.update(files)
         about.append(f"issue: {issue_text(book)}")
     notes = outfiles.publish_folder(out, all_files, force=True, about=about, what="demo")
-    for n in notes:
-        notice(args, n)
-    notice(args, f"wrote {len(all_files)} demo files and their manifest {outfiles.MANIFEST} to {out}/ "
-                 f"(the demo replaces its own earlier issue)")
-    for name in sorted([*all_files, outfiles.MANIFEST]):
-        print(out / name)
+    published(args, out, all_files, notes, "demo files", " (the demo replaces its own earlier issue)")
     return 0
