@@ -63,10 +63,11 @@ if hasattr(errno, "EDQUOT"):
 
 
 # ---------------------------------------------------------------- messages
-def fault(e: OSError, path, state: str = "") -> OutputError:
-    """One line for an OS error: the path, the cause, what was left, what to do."""
+def fault(e: OSError, path, state: str = "", *, this_path: bool = False) -> OutputError:
+    """One line for an OS error: the path (the error's own unless this_path), the cause, what was left, what to do."""
     cause = e.strerror or str(e)
-    where = _show(Path(os.fsdecode(e.filename))) if getattr(e, "filename", None) else _show(Path(path))
+    own = None if this_path else getattr(e, "filename", None)
+    where = _show(Path(os.fsdecode(own))) if own else _show(Path(path))
     hint = _HINTS.get(e.errno, "choose another --out")
     return OutputError(f"cannot write {where}: {cause}" + (f" ({state})" if state else "") + f"; {hint}")
 
@@ -487,13 +488,14 @@ def _publish(dest: Path, files: dict, force: bool, about, what: str, state: dict
                                         f"nothing was written") from None
         had = _inspect(dest, files, force, what)
         stage = dest.parent / f".{dest.name}.tablegen-stage-{os.urandom(4).hex()}"
-        leftover = None
+        leftover, current = None, None
         try:
             try:
                 os.mkdir(stage)
-                for name in sorted(files):
-                    _write_new(stage / name, files[name])
-                _write_new(stage / MANIFEST, manifest(files, about))
+                for name in [*sorted(files), MANIFEST]:
+                    current = name            # a fault names the file as the user will find it
+                    _write_new(stage / name, files[name] if name in files else manifest(files, about))
+                current = None
                 if had:
                     os.chmod(stage, stat.S_IMODE(os.stat(dest).st_mode))
                 _fsync_dir(stage)
@@ -509,7 +511,8 @@ def _publish(dest: Path, files: dict, force: bool, about, what: str, state: dict
                             leftover, state["published"] = None, False
                             raise OutputExistsError(_foreign_message(dest, foreign, what))
             except OSError as e:
-                raise fault(e, dest, f"nothing was published; {shown}/ is as it was") from None
+                raise fault(e, dest / current if current else dest, f"nothing was published; {shown}/ is as it was",
+                            this_path=current is not None) from None
             try:
                 _fsync_dir(dest.parent)
             except OSError as e:
@@ -630,7 +633,7 @@ def write_files(files: dict, force: bool) -> list[Path]:
                         _unlink_quietly(p)
     except OSError as e:
         left = "files already replaced stay replaced" if force and placed else "no file was written"
-        raise fault(e, current, left) from None
+        raise fault(e, current, left, this_path=e.errno not in (errno.ENOTDIR, errno.EEXIST)) from None
     except (KeyboardInterrupt, Terminated) as e:
         left = "files already replaced stay replaced" if force and placed else "no file was written"
         raise _interrupted(e, left) from None
