@@ -322,6 +322,11 @@ def _real(dest) -> Path:
 
 
 def _refuse_location(dest: Path, what: str):
+    above = dest.parent
+    while not os.path.lexists(above) and above.parent != above:
+        above = above.parent
+    if not os.path.isdir(above):
+        raise OutputExistsError(f"{_show(above)} is a file; give --out a path inside a folder")
     if dest.parent == dest or os.path.ismount(dest):
         raise OutputExistsError(f"{dest} is the top of a drive; a {what} is published by renaming a folder "
                                 f"inside it: give --out a folder within it, e.g. {dest / 'NAME'}")
@@ -397,9 +402,6 @@ def check_folder(dest, names, *, force: bool, what: str = "book") -> None:
     dest = _real(dest)
     _check_names(names)
     _refuse_location(dest, what)
-    parent = dest.parent
-    if parent.exists() and not parent.is_dir():
-        raise OutputExistsError(f"{_show(parent)} is a file; give --out a path inside a folder")
     _inspect(dest, names, force, what)
 
 
