@@ -173,7 +173,9 @@ class Substance:
     def _check_scales(self, ln_lo: float, ln_hi: float, T_lo: float, T_hi: float) -> None:
         """Refuse Pr or vr beyond 1e300 or below 1e-300 (ln Pr from ln_lo to ln_hi at T_lo-T_hi)."""
         a = self.anchor
-        base = math.log(a.vr) + math.log(a.Pr) - math.log(a.T_K)
+        base = self._cache.get("ln_vr_base")
+        if base is None:
+            base = self._cache["ln_vr_base"] = math.log(a.vr) + math.log(a.Pr) - math.log(a.T_K)
         ln_vr = (base + math.log(T_lo) - ln_hi, base + math.log(T_hi) - ln_lo)
         if max(abs(ln_lo), abs(ln_hi), abs(ln_vr[0]), abs(ln_vr[1])) < LN_SCALE_MAX:
             return
