@@ -331,13 +331,14 @@ class Substance:
                 lnPr -= c["sR_anchor"] - math.log(self.anchor.Pr)
                 if T.size:
                     self._check_scales(float(lnPr.min()), float(lnPr.max()), float(T.min()), float(T.max()))
+                at_anchor = T == self.anchor.T_K     # the anchor values exactly, as the datum
                 if "Pr" in want:
-                    out["Pr"] = np.exp(lnPr)
+                    out["Pr"] = _set_where(np.exp(lnPr), at_anchor, self.anchor.Pr)
                 if "vr" in want:
                     vr = np.exp(math.log(self.anchor.Pr) - lnPr)
                     vr *= T
                     vr *= self.anchor.vr / self.anchor.T_K
-                    out["vr"] = vr
+                    out["vr"] = _set_where(vr, at_anchor, self.anchor.vr)
             if want & {"g0", "g0_molar"}:
                 g0_m = out["h_molar"] - T * s0_m
                 out["g0_molar"] = g0_m
@@ -423,8 +424,10 @@ class Substance:
             "T_K": T, "cp_molar": cp_m, "cv_molar": cv_m, "h_molar": h_m, "u_molar": u_m,
             "s0_molar": s0_m, "g0_molar": g0_m,
             "dh298_molar": 0.0 if T == T_REF else (hR - c["h298R"]) * R_MOLAR,
-            "k": k, "Pr": math.exp(lnPr),
-            "vr": self.anchor.vr * (T / self.anchor.T_K) * math.exp(math.log(self.anchor.Pr) - lnPr),
+            "k": k,
+            "Pr": self.anchor.Pr if T == self.anchor.T_K else math.exp(lnPr),
+            "vr": self.anchor.vr if T == self.anchor.T_K else
+            self.anchor.vr * (T / self.anchor.T_K) * math.exp(math.log(self.anchor.Pr) - lnPr),
         }
         if not molar_only:
             vals.update(cp=cp_m / Mk, cv=cv_m / Mk, h=h_m / Mk, u=u_m / Mk, s0=s0_m / Mk, g0=g0_m / Mk,
