@@ -68,7 +68,7 @@ def substance(name: str, *, source: str | None = None, data=()) -> Substance:
                       id=m["id"], name=m.get("name", m["id"]))
         return sub
     if composition.looks_like(name):
-        from .burn import is_oxidant_base
+        from .oxidants import is_oxidant_base
         head, comma, _ = name.partition(",")
         if comma and "=" not in head and is_oxidant_base(head):
             raise NameLookupError(f"{name!r} is an oxidant ({head.strip()} with conditions) for combust --oxidant "
