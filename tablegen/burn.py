@@ -55,17 +55,15 @@ T_DISSOCIATION_WARN = 2000.0
 #: Flue-gas O2 and λ: λ this far below 1 is treated as round-off of λ = 1.
 LAMBDA_ROUNDOFF = 1e-12
 
-CAUTIONS = (
-    "Frozen complete combustion: all C burns to CO2, H to H2O, S to SO2 and N to N2; no "
-    "dissociation, and no CO, NOx or unburned fuel unless the fuel itself contains them.",
-    "The acid dew point of flue gas from a sulfur-bearing fuel (SO3/H2SO4 condensing) lies well "
-    "above the water dew point given here and is not computed.",
-    "Flue gas is toxic and asphyxiant: keep it out of occupied spaces, and never rely on these "
-    "figures for ventilation or exposure limits.",
-    "These are engineering estimates: for boiler, burner, flue and stack design defer to local "
-    "codes and licensed engineering practice.",
-)
-
+CAUTION_SULFUR = ("The fuel contains sulfur: the flue gas carries SO2 and, in practice, some SO3; its acid "
+                  "dew point (sulfuric acid condensing) lies well above the water dew point given here and is "
+                  "not computed; surfaces below it corrode.")
+CAUTION_TOXIC = ("Flue gas is toxic and asphyxiant: keep it out of occupied spaces, and never rely on these "
+                 "figures for ventilation or exposure limits.")
+CAUTION_CODES = ("These are engineering estimates: for boiler, burner, flue and stack design defer to local "
+                 "codes and licensed engineering practice.")
+#: The cautions of every combustion result; the others are added where they apply (combustion_cautions).
+CAUTIONS = (CAUTION_TOXIC, CAUTION_CODES)
 
 
 # ================================================================== result
@@ -86,6 +84,7 @@ class CombustionResult:
     moles_per_kg: dict          # product species -> mol per kg of fuel (wet)
     summary: dict
     cautions: list
+    uncertainty: object = None  # tablegen.burn_inputs.Propagation of the stated input uncertainties
 
 
 AMOUNT_KEYS = ("excess_air", "air_ratio", "phi", "o2_dry", "o2_wet")
@@ -119,6 +118,23 @@ def _solve_air_ratio(*, excess_air, air_ratio, phi, o2_dry, o2_wet, o2_need, n_o
                             f"the O2 content of the oxidant on that basis ({y_max * 100:.4g} %); allowed: "
                             f"0 <= O2 < {y_max * 100:.4g} %")
     return (o2_need + y * total0) / (o2_need - y * n_ox_st * c)
+
+
+def measured_o2(text, what: str = "flue-gas O2") -> tuple[float, float | None]:
+    """A measured O2 as typed: '3.5' or '3.5%' -> (3.5, None); '3.5%±0.2%' (or '+-') -> (3.5, 0.2), in %.
+
+    The uncertainty is expanded (k = 2) and carries its '%' like the value.
+    """
+    from .composition import PLUS_MINUS
+    t = str(text).strip()
+    sep = next((m for m in PLUS_MINUS if m in t), None)
+    if sep is None:
+        return _num(t[:-1].strip() if t.endswith("%") else t, f"{what} (%)"), None
+    v, _, u = (x.strip() for x in t.partition(sep))
+    if not v.endswith("%") or not u.endswith("%"):
+        raise TablegenError(f"{what} {t!r}: a measured O2 with its uncertainty is written with '%' on both, "
+                            f"e.g. 3.5%±0.2%")
+    return _num(v[:-1].strip(), f"{what} (%)"), _num(u[:-1].strip(), f"uncertainty of {what} (%)")
 
 
 def _given_amount(excess_air, air_ratio, phi, o2_dry, o2_wet):
@@ -155,34 +171,55 @@ def _normal_molar_volume(T_K: float, P_Pa: float) -> float:
     return R_MOLAR * T_K / P_Pa
 
 
+def _as_fuel(fuel, data, source) -> Fuel:
+    if isinstance(fuel, Fuel):
+        return fuel
+    if isinstance(fuel, dict):
+        if fuel and not any(k in FUEL_KEYS for k in fuel):      # a bare {species: mole fraction}
+            fuel = {"composition": fuel}
+        return fuel_from_table(fuel, "fuel", data=data, source=source)
+    return fuel_from_text(fuel, data=data, source=source)
+
+
+def _as_oxidant(oxidant, data, source) -> Oxidant:
+    if isinstance(oxidant, Oxidant):
+        return oxidant
+    if isinstance(oxidant, dict):
+        return oxidant_from_table(oxidant, "oxidant", data=data, source=source)
+    return oxidant_from_text(oxidant or "air", data=data, source=source)
+
+
 def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None, o2_dry=None,
-               o2_wet=None, T_ref_K: float = 298.15, T_meter_K: float = T_NORMAL,
-               P_meter_Pa: float = P_NORMAL, T_fuel_K: float = T_REF, T_oxidant_K: float = T_REF,
+               o2_wet=None, o2_uncertainty=None, T_ref_K: float = 298.15, T_meter_K: float = T_NORMAL,
+               P_meter_Pa: float = P_NORMAL, T_fuel_K: float | None = None, T_oxidant_K: float | None = None,
                P_flue_Pa: float = P_NORMAL, data=(), source=None, **kw) -> CombustionResult:
     """Frozen complete combustion of a fuel with an oxidant.
 
     Parameters
     ----------
-    fuel : Fuel, spec table (dict), or text ('CH4=0.9,C2H6=0.06,N2=0.04', a species, a TOML file)
+    fuel : Fuel, spec table (dict), or text ('CH4=0.9,C2H6=0.06,N2=0.04', a species, a TOML file);
+        a text analysis may state expanded uncertainties, 'CH4=87%±0.5%,...'
     oxidant : Oxidant, table, or text ('air', 'air,rh=60%,T=25C', 'air,O2=30%', 'O2=0.3,N2=0.7')
     excess_air : %; or air_ratio (λ, also accepted as ``lambda=``), phi (φ = 1/λ),
         o2_dry / o2_wet (measured flue-gas O2, % by volume): exactly one
+    o2_uncertainty : expanded uncertainty (k = 2) of the measured O2, % by volume
     T_ref_K : combustion reference temperature of the heating values: 298.15, 293.15,
         288.7056 (60 °F), 288.15 or 273.15 K (ISO 6976)
     T_meter_K, P_meter_Pa : metering conditions of normal volumes (default 0 °C, 101.325 kPa)
-    T_fuel_K, T_oxidant_K : inlet temperatures for the adiabatic flame temperature
+    T_fuel_K : fuel inlet temperature for the adiabatic flame temperature (default 25 °C)
+    T_oxidant_K : oxidant inlet temperature for it; default the temperature stated with
+        the oxidant (``air,rh=60%,T=15C`` is at 15 °C), else 25 °C
     P_flue_Pa : flue-gas pressure for the water dew point
 
     Returns
     -------
-    CombustionResult
+    CombustionResult; with stated input uncertainties, ``uncertainty`` holds their
+    propagation (tablegen.burn_inputs).
 
     Raises
     ------
     TablegenError (or SpecError for tables) naming the bad input.
     """
-    from .saturation import T_sat_K, h_vap_J_per_kg, P_LOW_IF97
-    from .thermo.build import mixture_substance
     if "lambda" in kw:
         if air_ratio is not None:
             raise TablegenError("give lambda or air_ratio, not both")
@@ -190,20 +227,60 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
     if kw:
         raise TypeError(f"combustion() got unknown arguments: {', '.join(kw)}")
     data = tuple(data)
-    if isinstance(fuel, Fuel):
-        f = fuel
-    elif isinstance(fuel, dict):
-        if fuel and not any(k in FUEL_KEYS for k in fuel):      # a bare {species: mole fraction}
-            fuel = {"composition": fuel}
-        f = fuel_from_table(fuel, "fuel", data=data, source=source)
-    else:
-        f = fuel_from_text(fuel, data=data, source=source)
-    if isinstance(oxidant, Oxidant):
-        ox = oxidant
-    elif isinstance(oxidant, dict):
-        ox = oxidant_from_table(oxidant, "oxidant", data=data, source=source)
-    else:
-        ox = oxidant_from_text(oxidant or "air", data=data, source=source)
+    f = _as_fuel(fuel, data, source)
+    ox = _as_oxidant(oxidant, data, source)
+    amount = {k: v for k, v in (("excess_air", excess_air), ("air_ratio", air_ratio), ("phi", phi),
+                                ("o2_dry", o2_dry), ("o2_wet", o2_wet)) if v is not None}
+    if o2_uncertainty is not None:
+        if not (set(amount) & {"o2_dry", "o2_wet"}):
+            raise TablegenError("an O2 uncertainty belongs to a measured flue-gas O2 (o2_dry or o2_wet)")
+        U = _num(o2_uncertainty, "uncertainty of the flue-gas O2 (%)")
+        (k, v), = ((k, v) for k, v in amount.items() if k in ("o2_dry", "o2_wet"))
+        if U < 0:
+            raise TablegenError(f"uncertainty of the flue-gas O2 is negative ({U:g} %); allowed: U >= 0")
+        if U > _num(v, "flue-gas O2 (%)"):
+            raise TablegenError(f"uncertainty of the flue-gas O2 (±{U:g} %) is larger than the O2 itself "
+                                f"({float(v):g} %); allowed: U <= the measured O2")
+    temps = {"T_fuel_K": (T_REF, "the default") if T_fuel_K is None else (T_fuel_K, "as given"),
+             "T_oxidant_K": ((ox.T_K, "stated with the oxidant") if ox.T_K is not None else (T_REF, "the default"))
+             if T_oxidant_K is None else (T_oxidant_K, "as given")}
+    conditions = dict(T_ref_K=T_ref_K, T_meter_K=T_meter_K, P_meter_Pa=P_meter_Pa, P_flue_Pa=P_flue_Pa,
+                      T_fuel_K=temps["T_fuel_K"][0], T_oxidant_K=temps["T_oxidant_K"][0])
+    r = _burn(f, ox, amount, data=data, source=source, **conditions)
+    s = r.summary
+    s["T_fuel_source"], s["T_oxidant_source"] = temps["T_fuel_K"][1], temps["T_oxidant_K"][1]
+    (ak, av), = amount.items()
+    s["amount_given"] = {"key": ak, "value": float(av), "U_k2": None if o2_uncertainty is None else
+                         float(o2_uncertainty), "unit": {"excess_air": "%", "air_ratio": "-", "phi": "-"}.get(ak, "%")}
+    unc = None
+    if f.uncertainty or o2_uncertainty:
+        from .burn_inputs import propagate
+
+        def rerun(fuel_x, amount_x):
+            return _burn(fuel_x, ox, amount_x, data=data, source=source, **conditions).summary
+        unc = propagate(s, f, amount, o2_uncertainty, rerun)
+        s["uncertainty"] = unc.to_json()
+    result = replace(r, uncertainty=unc)
+    # one dew point, computed once: the figure of the summary travels with the wet flue gas
+    products = replace(r.products, cautions=tuple(r.cautions), dew_point_K=s["dew_point_K"],
+                       dew_point_P_Pa=float(P_flue_Pa), _cache={})
+    products_dry = None if r.products_dry is None else replace(r.products_dry, cautions=tuple(r.cautions),
+                                                                _cache={})
+    result = replace(result, products=products, products_dry=products_dry)
+    # each flue gas knows the result that made it (documents print its combustion sheet)
+    for sub in (products, products_dry):
+        if sub is not None:
+            object.__setattr__(sub, "origin", result)
+    _MADE[products.id] = result
+    if products_dry is not None:
+        _MADE[products_dry.id] = result
+    return result
+
+
+def _burn(f: Fuel, ox: Oxidant, amount: dict, *, T_ref_K, T_meter_K, P_meter_Pa, T_fuel_K, T_oxidant_K,
+          P_flue_Pa, data, source) -> CombustionResult:
+    """The combustion calculation itself, for given fuel, oxidant, amount and conditions."""
+    from .thermo.build import mixture_substance
     T_ref = _num(T_ref_K, "combustion reference temperature (K)")
     if not any(abs(T_ref - v) < 0.01 for v in REFERENCE_TEMPERATURES_K.values()):
         raise TablegenError(f"combustion reference temperature {T_ref:g} K is not one ISO 6976 allows; "
@@ -220,13 +297,13 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
     p0 = _products_at(f, ox, 0.0)
     wet0 = sum(p0.values())
     dry0 = wet0 - p0["H2O"]
-    if o2_dry is not None:
+    if "o2_dry" in amount:
         p1 = _products_at(f, ox, n_st)
         if sum(v for k, v in p1.items() if k not in ("H2O", "O2")) <= 1e-12 * sum(p1.values()):
             raise TablegenError("this dry flue gas would hold nothing but O2, so a dry O2 reading cannot fix "
                                 "the amount of oxidant; give the wet O2, lambda or excess air")
-    lam = _solve_air_ratio(excess_air=excess_air, air_ratio=air_ratio, phi=phi, o2_dry=o2_dry, o2_wet=o2_wet,
-                           o2_need=o2_need, n_ox_st=n_st, wet0=wet0, dry0=dry0, ox=ox)
+    lam = _solve_air_ratio(**{k: amount.get(k) for k in AMOUNT_KEYS}, o2_need=o2_need, n_ox_st=n_st,
+                           wet0=wet0, dry0=dry0, ox=ox)
     n_ox = lam * n_st
     prod = _products_at(f, ox, n_ox)
     if abs(prod["O2"]) <= LAMBDA_ROUNDOFF * o2_need:      # λ = 1: round-off of O2 need - supply
@@ -241,18 +318,12 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
     y_wet = {k: v / N_wet for k, v in prod.items()}
     has_dry = N_dry > 1e-12 * N_wet          # hydrogen in pure O2 at λ = 1 leaves water only
     y_dry = {k: v / N_dry for k, v in prod.items() if k != "H2O"} if has_dry else {}
-    m_wet = sum(v * recs[k].M for k, v in prod.items()) * 1e-3        # kg per kg fuel
-    m_dry = m_wet - prod.get("H2O", 0.0) * recs["H2O"].M * 1e-3 if "H2O" in prod else m_wet
-    if not has_dry:
-        N_dry = m_dry = 0.0
-    w_wet = {k: v * recs[k].M * 1e-3 / m_wet for k, v in prod.items()}
-    w_dry = {k: v * recs[k].M * 1e-3 / m_dry for k, v in prod.items() if k != "H2O"} if has_dry else {}
-    amount_key, amount_value = _given_amount(excess_air, air_ratio, phi, o2_dry, o2_wet)
-    amount = f"{amount_key}={_g(amount_value)}"
+    amount_key, amount_value = _given_amount(**{k: amount.get(k) for k in AMOUNT_KEYS})
+    amount_text = f"{amount_key}={_g(amount_value)}"
     if f.spec and ox.spec:
-        base_id = f"flue@{f.spec}@{amount}" + ("" if ox.spec == "air" else f"@{ox.spec}")
+        base_id = f"flue@{f.spec}@{amount_text}" + ("" if ox.spec == "air" else f"@{ox.spec}")
     else:
-        base_id = f"flue gas of {f.id} with {ox.id} at {amount}"
+        base_id = f"flue gas of {f.id} with {ox.id} at {amount_text}"
     products = mixture_substance([(recs[k], v) for k, v in y_wet.items()], "mole", id=base_id,
                                  name=f"flue gas of {f.name} with {ox.name} at λ = {lam:.4g} (wet)",
                                  what="flue gas")
@@ -262,7 +333,34 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
                                      what="dry flue gas") if has_dry else None
 
     notes = list(f.notes) + list(ox.notes)
-    # ---------------------------------------------------------- ratios and volumes
+    s = _quantities(f, ox, lam, n_st, o2_need, prod, recs, y_wet, y_dry, has_dry, products, products_dry,
+                    T_meter_K, P_meter_Pa, T_ref, notes)
+    s.update(_dew_point(y_wet, P_flue_Pa))
+    s.update(_heating_values(f, o2_need, T_ref, s["_Vm"], data, source, notes))
+    T_ad = _flame(f, ox, n_ox, N_wet, products, T_fuel_K, T_oxidant_K, data, source, notes)
+    s.update(t_adiabatic_K=T_ad, T_fuel_K=float(T_fuel_K), T_oxidant_K=float(T_oxidant_K))
+    del s["_Vm"]
+    cautions = combustion_cautions(f, prod, products, T_ad)
+    s["fuel"] = f.describe()
+    s["oxidant"] = ox.describe()
+    s["notes"] = notes
+    s["cautions"] = cautions
+    return CombustionResult(fuel=f, oxidant=ox, air_ratio=lam, products=products, products_dry=products_dry,
+                            moles_per_kg=prod, summary=s, cautions=cautions)
+
+
+def _quantities(f, ox, lam, n_st, o2_need, prod, recs, y_wet, y_dry, has_dry, products, products_dry,
+                T_meter_K, P_meter_Pa, T_ref, notes) -> dict:
+    """Oxidant/fuel ratios, flue-gas amounts and compositions."""
+    n_ox = lam * n_st
+    N_wet = sum(prod.values())
+    N_dry = N_wet - prod.get("H2O", 0.0)
+    m_wet = sum(v * recs[k].M for k, v in prod.items()) * 1e-3        # kg per kg fuel
+    m_dry = m_wet - prod.get("H2O", 0.0) * recs["H2O"].M * 1e-3 if "H2O" in prod else m_wet
+    if not has_dry:
+        N_dry = m_dry = 0.0
+    w_wet = {k: v * recs[k].M * 1e-3 / m_wet for k, v in prod.items()}
+    w_dry = {k: v * recs[k].M * 1e-3 / m_dry for k, v in prod.items() if k != "H2O"} if has_dry else {}
     Vm = _normal_molar_volume(T_meter_K, P_meter_Pa)                    # m³/mol
     M_ox = ox.M * 1e-3
     s: dict = {
@@ -278,7 +376,7 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
         "flue_gas_volume_wet_per_kg": N_wet * Vm, "flue_gas_volume_dry_per_kg": N_dry * Vm,
         "M_flue_wet": products.M, "M_flue_dry": products_dry.M if has_dry else None,
         "metering_T_K": T_meter_K, "metering_P_Pa": P_meter_Pa,
-        "combustion_reference_T_K": T_ref, "ash_mass_per_kg": f.ash,
+        "combustion_reference_T_K": T_ref, "ash_mass_per_kg": f.ash, "_Vm": Vm,
     }
     s["afr_mass_dry_oxidant"] = s["afr_mass_dry_oxidant_stoich"] * lam
     if f.kind == "gas":
@@ -293,33 +391,41 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
     else:
         s.update(afr_molar_stoich=None, afr_molar=None, afr_volume_stoich=None, afr_volume=None,
                  flue_gas_volume_wet_per_m3_fuel=None, flue_gas_volume_dry_per_m3_fuel=None)
+    if f.kind == "gas":
+        notes.append(f"volumes are ideal-gas normal volumes at {T_meter_K:g} K and {P_meter_Pa / 1000:g} kPa "
+                     f"(no compression factor)")
+    return s
 
-    # ---------------------------------------------------------- dew point
+
+def _dew_point(y_wet: dict, P_flue_Pa: float) -> dict:
+    """The water dew point of the wet flue gas at the flue pressure (IAPWS-IF97 eq. 31)."""
+    from .saturation import water_dew_point_K
     yw = y_wet.get("H2O", 0.0)
     pw = yw * P_flue_Pa
-    s["flue_pressure_Pa"] = P_flue_Pa
-    s["water_partial_pressure_Pa"] = pw
-    if pw >= P_LOW_IF97:
-        s["dew_point_K"] = float(T_sat_K(pw))
-        s["dew_point_note"] = "water dew point: IAPWS-IF97 saturation temperature (eq. 31) at the water partial pressure"
+    out = {"flue_pressure_Pa": float(P_flue_Pa), "water_partial_pressure_Pa": pw,
+           "dew_point_K": water_dew_point_K(yw, P_flue_Pa)}
+    if out["dew_point_K"] is not None:
+        out["dew_point_note"] = ("water dew point: IAPWS-IF97 saturation temperature (eq. 31) at the water "
+                                 "partial pressure")
     else:
-        s["dew_point_K"] = None
-        s["dew_point_note"] = (f"water partial pressure {pw:.4g} Pa is below 611.2 Pa: the dew point lies below "
-                               f"0 °C (frost point, not computed)")
+        out["dew_point_note"] = (f"water partial pressure {pw:.4g} Pa is below 611.2 Pa: the dew point lies below "
+                                 f"0 °C (frost point, not computed)")
+    return out
 
-    # ---------------------------------------------------------- heating values
-    ext_any = False
+
+def _heating_values(f: Fuel, o2_need: float, T_ref: float, Vm: float, data, source, notes) -> dict:
+    """LHV and HHV at the combustion reference temperature, per kg, kmol and normal m³."""
+    from .saturation import h_vap_J_per_kg
     hf, e1 = f.h_J_per_kg(T_ref, data, source)
     h_o2, e2 = _h_molar("O2", T_ref, data, source)
     stoich_prod = _products_of_fuel_per_kg(f.elements, f.moisture)
     hp_vap, e3 = _h_products(stoich_prod, T_ref, data, source, liquid_water=False)
     hp_liq, _ = _h_products(stoich_prod, T_ref, data, source, liquid_water=True)
-    ext_any = e1 or e2 or e3
     h_react = hf + o2_need * h_o2
     lhv = h_react - hp_vap                                             # J/kg
     hhv = h_react - hp_liq
     dh_vap = float(h_vap_J_per_kg(T_ref))
-    s.update(lhv_mass=lhv * 1e-6, hhv_mass=hhv * 1e-6, h_vap_water_J_per_kg=dh_vap,
+    s = dict(lhv_mass=lhv * 1e-6, hhv_mass=hhv * 1e-6, h_vap_water_J_per_kg=dh_vap,
              water_formed_kg_per_kg=stoich_prod["H2O"] * _M_H2O() * 1e-3)
     if f.M is not None:
         Mf = f.M * 1e-3
@@ -332,11 +438,15 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
         s.update(lhv_volume=None, hhv_volume=None)
     notes.append(f"heating values at {T_ref:g} K from the enthalpies of formation of the data; water condensed "
                  f"with Δh_vap = {dh_vap / 1000:.2f} kJ/kg at {T_ref:g} K (Wagner & Pruss 1993 with Clapeyron)")
-    if f.kind == "gas":
-        notes.append(f"volumes are ideal-gas normal volumes at {T_meter_K:g} K and {P_meter_Pa / 1000:g} kPa "
-                     f"(no compression factor)")
+    if e1 or e2 or e3:
+        notes.append("some species enthalpies were evaluated slightly below the lower end of their data "
+                     "(SO2 and H2S data start at 300 K) with the lowest interval extrapolated")
+    return s
 
-    # ---------------------------------------------------------- adiabatic flame temperature
+
+def _flame(f: Fuel, ox: Oxidant, n_ox: float, N_wet: float, products, T_fuel_K, T_oxidant_K, data, source,
+           notes) -> float | None:
+    """Frozen adiabatic flame temperature, K (None above the data range of the products)."""
     hfu, e4 = f.h_J_per_kg(T_fuel_K, data, source)
     hox, e5 = ox.h_molar(T_oxidant_K, data, source)
     H = hfu + n_ox * hox                                                 # J per kg fuel
@@ -351,40 +461,48 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
                          f"({products.T_min:g}-{products.T_max:g} K); check the inlet temperatures")
     else:
         T_ad = float(products.T_from("h_molar", np.array([H / N_wet]))[0])
-    s.update(t_adiabatic_K=T_ad, T_fuel_K=T_fuel_K, T_oxidant_K=T_oxidant_K)
     if f.kind != "gas" and f.cp is None and abs(T_fuel_K - f.T_h_ref) > 0.01:
         notes.append(f"fuel inlet temperature {T_fuel_K:g} K differs from {f.T_h_ref:g} K but the fuel cp is "
                      f"not given: its sensible heat is neglected in the flame temperature")
     if f.ash > 0:
         notes.append("ash is inert and takes up no heat in the flame temperature")
-    if ext_any or e4 or e5:
+    if (e4 or e5) and not any("extrapolated" in n for n in notes):
         notes.append("some species enthalpies were evaluated slightly below the lower end of their data "
                      "(SO2 and H2S data start at 300 K) with the lowest interval extrapolated")
+    return T_ad
 
-    cautions = list(CAUTIONS)
+
+def combustion_cautions(f: Fuel, prod: dict, products, T_ad: float | None) -> list:
+    """The cautions that apply to this fuel and result, and only those.
+
+    Sulfur and the acid dew point only where the fuel holds S; the hydrogen caution
+    only where the fuel holds H2; the flame-temperature caution only where it applies.
+    """
+    burnt = ["all C burns to CO2" if f.elements.get("C") else "", "H to H2O" if f.elements.get("H") else "",
+             "S to SO2" if f.elements.get("S") else "", "N to N2" if f.elements.get("N") else ""]
+    burnt = [b for b in burnt if b]
+    if burnt and not burnt[0].startswith("all"):
+        burnt[0] = "all " + burnt[0]
+    phrase = (", ".join(burnt[:-1]) + " and " + burnt[-1]) if len(burnt) > 1 else (burnt[0] if burnt else "")
+    out = [f"Frozen complete combustion: {phrase}; no dissociation, and no CO, NOx or unburned fuel unless "
+           f"the fuel itself contains them."]
     if T_ad is None:
-        cautions.insert(1, f"The frozen adiabatic flame temperature would lie above {products.T_max:g} K and is "
-                           f"not given; dissociation (CO, H2, OH, O, H, NO) holds a real flame far below it.")
+        out.append(f"The frozen adiabatic flame temperature would lie above {products.T_max:g} K and is "
+                   f"not given; dissociation (CO, H2, OH, O, H, NO) holds a real flame far below it.")
     elif T_ad > T_DISSOCIATION_WARN:
-        cautions.insert(1, f"The adiabatic flame temperature {T_ad:.0f} K is above {T_DISSOCIATION_WARN:.0f} K: "
-                           f"dissociation (CO, H2, OH, O, H, NO) would lower it, so the frozen value is an upper bound.")
+        out.append(f"The adiabatic flame temperature {T_ad:.0f} K is above {T_DISSOCIATION_WARN:.0f} K: "
+                   f"dissociation (CO, H2, OH, O, H, NO) would lower it, so the frozen value is an upper bound.")
     if "SO2" in prod:
-        cautions.insert(1, "The fuel contains sulfur: the flue gas carries SO2 (and SO3 in practice); "
-                           "surfaces below the acid dew point corrode.")
-    s["fuel"] = f.describe()
-    s["oxidant"] = ox.describe()
-    s["notes"] = notes
-    s["cautions"] = cautions
-    # the cautions travel with the substances, into every table, chart and state output
-    products = replace(products, cautions=tuple(cautions), _cache={})
-    if products_dry is not None:
-        products_dry = replace(products_dry, cautions=tuple(cautions), _cache={})
-    result = CombustionResult(fuel=f, oxidant=ox, air_ratio=lam, products=products, products_dry=products_dry,
-                              moles_per_kg=prod, summary=s, cautions=cautions)
-    _MADE[products.id] = result
-    if products_dry is not None:
-        _MADE[products_dry.id] = result
-    return result
+        out.append(CAUTION_SULFUR)
+    y_h2 = f.composition.get("H2", 0.0)
+    if y_h2 > 0:
+        out.append(f"The fuel contains hydrogen (H2 {y_h2 * 100:.4g} % by volume): hydrogen flames burn several "
+                   f"times faster than natural-gas flames (laminar burning velocity about 2 m/s in stoichiometric "
+                   f"air against about 0.4 m/s for methane), so flashback is more likely, and they are nearly "
+                   f"invisible in daylight; burners, flame detection and flashback protection must be rated for "
+                   f"this hydrogen content.")
+    out += [CAUTION_TOXIC, CAUTION_CODES]
+    return out
 
 
 class _Recent(dict):
@@ -492,7 +610,7 @@ ANALYSIS_SPEC_KEYS = ("flue_analysis", "basis", "water_percent", "normalise", "n
 
 def flue_gas_from_analysis(composition: dict, basis: str = "volume-dry", *, water_percent: float = 0.0,
                            normalise: bool = False, name=None, id=None, data=(), source=None,
-                           what="flue_analysis"):
+                           what="flue_analysis", P_flue_Pa: float = P_NORMAL):
     """A measured flue-gas analysis (% by volume, dry or wet) as a Substance.
 
     Parameters
@@ -516,8 +634,11 @@ def flue_gas_from_analysis(composition: dict, basis: str = "volume-dry", *, wate
             recs.append((_record("H2O", data, source), wp / 100))
     label = id or "flue gas analysis " + write_composition({r.id: v for r, v in recs}, digits=6)
     sub = mixture_substance(recs, "mole", id=label, name=name or label, what=what)
-    # a measured flue gas: the combustion cautions but the first (nothing was computed)
-    return replace(sub, cautions=CAUTIONS[1:], _cache={})
+    # a measured flue gas: no combustion was computed; the acid dew point where it holds SO2
+    from .saturation import with_dew_point
+    cautions = ((CAUTION_SULFUR.replace("The fuel contains sulfur", "The flue gas holds SO2"),)
+                if any(c.id == "SO2" for c in sub.components) else ()) + CAUTIONS
+    return replace(with_dew_point(sub, P_flue_Pa), cautions=cautions, _cache={})
 
 
 def substance_from_spec(table: dict, where: str, *, data=(), source=None):

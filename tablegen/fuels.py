@@ -43,6 +43,9 @@ class Fuel:
     analysis: dict = field(default_factory=dict)       # bases -> mass fractions (analysis fuels)
     notes: tuple = ()
     spec: str | None = None      # text that re-creates this fuel (for flue@ names), if any
+    given: dict = field(default_factory=dict)          # the analysis as given (see analysis_as_given)
+    uncertainty: dict = field(default_factory=dict)    # part as typed -> expanded U (k = 2) of its given fraction
+    remake: object = None        # callable(fractions on the given basis) -> Fuel, for sensitivities
 
     def h_J_per_kg(self, T_K: float, data=(), source=None) -> tuple[float, bool]:
         """Enthalpy of the fuel as fired at T (formation datum), J/kg; and 'extrapolated'."""
@@ -65,7 +68,54 @@ class Fuel:
             d["composition_mole"] = dict(self.composition)
         if self.analysis:
             d["analysis"] = {k: dict(v) for k, v in self.analysis.items()}
+        d["as_given"] = dict(self.given)
+        d["uncertainty_k2"] = dict(self.uncertainty)
         return d
+
+
+def _given(raw: dict, fractions: dict, basis: str, percent: bool, normalised_loose: bool, **extra) -> dict:
+    """The analysis as the user gave it: its parts (as fractions; ``in_percent`` says how they
+    were typed), their sum, whether they were normalised, and the fractions used."""
+    scale = 100.0 if percent else 1.0
+    values = {str(k): float(v) / scale for k, v in raw.items()}
+    total = float(sum(values.values()))
+    return {"basis": basis, "values": values, "in_percent": percent, "sum": total,
+            "normalised": abs(total - 1.0) > 1e-12, "normalise_loose": normalised_loose,
+            "fractions": dict(fractions), **extra}
+
+
+def check_uncertainty(unc, fractions: dict, what: str, *, percent: bool = False) -> dict:
+    """Expanded uncertainties (k = 2) of given fractions: each >= 0 and no larger than its fraction.
+
+    ``unc`` maps names of ``fractions`` to U as a fraction (a number) or as a
+    percentage (text with '%', when the analysis is in percent).
+    """
+    out = {}
+    for k, u in (unc or {}).items():
+        if k not in fractions:
+            raise TablegenError(f"{what}: uncertainty of {k!r}, which is not a part of the analysis; allowed: "
+                                f"{', '.join(fractions)}")
+        if isinstance(u, str):
+            t = u.strip()
+            if not t.endswith("%"):
+                raise TablegenError(f"{what}: uncertainty of {k} {u!r} needs its '%' (e.g. \"0.5%\") or is "
+                                    f"a number (a fraction)")
+            x = _num(t[:-1], f"{what}: uncertainty of {k} (%)") / 100.0
+        else:
+            if percent:
+                raise TablegenError(f"{what}: the analysis is in percent, so the uncertainty of {k} is too; "
+                                    f"write \"{_num(u, 'U'):g}%\"")
+            x = _num(u, f"{what}: uncertainty of {k}")
+        if x < 0:
+            raise TablegenError(f"{what}: uncertainty of {k} is negative ({x:g}); allowed: U >= 0")
+        if x > fractions[k] * (1 + 1e-12):
+            f = fractions[k]
+            raise TablegenError(f"{what}: the uncertainty of {k} (±{x * 100:g} %) makes its fraction negative "
+                                f"({f * 100:g} % - {x * 100:g} % < 0); allowed: U <= the fraction "
+                                f"({f * 100:g} %)")
+        if x > 0:
+            out[k] = x
+    return out
 
 
 def _oxygen_need(el: dict) -> float:
@@ -74,7 +124,8 @@ def _oxygen_need(el: dict) -> float:
 
 
 def gas_fuel(composition: dict, basis: str = "mole", *, water_percent: float = 0.0, name=None,
-             id=None, data=(), source=None, what="fuel", normalise=False) -> Fuel:
+             id=None, data=(), source=None, what="fuel", normalise=False, uncertainty=None,
+             percent=None) -> Fuel:
     """A gaseous fuel by species.
 
     Parameters
@@ -82,11 +133,18 @@ def gas_fuel(composition: dict, basis: str = "mole", *, water_percent: float = 0
     composition : species -> fraction (or percent)
     basis : "mole", "mass", "volume-dry" or "volume-wet" (ideal gas: volume = mole)
     water_percent : with "volume-dry", the H2O content of the wet gas in % by volume
+    uncertainty : species (as in composition) -> expanded uncertainty U (k = 2) of its
+        fraction on ``basis``: a fraction, or a text with '%' (see check_uncertainty)
+    percent : whether the composition was typed in percent (default: from its sum)
     """
     bases = ("mole", "mass", "volume-dry", "volume-wet")
     if basis not in bases:
         raise TablegenError(f"{what}.basis {basis!r} is not known; allowed: {', '.join(bases)}")
-    fr, _ = _fractions(composition, f"{what}.composition", normalise_loose=normalise)
+    fr, pct = _fractions(composition, f"{what}.composition", normalise_loose=normalise)
+    unc = check_uncertainty(uncertainty, fr, f"{what}")
+    given = _given(composition, fr, basis, pct, normalise, water_percent=float(water_percent or 0.0))
+    pct = pct if percent is None else percent
+    given["in_percent"] = pct
     recs = {}
     for k in fr:
         rec = _record(k, data, source, what=f"{what}.composition.{k}")
@@ -128,8 +186,16 @@ def gas_fuel(composition: dict, basis: str = "mole", *, water_percent: float = 0
     gas = mixture_substance([(recs[k][0], v) for k, v in y.items()], "mole",
                             id=id or write_composition(y, digits=6), what=what)
     fid = id or gas.id
+
+    def remake(x: dict) -> Fuel:
+        return gas_fuel(x, basis, water_percent=water_percent, name=name, id=fid, data=data, source=source,
+                        what=what)
+
+    if given["normalised"]:
+        notes.append(f"analysis as given sums to {given['sum'] * (100 if pct else 1):.9g}{' %' if pct else ''}; "
+                     f"normalised to {'100 %' if pct else '1'}")
     return Fuel(id=fid, name=name or fid, kind="gas", elements=el, M=M, gas=gas, composition=y,
-                notes=tuple(notes))
+                notes=tuple(notes), given=given, uncertainty=unc, remake=remake)
 
 
 _FORMULA = re.compile(r"([A-Z][a-z]?)(\d+(?:\.\d*)?|\.\d+)?")
@@ -231,7 +297,7 @@ def _h_products(prod: dict, T_K: float, data, source, *, liquid_water: bool) -> 
 def condensed_fuel(*, formula=None, basis="as-received", analysis=None,
                    moisture=None, ash=None, hhv=None, lhv=None, h_formation=None, hv_T_ref=T_REF,
                    cp=None, phase="liquid", name=None, id=None, data=(), source=None,
-                   what="fuel") -> Fuel:
+                   what="fuel", uncertainty=None) -> Fuel:
     """A liquid or solid fuel by ultimate analysis or formula, with its heating value.
 
     Parameters
@@ -244,6 +310,8 @@ def condensed_fuel(*, formula=None, basis="as-received", analysis=None,
     hhv, lhv : J/kg on ``basis``, at ``hv_T_ref``; or h_formation (J/kg of fuel as
         fired, J/mol for a formula) at hv_T_ref
     cp : J/(kg K) of the fuel as fired, for sensible enthalpy (else neglected)
+    uncertainty : part of the analysis -> expanded uncertainty U (k = 2) of its mass
+        fraction (a fraction, or a text with '%')
     """
     W = _weights(data)
     M_formula = None
@@ -312,13 +380,52 @@ def condensed_fuel(*, formula=None, basis="as-received", analysis=None,
         cp = _num(cp, f"{what}.cp", lo=0.0)
     fid = id or (str(formula) if formula else f"fuel ({kind})")
     analysis_out = bases if kind == "analysis" else {}
+    if kind == "analysis":
+        raw = {k: float(v) for k, v in analysis.items()}
+        tot = sum(raw.values())
+        fr = {k: v / tot for k, v in raw.items()}
+        unc = check_uncertainty(uncertainty, fr, what)
+        given_d = _given(raw, fr, basis, False, False, moisture=moisture, ash=ash)
+
+        def remake(x: dict) -> Fuel:
+            return condensed_fuel(basis=basis, analysis=x, moisture=moisture, ash=ash, hhv=hhv, lhv=lhv,
+                                  h_formation=h_formation, hv_T_ref=hv_T_ref, cp=cp, phase=phase, name=name,
+                                  id=fid, data=data, source=source, what=what)
+    else:
+        unc, remake = {}, None
+        given_d = {"formula": str(formula), "basis": "as-received"}
+    given_d["heating_value"] = {k: v for k, v in (("hhv_J_per_kg", hhv), ("lhv_J_per_kg", lhv),
+                                                  ("h_formation", h_formation)) if v is not None}
+    given_d["heating_value_reference_K"] = T_hv
     return Fuel(id=fid, name=name or fid, kind=kind, elements=el, moisture=mw, ash=ar["ash"],
                 M=M_formula, h_ref=h_ref, T_h_ref=T_hv, cp=cp, phase=phase, analysis=analysis_out,
-                notes=tuple(notes))
+                notes=tuple(notes), given=given_d, uncertainty=unc, remake=remake)
 
 
 FUEL_KEYS = ("name", "id", "composition", "basis", "water_percent", "normalise", "analysis", "formula",
-             "moisture", "ash", "hhv", "lhv", "h_formation", "hv_reference_temperature", "cp", "phase")
+             "moisture", "ash", "hhv", "lhv", "h_formation", "hv_reference_temperature", "cp", "phase",
+             "uncertainty")
+
+
+def _table_uncertainty(t: dict, part: str, where: str):
+    """The ``uncertainty`` table of a fuel table: {part = U}, U written as the parts are."""
+    if "uncertainty" not in t:
+        return None
+    unc = t["uncertainty"]
+    if not isinstance(unc, dict) or not unc:
+        raise TablegenError(f"{where}.uncertainty must be a table of parts and their expanded uncertainty "
+                            f"(k = 2), e.g. {{CH4 = \"0.5%\"}}")
+    raw = t.get(part) or {}
+    try:
+        total = sum(float(v) for v in raw.values())
+    except (TypeError, ValueError):
+        return unc
+    if abs(total - 100.0) <= 1.0:
+        for k, u in unc.items():
+            if not isinstance(u, str):
+                raise TablegenError(f"{where}.uncertainty.{k}: the {part} is in percent, so is its "
+                                    f"uncertainty; write \"{u}%\"")
+    return unc
 
 
 def fuel_from_table(t: dict, where: str = "fuel", *, data=(), source=None) -> Fuel:
@@ -337,7 +444,8 @@ def fuel_from_table(t: dict, where: str = "fuel", *, data=(), source=None) -> Fu
                                         f"from the species data; remove {k}")
             return gas_fuel(t["composition"], t.get("basis", "mole"), water_percent=t.get("water_percent", 0.0),
                             name=t.get("name"), id=t.get("id"), data=data, source=source, what=where,
-                            normalise=bool(t.get("normalise", False)))
+                            normalise=bool(t.get("normalise", False)),
+                            uncertainty=_table_uncertainty(t, "composition", where))
         if "water_percent" in t or "normalise" in t:
             raise TablegenError(f"{where}: water_percent and normalise belong to gas fuels (composition)")
         T_hv = temperature_K(str(t.get("hv_reference_temperature", "25C")),
@@ -355,10 +463,13 @@ def fuel_from_table(t: dict, where: str = "fuel", *, data=(), source=None) -> Fu
         phase = t.get("phase", "liquid")
         if phase not in ("liquid", "solid"):
             raise TablegenError(f"{where}.phase {phase!r} is not known; allowed: liquid, solid")
+        if "formula" in t and "uncertainty" in t:
+            raise TablegenError(f"{where}.uncertainty: a formula has no analysis uncertainty; give an analysis")
         return condensed_fuel(formula=t.get("formula"), analysis=t.get("analysis"),
                               basis=t.get("basis", "as-received"), moisture=t.get("moisture"),
                               ash=t.get("ash"), hv_T_ref=T_hv, phase=phase, name=t.get("name"),
-                              id=t.get("id"), data=data, source=source, what=where, **kw)
+                              id=t.get("id"), data=data, source=source, what=where,
+                              uncertainty=_table_uncertainty(t, "analysis", where), **kw)
     except SpecError:
         raise
     except TablegenError as e:
@@ -385,8 +496,9 @@ def fuel_from_text(text: str, *, data=(), source=None) -> Fuel:
     if "@" in t:
         raise TablegenError(f"fuel {t!r}: '@' is not allowed in a fuel text (it separates the parts of flue-gas names)")
     if is_composition(t):
-        c = parse_composition(t, "fuel")
-        f = gas_fuel(c.fractions, c.basis, id=t, data=data, source=source)
+        c = parse_composition(t, "fuel", uncertainty=True)
+        f = gas_fuel(c.fractions, c.basis, id=t, data=data, source=source, uncertainty=c.uncertainty,
+                     percent=c.percent, what=f"fuel {t!r}")
     else:
         f = gas_fuel({t: 1.0}, "mole", id=t, name=t, data=data, source=source)
     return replace(f, spec=t)
