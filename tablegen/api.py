@@ -57,7 +57,8 @@ def substance(name: str, *, source: str | None = None, data=()) -> Substance:
         raise NameLookupError("substance name is empty; give a species id, alias or mixture")
     name = name.strip()
     if name[:5].lower() == "flue@":
-        from . import burn  # noqa: F401  (registers the flue-gas name resolver on import)
+        from . import flue
+        flue.register()
     for resolve in RESOLVERS:
         s = resolve(name, data, source)
         if s is not None:

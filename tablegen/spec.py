@@ -401,10 +401,10 @@ def _substances(raw, where, source, data, comp_u=None) -> dict:
 
 def _combustion(raw, where, *, source=None, data=()):
     """Combustion products of a fuel (or a measured flue-gas analysis), by tablegen.burn."""
-    from . import burn
+    from . import flue
     if not isinstance(raw, dict):
         _fail(where, f"must be a table, not {_typename(raw)}")
-    return burn.substance_from_spec(raw, where, source=source, data=data)
+    return flue.substance_from_spec(raw, where, source=source, data=data)
 
 
 # ---------------------------------------------------------------- grids
