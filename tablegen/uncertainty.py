@@ -700,7 +700,8 @@ def _check_keys(sub, keys):
 
 def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: float = P_STD,
            composition_u: dict | None = None, composition_basis: str = "mole",
-           printed_step: dict | None = None, agreement=None, T_rows=None) -> Budget:
+           printed_step: dict | None = None, agreement=None, T_rows=None,
+           composition_inputs: dict | None = None) -> Budget:
     """The uncertainty budget of ``substance`` at temperatures ``T_K``.
 
     Parameters
@@ -717,6 +718,10 @@ def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: floa
     agreement : agreement rows to use instead of the shipped ones
     T_rows : printed rows, if the interpolation bound is wanted (default T_K
         when it has at least 2 points)
+    composition_inputs : input label -> {species id: signed change of its mole
+        fraction for one standard uncertainty of that input}, for a composition
+        computed from uncertain inputs (a flue gas: tablegen.burn_inputs); each input
+        is a component of its own, "composition: LABEL"
 
     Raises
     ------
@@ -788,6 +793,10 @@ def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: floa
         comp = composition_sensitivity(substance, T, keys, composition_u, composition_basis, P)
         for k in keys:
             u[k]["composition"] = comp[k]
+    for label, dy in (composition_inputs or {}).items():
+        part = input_sensitivity(substance, T, keys, dy, P)
+        for k in keys:
+            u[k][f"composition: {label}"] = part[k]
 
     # ---- ideal-gas model
     statements = []
@@ -866,6 +875,10 @@ def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: floa
     if composition_u:
         assumptions.append(f"composition: the given {composition_basis}-fraction uncertainties are "
                            "independent standard uncertainties; the other fractions renormalised")
+    if composition_inputs:
+        assumptions.append("composition from uncertain inputs (" + ", ".join(composition_inputs) + "): each "
+                           "input's effect on all mole fractions together, propagated through the combustion "
+                           "calculation (JCGM 100:2008, 5.1.2), independent between inputs")
     return Budget(substance.id, T, keys, P, values, u, est, inter, tuple(statements),
                   tuple(assumptions), tuple(sources))
 
@@ -906,6 +919,13 @@ def model_statements(substance, vir: VirialEstimate, T: np.ndarray, P: float, pr
                    f"{1 - vir.covered:.3g}): the virial estimate uses the other components")
     crit = critical_constants()
     for c in substance.components:
+        if c.id == "H2O" and getattr(substance, "dew_point_P_Pa", None) is not None:
+            # the one water dew point of the substance (IAPWS-IF97), the figure every document prints
+            from .saturation import dew_point_text
+            out.append(f"caution: water dew point {dew_point_text(substance.dew_point_K, substance.dew_point_P_Pa)}: "
+                       f"at and below it water may condense, and ideal-gas values and this budget do not hold "
+                       f"there (rows marked c)")
+            continue
         if c.id not in crit:
             continue
         Tc, Pc, _, om, _ = crit[c.id]
@@ -939,6 +959,32 @@ def _perturbed(fr: dict, sid: str, delta: float) -> dict:
     out[sid] = fr[sid] + delta
     tot = sum(out.values())
     return {k: v / tot for k, v in out.items()}
+
+
+def input_sensitivity(substance, T, keys, dy: dict, P: float = P_STD) -> dict:
+    """Standard uncertainty per key from one input that moves all mole fractions together.
+
+    ``dy`` = {species: signed change of its mole fraction for one standard
+    uncertainty of the input}; the properties at y + ε dy and y − ε dy give the
+    linear change (ε small enough to keep every fraction positive), so
+    u = |X(y + ε dy) − X(y − ε dy)| / (2 ε).
+    """
+    fr = {c.id: c.mole_fraction for c in substance.components}
+    bad = [k for k in dy if k not in fr]
+    if bad:
+        raise TablegenError(f"uncertainty: {bad[0]!r} is not a component of {substance.id}; "
+                            f"allowed: {', '.join(fr)}")
+    scale = max((abs(v) / fr[k] for k, v in dy.items() if v), default=0.0)
+    if scale == 0.0:
+        return {k: np.zeros_like(T) for k in keys}
+    eps = min(1.0, 0.5 / scale)
+
+    def at(sign):
+        y = {k: v + sign * eps * dy.get(k, 0.0) for k, v in fr.items()}
+        tot = sum(y.values())
+        return _rebuild(substance, {k: v / tot for k, v in y.items()}, "mole").properties(T, P)
+    hi, lo = at(1.0), at(-1.0)
+    return {k: np.abs(np.asarray(hi[k], float) - np.asarray(lo[k], float)) / (2 * eps) for k in keys}
 
 
 def composition_sensitivity(substance, T, keys, composition_u: dict, basis: str = "mole",

@@ -121,9 +121,9 @@ CAUTIONS = (
     "These tables follow the ideal-gas model: the properties depend on temperature only "
     "(entropy also on pressure through −R ln(P/P°)). Real-gas effects at high pressure or "
     "near saturation are not included.",
-    "Mixtures are of frozen composition: no dissociation, reaction or condensation. Below the "
-    "dew point of a flue gas, water and acids condense and the tabulated values do not apply; "
-    "condensing acid attacks steel.",
+    "Mixtures are of frozen composition: no dissociation, reaction or condensation. At and below "
+    "the water dew point of a gas holding water vapour (rows marked c) water may condense and the "
+    "tabulated values do not describe the gas.",
     "Values are valid only inside the temperature range of the coefficient data named in the "
     "sources section; values outside it are refused unless extrapolation was asked for, and "
     "are then marked.",
@@ -158,6 +158,12 @@ class SubstanceInfo:
     mixing_entropy_R: float
     components: tuple
     sources: tuple          # (species id, data set, citation)
+    dew_point_K: float | None = None     # water dew point at dew_point_P_Pa (None: none, or below 0 °C)
+    dew_point_P_Pa: float | None = None  # None: the gas holds no water vapour
+    description: tuple = ()              # sentences on what the gas was made from (humid air)
+    combustion: dict | None = None       # tablegen.book.sheet.to_json of the combustion that made it
+    figures: tuple = ()                  # (key, label, value, unit, U_k2): dew point, combustion figures
+    origin_key: int | None = None        # the same number for substances of one combustion
 
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -233,6 +239,8 @@ class BookModel:
     versions: dict
     normalised_spec: dict
     appendix: list = field(default_factory=list)   # Section, printed after the tables
+    sheets: tuple = ()      # tablegen.book.sheet.Sheet, one per combustion, in the substances section
+    caution_refs: dict = field(default_factory=dict)   # substance id -> ids of the cautions that concern it
 
 
 # ---------------------------------------------------------------- evaluation
@@ -332,10 +340,41 @@ def _csv_key(key: str, basis: str) -> str:
 
 
 def _substance_info(ref: str, s) -> SubstanceInfo:
+    from ..burn import CombustionResult
+    from ..oxidants import Oxidant
+    from . import sheet
     comps = tuple(ComponentInfo(c.id, c.mole_fraction, c.mass_fraction, c.M, c.source) for c in s.components)
+    origin = getattr(s, "origin", None)
+    description, combustion, figs = [], None, []
+    if s.dew_point_P_Pa is not None:
+        figs += [("dew_point_K", "water dew point", s.dew_point_K, "K", None),
+                 ("dew_point_P_Pa", "pressure of the water dew point", s.dew_point_P_Pa, "Pa", None)]
+    if isinstance(origin, Oxidant):
+        o = origin
+        description.append(f"Made as the oxidant text {o.spec} reads: {o.name}; humidity ratio "
+                           f"{o.humidity_ratio * 1000:.5g} g water per kg dry gas, water {o.y_H2O * 100:.5g} % "
+                           f"by volume" + (f", relative humidity {o.relative_humidity:.4g} % at "
+                                           f"{o.T_K - 273.15:g} °C" if o.relative_humidity is not None and
+                                           o.T_K is not None else "") +
+                           f"; water saturation pressure from IAPWS-IF97.")
+        figs += [("humidity_ratio", "humidity ratio", o.humidity_ratio, "kg/kg", None),
+                 ("water_mole_fraction", "water mole fraction", o.y_H2O, "1", None)]
+        if o.relative_humidity is not None:
+            figs.append(("relative_humidity", "relative humidity", o.relative_humidity, "%", None))
+    elif isinstance(origin, CombustionResult):
+        combustion = sheet.to_json(origin)
+        figs = [f for f in figs if f[0] not in ("dew_point_K", "dew_point_P_Pa")] + sheet.figures(origin)
+    if s.dew_point_P_Pa is not None:
+        description.append(f"Water dew point {sheet.dew_point_sentence(s.dew_point_K, s.dew_point_P_Pa)}"
+                           + ("" if isinstance(origin, CombustionResult) else
+                              " (its stated pressure, 101.325 kPa unless the gas states one)") +
+                           "; table rows at or below it are marked c.")
     return SubstanceInfo(ref=ref, id=s.id, name=s.name, kind=s.kind, M=s.M, R=s.R, T_min=s.T_min,
                          T_max=s.T_max, mixing_entropy_R=s.mixing_entropy_R, components=comps,
-                         sources=tuple(tuple(x) for x in s.sources))
+                         sources=tuple(tuple(x) for x in s.sources), dew_point_K=s.dew_point_K,
+                         dew_point_P_Pa=s.dew_point_P_Pa, description=tuple(description),
+                         combustion=combustion, figures=tuple(figs),
+                         origin_key=None if origin is None else id(origin))
 
 
 def _fmtK(T: float) -> str:
@@ -452,10 +491,12 @@ def _uncertainty(t, doc, sub, cols, notes):
         if c.decimals is not None:
             steps[k] = 10.0 ** (-c.decimals) * unit_factor(k, c.system, t.basis) / basis_scale(
                 k, sub, t.basis, doc.reference)
+    from ..burn_inputs import composition_inputs
     cu = getattr(t, "composition_u", None)
     b = unc.budget(sub, t.T_K[inside], keys, P_max_Pa=doc.max_pressure_Pa, printed_step=steps,
                    composition_u=None if cu is None else cu[1],
-                   composition_basis="mole" if cu is None else cu[0])
+                   composition_basis="mole" if cu is None else cu[0],
+                   composition_inputs=composition_inputs(sub))
     figures = []
     for k in keys:
         c = first[k]
@@ -494,6 +535,31 @@ def _uncertainty(t, doc, sub, cols, notes):
     return b.to_json(), U_cols
 
 
+#: The row mark of a condensing row, and what it means (printed on the how-to-read page).
+MARK_CONDENSING = "c"
+CONDENSING_TEXT = "water may condense at this temperature; ideal-gas values do not hold"
+
+
+def condensing(sub, T_K) -> np.ndarray:
+    """Rows at or below the substance's water dew point (its one figure, at its stated pressure)."""
+    T = np.asarray(T_K, float)
+    dew = getattr(sub, "dew_point_K", None)
+    if dew is None:
+        return np.zeros(T.shape, bool)
+    return T <= dew * (1 + 1e-12)
+
+
+def dew_point_note(sub, unit_symbol: str, n_rows: int) -> str:
+    """The table note of a gas holding water vapour: its dew point and the rows marked c."""
+    from .sheet import dew_point_sentence
+    dp = dew_point_sentence(sub.dew_point_K, sub.dew_point_P_Pa)
+    if sub.dew_point_K is not None and unit_symbol not in ("K", "°C"):
+        dp += f" = {_fmtT(sub.dew_point_K, unit_symbol).split(' = ')[0]}"
+    rows = (f"{n_rows} row{'s' if n_rows != 1 else ''} at or below it marked c: {CONDENSING_TEXT}"
+            if n_rows else "no row of this table is at or below it")
+    return f"c water dew point of this gas {dp}; {rows}."
+
+
 def build_table(t, doc) -> TableModel:
     """Evaluate and format one table spec."""
     from ..units import unit
@@ -519,6 +585,7 @@ def build_table(t, doc) -> TableModel:
                            decimals=c.decimals, significant=c.significant, values=v, cells=cells,
                            csv_key=_csv_key(c.key, t.basis)))
     ext = vals.get("extrapolated")
+    wet = condensing(sub, t.T_K)
     marks = []
     for i in range(t.T_K.size):
         m = ""
@@ -526,6 +593,8 @@ def build_table(t, doc) -> TableModel:
             m += "*"
         if ext is not None and ext[i]:
             m += "x"
+        if wet[i]:
+            m += "c"
         marks.append(m)
     notes = []
     if t.extra_rows:
@@ -535,6 +604,8 @@ def build_table(t, doc) -> TableModel:
     if ext is not None and np.any(ext):
         notes.append(f"x extrapolated beyond the data range {sub.T_min:g}-{sub.T_max:g} K: "
                      f"use with care.")
+    if sub.dew_point_P_Pa is not None:
+        notes.append(dew_point_note(sub, t.temperature_units[0], int(np.sum(wet))))
     basis_text = {"mass": "per unit mass", "molar": "per mole",
                   "volumetric": f"per m³ (SI) or ft³ (US) at {doc.reference.text}"}[t.basis]
     an = sub.anchor
@@ -548,9 +619,6 @@ def build_table(t, doc) -> TableModel:
                   f"Values {basis_text}; entropy at P° = {pressure_text(sub.P_ref_Pa)}",
                   f"Enthalpy datum {datum_text}; Pr/vr anchor: {anchor_text_of(sub.anchor, t_unit)}")
     unc, U_cols = _uncertainty(t, doc, sub, cols, notes)
-    if sub.cautions:
-        notes.append(f"{sub.name}: read the cautions for this gas in the Caution section "
-                     f"(combustion products: toxic, asphyxiant, acid dew point not computed).")
     charts = ()
     if t.charts:
         from .charts import build_chart
@@ -684,14 +752,72 @@ def build_book(spec, tables=None) -> BookModel:
         definitions.append((k, sym, name, formula, tuple(units)))
     ref_text = doc.reference.text if any(t.basis == "volumetric" for t in tables) else ""
     fp, listed = fingerprint(spec.normalised, data_files(spec))
-    cautions = list(CAUTIONS)
-    for t in spec.tables:
-        for text in t.substance.cautions:
-            line = f"{t.substance.name}: {text}"
-            if line not in cautions:
-                cautions.append(line)
+    cautions, refs = _numbered_cautions(spec, tables)
+    sheets = _sheets(spec, tables, refs, cautions)
     appendix = [_uncertainty_appendix(tables, doc)] if any(t.uncertainty for t in tables) else []
     return BookModel(appendix=appendix, name=spec.name, document=doc, tables=tables, substances=tuple(subs),
                      definitions=tuple(definitions), cautions=tuple(cautions), rounding_rule=ROUNDING_RULE,
                      reference_text=ref_text, data_files=listed, fingerprint=fp, versions=versions(),
-                     normalised_spec=spec.normalised)
+                     normalised_spec=spec.normalised, sheets=sheets, caution_refs=refs)
+
+
+def caution_title(text: str) -> str:
+    """A short name of a caution: its words before the first ':' (or its first six words)."""
+    body = text.split(". ", 1)[1] if text[:1] == "C" and ". " in text[:6] else text
+    head = body.split(":", 1)[0]
+    if len(head) > 70 or head == body:
+        head = " ".join(body.split()[:6]).rstrip(",;.") + " …"
+    return head
+
+
+def _numbered_cautions(spec, tables) -> tuple[list, dict]:
+    """Every caution once, numbered C1, C2, ...: the book's own, then those the substances carry,
+    each with the substances it concerns; and {substance id: ids of its cautions}. The tables
+    of each substance get a note that points to its cautions."""
+    texts = list(CAUTIONS)
+    who: dict = {}
+    refs: dict = {}
+    for ts, tm in zip(spec.tables, tables):
+        for text in ts.substance.cautions:
+            if text not in texts:
+                texts.append(text)
+            names = who.setdefault(text, [])
+            if tm.substance.name not in names:
+                names.append(tm.substance.name)
+            ids = refs.setdefault(tm.substance.id, [])
+            cid = f"C{texts.index(text) + 1}"
+            if cid not in ids:
+                ids.append(cid)
+    out = []
+    for i, text in enumerate(texts, 1):
+        names = who.get(text)
+        out.append(f"C{i}. {text}" + (f" (Applies to: {'; '.join(names)}.)" if names else ""))
+    for tm in tables:
+        ids = refs.get(tm.substance.id)
+        if ids:
+            tm.notes.insert(0, f"Cautions {_ref_list(ids)} (Caution section) concern this gas, besides "
+                               f"C1-C{len(CAUTIONS)} for every table.")
+    return out, refs
+
+
+def _ref_list(ids) -> str:
+    return ids[0] if len(ids) == 1 else ", ".join(ids[:-1]) + " and " + ids[-1]
+
+
+def _sheets(spec, tables, refs, cautions) -> tuple:
+    """One combustion sheet per combustion that defines a substance of the book."""
+    from ..burn import CombustionResult
+    from . import sheet
+    titles = {c.split(". ", 1)[0]: caution_title(c) for c in cautions}
+    order, names = [], {}
+    for ts, tm in zip(spec.tables, tables):
+        r = getattr(ts.substance, "origin", None)
+        if not isinstance(r, CombustionResult):
+            continue
+        key = id(r)
+        if key not in names:
+            order.append((key, r, tm.substance.id))
+            names[key] = []
+        if tm.substance.name not in names[key]:
+            names[key].append(tm.substance.name)
+    return tuple(sheet.build(r, tuple(names[key]), tuple(refs.get(sid, ())), titles) for key, r, sid in order)
