@@ -340,35 +340,10 @@ def _csv_key(key: str, basis: str) -> str:
 
 
 def _substance_info(ref: str, s) -> SubstanceInfo:
-    from ..burn import CombustionResult
-    from ..oxidants import Oxidant
-    from . import sheet
+    from .provenance import made_from
     comps = tuple(ComponentInfo(c.id, c.mole_fraction, c.mass_fraction, c.M, c.source) for c in s.components)
+    description, combustion, figs = made_from(s)
     origin = getattr(s, "origin", None)
-    description, combustion, figs = [], None, []
-    if s.dew_point_P_Pa is not None:
-        figs += [("dew_point_K", "water dew point", s.dew_point_K, "K", None),
-                 ("dew_point_P_Pa", "pressure of the water dew point", s.dew_point_P_Pa, "Pa", None)]
-    if isinstance(origin, Oxidant):
-        o = origin
-        description.append(f"Made as the oxidant text {o.spec} reads: {o.name}; humidity ratio "
-                           f"{o.humidity_ratio * 1000:.5g} g water per kg dry gas, water {o.y_H2O * 100:.5g} % "
-                           f"by volume" + (f", relative humidity {o.relative_humidity:.4g} % at "
-                                           f"{o.T_K - 273.15:g} °C" if o.relative_humidity is not None and
-                                           o.T_K is not None else "") +
-                           f"; water saturation pressure from IAPWS-IF97.")
-        figs += [("humidity_ratio", "humidity ratio", o.humidity_ratio, "kg/kg", None),
-                 ("water_mole_fraction", "water mole fraction", o.y_H2O, "1", None)]
-        if o.relative_humidity is not None:
-            figs.append(("relative_humidity", "relative humidity", o.relative_humidity, "%", None))
-    elif isinstance(origin, CombustionResult):
-        combustion = sheet.to_json(origin)
-        figs = [f for f in figs if f[0] not in ("dew_point_K", "dew_point_P_Pa")] + sheet.figures(origin)
-    if s.dew_point_P_Pa is not None:
-        description.append(f"Water dew point {sheet.dew_point_sentence(s.dew_point_K, s.dew_point_P_Pa)}"
-                           + ("" if isinstance(origin, CombustionResult) else
-                              " (its stated pressure, 101.325 kPa unless the gas states one)") +
-                           "; table rows at or below it are marked c.")
     return SubstanceInfo(ref=ref, id=s.id, name=s.name, kind=s.kind, M=s.M, R=s.R, T_min=s.T_min,
                          T_max=s.T_max, mixing_entropy_R=s.mixing_entropy_R, components=comps,
                          sources=tuple(tuple(x) for x in s.sources), dew_point_K=s.dew_point_K,
@@ -535,31 +510,6 @@ def _uncertainty(t, doc, sub, cols, notes):
     return b.to_json(), U_cols
 
 
-#: The row mark of a condensing row, and what it means (printed on the how-to-read page).
-MARK_CONDENSING = "c"
-CONDENSING_TEXT = "water may condense at this temperature; ideal-gas values do not hold"
-
-
-def condensing(sub, T_K) -> np.ndarray:
-    """Rows at or below the substance's water dew point (its one figure, at its stated pressure)."""
-    T = np.asarray(T_K, float)
-    dew = getattr(sub, "dew_point_K", None)
-    if dew is None:
-        return np.zeros(T.shape, bool)
-    return T <= dew * (1 + 1e-12)
-
-
-def dew_point_note(sub, unit_symbol: str, n_rows: int) -> str:
-    """The table note of a gas holding water vapour: its dew point and the rows marked c."""
-    from .sheet import dew_point_sentence
-    dp = dew_point_sentence(sub.dew_point_K, sub.dew_point_P_Pa)
-    if sub.dew_point_K is not None and unit_symbol not in ("K", "°C"):
-        dp += f" = {_fmtT(sub.dew_point_K, unit_symbol).split(' = ')[0]}"
-    rows = (f"{n_rows} row{'s' if n_rows != 1 else ''} at or below it marked c: {CONDENSING_TEXT}"
-            if n_rows else "no row of this table is at or below it")
-    return f"c water dew point of this gas {dp}; {rows}."
-
-
 def build_table(t, doc) -> TableModel:
     """Evaluate and format one table spec."""
     from ..units import unit
@@ -584,6 +534,7 @@ def build_table(t, doc) -> TableModel:
         cols.append(Column(key=c.key, system=c.system, unit=c.unit, symbol=DEFINITIONS[c.key][0],
                            decimals=c.decimals, significant=c.significant, values=v, cells=cells,
                            csv_key=_csv_key(c.key, t.basis)))
+    from .provenance import condensing, dew_point_note
     ext = vals.get("extrapolated")
     wet = condensing(sub, t.T_K)
     marks = []
@@ -719,6 +670,8 @@ def _uncertainty_appendix(tables, doc) -> Section:
         "the tables, not a design margin.",
     ]
     paras += paras_tables
+    from .provenance import input_contributions
+    paras += input_contributions(tables)
     paras += [f"Assumption: {a}" for a in assumptions]
     if sources:
         paras.append("Sources of the figures: " + "; ".join(sources) + ".")
@@ -752,72 +705,11 @@ def build_book(spec, tables=None) -> BookModel:
         definitions.append((k, sym, name, formula, tuple(units)))
     ref_text = doc.reference.text if any(t.basis == "volumetric" for t in tables) else ""
     fp, listed = fingerprint(spec.normalised, data_files(spec))
-    cautions, refs = _numbered_cautions(spec, tables)
-    sheets = _sheets(spec, tables, refs, cautions)
+    from .provenance import numbered_cautions, sheets_of
+    cautions, refs = numbered_cautions(spec, tables, CAUTIONS)
+    sheets = sheets_of(spec, tables, refs, cautions)
     appendix = [_uncertainty_appendix(tables, doc)] if any(t.uncertainty for t in tables) else []
     return BookModel(appendix=appendix, name=spec.name, document=doc, tables=tables, substances=tuple(subs),
                      definitions=tuple(definitions), cautions=tuple(cautions), rounding_rule=ROUNDING_RULE,
                      reference_text=ref_text, data_files=listed, fingerprint=fp, versions=versions(),
                      normalised_spec=spec.normalised, sheets=sheets, caution_refs=refs)
-
-
-def caution_title(text: str) -> str:
-    """A short name of a caution: its words before the first ':' (or its first six words)."""
-    body = text.split(". ", 1)[1] if text[:1] == "C" and ". " in text[:6] else text
-    head = body.split(":", 1)[0]
-    if len(head) > 70 or head == body:
-        head = " ".join(body.split()[:6]).rstrip(",;.") + " …"
-    return head
-
-
-def _numbered_cautions(spec, tables) -> tuple[list, dict]:
-    """Every caution once, numbered C1, C2, ...: the book's own, then those the substances carry,
-    each with the substances it concerns; and {substance id: ids of its cautions}. The tables
-    of each substance get a note that points to its cautions."""
-    texts = list(CAUTIONS)
-    who: dict = {}
-    refs: dict = {}
-    for ts, tm in zip(spec.tables, tables):
-        for text in ts.substance.cautions:
-            if text not in texts:
-                texts.append(text)
-            names = who.setdefault(text, [])
-            if tm.substance.name not in names:
-                names.append(tm.substance.name)
-            ids = refs.setdefault(tm.substance.id, [])
-            cid = f"C{texts.index(text) + 1}"
-            if cid not in ids:
-                ids.append(cid)
-    out = []
-    for i, text in enumerate(texts, 1):
-        names = who.get(text)
-        out.append(f"C{i}. {text}" + (f" (Applies to: {'; '.join(names)}.)" if names else ""))
-    for tm in tables:
-        ids = refs.get(tm.substance.id)
-        if ids:
-            tm.notes.insert(0, f"Cautions {_ref_list(ids)} (Caution section) concern this gas, besides "
-                               f"C1-C{len(CAUTIONS)} for every table.")
-    return out, refs
-
-
-def _ref_list(ids) -> str:
-    return ids[0] if len(ids) == 1 else ", ".join(ids[:-1]) + " and " + ids[-1]
-
-
-def _sheets(spec, tables, refs, cautions) -> tuple:
-    """One combustion sheet per combustion that defines a substance of the book."""
-    from ..burn import CombustionResult
-    from . import sheet
-    titles = {c.split(". ", 1)[0]: caution_title(c) for c in cautions}
-    order, names = [], {}
-    for ts, tm in zip(spec.tables, tables):
-        r = getattr(ts.substance, "origin", None)
-        if not isinstance(r, CombustionResult):
-            continue
-        key = id(r)
-        if key not in names:
-            order.append((key, r, tm.substance.id))
-            names[key] = []
-        if tm.substance.name not in names[key]:
-            names[key].append(tm.substance.name)
-    return tuple(sheet.build(r, tuple(names[key]), tuple(refs.get(sid, ())), titles) for key, r, sid in order)

@@ -49,7 +49,7 @@ STEP_TITLES = {
 }
 
 CAUTION_GAS = ("ideal-gas model: at high pressure or near condensation real-gas effects "
-               "(compressibility, Joule-Thomson change, condensing water or acid) are not included")
+               "(compressibility, Joule-Thomson change, condensing water) are not included")
 CAUTION_LIQUID = ("incompressible model: one density and c(T); no phase change, no boiling or "
                   "cavitation check")
 CAUTION_CODES = ("check machines, vessels and heaters against local codes and licensed "
@@ -265,12 +265,30 @@ def result_to_json(res, sub, step, params) -> dict:
         out["P_ref_Pa"] = sub.P_ref_Pa
         out["sources"] = [list(s) for s in sub.sources]
         out["cautions"] = [CAUTION_GAS, *getattr(sub, "cautions", ()), CAUTION_CODES]
+        out.update(dew_points(sub, out))
     else:
         out["h_datum"] = f"u = 0 and s = 0 at {sub.T_ref_K:g} K; h = u + P v"
         out["incompressible"] = {"c_J_per_kgK": list(sub.c_J_per_kgK), "rho_kg_per_m3": sub.rho_kg_per_m3,
                                  "T_range_K": [sub.T_min, None if math.isinf(sub.T_max) else sub.T_max]}
         out["sources"] = [[sub.id, sub.source, sub.source_note]]
         out["cautions"] = [CAUTION_LIQUID, CAUTION_CODES]
+    return out
+
+
+def dew_points(sub, d: dict) -> dict:
+    """The gas's water dew point, and each state at or below the dew point at its own pressure."""
+    from ..saturation import dew_point_at
+    T0, P0 = dew_point_at(sub)
+    if P0 is None:
+        return {}
+    out = {"dew_point_K": T0, "dew_point_P_Pa": P0, "condensing_states": []}
+    for name, kT, kP in (("1", "T1_K", "P1_Pa"), ("2", "T2_K", "P2_Pa"), ("2s", "T2s_K", "P2_Pa")):
+        T, P = d.get(kT), d.get(kP)
+        if T is None or P is None:
+            continue
+        Td, _ = dew_point_at(sub, P)
+        if Td is not None and T <= Td:
+            out["condensing_states"].append({"state": name, "T_K": T, "P_Pa": P, "dew_point_K": Td})
     return out
 
 
@@ -360,6 +378,13 @@ def format_text(d: dict, sub) -> str:
     lines += _grid(rows, "lllrrr")
     for n in d["notes"]:
         lines.append(f"note: {n}")
+    if d.get("dew_point_P_Pa") is not None:
+        from ..saturation import dew_point_text
+        lines.append(f"water dew point of this gas {dew_point_text(d['dew_point_K'], d['dew_point_P_Pa'])}")
+        for c in d["condensing_states"]:
+            lines.append(f"caution: state {c['state']} ({c['T_K']:.2f} K, {c['P_Pa'] / 1000:g} kPa) is at or below the "
+                         f"water dew point at its pressure, {c['dew_point_K']:.2f} K: water condenses there and the "
+                         f"ideal-gas figures do not hold")
     lines.append("")
     for c in d["cautions"]:
         lines.append(f"caution: {c}")

@@ -51,6 +51,8 @@ def compute(args) -> tuple[list[dict], object]:
     T = np.array(temperature_list(args.T, "--T"))
     P = pressure_Pa(args.P, "--P") if args.P is not None else None
     p = sub.properties(T, P, extrapolate=args.extrapolate)
+    from ..saturation import dew_point_at
+    dew = dew_point_at(sub, P)        # the gas's own figure, or at --P when that differs
     rows = []
     for i in range(T.size):
         row = {"substance": sub.id, "T_K": float(T[i]), "M": sub.M, "R": sub.R * 1e-3,
@@ -63,6 +65,9 @@ def compute(args) -> tuple[list[dict], object]:
             row["P_Pa"] = P
         if "extrapolated" in p:
             row["extrapolated"] = bool(p["extrapolated"][i])
+        if dew[1] is not None:
+            row["dew_point_K"], row["dew_point_P_Pa"] = dew
+            row["condensing"] = bool(dew[0] is not None and T[i] <= dew[0])
         if sub.cautions:
             row["cautions"] = list(sub.cautions)
         rows.append(row)
@@ -82,7 +87,8 @@ def run(args) -> int:
     for r in rows:
         cells = []
         for key, _, _, fmt in cols:
-            cells.append(fmt.format(r[key]) + ("*" if r.get("extrapolated") and key == "T_K" else ""))
+            cells.append(fmt.format(r[key]) + ("*" if r.get("extrapolated") and key == "T_K" else "")
+                         + ("c" if r.get("condensing") and key == "T_K" else ""))
         table.append(cells)
     widths = [max(len(row[j]) for row in table) for j in range(len(cols))]
     out = [f"{sub.name} ({sub.id}), M = {sub.M:.4f} kg/kmol, R = {sub.R * 1e-3:.6f} kJ/(kg K)",
@@ -93,6 +99,11 @@ def run(args) -> int:
         out.append("  ".join(c.rjust(w) for c, w in zip(row, widths)))
     if any(r.get("extrapolated") for r in rows):
         out.append("* extrapolated beyond the data range: not for design use")
+    if rows and rows[0].get("dew_point_P_Pa") is not None:
+        from ..saturation import dew_point_text
+        out.append(f"water dew point {dew_point_text(rows[0]['dew_point_K'], rows[0]['dew_point_P_Pa'])}"
+                   + ("; c at or below it: water may condense at this temperature; ideal-gas values do not hold"
+                      if any(r.get("condensing") for r in rows) else ""))
     out.extend(f"caution: {c}" for c in sub.cautions)
     sys.stdout.write("\n".join(out) + "\n")
     if sub.kind == "mixture":
