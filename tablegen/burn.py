@@ -130,8 +130,8 @@ def measured_o2(text, what: str = "flue-gas O2") -> tuple[float, float | None]:
         return _num(t[:-1].strip() if t.endswith("%") else t, f"{what} (%)"), None
     v, _, u = (x.strip() for x in t.partition(sep))
     if not v.endswith("%") or not u.endswith("%"):
-        raise TablegenError(f"{what} {t!r}: a measured O2 with its uncertainty is written with '%' on both, "
-                            f"e.g. 3.5%±0.2%")
+        raise TablegenError(f"{what} {t!r}: a measured O2 with its uncertainty is written with '%' on both; "
+                            f"allowed: e.g. 3.5%±0.2% (the expanded uncertainty, k = 2)")
     return _num(v[:-1].strip(), f"{what} (%)"), _num(u[:-1].strip(), f"uncertainty of {what} (%)")
 
 

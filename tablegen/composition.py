@@ -175,7 +175,8 @@ def _split_uncertainty(pairs, t: str, what: str, allowed: bool):
             continue
         if not allowed:
             raise TablegenError(f"{what} {t!r}: '±' (an uncertainty) is read only in fuel analyses "
-                                f"(combust --fuel, a spec's fuel); remove ±{v.split(sep, 1)[1].strip()} from {k}")
+                                f"(combust --fuel, a spec's fuel, flue@ names); remove ±{v.split(sep, 1)[1].strip()} "
+                                f"from {k} (a mixture in a spec states it as fraction_uncertainty)")
         a, _, u = (x.strip() for x in v.partition(sep))
         if not a or not u or any(m in u for m in PLUS_MINUS):
             raise TablegenError(f"{what} {t!r}: {k}={v} is not NAME=amount±uncertainty; write e.g. "

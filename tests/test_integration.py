@@ -37,7 +37,8 @@ def test_combustion_cautions_reach_the_book(demo):
 
 def test_demo_flue_gas_is_the_combustion_result():
     # the book's flue gas is the products substance of the fuel at 15 % excess air
-    r = tablegen.combustion("CH4=0.86,C2H6=0.025,C3H8=0.005,CO2=0.075,N2=0.035", excess_air=15)
+    r = tablegen.combustion("CH4=86%±0.4%,C2H6=2.5%±0.1%,C3H8=0.5%±0.05%,CO2=7.5%±0.3%,N2=3.5%±0.2%",
+                            "air,rh=70%,T=15C", excess_air=15)
     assert r.summary["lambda"] == pytest.approx(1.15)
     assert r.products.cautions and "asphyxiant" in " ".join(r.products.cautions)
 

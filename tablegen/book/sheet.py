@@ -323,8 +323,8 @@ def _uncertainty_blocks(prop, s) -> list:
                             ("dew_point_K", "water dew point, K", "{:.2f}"),
                             ("t_adiabatic_K", "flame temperature, K", "{:.1f}")):
         fig = prop.figures.get(key)
-        if fig is None or s.get(key) is None:
-            continue
+        if fig is None or s.get(key) is None or fig["U"] == 0.0:
+            continue           # e.g. λ and excess air when the excess air is given: exact
         big = max(fig["parts"].items(), key=lambda kv: abs(kv[1]))[0] if fig["U"] > 0 else "—"
         rows.append((label, fmt.format(s[key]), fmt.format(fig["U"]), big))
     out.append(("grid", ("Figure", "Value", "U (k = 2)", "Largest contribution"), tuple(rows),

@@ -258,8 +258,8 @@ def uncertainty_lines(r) -> list[str]:
     rows = []
     for key, label, unit, f, fmt in U_FIGURES:
         U = u.U(key)
-        if U is None or s.get(key) is None:
-            continue
+        if U is None or s.get(key) is None or U == 0.0:
+            continue           # e.g. λ when the excess air is given: exact
         big = max(u.figures[key]["parts"].items(), key=lambda kv: abs(kv[1]))[0] if U > 0 else "-"
         rows.append((f"{label}{' [' + unit + ']' if unit else ''}", fmt.format(s[key] * f), fmt.format(U * f), big))
     for k, y in s["products_wet"].items():
