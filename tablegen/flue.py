@@ -18,7 +18,7 @@ from .composition import colon_form_fix, write as write_composition
 from .errors import NameLookupError, SpecError, TablegenError
 from .fuels import fuel_from_table, fuel_from_text
 from .oxidants import oxidant_colon_fix, oxidant_from_table
-from .reactants import P_NORMAL, _fractions, _num, _record
+from .reactants import P_NORMAL, _fractions, _num, _record, read_quantities
 
 #: Prefix of the flue-gas name syntax: flue@FUEL@AMOUNT[@OXIDANT][@dry]
 PREFIX = "flue@"
@@ -93,14 +93,10 @@ REFERENCE_CHOICES = {"25C": 298.15, "20C": 293.15, "15.55C": 288.705555555556, "
 def _conditions(table: dict, where: str) -> dict:
     """The conditions keys of a combustion spec table -> combustion() keywords (each with its unit)."""
     from .units import pressure_Pa, temperature_K
-    out = {}
     try:
-        if "flue_pressure" in table:
-            out["P_flue_Pa"] = pressure_Pa(str(table["flue_pressure"]), f"{where}.flue_pressure")
-        if "fuel_temperature" in table:
-            out["T_fuel_K"] = temperature_K(str(table["fuel_temperature"]), f"{where}.fuel_temperature")
-        if "oxidant_temperature" in table:
-            out["T_oxidant_K"] = temperature_K(str(table["oxidant_temperature"]), f"{where}.oxidant_temperature")
+        out = read_quantities(table, where, {"flue_pressure": ("P_flue_Pa", "pressure"),
+                                             "fuel_temperature": ("T_fuel_K", "temperature"),
+                                             "oxidant_temperature": ("T_oxidant_K", "temperature")})
         if "reference_temperature" in table:
             ref = str(table["reference_temperature"]).replace(" ", "").replace("°", "")
             if ref not in REFERENCE_CHOICES:

@@ -16,7 +16,7 @@ from dataclasses import dataclass, replace
 
 from .composition import looks_like as is_composition, parse as parse_composition, write as write_composition
 from .errors import SpecError, TablegenError
-from .reactants import OXIDANT_SPECIES, P_NORMAL, _M_H2O, _fractions, _g, _h_molar, _num, _record
+from .reactants import OXIDANT_SPECIES, P_NORMAL, _M_H2O, _fractions, _g, _h_molar, _num, _record, read_quantities
 
 @dataclass(frozen=True, slots=True, eq=False)
 class Oxidant:
@@ -407,7 +407,6 @@ def oxidant_from_table(t, where="oxidant", *, data=(), source=None) -> Oxidant:
     for k in t:
         if k not in OXIDANT_KEYS:
             raise SpecError(f"{where}.{k} is not known; allowed: {', '.join(OXIDANT_KEYS)}")
-    from .units import pressure_Pa, temperature_K
     try:
         kw = {k: t[k] for k in ("base", "composition", "o2_percent", "relative_humidity", "humidity_ratio",
                                  "name") if k in t}
@@ -423,12 +422,9 @@ def oxidant_from_table(t, where="oxidant", *, data=(), source=None) -> Oxidant:
                 raise TablegenError(f"{where}.humidity_ratio {w!r} is a humidity ratio with its unit; write "
                                     f"e.g. \"8g/kg\" or \"0.008kg/kg\"")
             kw["humidity_ratio"] = float(m.group(1)) * (1e-3 if m.group(2) == "g/kg" else 1.0)
-        if "dew_point" in t:
-            kw["dew_point_K"] = temperature_K(str(t["dew_point"]), f"{where}.dew_point")
-        if "temperature" in t:
-            kw["temperature_K"] = temperature_K(str(t["temperature"]), f"{where}.temperature")
-        if "pressure" in t:
-            kw["pressure_Pa"] = pressure_Pa(str(t["pressure"]), f"{where}.pressure")
+        kw.update(read_quantities(t, where, {"dew_point": ("dew_point_K", "temperature"),
+                                             "temperature": ("temperature_K", "temperature"),
+                                             "pressure": ("pressure_Pa", "pressure")}))
         return make_oxidant(data=data, source=source, what=where, keyed=True, **kw)
     except TablegenError as e:
         raise SpecError(str(e) if str(e).startswith(where) else f"{where}: {e}") from None

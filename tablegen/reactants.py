@@ -125,3 +125,14 @@ def _g(v) -> str:
     """Shortest text that reads back as the same float ('15', '1.15', '0.1')."""
     r = repr(float(v))
     return r[:-2] if r.endswith(".0") else r
+
+
+def read_quantities(table: dict, where: str, keys: dict) -> dict:
+    """Spec keys holding a temperature or a pressure with its unit -> keywords in SI.
+
+    ``keys`` maps a spec key to (keyword, "temperature" or "pressure"); messages name
+    ``where.key``.
+    """
+    from .units import pressure_Pa, temperature_K
+    read = {"temperature": temperature_K, "pressure": pressure_Pa}
+    return {kw: read[dim](str(table[key]), f"{where}.{key}") for key, (kw, dim) in keys.items() if key in table}

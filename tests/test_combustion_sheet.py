@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import json
 import re
+from pathlib import Path
 
 import pytest
 from pypdf import PdfReader
@@ -119,6 +120,11 @@ def test_the_book_states_the_fuel_the_air_the_amount_and_the_results(b3):
     # and the spec the fingerprint covers holds them too
     spec_sub = meta["spec"]["substances"]["flue"]["combustion"]
     assert spec_sub["fuel"]["as_given"]["values"]["C2H6"] == 0.06 and spec_sub["oxidant"]["humidity_ratio"] > 0
+    # the sidecar of a book with a humid air and an uncertain combustion passes its documented schema,
+    # checked by the jsonschema package (Draft 2020-12, an independent validator)
+    import jsonschema
+    schema = json.loads((Path(__file__).parents[1] / "docs" / "book-json-schema.json").read_text(encoding="utf-8"))
+    jsonschema.Draft202012Validator(schema).validate(meta)
     # the CSVW metadata of each table of the gas: the same figures
     for name in ("flue-si", "flue-us"):
         csvw = json.loads((out / f"{name}.csv-metadata.json").read_text(encoding="utf-8"))

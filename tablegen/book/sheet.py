@@ -270,15 +270,23 @@ def build(result, names: tuple, caution_refs: tuple, caution_titles: dict) -> Sh
                 (0.4, 0.16, 0.22, 0.22), (2, 3)),
                ("heading", "Flue gas per unit of fuel"),
                ("grid", ("Quantity", "Unit", "Wet", "Dry"), _flue_rows(s), (0.4, 0.16, 0.22, 0.22), (2, 3))]
-    head = ("Species", "Wet, mole %", "Wet, mass %", "Dry, mole %", "Dry, mass %")
     rows = []
     for k, y in s["products_wet"].items():
         d, dm = s["products_dry"].get(k), s["products_dry_mass"].get(k)
-        Uw = None if prop is None else prop.products["wet"].get(k)
-        rows.append((k, _pm(y, Uw, "{:.4f}", 100.0), _pct(s["products_wet_mass"][k]),
-                     "—" if d is None else _pct(d), "—" if dm is None else _pct(dm)))
+        row = [k, _pct(y)]
+        if prop is not None:
+            row.append(_pct(prop.products["wet"].get(k, 0.0)))
+        row += [_pct(s["products_wet_mass"][k]), "—" if d is None else _pct(d)]
+        if prop is not None:
+            row.append("—" if d is None else _pct(prop.products["dry"].get(k, 0.0)))
+        rows.append(tuple(row + ["—" if dm is None else _pct(dm)]))
+    if prop is None:
+        head, fr = ("Species", "Wet, mole %", "Wet, mass %", "Dry, mole %", "Dry, mass %"), (0.2,) * 5
+    else:
+        head = ("Species", "Wet, mole %", "U (k = 2)", "Wet, mass %", "Dry, mole %", "U (k = 2)", "Dry, mass %")
+        fr = (0.16, 0.15, 0.12, 0.15, 0.15, 0.12, 0.15)
     blocks += [("heading", "Flue-gas composition"),
-               ("grid", head, tuple(rows), (0.2, 0.2, 0.2, 0.2, 0.2), (1, 2, 3, 4))]
+               ("grid", head, tuple(rows), fr, tuple(range(1, len(head))))]
     blocks += [("heading", "Water dew point"),
                ("para", f"{dew_point_sentence(s['dew_point_K'], s['flue_pressure_Pa'])}, the flue pressure "
                         f"stated (water partial pressure {s['water_partial_pressure_Pa'] / 1000:.4f} kPa; "

@@ -19,6 +19,7 @@ EXAMPLE = """example:
   tablegen process "CO2=0.12,H2O=0.1,N2=0.74,O2=0.04" --from T=1400K,P=12bar --expand-to 1.05bar --eta 0.9
   tablegen process N2 --from T=300K,P=2bar --heat-to 800K --boundary-T 1100K --json
   tablegen process air --from T=400K,P=5bar --cool-by 80kJ/kg
+  tablegen process "air,rh=80%,T=25C" --from T=400K,P=8bar --heat-to 30C
   tablegen process --incompressible water --from T=20C,P=1bar --compress-to 12bar --eta 0.7
   tablegen process --incompressible c=0.9,rho=2700 --from T=20C,P=1bar --heat-to 120C
 
@@ -59,8 +60,8 @@ CAUTION_CODES = ("check machines, vessels and heaters against local codes and li
 def add_arguments(p):
     p.epilog = EXAMPLE
     p.add_argument("substance", nargs="?", default=None,
-                   help="gas: species id or alias, shipped mixture (air), or a composition NAME=x,NAME=y "
-                        "(mole fractions; NAME=x%%,... or basis=mass,...) "
+                   help="gas: species id or alias, shipped mixture (air), a composition NAME=x,NAME=y "
+                        "(mole fractions; NAME=x%%,... or basis=mass,...), a humid air air,rh=60%%,T=15C "
                         "(leave out with --incompressible)")
     p.add_argument("--incompressible", default=None, metavar="NAME|c=..,rho=..",
                    help="a liquid or solid instead of a gas: a shipped entry (water-liquid, ice-Ih), "

@@ -10,7 +10,11 @@ EXAMPLE = """example:
   tablegen state air --T 25C,500C,1000K
   tablegen state CO2 --T 300K,1500K --P 10bar --json
   tablegen state "CH4=0.9,C2H6=0.06,N2=0.04" --T 60F --h-datum sensible:0C
-  tablegen state "CH4=90%,C2H6=6%,N2=4%" --T 15C,800C --json"""
+  tablegen state "CH4=90%,C2H6=6%,N2=4%" --T 15C,800C --json
+  tablegen state "air,rh=60%,T=15C" --T 0C,15C,200C
+
+Humid air is written as combust --oxidant reads it (air,rh=60%,T=15C, air,w=8g/kg,
+air,dew=5C,P=1atm); rows at or below the water dew point of a gas are marked c."""
 
 #: JSON key -> (factor from SI, unit) for the mass-basis keys of the state output.
 JSON_UNITS = {
@@ -33,8 +37,9 @@ TEXT_COLUMNS = [("T_K", "T", "K", "{:.2f}"), ("cp", "cp", "kJ/(kg K)", "{:.5f}")
 
 def add_arguments(p):
     p.epilog = EXAMPLE
-    p.add_argument("substance", help="species id or alias, shipped mixture (air), or a composition "
-                                      "NAME=x,NAME=y (mole fractions; NAME=x%%,... or basis=mass,...)")
+    p.add_argument("substance", help="species id or alias, shipped mixture (air), a composition "
+                                      "NAME=x,NAME=y (mole fractions; NAME=x%%,... or basis=mass,...), a humid air "
+                                      "air,rh=60%%,T=15C, or a flue gas flue@FUEL@AMOUNT")
     p.add_argument("--T", required=True, metavar="LIST",
                    help="temperatures with units, comma-separated: K, C, F or R (e.g. 25C,1000K)")
     p.add_argument("--P", default=None, metavar="VALUE",
