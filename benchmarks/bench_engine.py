@@ -49,10 +49,8 @@ def main():
         species = [s for s in ct.Species.list_from_file("nasa_gas.yaml") if s.name in FLUE]
         gas = ct.Solution(thermo="ideal-gas", species=species)
         arr = ct.SolutionArray(gas, N)
-        X = ",".join(f"{k}={v}" for k, v in FLUE.items())
-
         def ref():
-            arr.TPX = T, ct.one_atm, X
+            arr.TPX = T, ct.one_atm, FLUE      # cantera takes a mapping of mole fractions
             return arr.cp_mass, arr.enthalpy_mass, arr.entropy_mass
         t_ct = best(ref, repeat=3)
         print(f"cantera SolutionArray, same states:    {t_ct / N * 1e9:6.1f} ns/state "

@@ -30,7 +30,6 @@ from __future__ import annotations
 
 import csv
 import hashlib
-import io
 import math
 import re
 from dataclasses import dataclass, field
@@ -38,97 +37,15 @@ from pathlib import Path
 
 import numpy as np
 
+# The key tables, tolerances and outputs live in companion modules; their public
+# names are re-exported here so that ``tablegen.compare`` stays the one entry point.
+from .compare_keys import (ALIGNABLE, CHANGE_FLOOR_MOLAR, CHANGE_KEYS, CHANGE_REL, DEFAULT_REL,  # noqa: F401
+                           KEY_DIMENSIONS, KEY_LABELS, MEAN_KEYS, T_CHANGE_FROM, VOL_KEYS,
+                           VOLUME_REFERENCES)
+from .compare_tolerance import Tolerance, default_tolerance, parse_align, parse_tolerance, wide_reason  # noqa: F401
 from .errors import RangeError, TablegenError, UnitError
 from .thermo.substance import R_MOLAR
-from .units import PSI, Unit, unit
-
-#: Property key -> unit dimension, for every key a REFERENCE column may carry.
-#: Pressure-dependent keys (s, v, rho) are left out: a reference table of
-#: ideal-gas functions of T carries none of them.
-KEY_DIMENSIONS = {
-    "cp": "specific_entropy", "cv": "specific_entropy", "k": "dimensionless",
-    "h": "specific_energy", "u": "specific_energy", "s0": "specific_entropy",
-    "g0": "specific_energy", "Pr": "dimensionless", "vr": "dimensionless", "a": "speed",
-    "cp_molar": "molar_entropy", "cv_molar": "molar_entropy", "h_molar": "molar_energy",
-    "u_molar": "molar_energy", "s0_molar": "molar_entropy", "g0_molar": "molar_energy",
-    "dh298_molar": "molar_energy",
-    # mean heat capacities from T_m (the book's columns): [h(T) - h(T_m)]/(T - T_m) and
-    # [s°(T) - s°(T_m)]/ln(T/T_m)
-    "cp_mean_h": "specific_entropy", "cp_mean_s": "specific_entropy",
-    "cp_mean_h_molar": "molar_entropy", "cp_mean_s_molar": "molar_entropy",
-}
-# volumetric basis (the book's _vol columns): per m³ at the reference conditions,
-# n = P/(R T) moles in each m³ (ideal gas)
-KEY_DIMENSIONS.update({
-    "cp_vol": "volumetric_entropy", "cv_vol": "volumetric_entropy", "s0_vol": "volumetric_entropy",
-    "cp_mean_h_vol": "volumetric_entropy", "cp_mean_s_vol": "volumetric_entropy",
-    "h_vol": "volumetric_energy", "u_vol": "volumetric_energy", "g0_vol": "volumetric_energy",
-})
-MEAN_KEYS = ("cp_mean_h", "cp_mean_s", "cp_mean_h_molar", "cp_mean_s_molar", "cp_mean_h_vol", "cp_mean_s_vol")
-VOL_KEYS = tuple(k for k in KEY_DIMENSIONS if k.endswith("_vol"))
-
-def _unit(text: str, dimension: str) -> Unit:
-    """tablegen.units lookup (which knows the per-m³ and per-ft³ units of the volumetric basis)."""
-    return unit(text, dimension)
-
-
-#: Reference conditions of the volumetric basis when no spec gives them:
-#: name -> (T_K, P_Pa, text); the same as the table book's.
-VOLUME_REFERENCES = {
-    "normal": (273.15, 101325.0, "normal conditions, 0 °C and 101.325 kPa (DIN 1343)"),
-    "standard-15C": (288.15, 101325.0, "standard conditions, 15 °C and 101.325 kPa (ISO 13443)"),
-    "standard-60F": ((60 + 459.67) * 5 / 9, 14.696 * PSI, "standard conditions, 60 °F and 14.696 psia"),
-}
-
-#: How each key is printed in reports.
-KEY_LABELS = {
-    "cp": "cp", "cv": "cv", "k": "k", "h": "h", "u": "u", "s0": "s°", "g0": "g°",
-    "Pr": "Pr", "vr": "vr", "a": "a", "cp_molar": "molar cp", "cv_molar": "molar cv",
-    "h_molar": "molar h", "u_molar": "molar u", "s0_molar": "molar s°",
-    "g0_molar": "molar g°", "dh298_molar": "H − H(298.15 K)",
-    "cp_mean_h": "mean cp for h", "cp_mean_s": "mean cp for s°",
-    "cp_mean_h_molar": "molar mean cp for h", "cp_mean_s_molar": "molar mean cp for s°",
-    "cp_vol": "cp per m³", "cv_vol": "cv per m³", "s0_vol": "s° per m³", "h_vol": "h per m³",
-    "u_vol": "u per m³", "g0_vol": "g° per m³", "cp_mean_h_vol": "mean cp for h per m³",
-    "cp_mean_s_vol": "mean cp for s° per m³",
-}
-
-#: Columns that may be aligned, and how. Offsets: the enthalpy datum and the
-#: entropy reference pressure shift h, u and s° by constants; dh298_molar is an
-#: enthalpy difference whose zero a handbook may place elsewhere. Scales: the
-#: Pr/vr anchor multiplies Pr and vr by constants. g° is left out: a change of
-#: datum shifts it by a + bT, not by a constant.
-ALIGNABLE = {
-    "h": "offset", "u": "offset", "s0": "offset", "h_molar": "offset", "u_molar": "offset",
-    "s0_molar": "offset", "dh298_molar": "offset", "Pr": "scale", "vr": "scale",
-    "h_vol": "offset", "u_vol": "offset", "s0_vol": "offset",
-}
-
-#: Default tolerances, documented in docs/compare.md. The 0.5 % on cp is the
-#: order of the spread between independent ideal-gas evaluations of the same gas
-#: (NIST-JANAF against the Gurvich/TPIS tables behind NASA TM-4513) up to
-#: 3000 K, from memory. k and a: a cp error moves k by about R/cv times as much
-#: (0.4 for a diatomic gas), a by half of that, so 0.25 %. Pr and vr: ln Pr
-#: moves by Δs°/R, about four times the relative s° change over a 2000 K span,
-#: so 2 %. Mean cp: an average of cp, so 0.5 %.
-DEFAULT_REL = {key: 0.005 for key in KEY_DIMENSIONS}
-DEFAULT_REL.update({"k": 0.0025, "a": 0.0025, "Pr": 0.02, "vr": 0.02})
-
-#: Energies and entropies are judged on their change from 298.15 K instead of
-#: their value (a value of s° is mostly its third-law base, a value of h on the
-#: formation datum mostly the enthalpy of formation; 0.5 % of either would hide
-#: a wrong P° or datum): if |Δcp| <= 0.5 % cp everywhere, h - h(298.15 K) and
-#: s° - s°(298.15 K), integrals of cp, agree within 0.5 % of themselves. The
-#: floors allow for differences at 298.15 K itself: 0.02 J/(mol K) and 10 J/mol
-#: per mole (NIST-JANAF and NASA TM-4513 differ by up to 0.009 J/(mol K) in
-#: S°(298.15 K) for N2, O2, H2, Ar, CO, CO2; a wrong P° of 1 atm for 1 bar is
-#: R ln 1.01325 = 0.109 J/(mol K) and stays visible). Converted per kg with M.
-CHANGE_KEYS = {"h": "energy", "u": "energy", "h_molar": "energy", "u_molar": "energy",
-               "dh298_molar": "energy", "s0": "entropy", "s0_molar": "entropy",
-               "h_vol": "energy", "u_vol": "energy", "s0_vol": "entropy"}
-CHANGE_REL = 0.005
-CHANGE_FLOOR_MOLAR = {"energy": 10.0, "entropy": 0.02}     # J/mol, J/(mol K)
-T_CHANGE_FROM = 298.15
+from .units import Unit, unit as _unit
 
 COMMENT = "#"
 
@@ -186,6 +103,8 @@ class Reference:
 
 #: Header of the row-mark column of tablegen's own CSV files (read, never compared).
 MARK_KEY = "mark"
+#: Prefix of the uncertainty columns of tablegen's own CSV files (U_cp ...; read, never compared).
+UNCERTAINTY_PREFIX = "U_"
 
 _HEADER_CELL = re.compile(r"^\s*([A-Za-z][A-Za-z0-9_]*)\s*\[([^\[\]]*)\]\s*$")
 _HEADER_WS = re.compile(r"([A-Za-z][A-Za-z0-9_]*)\s*\[([^\[\]]*)\]")
@@ -274,6 +193,10 @@ def read_reference(path) -> Reference:
             raise TablegenError(f"{name}:{header_line}: header cell {cell.strip()!r} is not in the form "
                                 f"key [unit], e.g. cp [kJ/(kg K)]")
         key, usym = m.group(1), m.group(2).strip()
+        if key.startswith(UNCERTAINTY_PREFIX) and key[len(UNCERTAINTY_PREFIX):] in KEY_DIMENSIONS:
+            keys.append(MARK_KEY)          # a tablegen CSV's U_<key> column: read, never compared
+            units.append(None)
+            continue
         if key != "T" and key not in KEY_DIMENSIONS:
             if not re.fullmatch(r"[A-Za-z][A-Za-z0-9]*(_mean_[hs])?_vol", key) or key.split("_")[0] not in KEY_DIMENSIONS:
                 raise TablegenError(f"{name}:{header_line}: unknown column key {key!r}; allowed: {_allowed_keys()}")
@@ -348,121 +271,6 @@ def _split_ws_header(s: str, name: str, line: int) -> list[str]:
     return cells
 
 
-# ------------------------------------------------------------ tolerances
-@dataclass(frozen=True, slots=True)
-class Tolerance:
-    """|Δ| <= rel·|reference| + rel_change·|X(T) - X(298.15 K)| + abs_si + q/2.
-
-    q is one unit in the last printed place of the reference cell; X(298.15 K)
-    is tablegen's value (after alignment) at 298.15 K.
-    """
-
-    rel: float = 0.0
-    abs_si: float = 0.0
-    text: str = ""
-    origin: str = "default"       # "default" or "--tolerance"
-    rel_change: float = 0.0
-
-    def bound_si(self, ref_si, quantum_si, change_si=0.0):
-        return (self.rel * np.abs(ref_si) + self.rel_change * np.abs(change_si) + self.abs_si
-                + 0.5 * quantum_si)
-
-
-def default_tolerance(key: str, M_g_per_mol: float = 1.0, unit_=None, n_per_m3: float = 1.0) -> Tolerance:
-    """The documented default of a column (M converts the per-mole floors to per kg,
-    n_per_m3 (mol/m³ at the reference conditions) to per m³)."""
-    if key in CHANGE_KEYS:
-        kind = CHANGE_KEYS[key]
-        floor = CHANGE_FLOOR_MOLAR[kind]
-        if key.endswith("_molar"):
-            floor_si = floor
-        elif key.endswith("_vol"):
-            floor_si = floor * n_per_m3
-        else:
-            floor_si = floor / (M_g_per_mol * 1e-3)
-        shown = (f"{floor:g} J/mol" if kind == "energy" else f"{floor:g} J/(mol K)")
-        if unit_ is not None and not key.endswith("_molar"):
-            shown = f"{floor_si / unit_.factor:.2g} {unit_.symbol}"
-        return Tolerance(0.0, floor_si, f"{CHANGE_REL * 100:g} % of change from 298.15 K + {shown}",
-                         "default", CHANGE_REL)
-    rel = DEFAULT_REL[key]
-    return Tolerance(rel, 0.0, f"{rel * 100:g} %", "default")
-
-
-_TOL_PART = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(%?)\s*(.*?)\s*$")
-
-
-def parse_tolerance(text: str, ref_units: dict) -> tuple[str, Tolerance]:
-    """'cp=0.1%', 'h=0.5' (column unit), 'h=0.5 kJ/kg', 'dh298_molar=0.5%+2' -> (key, Tolerance).
-
-    Parameters
-    ----------
-    ref_units : key -> Unit, or tuple of Units, of the compared columns (a bare
-        number is in that unit; a key given in several units needs a unit or a %)
-    """
-    if "=" not in text:
-        raise TablegenError(f"--tolerance {text!r}: write COLUMN=VALUE or COLUMN=VALUE%, e.g. cp=0.1% or h=0.5")
-    key, val = (x.strip() for x in text.split("=", 1))
-    if key not in ref_units:
-        raise TablegenError(f"--tolerance {text!r}: column {key!r} is not compared; "
-                            f"compared columns: {', '.join(ref_units)}")
-    rel, abs_si = 0.0, 0.0
-    parts = [x for x in val.split("+")] if val else [""]
-    # '1e+3' holds a '+': rejoin pieces that end in an exponent marker
-    merged = []
-    for part in parts:
-        if merged and re.search(r"\d[eE]$", merged[-1].strip()):
-            merged[-1] += "+" + part
-        else:
-            merged.append(part)
-    seen_rel = seen_abs = False
-    for part in merged:
-        m = _TOL_PART.match(part)
-        if not m or not part.strip():
-            raise TablegenError(f"--tolerance {text!r}: {part.strip()!r} is not a number; "
-                                f"write e.g. {key}=0.1% or {key}=0.5 or {key}=0.5%+0.2")
-        v = float(m.group(1))
-        if not (math.isfinite(v) and v >= 0):
-            raise TablegenError(f"--tolerance {text!r}: tolerances must be numbers >= 0")
-        if m.group(2):
-            if m.group(3) or seen_rel:
-                raise TablegenError(f"--tolerance {text!r}: write one relative part, e.g. {key}=0.1%")
-            rel, seen_rel = v / 100.0, True
-        else:
-            if seen_abs:
-                raise TablegenError(f"--tolerance {text!r}: write one absolute part, e.g. {key}=0.5%+0.2")
-            u = ref_units[key]
-            if isinstance(u, tuple):
-                if len(u) > 1 and not m.group(3):
-                    raise TablegenError(f"--tolerance {text!r}: {key} is given in "
-                                        f"{' and '.join(x.symbol for x in u)}; give the absolute part "
-                                        f"with a unit, e.g. {key}={v:g}{u[0].symbol}")
-                u = u[0]
-            if m.group(3):
-                try:
-                    u = _unit(m.group(3), u.dimension)
-                except UnitError as e:
-                    raise TablegenError(f"--tolerance {text!r}: {e}") from None
-            abs_si, seen_abs = v * u.factor, True
-    return key, Tolerance(rel, abs_si, val, "--tolerance")
-
-
-def parse_align(text: str, keys) -> tuple[str, str]:
-    """'h=offset', 'Pr=scale' -> (key, kind); checked against the compared keys."""
-    if "=" not in text:
-        raise TablegenError(f"--align {text!r}: write COLUMN=offset or COLUMN=scale, e.g. h=offset or Pr=scale")
-    key, kind = (x.strip() for x in text.split("=", 1))
-    if key not in keys:
-        raise TablegenError(f"--align {text!r}: column {key!r} is not compared; compared columns: {', '.join(keys)}")
-    if key not in ALIGNABLE:
-        allowed = ", ".join(f"{k}={v}" for k, v in ALIGNABLE.items())
-        raise TablegenError(f"--align {text!r}: {key} cannot be aligned (a datum does not shift it by a constant); "
-                            f"allowed: {allowed}")
-    if kind != ALIGNABLE[key]:
-        raise TablegenError(f"--align {text!r}: {key} aligns by {ALIGNABLE[key]}, not {kind!r}; "
-                            f"write {key}={ALIGNABLE[key]}")
-    return key, kind
-
 
 # ------------------------------------------------------------- comparing
 @dataclass(frozen=True, slots=True)
@@ -516,6 +324,8 @@ class Comparison:
     columns: tuple                # ColumnResult
     version: str
     options: dict = field(default_factory=dict)
+    wide: tuple = ()              # {column, tolerance, reason} of each tolerance accepted as wide
+    hints: tuple = ()             # tablegen.compare_hints.Hint, in column order
 
     @property
     def n_cells(self) -> int:
@@ -593,7 +403,7 @@ def mean_cp(sub, T, T_m: float, key: str) -> np.ndarray:
 
 def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
             extrapolate: bool = False, T_mean_ref_K: float | None = None, volume_reference=None,
-            version: str = "", options=None) -> Comparison:
+            version: str = "", options=None, allow_wide: bool = False, spec_table: bool = False) -> Comparison:
     """Compare a substance with a reference table.
 
     Parameters
@@ -606,6 +416,9 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
     extrapolate : allow reference temperatures outside the data range (marked)
     T_mean_ref_K : T_m of the mean heat capacities (default :func:`mean_cp_from_default`)
     volume_reference : (T_K, P_Pa, text) of the volumetric basis (default: normal conditions)
+    allow_wide : accept a tolerance wider than 20 % or than the column's range
+        (:func:`tablegen.compare_tolerance.wide_reason`); it is then listed in ``wide``
+    spec_table : the substance is a spec table (hints then name spec settings, not options)
 
     Raises
     ------
@@ -705,9 +518,30 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
     if not any(np.any(r.present) for r in results):
         raise TablegenError(f"{ref.path}: the compared columns hold no values (every cell is a gap); "
                             f"there is nothing to judge")
+    wide = _wide(results, allow_wide)
     from . import __version__
+    from .compare_hints import comparison_hints
+    h298 = float(sub.properties(np.array([T_CHANGE_FROM]), extrapolate=True)["h"][0])
+    context = {"M": sub.M, "n_per_m3": n_per_m3, "P_ref_Pa": sub.P_ref_Pa, "h298_J_per_kg": h298,
+               "anchor": {"T_K": sub.anchor.T_K, "Pr": sub.anchor.Pr, "vr": sub.anchor.vr},
+               "spec": bool(spec_table), "T_text": ref.T_text, "T_unit": ref.T_unit.symbol}
     return Comparison(substance_info(sub), ref, T, extrap, tuple(results),
-                      version or __version__, options)
+                      version or __version__, options, wide, comparison_hints(results, context))
+
+
+def _wide(results, allow: bool) -> tuple:
+    """Tolerances too wide to judge with (refused unless allowed; listed when allowed)."""
+    out = []
+    for r in results:
+        why = wide_reason(r.tolerance, r.reference[r.present] * r.unit.factor, r.unit)
+        if why is None:
+            continue
+        if not allow:
+            raise TablegenError(f"--tolerance {r.key}={r.tolerance.text}: {why}, so it cannot tell a right "
+                                f"table from a wrong one; give a tighter tolerance, or pass --allow-wide "
+                                f"(the report then states it on page 1)")
+        out.append({"column": r.key, "tolerance": r.tolerance.text, "reason": why})
+    return tuple(out)
 
 
 def _fit(key, kind, ref_si, calc_si, present, u, ref, sub, rc):
@@ -720,8 +554,11 @@ def _fit(key, kind, ref_si, calc_si, present, u, ref, sub, rc):
         value = float(np.mean(r - c))
         aligned = calc_si + value
         vu = value / u.factor
-        meaning = (f"tablegen {KEY_LABELS[key]} + {vu:.9g} {u.symbol} (least squares over {n} rows); "
-                   f"a different enthalpy datum or entropy reference pressure shifts {KEY_LABELS[key]} by a constant")
+        from .compare_hints import format_constant
+        why = ("another zero of the entropy scale or another reference pressure P° shifts"
+               if key.startswith("s0") else "another enthalpy datum shifts")
+        meaning = (f"{KEY_LABELS[key]}, aligned by offset {format_constant(vu, None, 9)} {u.symbol} "
+                   f"(least squares over {n} rows): {why} {KEY_LABELS[key]} by a constant")
     else:
         if np.any(r <= 0):
             i = int(np.flatnonzero(present)[np.argmax(r <= 0)])
@@ -732,8 +569,8 @@ def _fit(key, kind, ref_si, calc_si, present, u, ref, sub, rc):
         vu = value
         a = sub.anchor
         scaled = a.Pr * value if key == "Pr" else a.vr * value
-        meaning = (f"tablegen {key} × {value:.9g} (least squares on ln {key} over {n} rows); "
-                   f"equivalent to the anchor {key} = {scaled:.9g} at {a.T_K:g} K")
+        meaning = (f"{key}, aligned by scale factor {value:.9g} (least squares on ln {key} over {n} rows): "
+                   f"the same as the anchor {key} = {scaled:.9g} at {a.T_K:g} K")
     rms_after = float(np.sqrt(np.mean((aligned[present] - r) ** 2))) / u.factor
     return Alignment(key, kind, value, vu, u.symbol if kind == "offset" else "-", n,
                      rms_before, rms_after, meaning), aligned
@@ -762,115 +599,3 @@ def _stats(dev, rel, bound, present, within, T, ref) -> dict:
     use = np.where(np.isfinite(use), use, np.where(np.abs(d) > 0, np.inf, 0.0))
     out["max_use_of_tolerance"] = float(np.max(use))
     return out
-
-
-# ------------------------------------------------------------ formatting
-def format_like(value: float, text: str) -> str:
-    """A number printed to the places of a reference cell's text ('29.104' -> 3 decimals)."""
-    if not math.isfinite(value):
-        return "—"
-    if not text:
-        return f"{value:.6g}"
-    m = _NUMBER.match(text)
-    mant, exp = m.group(1), m.group(2)
-    decimals = len(mant.split(".", 1)[1]) if "." in mant else 0
-    if exp:
-        return f"{value:.{decimals}e}"
-    return f"{value:.{decimals}f}"
-
-
-def format_dev(value: float) -> str:
-    """A deviation to two significant figures."""
-    if not math.isfinite(value):
-        return "—"
-    if value == 0:
-        return "0"
-    return f"{value:+.2g}".replace("e-0", "e-").replace("e+0", "e")
-
-
-def _neutral(text: str) -> str:
-    """Neutralise text against spreadsheet formula injection; numbers stay numbers."""
-    s = str(text)
-    if _NUMBER.match(s) or re.fullmatch(r"-?(inf|nan)", s):
-        return s
-    return "'" + s if s[:1] in ("=", "+", "-", "@", "\t", "\r", "|", "%") else s
-
-
-def deviations_csv(cmp: Comparison) -> str:
-    """RFC 4180 CSV, one row per reference row, full precision, reference units.
-
-    Per compared column: <key>.reference, <key>.tablegen (after alignment),
-    <key>.deviation, <key>.relative, <key>.bound and <key>.status (within,
-    OUT, or empty where the reference has no value).
-    """
-    ref = cmp.reference
-    buf = io.StringIO()
-    w = csv.writer(buf, lineterminator="\r\n")
-    head = ["line [-]", f"T [{ref.T_unit.symbol}]", "T_K [K]", "extrapolated [-]"]
-    for c in cmp.columns:
-        s = c.unit.symbol
-        head += [f"{c.key}.reference [{s}]", f"{c.key}.tablegen [{s}]", f"{c.key}.deviation [{s}]",
-                 f"{c.key}.relative [-]", f"{c.key}.bound [{s}]", f"{c.key}.status [-]"]
-    w.writerow(head)
-    for i in range(cmp.T_K.size):
-        row = [str(ref.lines[i]), ref.T_text[i], repr(float(cmp.T_K[i])), "yes" if cmp.extrapolated[i] else "no"]
-        for c in cmp.columns:
-            if c.present[i]:
-                row += [c.text[i], repr(float(c.tablegen[i])), repr(float(c.deviation[i])),
-                        "" if not math.isfinite(c.relative[i]) else repr(float(c.relative[i])),
-                        repr(float(c.bound[i])), "within" if c.within[i] else "OUT"]
-            else:
-                row += ["", repr(float(c.tablegen[i])), "", "", "", ""]
-        w.writerow([_neutral(x) for x in row])
-    return buf.getvalue()
-
-
-def summary(cmp: Comparison) -> dict:
-    """The JSON summary (sorted keys when dumped); values in the reference's units."""
-    ref = cmp.reference
-    cols = []
-    for c in cmp.columns:
-        t = c.tolerance
-        cols.append({"key": c.key, "unit": c.unit.symbol, "header": c.header,
-                     "tolerance": {"text": t.text, "relative": t.rel, "absolute": t.abs_si / c.unit.factor,
-                                   "relative_to_change_from_298.15K": t.rel_change,
-                                   "origin": t.origin, "rounding_allowance": "half a unit in the last printed "
-                                   "place of each reference cell"},
-                     "stats": c.stats,
-                     "alignment": None if c.alignment is None else _alignment_json(c.alignment)})
-    return {
-        "verdict": "pass" if cmp.passed else "fail",
-        "verdict_text": cmp.verdict,
-        "exit_status": 0 if cmp.passed else 1,
-        "cells_compared": cmp.n_cells,
-        "cells_out_of_tolerance": cmp.n_out,
-        "substance": cmp.substance,
-        "reference": {"file": ref.path, "sha256": ref.sha256, "layout": ref.layout, "rows": len(ref.lines),
-                      "T_unit": ref.T_unit.symbol, "T_min_K": float(np.min(ref.T_K)),
-                      "T_max_K": float(np.max(ref.T_K)), "columns": list(ref.keys),
-                      "comments": list(ref.comments)},
-        "extrapolated_rows": [ref.lines[i] for i in np.flatnonzero(cmp.extrapolated)],
-        "columns": cols,
-        "alignments": [_alignment_json(c.alignment) for c in cmp.columns if c.alignment is not None],
-        "out_of_tolerance": cmp.out_cells(),
-        "rules": RULES,
-        "caution": CAUTION,
-        "tablegen_version": cmp.version,
-        "options": cmp.options,
-    }
-
-
-def _alignment_json(a: Alignment) -> dict:
-    return {"column": a.key, "kind": a.kind, "value": a.value_in_unit, "unit": a.unit, "n": a.n,
-            "rms_before": a.rms_before, "rms_after": a.rms_after, "meaning": a.meaning}
-
-
-RULES = ("deviation = tablegen (after alignment) − reference, in the reference column's unit; "
-         "a cell is within tolerance when |deviation| ≤ relative tolerance × |reference| + absolute tolerance "
-         "+ half a unit in the last printed place of the reference cell (default tolerances of h, u and s° "
-         "take their relative part from the change since 298.15 K instead of the value); offsets are fitted by least squares "
-         "(mean of reference − tablegen), scale factors by least squares on logarithms")
-
-CAUTION = ("This comparison checks agreement with the given reference only: it does not show that either "
-           "table is correct, and it does not replace review under the applicable codes and licensed "
-           "engineering practice.")

@@ -22,6 +22,7 @@ import numpy as np
 
 from .composition import looks_like as looks_like_composition
 from .errors import SpecError, TablegenError
+from .units import P_ATM
 
 #: Largest number of rows one table may have. A printed table of 20 000 rows
 #: is already some 400 A4 pages; more is a mistake in the grid, not a book.
@@ -88,6 +89,12 @@ class Document:
     uncertainty_columns: bool = False  # U_<key> columns in the CSV files
     csv_comments: bool = False         # "#" comment lines above the CSV header (off: plain CSV)
     chart_placement: str = "after-table"  # or "grouped": all chart pages after the last table
+    barometer_Pa: float | None = None  # barometric pressure of gauge values (None: not given, 1.01325 bar)
+
+    @property
+    def barometer(self) -> float:
+        """Barometric pressure that the spec's gauge pressures are read against, Pa."""
+        return P_ATM if self.barometer_Pa is None else self.barometer_Pa
 
 
 @dataclass(frozen=True, slots=True)
@@ -234,17 +241,31 @@ def _temp_unit(v: str, where):
     return float(m.group(1)), u
 
 
-def _pressure(v, where) -> float:
-    from .units import quantity
+def _pressure(v, where, barometer_Pa: float | None = None) -> float:
+    """An absolute pressure; a gauge one ('10 barg') only where ``barometer_Pa`` is given."""
+    from .units import pressure_Pa
     if isinstance(v, bool) or not isinstance(v, str):
         _fail(where, f"must be a pressure with a unit as a string, e.g. \"1 bar\", not {_typename(v)}")
     try:
-        P = quantity(v, "pressure", "pressure")
+        P = pressure_Pa(v, "pressure", barometer_Pa=barometer_Pa)
     except TablegenError as e:
         _fail(where, str(e))
     if not (math.isfinite(P) and P > 0):
         _fail(where, f"{v!r} must be above 0 Pa (absolute pressure)")
     return P
+
+
+def _barometer(v, where) -> float:
+    """document.barometer: the barometric pressure of the spec's gauge values (default 1.01325 bar)."""
+    from .units import barometer_Pa
+    if v is None:
+        return P_ATM
+    if isinstance(v, bool) or not isinstance(v, str):
+        _fail(where, f"must be a pressure with a unit as a string, e.g. \"0.95 bar\", not {_typename(v)}")
+    try:
+        return barometer_Pa(v, "barometer")
+    except TablegenError as e:
+        _fail(where, str(e))
 
 
 def _positive_number(raw, key, where, default):
@@ -258,7 +279,7 @@ def _positive_number(raw, key, where, default):
 DOCUMENT_KEYS = ("title", "subtitle", "number", "revision", "issue_date", "organisation",
                  "prepared_by", "checked_by", "approved_by", "paper", "orientation", "units",
                  "basis", "reference", "source", "max_pressure", "uncertainty_columns", "chart_placement",
-                 "csv_comments")
+                 "csv_comments", "barometer")
 
 
 def _document(raw, where="document") -> Document:
@@ -277,6 +298,7 @@ def _document(raw, where="document") -> Document:
             _fail(f"{where}.issue_date", f"{date!r} is not a date; write YYYY-MM-DD, e.g. 2026-11-30")
     else:
         _fail(f"{where}.issue_date", f"must be a date YYYY-MM-DD, not {_typename(date)}")
+    baro = _barometer(raw.get("barometer"), f"{where}.barometer")
     return Document(
         title=_text(raw, "title", where, required=True),
         subtitle=_text(raw, "subtitle", where),
@@ -293,10 +315,11 @@ def _document(raw, where="document") -> Document:
         basis=_choice(raw, "basis", BASES, where, "mass"),
         reference=_reference(raw.get("reference", "normal"), f"{where}.reference"),
         source=_get(raw, "source", str, where, None),
-        max_pressure_Pa=_pressure(raw.get("max_pressure", "1 bar"), f"{where}.max_pressure"),
+        max_pressure_Pa=_pressure(raw.get("max_pressure", "1 bar"), f"{where}.max_pressure", baro),
         uncertainty_columns=_get(raw, "uncertainty_columns", bool, where, False),
         csv_comments=_get(raw, "csv_comments", bool, where, False),
         chart_placement=_choice(raw, "chart_placement", ("after-table", "grouped"), where, "after-table"),
+        barometer_Pa=None if "barometer" not in raw else baro,
     )
 
 
@@ -784,7 +807,7 @@ def _table(raw, where, defaults, doc, subs, source, data) -> TableSpec:
             from .book.charts import parse_charts
         except ImportError:
             _fail(f"{where}.charts", "charts are not available in this build of tablegen")
-        charts = tuple(parse_charts(raw["charts"], f"{where}.charts", units=system))
+        charts = tuple(parse_charts(raw["charts"], f"{where}.charts", units=system, barometer_Pa=doc.barometer))
     return TableSpec(name=name, title=title, substance_ref=ref, substance=sub, T_K=allT, extra=flag,
                      extra_rows=tuple(extras), grid=grid, columns=tuple(fixed), units=system, basis=basis,
                      temperature_units=t_units, T_mean_ref_K=float(T_mean), extrapolate=bool(extrapolate),
@@ -925,6 +948,8 @@ def normalise(spec: BookSpec, source) -> dict:
                                        "paper", "orientation", "units", "basis", "max_pressure_Pa",
                                        "uncertainty_columns", "chart_placement", "csv_comments")}
     doc["reference"] = {"name": d.reference.name, "T_K": d.reference.T_K, "P_Pa": d.reference.P_Pa}
+    if d.barometer_Pa is not None:          # only where given, so older specs keep their fingerprint
+        doc["barometer_Pa"] = d.barometer_Pa
     doc["source"] = source
     tables = []
     for t in spec.tables:

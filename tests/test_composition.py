@@ -114,12 +114,14 @@ def _without(obj, keys):
 
 
 @pytest.mark.parametrize("argv,ignore", [
-    (["state", "{}", "--T", "60F,500K,1500K", "--P", "2bar", "--json", "--h-datum", "sensible:0C"], {"substance"}),
+    # "input" echoes the text as typed (the one place the two spellings differ)
+    (["state", "{}", "--T", "60F,500K,1500K", "--P", "2bar", "--json", "--h-datum", "sensible:0C"],
+     {"substance", "input"}),
     (["combust", "--fuel", "{}", "--excess-air", "15", "--json"],
-     {"products_substance", "id", "name", "in_percent", "text"}),
+     {"products_substance", "id", "name", "input", "in_percent", "text"}),
     (["process", "{}", "--from", "T=300K,P=1bar", "--compress-ratio", "8", "--eta", "0.85", "--json"],
-     {"substance", "substance_name"}),
-    (["state", "flue@{}@excess-air=15@air,rh=60%,T=25C", "--T", "400K,1500K", "--json"], {"substance"}),
+     {"substance", "substance_name", "input"}),
+    (["state", "flue@{}@excess-air=15@air,rh=60%,T=25C", "--T", "400K,1500K", "--json"], {"substance", "input"}),
 ])
 def test_percent_and_fraction_give_identical_results(capsys, argv, ignore):
     """The same analysis in % and as fractions: every printed number the same (compared as text)."""

@@ -172,3 +172,101 @@ def test_fast_path_equals_full_properties():
     np.testing.assert_allclose(cp, p["cp"], rtol=1e-13)
     np.testing.assert_allclose(h, p["h"], rtol=1e-12, atol=1e-6)
     np.testing.assert_allclose(s0, p["s0"], rtol=1e-13)
+
+
+# ---------------------------------------------------------------- evaluation paths
+# One temperature as a plain number goes through Polynomial.point (floats), a few
+# thousand through the small-array path (one basis product), more through the blocked
+# Horner path. They are three evaluations of the same published function: identity
+# checks, each to the rounding its own arithmetic allows (h relative to |h| + cp T).
+
+def _agree(a, b, T, rel):
+    assert np.max(np.abs(a["cp"] - b["cp"]) / np.abs(b["cp"])) <= rel
+    assert np.max(np.abs(a["s"] - b["s"]) / np.abs(b["s"])) <= rel
+    assert np.max(np.abs(a["h"] - b["h"]) / (np.abs(b["h"]) + b["cp"] * T)) <= rel
+
+
+@pytest.mark.parametrize("name", ["air", "CO2", "H2O", "CH4", "H2"])
+def test_small_array_path_equals_blocked_path(name, monkeypatch):
+    from tablegen.thermo import polynomial
+    poly = tablegen.substance(name).poly
+    T = np.random.default_rng(3).uniform(poly.T_min, poly.T_max, 3000)
+    T[:len(poly.T_bounds)] = poly.T_bounds              # breakpoints: the lower interval in both
+    small = poly.evaluate(T)
+    monkeypatch.setattr(polynomial, "SMALL", -1)
+    big = poly.evaluate(T)
+    # the published coefficients of narrow high-temperature intervals cancel to about
+    # 1e5 (docs/data-curation.md): two summation orders differ by up to 1e5 eps
+    _agree(small, big, T, 3e-11)
+
+
+@settings(max_examples=60, deadline=None)
+@given(T=temps)
+def test_one_state_path_equals_array_path(T):
+    mix = tablegen.mixture(FLUE)
+    cp, h, s0 = mix.cp_h_s0(T)
+    cpa, ha, s0a = (float(x[0]) for x in mix.cp_h_s0(np.array([T])))
+    assert isinstance(cp, float)
+    # Horner in floats against the small path's basis sum: 3e-11 as in the test above
+    assert cp == pytest.approx(cpa, rel=3e-11)
+    assert h == pytest.approx(ha, rel=3e-11, abs=3e-11 * cpa * T)
+    assert s0 == pytest.approx(s0a, rel=3e-11)
+    one, arr = mix.properties(T), mix.properties(np.array([T]))
+    assert set(one) == set(arr)
+    scale = {k: abs(float(arr[k][0])) for k in arr if k not in ("M", "R")}
+    for k in ("h_molar", "u_molar", "g0_molar", "dh298_molar", "h", "u", "g0"):
+        scale[k] += float(arr["cp_molar" if k.endswith("_molar") else "cp"][0]) * T
+    for k, v in arr.items():
+        if k not in ("M", "R"):
+            assert abs(float(one[k]) - float(v[0])) <= 3e-11 * scale[k], k
+
+
+def test_one_state_path_refuses_what_the_array_path_refuses():
+    air = tablegen.substance("air")
+    for bad in (100.0, 7000.0, float("nan"), -5.0, 0):
+        with pytest.raises(RangeError):
+            air.cp_h_s0(bad)
+        with pytest.raises(RangeError):
+            air.properties(bad)
+    p = air.properties(150.0, extrapolate=True)
+    assert bool(p["extrapolated"]) and float(p["cp"]) > 0
+
+
+@pytest.mark.parametrize("bad", ["300 K", ["abc"], 300 + 1j, [300, None]])
+def test_non_numbers_are_refused_as_user_errors(bad):
+    air = tablegen.substance("air")
+    with pytest.raises(TablegenError, match="must be"):
+        air.properties(bad)
+    with pytest.raises(TablegenError, match="must be"):
+        air.T_from("h", bad)
+
+
+@pytest.mark.parametrize("name", ["N2", "air", "CO2", "H2O", "CH4"])
+@pytest.mark.parametrize("key", ["h", "u", "s0", "Pr", "vr", "h_molar"])
+def test_inverse_converges_in_few_passes_to_its_tolerance(name, key):
+    # every point converged to 1e-10 relative; the start (Hermite on a tabulation
+    # uniform in the inverted function) leaves one Newton pass for nearly every point
+    sub = tablegen.substance(name)
+    T = np.random.default_rng(5).uniform(sub.T_min, sub.T_max, 20000)
+    T[:len(sub.poly.T_bounds)] = sub.poly.T_bounds
+    back, rep = sub.T_from(key, sub.properties(T)[key], report=True)
+    np.testing.assert_allclose(back, T, rtol=1e-10)
+    assert rep.converged and rep.passes <= 3
+    assert rep.remaining[0] <= 0.05 * T.size
+
+
+def test_properties_of_a_few_keys_equal_the_full_call():
+    mix = tablegen.mixture(FLUE)
+    T = np.linspace(300.0, 2500.0, 40)
+    full = mix.properties(T, P=2e5)
+    for keys in (("cp",), ("h", "u"), ("Pr",), ("vr", "a"), ("g0_molar",), ("s", "rho")):
+        part = mix.properties(T, P=2e5, keys=keys)
+        assert set(part) == set(keys) | {"T_K", "M", "R"}
+        for k in keys:
+            np.testing.assert_array_equal(part[k], full[k])
+    with pytest.raises(TablegenError, match="unknown property key"):
+        mix.properties(T, keys=("enthalpy",))
+    with pytest.raises(TablegenError, match="need pressures"):
+        mix.properties(T, keys=("s",))
+    with pytest.raises(TablegenError, match="pressures for"):
+        mix.properties(T, P=np.array([1e5, 2e5]))

@@ -30,6 +30,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import RangeError, SpecError, TablegenError
+from ..units import P_ATM
 
 # --------------------------------------------------------------------------
 # paper and unit systems
@@ -121,9 +122,10 @@ def _system(text, path: str) -> str:
     return text.upper()
 
 
-def _value(v, dim: str, default_unit: str, path: str, *, positive: bool = True) -> float:
-    """A quantity: a string with a unit ('12bar') or a bare number in the chart's unit."""
-    from ..units import quantity, unit
+def _value(v, dim: str, default_unit: str, path: str, *, positive: bool = True,
+           barometer_Pa: float | None = None) -> float:
+    """A quantity: a string with a unit ('12bar', or a gauge '11barg') or a bare number in the chart's unit."""
+    from ..units import pressure_Pa, quantity, unit
     if isinstance(v, bool):
         _fail(path, f"{v!r} is not a quantity; write a number with a unit, e.g. {_EXAMPLES[dim]}")
     try:
@@ -134,7 +136,8 @@ def _value(v, dim: str, default_unit: str, path: str, *, positive: bool = True) 
             try:
                 si = unit(default_unit, dim).to_si(float(s))
             except ValueError:
-                si = quantity(s, dim, "value")
+                si = pressure_Pa(s, "value", barometer_Pa=barometer_Pa) if dim == "pressure" \
+                    else quantity(s, dim, "value")
         else:
             _fail(path, f"{v!r} is not a quantity; write a number with a unit, e.g. {_EXAMPLES[dim]}")
     except SpecError:
@@ -150,12 +153,12 @@ _EXAMPLES = {"pressure": "'10bar'", "temperature": "'1200K'", "specific_volume":
              "specific_energy": "'500kJ/kg'"}
 
 
-def _list(v, dim, default_unit, path):
+def _list(v, dim, default_unit, path, barometer_Pa=None):
     if isinstance(v, (str, int, float)) and not isinstance(v, bool):
         v = [x for x in str(v).split(",")] if isinstance(v, str) else [v]
     if not isinstance(v, (list, tuple)) or not v:
         _fail(path, f"give a non-empty list, e.g. [{_EXAMPLES[dim]}, ...]")
-    out = [_value(x, dim, default_unit, f"{path}[{i}]") for i, x in enumerate(v)]
+    out = [_value(x, dim, default_unit, f"{path}[{i}]", barometer_Pa=barometer_Pa) for i, x in enumerate(v)]
     if len(out) > 40:
         _fail(path, f"{len(out)} lines are too many to read; allowed: at most 40")
     return tuple(sorted(set(out)))
@@ -192,7 +195,8 @@ def _parse_step(raw, path: str, sysu: dict) -> StepSpec:
         if "eta" not in raw:
             _fail(f"{path}.eta", "missing; give the isentropic efficiency, 0 < eta <= 1 (1 for isentropic)")
         eta = _number(raw["eta"], f"{path}.eta", 0.0, 1.0, "isentropic efficiency")
-        P2 = _value(raw["P2"], "pressure", sysu["P"], f"{path}.P2") if "P2" in raw else None
+        P2 = _value(raw["P2"], "pressure", sysu["P"], f"{path}.P2",
+                    barometer_Pa=sysu["barometer"]) if "P2" in raw else None
         ratio = None
         if "ratio" in raw:
             ratio = _number(raw["ratio"], f"{path}.ratio", 1.0, 1e4, "pressure ratio")
@@ -206,7 +210,8 @@ def _parse_step(raw, path: str, sysu: dict) -> StepSpec:
         return StepSpec(kind, T2_K=_value(raw["T2"], "temperature", sysu["T"], f"{path}.T2"), where=path)
     if "P2" not in raw:
         _fail(f"{path}.P2", "missing; a throttle step needs the end pressure P2")
-    return StepSpec(kind, P2_Pa=_value(raw["P2"], "pressure", sysu["P"], f"{path}.P2"), where=path)
+    return StepSpec(kind, P2_Pa=_value(raw["P2"], "pressure", sysu["P"], f"{path}.P2",
+                                       barometer_Pa=sysu["barometer"]), where=path)
 
 
 def _parse_overlay(raw, path: str, sysu: dict, n: int) -> OverlaySpec:
@@ -221,7 +226,7 @@ def _parse_overlay(raw, path: str, sysu: dict, n: int) -> OverlaySpec:
         if k not in start:
             _fail(f"{path}.start.{k}", "missing; the start state needs T and P")
     T1 = _value(start["T"], "temperature", sysu["T"], f"{path}.start.T")
-    P1 = _value(start["P"], "pressure", sysu["P"], f"{path}.start.P")
+    P1 = _value(start["P"], "pressure", sysu["P"], f"{path}.start.P", barometer_Pa=sysu["barometer"])
     steps = raw.get("steps", [])
     if not isinstance(steps, list):
         _fail(f"{path}.steps", "must be a list of step tables")
@@ -231,11 +236,12 @@ def _parse_overlay(raw, path: str, sysu: dict, n: int) -> OverlaySpec:
     return OverlaySpec(label.strip(), T1, P1, parsed, where=path)
 
 
-def parse_chart(raw: dict, where: str, *, units: str = "SI") -> tuple[ChartSpec, ...]:
+def parse_chart(raw: dict, where: str, *, units: str = "SI",
+                barometer_Pa: float = P_ATM) -> tuple[ChartSpec, ...]:
     """One chart table (kind = "both" gives two specs). See :func:`parse_charts`."""
     _table(raw, where, CHART_KEYS)
     system = _system(raw.get("units", units), f"{where}.units")
-    sysu = UNIT_SYSTEMS[system]
+    sysu = dict(UNIT_SYSTEMS[system], barometer=barometer_Pa)
     kind = raw.get("kind", "ts")
     if kind not in ("ts", "hs", "both"):
         _fail(f"{where}.kind", f"{kind!r} is not known; allowed: ts, hs, both")
@@ -253,7 +259,7 @@ def parse_chart(raw: dict, where: str, *, units: str = "SI") -> tuple[ChartSpec,
               f"{system} units; allowed: {', '.join(T_UNITS[system])}")
     pressures = None
     if "pressures" in raw:
-        pressures = _list(raw["pressures"], "pressure", sysu["P"], f"{where}.pressures")
+        pressures = _list(raw["pressures"], "pressure", sysu["P"], f"{where}.pressures", barometer_Pa)
     volumes = ()
     if "volumes" in raw:
         volumes = _list(raw["volumes"], "specific_volume", sysu["v"], f"{where}.volumes")
@@ -291,7 +297,7 @@ def parse_chart(raw: dict, where: str, *, units: str = "SI") -> tuple[ChartSpec,
                  for k in kinds)
 
 
-def parse_charts(raw, where: str, *, units: str = "SI") -> tuple[ChartSpec, ...]:
+def parse_charts(raw, where: str, *, units: str = "SI", barometer_Pa: float = P_ATM) -> tuple[ChartSpec, ...]:
     """Validate a ``charts`` spec value into ChartSpecs.
 
     Parameters
@@ -300,6 +306,8 @@ def parse_charts(raw, where: str, *, units: str = "SI") -> tuple[ChartSpec, ...]
     where : key path of ``raw`` for messages, e.g. ``tables[0].charts``
     units : unit system of the document, "SI" or "US"; bare numbers in the
         spec are read in its units (K or °R, bar or psia, m³/kg or ft³/lbm)
+    barometer_Pa : barometric pressure that gauge pressures ('12barg', '150psig')
+        are read against; default 1.01325 bar
 
     Raises
     ------
@@ -312,7 +320,7 @@ def parse_charts(raw, where: str, *, units: str = "SI") -> tuple[ChartSpec, ...]
         _fail(where, "must be a list of chart tables, e.g. charts = [{kind = \"ts\"}]")
     out = []
     for i, c in enumerate(raw):
-        out.extend(parse_chart(c, f"{where}[{i}]", units=units))
+        out.extend(parse_chart(c, f"{where}[{i}]", units=units, barometer_Pa=barometer_Pa))
     return tuple(out)
 
 

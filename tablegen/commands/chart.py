@@ -28,7 +28,7 @@ harwick-gt2-charts.toml (a chart spec) is in the project's docs/examples/ folder
 OPTION_OF = {"kind": "--kind", "pressures": "--pressures", "volumes": "--volumes",
              "isotherms": "--isotherms", "T_range": "--T-range", "paper": "--paper",
              "units": "--units", "temperature_unit": "--T-unit", "title": "--title"}
-SPEC_KEYS = ("substance", "units", "date", "name", "charts")
+SPEC_KEYS = ("substance", "units", "date", "name", "barometer", "charts")
 
 
 def add_arguments(p):
@@ -56,6 +56,9 @@ def add_arguments(p):
     g.add_argument("--T-unit", dest="T_unit", default=None, metavar="UNIT",
                    help="temperature axis: K or C with SI, R or F with US")
     g.add_argument("--paper", default=None, metavar="SIZE", help="A4 (default) or A3, landscape")
+    g.add_argument("--barometer", default=None, metavar="P",
+                   help="barometric pressure that gauge pressures (12barg, 150psig) are read against, "
+                        "absolute (default 1.01325bar); in a spec file: barometer = \"0.95 bar\"")
     g = p.add_argument_group("files")
     g.add_argument("--spec", default=None, metavar="FILE",
                    help="TOML file with [[charts]] tables (and optional substance, units, date, name)")
@@ -127,6 +130,7 @@ def _split(text):
 
 def charts_from_options(args):
     from ..book.charts import parse_charts
+    from ..units import barometer_Pa
     raw = {"kind": args.kind or "both"}
     for key in ("pressures", "volumes", "isotherms"):
         v = getattr(args, key)
@@ -142,7 +146,7 @@ def charts_from_options(args):
     if args.overlay:
         raw["overlays"] = [parse_overlay_text(t, i) for i, t in enumerate(args.overlay)]
     try:
-        return parse_charts([raw], "cli", units="SI")
+        return parse_charts([raw], "cli", units="SI", barometer_Pa=barometer_Pa(args.barometer))
     except SpecError as e:
         raise SpecError(_cli_message(str(e))) from None
 
@@ -152,18 +156,23 @@ def load_spec(path: str):
 
     from ..book.charts import parse_charts
     from ..spec import read_toml
+    from ..units import barometer_Pa
     p = Path(path)
     raw = read_toml(p, "--spec")
     for k in raw:
         if k not in SPEC_KEYS:
             raise SpecError(f"{p.name}: {k}: unknown key; allowed: {', '.join(SPEC_KEYS)}")
-    for k in ("substance", "units", "date", "name"):
+    for k in ("substance", "units", "date", "name", "barometer"):
         if k in raw and not isinstance(raw[k], str):
             raise SpecError(f"{p.name}: {k}: must be a text")
     if "charts" not in raw:
         raise SpecError(f"{p.name}: charts: missing; add at least one [[charts]] table")
     units = raw.get("units", "SI")
-    specs = parse_charts(raw["charts"], f"{p.name}: charts", units=units)
+    try:
+        baro = barometer_Pa(raw.get("barometer"), "barometer")
+    except TablegenError as e:
+        raise SpecError(f"{p.name}: barometer: {e}") from None
+    specs = parse_charts(raw["charts"], f"{p.name}: charts", units=units, barometer_Pa=baro)
     return raw.get("substance"), units.upper(), raw.get("date"), raw.get("name"), specs
 
 
@@ -189,7 +198,8 @@ def run(args) -> int:
                                 ("--volumes", args.volumes), ("--isotherms", args.isotherms),
                                 ("--T-range", args.T_range), ("--overlay", args.overlay),
                                 ("--paper", args.paper), ("--T-unit", args.T_unit),
-                                ("--title", args.title), ("--units", args.units)) if v is not None]
+                                ("--title", args.title), ("--units", args.units),
+                                ("--barometer", args.barometer)) if v is not None]
         if clash:
             raise TablegenError(f"{clash[0]} cannot be combined with --spec; put it in the spec's "
                                 f"[[charts]] table instead")

@@ -5,11 +5,18 @@ from __future__ import annotations
 import sys
 
 from ..errors import TablegenError
-from .common import dumps
+from .common import add_unit_options, dumps
 
-EXAMPLE = """example:
+EXAMPLE = """--flow gives the heat input (LHV and HHV, kW and MMBtu/h) and the flue-gas and air flows
+(normal m³/h, kg/s); fuel flows kg/s, kg/h, t/h, lb/h, or for a gas kmol/h, Nm3/h (0 °C,
+101.325 kPa) or SCFM (60 °F, 14.696 psia). Temperatures come back in the unit you typed
+(60F in: °F and °R out), or --T-unit; --flue-pressure may be gauge (against --barometer).
+
+example:
   tablegen combust --fuel CH4=0.9,C2H6=0.06,N2=0.04 --excess-air 15
   tablegen combust --fuel CH4=90%,C2H6=6%,N2=4% --excess-air 15 --oxidant air,O2=25%
+  tablegen combust --fuel propane --excess-air 20 --flow 50kg/h
+  tablegen combust --fuel methane --lambda 1.15 --ref-temperature 60F --flow 2000SCFM
   tablegen combust --fuel propane --o2-dry 3.5 --oxidant air,rh=60%,T=20C,P=1atm --json
   tablegen combust --fuel "CH4=87%±0.5%,C2H6=6%±0.2%,C3H8=2%,N2=3%,CO2=2%" --o2-dry "3.5%±0.2%"
   tablegen combust --fuel fuels/heavy-oil.toml --lambda 1.2 --ref-temperature 15C
@@ -44,6 +51,12 @@ UNITS = {
     "combustion_reference_T_K": "K", "metering_T_K": "K", "metering_P_Pa": "Pa",
     "t_adiabatic_K": "K", "T_fuel_K": "K", "T_oxidant_K": "K",
 }
+#: Keys of the "flow" member of the JSON output (with --flow) -> unit.
+FLOW_UNITS = {"fuel_mass_flow": "kg/s", "heat_input_lhv": "kW", "heat_input_hhv": "kW",
+              "flue_gas_mass_flow_wet": "kg/s", "flue_gas_mass_flow_dry": "kg/s",
+              "flue_gas_volume_flow_wet": "m³/s (normal, metering conditions)",
+              "flue_gas_volume_flow_dry": "m³/s (normal, metering conditions)",
+              "oxidant_mass_flow": "kg/s", "oxidant_volume_flow": "m³/s (normal, metering conditions)"}
 
 #: --ref-temperature spellings -> K (ISO 6976 combustion reference temperatures).
 REF_CHOICES = {"25C": 298.15, "20C": 293.15, "15.55C": 288.705555555556, "60F": 288.705555555556,
@@ -70,19 +83,23 @@ def add_arguments(p):
                         "humidity at T and P), air,w=8g/kg (humid, humidity ratio), air,dew=5C[,P=1atm] "
                         "(humid, dew point), air,O2=30%% (enriched to 30 %% O2, dry), or a dry composition "
                         "O2=0.3,N2=0.7; T=... states the air temperature, which the flame temperature uses")
-    p.add_argument("--ref-temperature", default="25C", metavar="T",
+    p.add_argument("--ref-temperature", default=None, metavar="T",
                    help="combustion reference temperature of the heating values: 25C (default), 20C, "
                         "15.55C (= 60F), 15C or 0C")
-    p.add_argument("--metering", default="0C,101.325kPa", metavar="T,P",
+    p.add_argument("--metering", default=None, metavar="T,P",
                    help="metering conditions of normal volumes (default 0C,101.325kPa)")
     p.add_argument("--fuel-temperature", default=None, metavar="T",
                    help="fuel inlet temperature for the flame temperature (default 25C)")
     p.add_argument("--oxidant-temperature", default=None, metavar="T",
                    help="oxidant inlet temperature for the flame temperature (default: the T of --oxidant, "
                         "else 25C)")
-    p.add_argument("--flue-pressure", default="101.325kPa", metavar="P",
-                   help="flue-gas pressure for the water dew point (default 101.325kPa)")
-    p.add_argument("--json", action="store_true", help="all figures as one JSON object (units under 'units')")
+    p.add_argument("--flue-pressure", default=None, metavar="P",
+                   help="flue-gas pressure for the water dew point (default 101.325kPa; gauge values "
+                        "such as 5mbarg are read against --barometer)")
+    add_unit_options(p, flow="fuel flow, e.g. 50kg/h, 1.2t/h, 400lb/h, or for a gas 120Nm3/h, 2000SCFM, "
+                             "5kmol/h: adds heat input and flue-gas and air flows")
+    p.add_argument("--json", action="store_true",
+                   help="all figures as one JSON object (SI-based; units under 'units', input as typed under 'input')")
 
 
 def _percent(text, what):
@@ -99,16 +116,39 @@ def measured_o2(text, what) -> tuple[float, float | None]:
     return read(text, what)
 
 
+#: Defaults of the condition options (None in argparse, so that typed values can be told apart).
+CONDITION_DEFAULTS = {"ref_temperature": "25C", "metering": "0C,101.325kPa", "fuel_temperature": "25C",
+                      "oxidant_temperature": "25C", "flue_pressure": "101.325kPa"}
+
+
+def _given(args, key):
+    v = getattr(args, key)
+    return CONDITION_DEFAULTS[key] if v is None else v
+
+
+def typed_values(args) -> tuple[list[str], list[str]]:
+    """Temperatures and pressures the user typed (not the defaults), in the order of the options."""
+    T = [args.ref_temperature, args.fuel_temperature, args.oxidant_temperature]
+    P = [args.flue_pressure]
+    if args.metering is not None and len(str(args.metering).split(",")) == 2:
+        t, p = str(args.metering).split(",")
+        T.insert(1, t)
+        P.append(p)
+    return [t for t in T if t is not None], [p for p in P if p is not None]
+
+
 def compute(args):
     from ..burn import combustion
-    from ..units import pressure_Pa, temperature_K
-    ref = str(args.ref_temperature).replace(" ", "").replace("°", "")
+    from ..units import barometer_Pa, pressure_Pa, temperature_K
+    ref_text = _given(args, "ref_temperature")
+    ref = str(ref_text).replace(" ", "").replace("°", "")
     if ref not in REF_CHOICES:
-        raise TablegenError(f"--ref-temperature {args.ref_temperature!r} is not allowed; allowed: "
+        raise TablegenError(f"--ref-temperature {ref_text!r} is not allowed; allowed: "
                             f"25C, 20C, 15.55C (60F), 15C, 0C (ISO 6976)")
-    parts = str(args.metering).split(",")
+    metering = _given(args, "metering")
+    parts = str(metering).split(",")
     if len(parts) != 2:
-        raise TablegenError(f"--metering {args.metering!r}: give T,P, e.g. 15C,101.325kPa")
+        raise TablegenError(f"--metering {metering!r}: give T,P, e.g. 15C,101.325kPa")
     amount = {}
     if args.excess_air is not None:
         amount["excess_air"] = _percent(args.excess_air, "--excess-air")
@@ -128,8 +168,42 @@ def compute(args):
                                                                            "--fuel-temperature"),
         T_oxidant_K=None if args.oxidant_temperature is None else temperature_K(args.oxidant_temperature,
                                                                                  "--oxidant-temperature"),
-        P_flue_Pa=pressure_Pa(args.flue_pressure, "--flue-pressure"),
+        P_flue_Pa=pressure_Pa(_given(args, "flue_pressure"), "--flue-pressure",
+                              barometer_Pa=barometer_Pa(args.barometer)),
         data=args.data, source=args.source, **amount)
+
+
+def flow_figures(r, flow) -> dict:
+    """Flows at a fuel flow: heat input = heating value × fuel flow; gas flows = per-kg figures × fuel flow."""
+    s = r.summary
+    m = flow.mass_kg_per_s(r.fuel.M, "--flow")
+    return {"fuel_mass_flow": m, "heat_input_lhv": s["lhv_mass"] * 1e3 * m, "heat_input_hhv": s["hhv_mass"] * 1e3 * m,
+            "flue_gas_mass_flow_wet": s["flue_gas_mass_wet_per_kg"] * m,
+            "flue_gas_mass_flow_dry": s["flue_gas_mass_dry_per_kg"] * m,
+            "flue_gas_volume_flow_wet": s["flue_gas_volume_wet_per_kg"] * m,
+            "flue_gas_volume_flow_dry": s["flue_gas_volume_dry_per_kg"] * m,
+            "oxidant_mass_flow": s["afr_mass"] * m, "oxidant_volume_flow": s["oxidant_volume_per_kg"] * m}
+
+
+def render_flow(f: dict, flow, sh, norm: str) -> list[str]:
+    """The flow block: heat input in kW and MMBtu/h, gas flows in normal m³/h and kg/s."""
+    from ..display import fmt_sig
+    from ..units import unit
+    mm = unit("MMBtu/h").factor
+    kgs = f["fuel_mass_flow"]
+    same = [f"{fmt_sig(kgs * 3600)} kg/h", f"{fmt_sig(kgs)} kg/s"]
+    same = [t for t in same if t.split()[1] != flow.unit.symbol]
+    out = [f"At a fuel flow of {flow.text} ({', '.join(same)})"]
+    rows = [("heat input, LHV basis", f"{fmt_sig(f['heat_input_lhv'])} kW",
+             f"{fmt_sig(f['heat_input_lhv'] * 1e3 / mm)} MMBtu/h"),
+            ("heat input, HHV basis", f"{fmt_sig(f['heat_input_hhv'])} kW",
+             f"{fmt_sig(f['heat_input_hhv'] * 1e3 / mm)} MMBtu/h"),
+            ("flue gas, wet", f"{fmt_sig(f['flue_gas_volume_flow_wet'] * 3600)} m³/h",
+             f"{fmt_sig(f['flue_gas_mass_flow_wet'])} kg/s"),
+            ("flue gas, dry", f"{fmt_sig(f['flue_gas_volume_flow_dry'] * 3600)} m³/h",
+             f"{fmt_sig(f['flue_gas_mass_flow_dry'])} kg/s"),
+            ("oxidant", f"{fmt_sig(f['oxidant_volume_flow'] * 3600)} m³/h", f"{fmt_sig(f['oxidant_mass_flow'])} kg/s")]
+    return out + _table(("", "", ""), rows)[1:] + [f"  gas volumes per hour: {norm}"]
 
 
 def _fmt(v, f="{:.4f}"):
@@ -148,17 +222,29 @@ def _table(head, rows) -> list[str]:
     return out
 
 
-def render_text(r) -> str:
+def _T(sh, T_K: float, decimals: int) -> str:
+    """'52.2 °C' in the shown unit, with the absolute scale beside: '52.2 °C (325.4 K)'."""
+    from ..units import unit
+    t = f"{unit(sh.T).from_si(T_K):.{decimals}f} {sh.T}"
+    return t + (f" ({unit(sh.T_abs).from_si(T_K):.{decimals}f} {sh.T_abs})" if sh.T_abs else "")
+
+
+def render_text(r, sh=None, flow=None, flows=None) -> str:
+    from ..display import choose
+    from ..units import unit
+    sh = sh or choose()
     s = r.summary
     f, ox = r.fuel, r.oxidant
     gas = f.kind == "gas"
     Tm, Pm = s["metering_T_K"], s["metering_P_Pa"]
-    norm = f"normal m³ = {Tm - 273.15:g} °C, {Pm / 1000:g} kPa"
+    norm = f"normal m³ = {unit(sh.T).from_si(Tm):g} {sh.T}, {Pm / 1000:g} kPa"
     out = [f"Combustion of {f.name}" + (f" (M = {f.M:.4f} kg/kmol)" if f.M else ""),
            f"  oxidant: {oxidant_text(ox)}",
            f"  λ = {s['lambda']:.4f}   excess air = {s['excess_air_percent']:.2f} %   φ = {s['phi']:.4f}"
            + amount_text(s),
            f"  volumes: {norm}, ideal gas", ""]
+    if flows is not None:
+        out += render_flow(flows, flow, sh, norm) + [""]
     rows = [("mass [kg/kg]", _fmt(s["afr_mass_stoich"]), _fmt(s["afr_mass"]))]
     if ox.y_H2O > 0:
         rows.append(("mass, dry oxidant [kg/kg]", _fmt(s["afr_mass_dry_oxidant_stoich"]),
@@ -187,8 +273,10 @@ def render_text(r) -> str:
         rows.append(("ash [kg/kg fuel]", _fmt(s["ash_mass_per_kg"]), ""))
     out += ["", "Flue-gas quantities"] + _table(("", "wet", "dry"), rows)
     dp = s["dew_point_K"]
-    out += ["", f"Water dew point at {s['flue_pressure_Pa'] / 1000:g} kPa: " +
-            (f"{dp:.1f} K ({dp - 273.15:.1f} °C); water partial pressure "
+    from .process_text import pressure_text
+    flue_P = pressure_text(sh, s["flue_pressure_Pa"]) if sh.P_gauge else f"{s['flue_pressure_Pa'] / 1000:g} kPa"
+    out += ["", f"Water dew point at {flue_P}: " +
+            (f"{_T(sh, dp, 1)}; water partial pressure "
              f"{s['water_partial_pressure_Pa'] / 1000:.4f} kPa" if dp is not None else s["dew_point_note"])]
     Tr = s["combustion_reference_T_K"]
     rows = [("per kg [MJ/kg]", f"{s['lhv_mass']:.3f}", f"{s['hhv_mass']:.3f}")]
@@ -196,15 +284,15 @@ def render_text(r) -> str:
         rows.append(("per kmol [MJ/kmol]", f"{s['lhv_molar']:.2f}", f"{s['hhv_molar']:.2f}"))
     if s["lhv_volume"] is not None:
         rows.append(("per normal m³ [MJ/m³]", f"{s['lhv_volume']:.3f}", f"{s['hhv_volume']:.3f}"))
-    out += ["", f"Heating values, combustion reference temperature {Tr - 273.15:.2f} °C "
+    out += ["", f"Heating values, combustion reference temperature {_T(sh, Tr, 2)} "
                 f"(Δh_vap of water {s['h_vap_water_J_per_kg'] / 1000:.2f} kJ/kg)"] + \
         _table(("", "LHV", "HHV"), rows)
     Ta = s["t_adiabatic_K"]
     out += ["", "Adiabatic flame temperature: " +
-            (f"{Ta:.0f} K ({Ta - 273.15:.0f} °C)" if Ta is not None else
+            (_T(sh, Ta, 0) if Ta is not None else
              f"above {r.products.T_max:g} K, the end of the data (not given)") +
-            f", fuel at {s['T_fuel_K'] - 273.15:g} °C ({s.get('T_fuel_source', 'given')}), oxidant at "
-            f"{s['T_oxidant_K'] - 273.15:g} °C ({s.get('T_oxidant_source', 'given')})"]
+            f", fuel at {unit(sh.T).from_si(s['T_fuel_K']):g} {sh.T} ({s.get('T_fuel_source', 'as given')}), "
+            f"oxidant at {unit(sh.T).from_si(s['T_oxidant_K']):g} {sh.T} ({s.get('T_oxidant_source', 'as given')})"]
     if r.uncertainty is not None:
         out += ["", *uncertainty_lines(r)]
     out += ["", "Notes"] + [f"  - {n}" for n in s["notes"]]
@@ -269,14 +357,27 @@ def uncertainty_lines(r) -> list[str]:
 
 
 def run(args) -> int:
+    from ..display import choose
+    from ..units import barometer_Pa, parse_flow
     from .common import data_notices
     data_notices(args)
+    flow = parse_flow(args.flow) if args.flow is not None else None
+    typed_T, typed_P = typed_values(args)
+    sh = choose(system=args.units, T_unit=args.T_unit, P_unit=args.P_unit, typed_T=typed_T, typed_P=typed_P,
+                typed_other=[args.flow] if args.flow else [], barometer_Pa=barometer_Pa(args.barometer))
     r = compute(args)
+    flows = flow_figures(r, flow) if flow is not None else None
     if args.json:
         obj = dict(r.summary)
-        obj["units"] = UNITS
+        obj["units"] = dict(UNITS)
         obj["products_substance"] = r.products.id
+        obj["input"] = {k: v for k, v in (("fuel", args.fuel), ("oxidant", args.oxidant), ("flow", args.flow),
+                                          ("barometer", args.barometer),
+                                          *((k, getattr(args, k)) for k in CONDITION_DEFAULTS)) if v is not None}
+        if flows is not None:
+            obj["flow"] = flows
+            obj["units"]["flow"] = FLOW_UNITS
         sys.stdout.write(dumps(obj))
     else:
-        sys.stdout.write(render_text(r))
+        sys.stdout.write(render_text(r, sh, flow, flows))
     return 0

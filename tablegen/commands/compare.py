@@ -1,7 +1,8 @@
-"""tablegen compare: QA comparison of generated values against a reference table.
+"""tablegen compare: QA comparison of generated values against a reference table or book.
 
-Exit status 0 when every compared cell is within tolerance, 1 when any is not,
-2 for bad input, so the command can gate a QA pipeline.
+Exit status, one meaning each: 0 every compared cell is within tolerance, 1 some
+cell is not, 2 bad input (the reference or the options; nothing written), 3 an
+output problem (files exist without --force, or cannot be written).
 """
 
 from __future__ import annotations
@@ -10,38 +11,62 @@ import re
 import sys
 from pathlib import Path
 
+from ..errors import TablegenError
 from .common import add_datum_options, dumps, notice, substance_with_options
 
-EXAMPLE = """example:
-  tablegen compare N2 janaf-n2.csv --tolerance cp_molar=0.5% --tolerance dh298_molar=0.5%+0.001
+EXAMPLE = """REFERENCE: CSV or whitespace-separated text; header cells 'key [unit]' (keys of the
+state JSON: cp, cv, k, h, u, s0, g0, Pr, vr, a, cp_molar, h_molar, s0_molar,
+dh298_molar, ...; temperature column T), '#' starts a comment line. With a book spec,
+REFERENCE may be a folder: each table is matched to the CSV of the same name (a
+tablegen book folder, through its JSON sidecar), or to the file a --map file names.
+
+Tolerances carry their unit or %: cp=0.5%, h=0.5kJ/kg, h=0.1%+0.2kJ/kg; a bare
+number is refused. Hints (on stderr, in summary.json and on page 1) name a constant
+offset, a 1 atm reference pressure or another Pr/vr anchor; they never change the verdict.
+
+Exit status: 0 all cells within tolerance, 1 some cell out of tolerance, 2 bad input
+(the reference or the options; nothing written), 3 an output problem (files exist
+without --force, or cannot be written).
+
+example:
+  tablegen compare N2 janaf-n2.csv --tolerance cp_molar=0.5% --tolerance dh298_molar=0.5%+0.001kJ/mol
   tablegen compare air air-rev-b.txt --h-datum sensible:0C --align Pr=scale --align vr=scale
-  tablegen compare CO2 earlier-issue.csv --columns cp,h --tolerance h=0.2 --out qa/co2 --json
+  tablegen compare CO2 earlier-issue.csv --columns cp,h --tolerance h=0.2kJ/kg --out qa/co2 --json
   tablegen build plant-tables.toml
   tablegen compare plant-tables.toml output/plant-tables/flue-nm3.csv --table flue-nm3
+  tablegen compare plant-tables.toml output/plant-tables --tolerance cp=0.2%
 
-The files named here are in the project's docs/examples/ folder.
-
-REFERENCE: CSV or whitespace-separated text; header cells 'key [unit]' (keys of the
-state JSON: cp, cv, k, h, u, s0, g0, Pr, vr, a, cp_molar, h_molar, s0_molar,
-dh298_molar, ...; temperature column T), '#' starts a comment line.
-Exit status: 0 all cells within tolerance, 1 some cell out of tolerance, 2 bad input."""
+The files named here are in the project's docs/examples/ folder."""
 
 FILES = ("report.pdf", "deviations.csv", "summary.json")
+#: Exit status of an output problem (bad input is 2, as for every command).
+EXIT_OUTPUT = 3
+
+
+class OutputProblem(TablegenError):
+    """The comparison succeeded but its files cannot be written (exit 3)."""
+
+    exit_status = EXIT_OUTPUT
 
 
 def add_arguments(p):
     p.epilog = EXAMPLE
     p.add_argument("substance", metavar="SUBSTANCE-OR-SPEC",
                    help="species id or alias, shipped mixture, composition (NAME=x,NAME=y), or a table-book spec (*.toml)")
-    p.add_argument("reference", metavar="REFERENCE", help="reference table (CSV or whitespace-separated text)")
+    p.add_argument("reference", metavar="REFERENCE",
+                   help="reference table (CSV or whitespace-separated text), or with a spec a folder of them")
     p.add_argument("--columns", default=None, metavar="KEYS",
                    help="comma-separated keys to compare (default: every property column of REFERENCE)")
-    p.add_argument("--tolerance", action="append", default=[], metavar="COL=VALUE[%]",
-                   help="tolerance of a column, repeatable: relative (cp=0.1%%), absolute in the column's "
-                        "unit (h=0.5) or with a unit (h=0.5kJ/kg), or both (h=0.1%%+0.2); "
-                        "defaults: cp and mean cp 0.5%%; h, u, s0 0.5%% of the change since 298.15 K "
-                        "plus a small floor; k, a 0.25%%; Pr, vr 2%% (docs/compare.md)")
-    p.add_argument("--align", action="append", default=[], metavar="COL=offset|scale",
+    p.add_argument("--tolerance", action="append", default=[], metavar="[TABLE/]COL=VALUE",
+                   help="tolerance of a column, repeatable; with a unit or %%: relative (cp=0.1%%), "
+                        "absolute (h=0.5kJ/kg), or both (h=0.1%%+0.2kJ/kg); with a folder it applies to "
+                        "every table with that column, TABLE/COL=... to one; defaults: cp and mean cp "
+                        "0.5%%; h, u, s0 0.5%% of the change since 298.15 K plus a small floor; k, a 0.25%%; "
+                        "Pr, vr 2%% (docs/compare.md)")
+    p.add_argument("--allow-wide", action="store_true",
+                   help="accept a tolerance over 20%% relative or wider than the column's range "
+                        "(stated on page 1 of the report)")
+    p.add_argument("--align", action="append", default=[], metavar="[TABLE/]COL=offset|scale",
                    help="fit and report a constant before judging, repeatable: offset for h, u, s0, "
                         "h_molar, u_molar, s0_molar, dh298_molar; scale for Pr, vr")
     p.add_argument("--mean-from", default=None, metavar="T",
@@ -51,10 +76,15 @@ def add_arguments(p):
                    help="reference conditions of per-m³ columns (cp_vol, h_vol, ...): normal (default, "
                         "0 °C and 101.325 kPa), standard-15C, standard-60F, or T,P (e.g. 20C,1atm); "
                         "a spec uses its own")
-    p.add_argument("--table", default=None, metavar="NAME",
-                   help="with a spec file: the table to compare (needed when the spec has several)")
+    p.add_argument("--table", default=None, metavar="NAME[,NAME...]",
+                   help="with a spec file: the table to compare (needed for one reference file when the "
+                        "spec has several); with a folder, the tables to compare (default: all)")
+    p.add_argument("--map", default=None, metavar="MAP.toml",
+                   help="with a folder: reference file of each table whose file has another name "
+                        "([tables] name = \"file.csv\")")
     p.add_argument("--out", default=None, metavar="DIR",
-                   help="folder for report.pdf, deviations.csv, summary.json (default output/compare-NAME/)")
+                   help="folder for report.pdf, deviations.csv, summary.json (default "
+                        "output/compare-NAME-vs-REFERENCE/)")
     p.add_argument("--force", action="store_true", help="overwrite existing output files")
     p.add_argument("--json", action="store_true", help="print the JSON summary on stdout")
     add_datum_options(p)
@@ -62,23 +92,30 @@ def add_arguments(p):
     p.set_defaults(h_datum=None, p_ref=None, anchor=None)
 
 
+def _is_spec(target: str) -> bool:
+    return target.lower().endswith(".toml")
+
+
+def _refuse_datum_options(args, target):
+    given = [o for o, v in (("--h-datum", args.h_datum), ("--p-ref", args.p_ref),
+                            ("--anchor", args.anchor), ("--mean-from", args.mean_from),
+                            ("--vol-ref", args.vol_ref)) if v is not None]
+    if given:
+        raise TablegenError(f"{given[0]} applies to a substance name; a spec table carries its own "
+                            f"datum, P° and anchor (set them in the spec)")
+
+
+def load_spec(args):
+    from .. import spec as spec_module
+    return spec_module.load(args.substance, source=args.source, data=args.data)
+
+
 def resolve(args):
     """The substance to compare (datum, P° and anchor applied) and its display name."""
-    from ..errors import TablegenError
     target = args.substance
-    if target.lower().endswith(".toml"):
-        given = [o for o, v in (("--h-datum", args.h_datum), ("--p-ref", args.p_ref),
-                                ("--anchor", args.anchor), ("--mean-from", args.mean_from),
-                                ("--vol-ref", args.vol_ref)) if v is not None]
-        if given:
-            raise TablegenError(f"{given[0]} applies to a substance name; a spec table carries its own "
-                                f"datum, P° and anchor (set them in the spec)")
-        try:
-            from .. import spec as spec_module
-        except ImportError:
-            raise TablegenError(f"{target}: reading spec files needs the table-book module (tablegen.spec), "
-                                f"which this build lacks; give a substance name instead") from None
-        book = spec_module.load(target, source=args.source, data=args.data)
+    if _is_spec(target):
+        _refuse_datum_options(args, target)
+        book = load_spec(args)
         tables = list(book.tables)
         if args.table is not None:
             hit = [t for t in tables if t.name == args.table]
@@ -90,12 +127,12 @@ def resolve(args):
             table = tables[0]
         else:
             raise TablegenError(f"{target} holds {len(tables)} tables; choose one with --table NAME "
-                                f"({', '.join(t.name for t in tables)})")
+                                f"({', '.join(t.name for t in tables)}), or give a reference folder")
         r = book.document.reference
         if getattr(table, "extrapolate", False):
             args.extrapolate = True          # the table itself was built with extrapolation (marked)
         return (table.substance, table.name, f"{target} [{table.name}]", float(table.T_mean_ref_K),
-                (float(r.T_K), float(r.P_Pa), r.text))
+                (float(r.T_K), float(r.P_Pa), r.text), True)
     if args.table is not None:
         raise TablegenError("--table applies to a spec file (*.toml), not to a substance name")
     sub = substance_with_options(args, target)
@@ -103,13 +140,12 @@ def resolve(args):
     if args.mean_from is not None:
         from ..units import temperature_K
         T_m = temperature_K(args.mean_from, "--mean-from")
-    return sub, sub.id, sub.id, T_m, volume_reference(args.vol_ref)
+    return sub, sub.id, sub.id, T_m, volume_reference(args.vol_ref), False
 
 
 def volume_reference(text):
     """--vol-ref: a named set of reference conditions or 'T,P'; None for the default."""
     from ..compare import VOLUME_REFERENCES
-    from ..errors import TablegenError
     from ..units import pressure_Pa, temperature_K
     if text is None:
         return None
@@ -143,28 +179,36 @@ def safe_name(text: str) -> str:
     return s or "substance"
 
 
-def compute(args):
-    """Read, check and compare; returns (Comparison, {path: bytes})."""
-    from ..compare import compare, deviations_csv, parse_align, parse_tolerance, read_reference, summary
-    from ..errors import TablegenError
+def default_out(name: str, reference: str) -> Path:
+    """output/compare-NAME-vs-REFERENCE/: named after what is checked and the reference file or
+    folder, so two references of one gas never share a folder."""
+    ref = Path(reference)
+    stem = ref.resolve().name if ref.is_dir() else ref.stem
+    return Path("output") / f"compare-{safe_name(name)}-vs-{safe_name(stem)}"
 
-    sub, name, target_label, T_m, vol_ref = resolve(args)
-    ref = read_reference(args.reference)
+
+def _keys(args, ref, notes: list) -> list:
     if args.columns is not None:
         keys = [k.strip() for k in args.columns.split(",")]
         if not all(keys):
             raise TablegenError(f"--columns {args.columns!r}: give comma-separated keys, e.g. cp,h,s0")
-    else:
-        keys = list(ref.keys)
-        skipped = [k for k in keys if k not in ref.comparable_keys]
-        if skipped and ref.comparable_keys:
-            keys = list(ref.comparable_keys)
-            notice(args, f"note: columns {', '.join(skipped)} of {ref.path} cannot be evaluated and are "
-                         f"not compared; name the columns with --columns to silence this")
-    for k in keys:
-        if k not in ref.keys:
-            raise TablegenError(f"--columns: {k!r} is not a column of {ref.path}; its columns: {', '.join(ref.keys)}")
-    units = {k: tuple(c.unit for c in ref.columns_of(k)) for k in keys}
+        for k in keys:
+            if k not in ref.keys:
+                raise TablegenError(f"--columns: {k!r} is not a column of {ref.path}; "
+                                    f"its columns: {', '.join(ref.keys)}")
+        return keys
+    keys = list(ref.keys)
+    skipped = [k for k in keys if k not in ref.comparable_keys]
+    if skipped and ref.comparable_keys:
+        keys = list(ref.comparable_keys)
+        notes.append(f"note: columns {', '.join(skipped)} of {ref.path} cannot be evaluated and are "
+                     f"not compared; name the columns with --columns to silence this")
+    return keys
+
+
+def parse_column_options(args, units: dict):
+    """--tolerance and --align of one table: {key: Tolerance}, {key: kind}."""
+    from ..compare import parse_align, parse_tolerance
     tolerances, align = {}, {}
     for t in args.tolerance:
         k, tol = parse_tolerance(t, units)
@@ -172,39 +216,80 @@ def compute(args):
             raise TablegenError(f"--tolerance: column {k!r} is given twice; give one tolerance a column")
         tolerances[k] = tol
     for a in args.align:
-        k, kind = parse_align(a, keys)
+        k, kind = parse_align(a, list(units))
         if k in align:
             raise TablegenError(f"--align: column {k!r} is given twice")
         align[k] = kind
+    return tolerances, align
+
+
+def compute(args):
+    """Read, check and compare one reference table; returns (Comparison, {path: bytes}, notes)."""
+    from ..compare import compare, read_reference
+    from ..compare_output import deviations_csv, summary
+
+    sub, name, target_label, T_m, vol_ref, is_spec = resolve(args)
+    ref = read_reference(args.reference)
+    notes = []
+    keys = _keys(args, ref, notes)
+    units = {k: tuple(c.unit for c in ref.columns_of(k)) for k in keys}
+    tolerances, align = parse_column_options(args, units)
     options = {"target": target_label, "reference": args.reference, "columns": keys,
                "tolerance": list(args.tolerance), "align": list(args.align),
-               "extrapolate": bool(args.extrapolate),
+               "extrapolate": bool(args.extrapolate), "allow_wide": bool(args.allow_wide),
                "h_datum": args.h_datum, "p_ref": args.p_ref, "anchor": args.anchor,
                "mean_from": args.mean_from, "vol_ref": args.vol_ref, "table": args.table,
                "data_files": data_files(sub, args)}
     cmp = compare(sub, ref, columns=keys, tolerances=tolerances, align=align,
-                  extrapolate=args.extrapolate, T_mean_ref_K=T_m, volume_reference=vol_ref, options=options)
+                  extrapolate=args.extrapolate, T_mean_ref_K=T_m, volume_reference=vol_ref, options=options,
+                  allow_wide=args.allow_wide, spec_table=is_spec)
     from ..book.qa_report import render_pdf
-    out = Path(args.out) if args.out else Path("output") / f"compare-{safe_name(name)}"
+    out = Path(args.out) if args.out else default_out(name, args.reference)
     files = {out / "report.pdf": render_pdf(cmp),
              out / "deviations.csv": deviations_csv(cmp),
              out / "summary.json": dumps(summary(cmp))}
-    return cmp, files
+    return cmp, files, notes
 
 
-def text_summary(cmp) -> str:
-    from ..compare import KEY_LABELS, format_dev
+def write_outputs(files: dict, force: bool) -> None:
+    """Write every file through tablegen.outfiles; any fault is an output problem (exit 3).
+
+    Files this run created are removed again if a later one cannot be written, so a
+    failed run leaves no new file behind.
+    """
+    from ..outfiles import write_all
+    created = [Path(p) for p in files if not Path(p).exists()]
+    try:
+        write_all(files, force)
+    except TablegenError as e:
+        raise OutputProblem(str(e)) from None
+    except OSError as e:
+        for p in created:
+            try:
+                p.unlink()
+            except OSError:
+                pass
+        where = e.filename or next(iter(files))
+        raise OutputProblem(f"cannot write {where}: {e.strerror or e}; free space, fix the folder's "
+                            f"permissions, or choose another --out folder") from None
+
+
+def text_summary(cmp, label: str = "") -> str:
+    from ..compare import KEY_LABELS
+    from ..compare_output import format_dev, format_size, unit_suffix
     ref = cmp.reference
-    lines = [cmp.verdict, f"  {cmp.substance['id']} against {ref.path} ({len(ref.lines)} rows, "
+    lines = [cmp.verdict, f"  {label or cmp.substance['id']} against {ref.path} ({len(ref.lines)} rows; "
                           f"{', '.join(c.key for c in cmp.columns)})"]
     al = [c.alignment for c in cmp.columns if c.alignment is not None]
     if al:
         lines.append("alignment (fitted before judging):")
         for a in al:
-            lines.append(f"  {a.key}: {a.kind} {a.value_in_unit:.9g} {a.unit if a.kind == 'offset' else ''}".rstrip()
-                         + f"  (RMS Δ {a.rms_before:.3g} -> {a.rms_after:.3g})")
+            lines.append(f"  {a.meaning}; RMS Δ {format_size(a.rms_before)} before, "
+                         f"{format_size(a.rms_after)} after")
     else:
         lines.append("alignment: none")
+    for w in cmp.wide:
+        lines.append(f"wide tolerance (accepted with --allow-wide): {w['column']}={w['tolerance']}: {w['reason']}")
     head = ("column", "unit", "tolerance", "cells", "out", "max |Δ|", "at T", "mean Δ", "RMS Δ", "max |Δ/ref|")
     rows = [head]
     for c in cmp.columns:
@@ -212,21 +297,34 @@ def text_summary(cmp) -> str:
         if not s["n"]:
             rows.append((c.key, c.unit.symbol, c.tolerance.text, "0", "0", "—", "—", "—", "—", "—"))
             continue
-        rel = f"{s['max_rel'] * 100:.3g} %" if "max_rel" in s else "—"
+        rel = f"{format_size(s['max_rel'] * 100)} %" if "max_rel" in s else "—"
         rows.append((c.key, c.unit.symbol, c.tolerance.text, str(s["n"]), str(s["n_out"]),
-                     f"{s['max_abs']:.3g}", f"{s['max_at_T']} {ref.T_unit.symbol}", format_dev(s["mean"]),
-                     f"{s['rms']:.3g}", rel))
+                     format_size(s["max_abs"]), f"{s['max_at_T']} {ref.T_unit.symbol}", format_dev(s["mean"]),
+                     format_size(s["rms"]), rel))
     w = [max(len(r[j]) for r in rows) for j in range(len(head))]
     for r in rows:
         lines.append("  " + "  ".join(x.ljust(w[j]) if j < 3 else x.rjust(w[j]) for j, x in enumerate(r)))
     bad = cmp.out_cells()
+    explained = {h.column for h in cmp.hints if h.kind != "offset-except"}
+    if explained:                # a column one constant explains: its first cells show the pattern
+        seen = {}
+        kept = []
+        for b in bad:
+            seen[b["column"]] = seen.get(b["column"], 0) + 1
+            if b["column"] not in explained or seen[b["column"]] <= 2:
+                kept.append(b)
+        for k in sorted(explained):
+            if seen.get(k, 0) > 2:
+                lines.append(f"{k}: {seen[k]} cells out of tolerance, all explained by one constant "
+                             f"(hint on stderr); the first 2 are listed")
+        bad = kept
     if bad:
         lines.append("out of tolerance:")
         for b in bad[:50]:
-            lines.append(f"  line {b['line']}: T = {b['T']} {ref.T_unit.symbol}, {b['column']} "
-                         f"({KEY_LABELS[b['column']]}): reference {b['reference_text']}, tablegen "
-                         f"{b['tablegen']:.6g}, Δ = {format_dev(b['deviation'])} {b['unit']} "
-                         f"(allowed ±{b['bound']:.2g})")
+            u = unit_suffix(b["unit"])
+            lines.append(f"  line {b['line']}: T = {b['T']} {ref.T_unit.symbol}, {KEY_LABELS[b['column']]}: "
+                         f"reference {b['reference_text']}{u}, tablegen {b['tablegen']:.6g}{u}, "
+                         f"Δ = {format_dev(b['deviation'])}{u}, allowed ±{format_size(b['bound'])}{u}")
         if len(bad) > 50:
             lines.append(f"  ... and {len(bad) - 50} more (see deviations.csv)")
     if cmp.extrapolated.any():
@@ -236,17 +334,30 @@ def text_summary(cmp) -> str:
     return "\n".join(lines) + "\n"
 
 
+def hint_lines(hints, prefix: str = "") -> list[str]:
+    return [f"hint: {prefix}{h.text}" for h in hints]
+
+
 def run(args) -> int:
     from .common import data_notices
     data_notices(args)
-    from ..compare import summary
-    from ..outfiles import write_all
-    cmp, files = compute(args)
-    write_all(files, args.force)
+    if Path(args.reference).is_dir():
+        from .compare_book import run_book
+        return run_book(args)
+    from ..compare_hints import suggested_options
+    from ..compare_output import summary
+    cmp, files, notes = compute(args)
+    write_outputs(files, args.force)
+    for n in notes:
+        notice(args, n)
     if args.json:
         sys.stdout.write(dumps(summary(cmp)))
     else:
-        sys.stdout.write(text_summary(cmp))
+        sys.stdout.write(text_summary(cmp, cmp.options.get("target", "")))
+    for line in hint_lines(cmp.hints):
+        notice(args, line)
+    if cmp.hints:
+        notice(args, f"hint: together: {' '.join(suggested_options(cmp.hints))}")
     folder = Path(next(iter(files))).parent
     notice(args, f"wrote {folder}/: {', '.join(FILES)}")
     return 0 if cmp.passed else 1

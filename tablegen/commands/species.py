@@ -31,7 +31,10 @@ def add_arguments(p):
 
 
 def rows(lib, all_sets: bool):
-    recs = [r for d in lib.search_order for r in lib.datasets[d].records()] if all_sets else lib.all_records()
+    if all_sets:
+        recs = [ds.summary(i) for d in lib.search_order for ds in [lib.datasets[d]] for i in range(len(ds))]
+    else:
+        recs = lib.all_summaries()
     for r in recs:
         yield {"id": r.id, "name": r.name, "formula": "".join(f"{e}{'' if n == 1 else n}" for e, n in r.elements.items()),
                "M": r.M, "T_min_K": r.T_min, "T_max_K": r.T_max, "form": r.form, "source": r.dataset,

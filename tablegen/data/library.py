@@ -117,6 +117,42 @@ class Record:
         return f"{self.citation}{note}"
 
 
+_PLAIN_STRINGS = re.compile(r'^\[\s*(?:"[^"\\\n]*"\s*(?:,\s*"[^"\\\n]*"\s*)*,?\s*)?\]$')
+_PLAIN_STRING = re.compile(r'"([^"\\\n]*)"')
+
+
+def _aliases(array_text: str) -> list[str]:
+    """The strings of a TOML array of aliases; plain ones read by a pattern, anything
+    else (escapes, other quoting) by the TOML parser."""
+    if _PLAIN_STRINGS.match(array_text):
+        return _PLAIN_STRING.findall(array_text)
+    try:
+        return [str(x) for x in tomllib.loads("a = " + array_text)["a"]]
+    except tomllib.TOMLDecodeError:
+        return []
+
+
+@dataclass(frozen=True, slots=True)
+class Summary:
+    """What a listing shows of a record, read without building or validating it."""
+
+    id: str
+    name: str
+    aliases: tuple
+    elements: dict
+    M: float
+    T_min: float
+    T_max: float
+    form: str
+    dataset: str
+    source_note: str
+
+
+def _summary_of(rec: Record) -> Summary:
+    return Summary(rec.id, rec.name, rec.aliases, rec.elements, rec.M, rec.T_min, rec.T_max, rec.form,
+                   rec.dataset, rec.source_note)
+
+
 class Dataset:
     """A gasdata file, parsed lazily record by record."""
 
@@ -170,11 +206,8 @@ class Dataset:
                 others.setdefault(norm_name(n.group(1)), i)
             a = self._ALIASES.search(block)
             if a:
-                try:
-                    for alias in tomllib.loads("a = " + a.group(1))["a"]:
-                        others.setdefault(norm_name(str(alias)), i)
-                except tomllib.TOMLDecodeError:
-                    pass
+                for alias in _aliases(a.group(1)):
+                    others.setdefault(norm_name(alias), i)
         return {**others, **ids}
 
     @cached_property
@@ -214,6 +247,34 @@ class Dataset:
 
     def records(self) -> list[Record]:
         return [self._parse(i) for i in range(len(self._blocks))]
+
+    @cached_property
+    def _whole(self) -> list | None:
+        """Every raw record from one parse of the whole file (None if it does not parse:
+        then the records are read one by one and the bad one is named)."""
+        try:
+            out = tomllib.loads(self.text).get("species", [])
+        except tomllib.TOMLDecodeError:
+            return None
+        return out if isinstance(out, list) and len(out) == len(self._blocks) else None
+
+    def summary(self, i: int) -> Summary:
+        """A listing's view of record i: from the built record if there is one, else from
+        one parse of the whole file (no polynomial, no validation)."""
+        if i in self._cache:
+            return _summary_of(self._cache[i])
+        raw = self._whole[i] if self._whole is not None else None
+        try:
+            return Summary(
+                id=str(raw["id"]), name=str(raw.get("name", raw["id"])),
+                aliases=tuple(str(a) for a in raw.get("aliases", [])),
+                elements={str(k): v for k, v in raw["elements"].items()},
+                M=self.weights.molar_mass(raw["elements"], ""),
+                T_min=float(raw["T_bounds_K"][0]), T_max=float(raw["T_bounds_K"][-1]),
+                form=former_names.form(str(raw["form"])), dataset=self.id,
+                source_note=str(raw.get("source_note", "")))
+        except (TypeError, KeyError, IndexError, ValueError, DataError):
+            return _summary_of(self._parse(i))      # builds it, or names what is wrong
 
     def _parse(self, i: int) -> Record:
         if i in self._cache:
@@ -276,6 +337,9 @@ class CardDataset(Dataset):
     @cached_property
     def ids(self) -> list[str]:
         return [r.raw["id"] for r in self._raws]
+
+    def summary(self, i: int) -> Summary:
+        return _summary_of(self._parse(i))     # user files are built and validated on load
 
     def _parse(self, i: int) -> Record:
         if i in self._cache:
@@ -585,6 +649,22 @@ class Library:
         ids = list(dict.fromkeys(pool[c] for c in close))
         hint = f"closest matches: {', '.join(ids)}" if ids else "run 'tablegen species' for the list"
         return f"unknown substance {name!r}; {hint}"
+
+    def all_summaries(self) -> list[Summary]:
+        """all_records() as summaries, without building a record (the species listing)."""
+        seen, out = set(), []
+        for d in self.search_order:
+            for sid in self.datasets[d].ids:
+                if sid in seen:
+                    continue
+                seen.add(sid)
+                where = self._resolves_to(sid)
+                if where is None:
+                    out.append(_summary_of(self.record(sid)))
+                    continue
+                ds = self.datasets[where[0]]
+                out.append(ds.summary(ds.exact[where[1]]))
+        return out
 
     def all_records(self) -> list[Record]:
         """One record per species id, in the order a name would resolve."""

@@ -18,6 +18,8 @@ one record whose evaluation cost does not grow with its number of species.
 
 from __future__ import annotations
 
+from bisect import bisect_left
+from math import log as _log
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -32,6 +34,11 @@ NINE = "9-coefficient"       # NASA/TP-2002-211556 (2002)
 FORMS = (SEVEN, NINE)
 #: Points evaluated together: small enough that the temporaries stay in cache.
 BLOCK = 32768
+#: Up to this many points, evaluation takes the small-array path (fewer, larger
+#: array operations; faster below it, slower above it, measured in bench_engine.py).
+SMALL = 4096
+#: Row of each function in the small path's product.
+_ROW = {"cp": 0, "h": 1, "s": 2}
 
 
 def seven_to_nine(c7) -> list[float]:
@@ -60,6 +67,11 @@ class Polynomial:
     _h: np.ndarray = field(init=False, repr=False)
     _s: np.ndarray = field(init=False, repr=False)
     _has_neg: bool = field(init=False, repr=False)
+    _basis: np.ndarray = field(init=False, repr=False)
+    _py: tuple = field(init=False, repr=False)
+    _inner_list: list = field(init=False, repr=False)
+    _lo: float = field(init=False, repr=False)
+    _hi: float = field(init=False, repr=False)
 
     def __post_init__(self):
         b = np.ascontiguousarray(self.T_bounds, dtype=float)
@@ -80,15 +92,18 @@ class Polynomial:
         object.__setattr__(self, "_h", np.ascontiguousarray(h))
         object.__setattr__(self, "_s", np.ascontiguousarray(s))
         object.__setattr__(self, "_has_neg", bool(np.any(c[:, :2] != 0.0)))
+        object.__setattr__(self, "_inner_list", b[1:-1].tolist())
+        object.__setattr__(self, "_lo", float(b[0]))
+        object.__setattr__(self, "_hi", float(b[-1]))
 
     # ------------------------------------------------------------------ basics
     @property
     def T_min(self) -> float:
-        return float(self.T_bounds[0])
+        return self._lo
 
     @property
     def T_max(self) -> float:
-        return float(self.T_bounds[-1])
+        return self._hi
 
     @property
     def n_intervals(self) -> int:
@@ -100,6 +115,70 @@ class Polynomial:
         return np.searchsorted(self._inner, T, side="left")
 
     # -------------------------------------------------------------- evaluation
+    def _tables(self):
+        """The small-array table and the one-state tuples, made on first use (a library
+        builds hundreds of polynomials that are never evaluated)."""
+        c, h, s = self.coeffs, self._h, self._s
+        a1, a2, a3, a4, a5, a6, a7 = c[:, :7].T
+        z = np.zeros_like(a1)
+        # cp/R, h/R, s/R as one product of [T^-2, T^-1, 1, T, T^2, T^3, T^4, T^5, ln T]
+        # with a (3, 9) table per interval
+        basis = np.stack([
+            np.stack([a1, a2, a3, a4, a5, a6, a7, z, z], axis=1),
+            np.stack([z, h[0], h[7], h[2], h[3], h[4], h[5], h[6], h[1]], axis=1),
+            np.stack([s[0], s[1], s[7], s[3], s[4], s[5], s[6], z, s[2]], axis=1),
+        ], axis=1)
+        object.__setattr__(self, "_basis", np.ascontiguousarray(basis))
+        # one state: per interval one flat tuple of plain floats (unpacked in one step):
+        # has negative powers, cp a1..a7, h as in _h, s as in _s
+        py = tuple((bool(c[k, 0] != 0.0 or c[k, 1] != 0.0), *c[k, :7].tolist(), *h[:, k].tolist(),
+                    *s[:, k].tolist()) for k in range(c.shape[0]))
+        object.__setattr__(self, "_py", py)
+
+    def point(self, T: float) -> tuple[float, float, float]:
+        """cp/R, h/R (K) and s/R at one temperature, in plain floats: the path for a
+        program that asks for one state at a time (no array is made)."""
+        try:
+            py = self._py
+        except AttributeError:
+            self._tables()
+            py = self._py
+        (neg, a1, a2, a3, a4, a5, a6, a7, h0, h1, h2, h3, h4, h5, h6, h7,
+         s0, s1, s2, s3, s4, s5, s6, s7) = py[bisect_left(self._inner_list, T)]
+        lnT = _log(T)
+        cp = a3 + T * (a4 + T * (a5 + T * (a6 + T * a7)))
+        hv = (h2 + T * (h3 + T * (h4 + T * (h5 + T * h6)))) * T + h7
+        sv = (s3 + T * (s4 + T * (s5 + T * s6))) * T + s7 + s2 * lnT
+        if neg:
+            inv = 1.0 / T
+            cp += inv * (a2 + a1 * inv)
+            hv += h0 * inv + h1 * lnT
+            sv += inv * (s1 + s0 * inv)
+        return cp, hv, sv
+
+    def _evaluate_small(self, T: np.ndarray, want) -> dict[str, np.ndarray]:
+        """Few points: the basis rows written once, one gather of each point's (3, 9)
+        table and one product, a dozen array operations whatever the number of
+        intervals. Each point's value depends on its own T only (no BLAS blocking)."""
+        k = np.searchsorted(self._inner, T, side="left")
+        V = np.empty((9, T.size))
+        np.divide(1.0, T, out=V[1])
+        np.multiply(V[1], V[1], out=V[0])
+        V[2] = 1.0
+        V[3] = T
+        np.multiply(T, T, out=V[4])
+        np.multiply(V[4], T, out=V[5])
+        np.multiply(V[5], T, out=V[6])
+        np.multiply(V[6], T, out=V[7])
+        np.log(T, out=V[8])
+        try:
+            basis = self._basis
+        except AttributeError:
+            self._tables()
+            basis = self._basis
+        vals = np.einsum("kn,njk->jn", V, basis[k])
+        return {key: vals[_ROW[key]] for key in want}
+
     def evaluate(self, T, *, want=("cp", "h", "s")) -> dict[str, np.ndarray]:
         """cp/R, h/R (in K) and s/R at temperatures T (K), arrays broadcast.
 
@@ -112,6 +191,8 @@ class Polynomial:
         T = np.asarray(T, dtype=float)
         shape = T.shape
         T = T.ravel()
+        if T.size <= SMALL:
+            return {k: v.reshape(shape) for k, v in self._evaluate_small(T, want).items()}
         out = {k: np.empty_like(T) for k in want}
         for a in range(0, T.size, BLOCK):
             b = min(a + BLOCK, T.size)

@@ -1,0 +1,174 @@
+"""Drawing primitives of the QA report: page geometry, colours, text, and a flow of blocks.
+
+Blocks are stacked down pages by :class:`Flow`; each block is a function that draws
+itself at a given height. The drawing state last set on a canvas (fill colour, font)
+is kept in a dict keyed by the canvas, never on the library's object, so long pages
+skip operators that change nothing.
+"""
+
+from __future__ import annotations
+
+import math
+
+from . import fonts
+
+PAGE_W, PAGE_H = 595.2756, 841.8898          # A4 portrait, pt
+MARGIN = 36.0
+TOP = PAGE_H - MARGIN - 26                   # below the running head
+BOTTOM = MARGIN + 24                         # above the running foot
+WIDTH = PAGE_W - 2 * MARGIN
+
+INK = (0.10, 0.11, 0.13)
+GREY = (0.42, 0.44, 0.47)
+RULE = (0.75, 0.77, 0.80)
+PASS_INK, PASS_FILL = (0.09, 0.40, 0.23), (0.88, 0.95, 0.90)
+FAIL_INK, FAIL_FILL = (0.62, 0.11, 0.09), (0.98, 0.87, 0.85)
+BAND = (0.20, 0.36, 0.62)
+TRACE = (0.13, 0.15, 0.20)
+OUT_MARK = "✗"
+EXTRAP_MARK = "†"
+
+
+# ------------------------------------------------------------- flow layout
+class Flow:
+    """Blocks stacked down pages; page breaks where a block does not fit."""
+
+    def __init__(self):
+        self.pages = [[]]
+        self.y = TOP
+
+    def need(self, h: float):
+        if self.y - h < BOTTOM and self.pages[-1]:
+            self.new_page()
+
+    def new_page(self):
+        self.pages.append([])
+        self.y = TOP
+
+    def add(self, h: float, draw):
+        """draw(canvas, y_top) fills the band [y_top - h, y_top]."""
+        self.need(h)
+        self.pages[-1].append((self.y, draw))
+        self.y -= h
+
+
+#: Drawing state last set on each canvas being drawn (fill colour, font), so that big
+#: listings skip operators that change nothing; keyed by the canvas's id, never stored
+#: on the library's object. render_pdf removes its entry when the document is done.
+DRAW_STATE: dict = {}
+
+
+def set_fill(c, *rgb):
+    """Set the fill colour, skipping the operator when it is already set (big listings)."""
+    rgb = tuple(rgb[0]) if len(rgb) == 1 else tuple(rgb)
+    st = DRAW_STATE.setdefault(id(c), {})
+    if st.get("fill") != rgb:
+        c.setFillColorRGB(*rgb)
+        st["fill"] = rgb
+
+
+def forget_state(c):
+    """After showPage or restoreState the canvas state is reset: forget the cache."""
+    DRAW_STATE[id(c)] = {}
+
+
+def draw_text(c, x, y, s, font=fonts.SANS, size=8.5, color=INK, align="left"):
+    set_fill(c, *color)
+    st = DRAW_STATE.setdefault(id(c), {})
+    if st.get("font") != (font, size):
+        c.setFont(font, size)
+        st["font"] = (font, size)
+    if align == "right":
+        c.drawRightString(x, y, s)
+    elif align == "center":
+        c.drawCentredString(x, y, s)
+    else:
+        c.drawString(x, y, s)
+
+
+def wrap_text(s: str, font: str, size: float, width: float) -> list[str]:
+    from reportlab.pdfbase.pdfmetrics import stringWidth
+    out, line = [], ""
+    for word in s.split(" "):
+        trial = word if not line else line + " " + word
+        if stringWidth(trial, font, size) <= width or not line:
+            line = trial
+        else:
+            out.append(line)
+            line = word
+    if line:
+        out.append(line)
+    return out
+
+
+def fit_text(s: str, font: str, size: float, width: float) -> str:
+    """Text cut with '…' to fit a width (the book pages' rule)."""
+    from .pdf import _fit
+    return _fit(s, font, size, width)
+
+
+def fmt_num(x, digits=3) -> str:
+    if x is None or not math.isfinite(x):
+        return "—"
+    if x == 0:
+        return "0"
+    return f"{x:.{digits}g}"
+
+
+# ---------------------------------------------------------------- sections
+def heading(flow, title: str):
+    def draw(c, y):
+        draw_text(c, MARGIN, y - 13, title, fonts.SANS_BOLD, 10.5)
+        c.setStrokeColorRGB(*RULE)
+        c.setLineWidth(0.5)
+        c.line(MARGIN, y - 17, MARGIN + WIDTH, y - 17)
+    flow.add(24, draw)
+
+
+def paragraph(flow, s: str, size=8.0, font=fonts.SANS, color=INK, gap=4.0):
+    lines = wrap_text(s, font, size, WIDTH)
+    lead = size * 1.3
+    for ln in lines:
+        flow.add(lead, lambda c, y, ln=ln: draw_text(c, MARGIN, y - size, ln, font, size, color))
+    flow.add(gap, lambda c, y: None)
+
+
+def ruled_table(flow, head, rows, widths, aligns, size=7.6, font=fonts.SANS, row_fills=None):
+    """Simple ruled table; repeats its head after a page break."""
+    lead = size * 1.55
+    def draw_head(c, y):
+        set_fill(c, 0.93, 0.94, 0.95)
+        c.rect(MARGIN, y - lead, sum(widths), lead, stroke=0, fill=1)
+        x = MARGIN
+        for h, w, a in zip(head, widths, aligns):
+            table_cell(c, x, y, w, lead, h, fonts.SANS_BOLD, size, INK, a)
+            x += w
+    flow.need(lead * 2)
+    flow.add(lead, draw_head)
+    for k, r in enumerate(rows):
+        if flow.y - lead < BOTTOM:
+            flow.new_page()
+            flow.add(lead, draw_head)
+        fill = row_fills[k] if row_fills else None
+        def draw(c, y, r=r, fill=fill):
+            if fill:
+                set_fill(c, *fill)
+                c.rect(MARGIN, y - lead, sum(widths), lead, stroke=0, fill=1)
+            x = MARGIN
+            for v, w, a in zip(r, widths, aligns):
+                table_cell(c, x, y, w, lead, v, font, size, INK, a)
+                x += w
+            c.setStrokeColorRGB(*RULE)
+            c.setLineWidth(0.3)
+            c.line(MARGIN, y - lead, MARGIN + sum(widths), y - lead)
+        flow.add(lead, draw)
+    flow.add(6, lambda c, y: None)
+
+
+def table_cell(c, x, y, w, lead, s, font, size, color, align):
+    s = fit_text(str(s), font, size, w - 4)
+    base = y - lead + (lead - size) / 2 + 1.2
+    if align == "right":
+        draw_text(c, x + w - 2, base, s, font, size, color, "right")
+    else:
+        draw_text(c, x + 2, base, s, font, size, color)
