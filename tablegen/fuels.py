@@ -15,7 +15,7 @@ from pathlib import Path
 
 from .composition import looks_like as is_composition, parse as parse_composition, write as write_composition
 from .errors import SpecError, TablegenError
-from .reactants import BURNING, NOBLE, _M_H2O, _fractions, _h_molar, _num, _qty, _record, _weights
+from .reactants import BURNING, NOBLE, _M_H2O, _fractions, _h_molar, _num, _qty, _record, _weights, check_table
 from .thermo.substance import T_REF
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -430,11 +430,7 @@ def _table_uncertainty(t: dict, part: str, where: str):
 
 def fuel_from_table(t: dict, where: str = "fuel", *, data=(), source=None) -> Fuel:
     """A fuel from a spec table (TOML): keys in FUEL_KEYS; errors name the key path."""
-    if not isinstance(t, dict):
-        raise SpecError(f"{where}: must be a table (composition, analysis or formula)")
-    for k in t:
-        if k not in FUEL_KEYS:
-            raise SpecError(f"{where}.{k} is not known; allowed: {', '.join(FUEL_KEYS)}")
+    check_table(t, where, FUEL_KEYS, "a table (composition, analysis or formula)")
     from .units import temperature_K
     try:
         if "composition" in t:

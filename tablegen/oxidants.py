@@ -16,7 +16,7 @@ from dataclasses import dataclass, replace
 
 from .composition import looks_like as is_composition, parse as parse_composition, write as write_composition
 from .errors import SpecError, TablegenError
-from .reactants import OXIDANT_SPECIES, P_NORMAL, _M_H2O, _fractions, _g, _h_molar, _num, _record, read_quantities
+from .reactants import OXIDANT_SPECIES, P_NORMAL, _M_H2O, _fractions, _g, _h_molar, _num, _record, check_table, read_quantities
 
 @dataclass(frozen=True, slots=True, eq=False)
 class Oxidant:
@@ -402,11 +402,7 @@ def oxidant_from_table(t, where="oxidant", *, data=(), source=None) -> Oxidant:
             return oxidant_from_text(t, data=data, source=source)
         except TablegenError as e:
             raise SpecError(f"{where}: {e}") from None
-    if not isinstance(t, dict):
-        raise SpecError(f"{where}: must be a string ({OXIDANT_FORMS}) or a table")
-    for k in t:
-        if k not in OXIDANT_KEYS:
-            raise SpecError(f"{where}.{k} is not known; allowed: {', '.join(OXIDANT_KEYS)}")
+    check_table(t, where, OXIDANT_KEYS, f"a string ({OXIDANT_FORMS}) or a table")
     try:
         kw = {k: t[k] for k in ("base", "composition", "o2_percent", "relative_humidity", "humidity_ratio",
                                  "name") if k in t}

@@ -136,3 +136,13 @@ def read_quantities(table: dict, where: str, keys: dict) -> dict:
     from .units import pressure_Pa, temperature_K
     read = {"temperature": temperature_K, "pressure": pressure_Pa}
     return {kw: read[dim](str(table[key]), f"{where}.{key}") for key, (kw, dim) in keys.items() if key in table}
+
+
+def check_table(t, where: str, allowed, what: str) -> None:
+    """A spec table with known keys only: SpecError naming ``where.KEY`` and the allowed keys."""
+    from .errors import SpecError
+    if not isinstance(t, dict):
+        raise SpecError(f"{where}: must be {what}")
+    for k in t:
+        if k not in allowed:
+            raise SpecError(f"{where}.{k} is not known; allowed: {', '.join(allowed)}")

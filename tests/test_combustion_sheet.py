@@ -25,12 +25,7 @@ from tablegen import cli
 FUEL = "CH4=87%±0.5%,C2H6=6%±0.2%,C3H8=2%±0.1%,N2=3%±0.1%,CO2=2%±0.1%"
 
 BOOK = """
-[document]
-title = "Boiler 3 flue-gas tables"
-number = "B3-FG-01"
-revision = "A"
-issue_date = 2026-11-03
-organisation = "Invented plant"
+document = {{ title = "Boiler 3 flue-gas tables", number = "B3-FG-01", revision = "A", issue_date = 2026-11-03 }}
 
 [substances.flue]
 name = "Boiler 3 flue gas"
