@@ -141,7 +141,13 @@ def main(argv=None) -> int:
                 setattr(args, key, getattr(args, "top_" + key))
         args.data = tuple(args.data or ())
         args.quiet = bool(args.quiet)
-        return int(args._run(args) or 0)
+        from .data.library import take_fallbacks
+        take_fallbacks()
+        rc = int(args._run(args) or 0)
+        if not args.quiet:
+            for note in take_fallbacks():
+                print(f"note: {note}", file=sys.stderr)
+        return rc
     except TablegenError as e:
         print(f"tablegen: {e}", file=sys.stderr)
         return e.exit_status

@@ -87,6 +87,7 @@ class Document:
     subtitle: str
     max_pressure_Pa: float = 1e5      # largest pressure the values are used at (ideal-gas term of U)
     uncertainty_columns: bool = False  # U_<key> columns in the CSV files
+    validity_columns: bool = False     # Z and real-gas departure columns in the CSV files
     csv_comments: bool = False         # "#" comment lines above the CSV header (off: plain CSV)
     chart_placement: str = "after-table"  # or "grouped": all chart pages after the last table
     barometer_Pa: float | None = None  # barometric pressure of gauge values (None: not given, 1.01325 bar)
@@ -278,8 +279,8 @@ def _positive_number(raw, key, where, default):
 # ---------------------------------------------------------------- document
 DOCUMENT_KEYS = ("title", "subtitle", "number", "revision", "issue_date", "organisation",
                  "prepared_by", "checked_by", "approved_by", "paper", "orientation", "units",
-                 "basis", "reference", "source", "max_pressure", "uncertainty_columns", "chart_placement",
-                 "csv_comments", "barometer")
+                 "basis", "reference", "source", "max_pressure", "uncertainty_columns", "validity_columns",
+                 "chart_placement", "csv_comments", "barometer")
 
 
 def _document(raw, where="document") -> Document:
@@ -317,6 +318,7 @@ def _document(raw, where="document") -> Document:
         source=_get(raw, "source", str, where, None),
         max_pressure_Pa=_pressure(raw.get("max_pressure", "1 bar"), f"{where}.max_pressure", baro),
         uncertainty_columns=_get(raw, "uncertainty_columns", bool, where, False),
+        validity_columns=_get(raw, "validity_columns", bool, where, False),
         csv_comments=_get(raw, "csv_comments", bool, where, False),
         chart_placement=_choice(raw, "chart_placement", ("after-table", "grouped"), where, "after-table"),
         barometer_Pa=None if "barometer" not in raw else baro,
@@ -946,7 +948,8 @@ def normalise(spec: BookSpec, source) -> dict:
     doc = {k: getattr(d, k) for k in ("title", "subtitle", "number", "revision", "issue_date",
                                        "organisation", "prepared_by", "checked_by", "approved_by",
                                        "paper", "orientation", "units", "basis", "max_pressure_Pa",
-                                       "uncertainty_columns", "chart_placement", "csv_comments")}
+                                       "uncertainty_columns", "validity_columns", "chart_placement",
+                                       "csv_comments")}
     doc["reference"] = {"name": d.reference.name, "T_K": d.reference.T_K, "P_Pa": d.reference.P_Pa}
     if d.barometer_Pa is not None:          # only where given, so older specs keep their fingerprint
         doc["barometer_Pa"] = d.barometer_Pa

@@ -95,6 +95,50 @@ grid = { segments = [ { start = "300 K", stop = "1500 K", step = "100 K" } ] }
     np.testing.assert_allclose(got, b.U("cp") / 1e3, rtol=1e-12)
 
 
+def test_csv_validity_columns_give_z_and_departure_bounds_against_coolprop(tmp_path):
+    """document.validity_columns: the CSV gets Z and the real-gas departure bound of each
+    column at max_pressure. Checked against CoolProp's reference equation for nitrogen
+    (Span et al. 2000) at 10 bar: Z within the stated uncertainty of the second-virial
+    estimate, and the real cp - cp0 inside the stated bound; U itself does not grow."""
+    import numpy as np
+    import CoolProp.CoolProp as CP
+    from tablegen import uncertainty as unc
+    src = tmp_path / "v.toml"
+    src.write_text("""[document]
+title = "Validity columns"
+number = "T-2"
+revision = "A"
+issue_date = 2026-12-01
+max_pressure = "10 bar"
+validity_columns = true
+uncertainty_columns = true
+
+[[tables]]
+name = "n2"
+substance = "N2"
+columns = ["T", "cp", "h"]
+grid = { segments = [ { start = "300 K", stop = "1000 K", step = "100 K" } ] }
+""")
+    assert main(["build", str(src), "--out", str(tmp_path / "out"), "--quiet"]) == 0
+    lines = (tmp_path / "out" / "n2.csv").read_text().splitlines()
+    head = lines[0].split(",")
+    rows = np.array([[float(x) for x in ln.split(",")[:-1]] for ln in lines[1:]])
+    col = {h: rows[:, i] for i, h in enumerate(head[:-1])}
+    T = col["T [K]"]
+    est = unc.virial_mixture(__import__("tablegen").substance("N2").components, T)
+    U_Z = est.U_B * 1e6 / (unc.R_MOLAR * T)
+    Z_ref = CP.PropsSI("Z", "T", T, "P", np.full_like(T, 1e6), "Nitrogen")
+    assert np.all(np.abs(col["Z [-]"] - Z_ref) <= U_Z)
+    cp_real = CP.PropsSI("Cpmass", "T", T, "P", np.full_like(T, 1e6), "Nitrogen") / 1e3
+    cp0 = CP.PropsSI("Cp0mass", "T", T, "P", np.full_like(T, 1e6), "Nitrogen") / 1e3
+    assert np.all(np.abs(cp_real - cp0) <= col["realgas_cp [kJ/(kg K)]"])
+    # U is the ideal-gas values' own: far below the 10-bar departure
+    assert np.all(col["U_cp [kJ/(kg K)]"] < col["realgas_cp [kJ/(kg K)]"] / 5)
+    meta = json.loads((tmp_path / "out" / "n2.csv-metadata.json").read_text())
+    names = [c["name"] for c in meta["tableSchema"]["columns"]]
+    assert "Z" in names and "realgas_cp" in names
+
+
 def test_charts_grouped_after_the_tables(tmp_path):
     spec = tmp_path / "g.toml"
     chart = '''

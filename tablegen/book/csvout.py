@@ -78,6 +78,9 @@ def comment_lines(book, t) -> list[str]:
     if t.U_columns:
         lines.append("# U_<column>: expanded uncertainty (k = 2) of that column, same unit; "
                      "empty where none is stated (extrapolated rows)")
+    if t.validity_columns:
+        lines.append("# Z, realgas_<column>: the real gas at max_pressure (second-virial estimate), "
+                     "where the ideal-gas values apply; not part of U")
     for key, label, value, unit, U in t.substance.figures:
         lines.append(f"# {key} = {value!r} {unit}" + ("" if U is None else f" (U k=2 {U!r})") +
                      f": {neutralise(label)}")
@@ -88,14 +91,16 @@ def comment_lines(book, t) -> list[str]:
 
 def headers(t) -> list[str]:
     """Row 1 of the CSV: the value columns, the U columns, then ``mark``."""
-    return [c.csv_header for c in t.columns] + [h for h, _ in t.U_columns] + [MARK_HEADER]
+    return ([c.csv_header for c in t.columns] + [h for h, _ in t.U_columns]
+            + [h for h, _, _ in t.validity_columns] + [MARK_HEADER])
 
 
 def render_table(book, t) -> str:
     """The CSV text of one table model (CRLF line ends, as RFC 4180 asks)."""
     lines = comment_lines(book, t) if book.document.csv_comments else []
     lines.append(",".join(_field(h) for h in headers(t)))
-    cols = [c.values.tolist() for c in t.columns] + [v.tolist() for _, v in t.U_columns]
+    cols = ([c.values.tolist() for c in t.columns] + [v.tolist() for _, v in t.U_columns]
+            + [v.tolist() for _, v, _ in t.validity_columns])
     for row, mark in zip(zip(*cols), t.marks):
         lines.append(",".join(["" if x != x else repr(x) for x in row] + [_field(mark)]))
     return "\r\n".join(lines) + "\r\n"
@@ -127,6 +132,10 @@ def metadata(book, t, csv_name: str) -> dict:
                      "schema:unitText": h.split("[", 1)[1].rstrip("]") if "[" in h else "",
                      "dc:description": "expanded uncertainty (k = 2) of the column named, same unit; "
                                        "empty where none is stated"})
+    for h, _, text in t.validity_columns:
+        cols.append({"name": h.split(" ", 1)[0], "titles": h, "datatype": "double", "null": "",
+                     "schema:unitText": h.split("[", 1)[1].rstrip("]") if "[" in h else "",
+                     "dc:description": text})
     cols.append({"name": MARK_HEADER, "titles": MARK_HEADER, "datatype": "string", "null": "",
                  "dc:description": "row mark as printed in the PDF: " +
                                    "; ".join(f"{k} {v}" for k, v in MARK_CODES.items()) +

@@ -478,6 +478,9 @@ class Library:
         self.load_errors: list[str] = []
         self.strict = strict
         self.announced = False
+        #: (data set asked for, species id) -> data set the record came from, for each
+        #: species a ``source`` did not hold (read and cleared by take_fallbacks)
+        self.fallbacks: dict = {}
         for p in sorted(self.root.glob("*.toml")):
             if p.name not in NOT_DATASETS:
                 self._add(p, announce=False)
@@ -626,7 +629,9 @@ class Library:
             if pref and pref in self.datasets and pref != base.dataset:
                 r = self.datasets[pref].get(base.id)
                 if r is not None:
-                    return r
+                    base = r
+            if source is not None:
+                self.fallbacks.setdefault((source, base.id), base.dataset)
             return base
         raise NameLookupError(self._unknown(name))
 
@@ -678,6 +683,21 @@ class Library:
 
 
 _LIB: dict = {}
+
+
+def take_fallbacks() -> list[str]:
+    """Notes on the species a requested data set did not hold, since the last call.
+
+    ``--source nasa2002-air`` holds no argon, so air takes its Ar from Ar's default
+    source; the command line prints these notes after a command succeeds, so that
+    no table mixes data sets silently.
+    """
+    out = []
+    for lib in _LIB.values():
+        for (src, sid), got in lib.fallbacks.items():
+            out.append(f"data set {src} holds no {sid}; {sid} was taken from {got} (its default source)")
+        lib.fallbacks.clear()
+    return list(dict.fromkeys(out))
 
 
 def library(extra_paths=(), *, strict: bool = True) -> Library:
