@@ -16,7 +16,7 @@ from functools import lru_cache
 from .burn import _MADE, CAUTIONS, combustion, measured_o2
 from .composition import colon_form_fix, write as write_composition
 from .errors import NameLookupError, SpecError, TablegenError
-from .fuels import fuel_from_table, fuel_from_text
+from .fuels import check_texts, fuel_from_table, fuel_from_text
 from .oxidants import oxidant_colon_fix, oxidant_from_table
 from .reactants import P_NORMAL, _fractions, _num, _record, read_quantities
 
@@ -168,6 +168,7 @@ def substance_from_spec(table: dict, where: str, *, data=(), source=None):
     """
     if not isinstance(table, dict):
         raise SpecError(f"{where}: a flue-gas substance is a table with fuel and an amount of oxidant")
+    check_texts(table, where)
     if "flue_analysis" in table:
         for k in table:
             if k not in ANALYSIS_SPEC_KEYS:

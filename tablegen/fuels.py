@@ -9,7 +9,6 @@ analysis states.
 from __future__ import annotations
 
 import re
-import tomllib
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 
@@ -428,9 +427,23 @@ def _table_uncertainty(t: dict, part: str, where: str):
     return unc
 
 
+def check_texts(t: dict, where: str) -> None:
+    """The name and id of a fuel or flue gas: one line of text, printed in documents."""
+    from .texts import bad_character, one_line_rule
+    for k in ("name", "id"):
+        v = t.get(k)
+        if v is None:
+            continue
+        if not isinstance(v, str) or len(v) > 200:
+            raise SpecError(f"{where}.{k}: must be a text of at most 200 characters")
+        if bad_character(v):
+            raise SpecError(f"{where}.{k}: {one_line_rule()} (it holds {bad_character(v)})")
+
+
 def fuel_from_table(t: dict, where: str = "fuel", *, data=(), source=None) -> Fuel:
     """A fuel from a spec table (TOML): keys in FUEL_KEYS; errors name the key path."""
     check_table(t, where, FUEL_KEYS, "a table (composition, analysis or formula)")
+    check_texts(t, where)
     from .units import temperature_K
     try:
         if "composition" in t:
@@ -482,10 +495,8 @@ def fuel_from_text(text: str, *, data=(), source=None) -> Fuel:
     if t.lower().endswith(".toml") or (p.is_file() and not is_composition(t)):
         if not p.is_file():
             raise TablegenError(f"fuel file {t!r} does not exist")
-        try:
-            raw = tomllib.loads(p.read_text(encoding="utf-8"))
-        except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError) as e:
-            raise SpecError(f"fuel file {t}: cannot read it as TOML ({e})") from None
+        from . import tomlread
+        raw = tomlread.read(p, f"fuel file {t}", SpecError)
         table = raw.get("fuel", raw) if isinstance(raw.get("fuel"), dict) else raw
         f = fuel_from_table(table, f"{p.name}:fuel" if "fuel" in raw else p.name, data=data, source=source)
         return replace(f, spec=t if "@" not in t else None)

@@ -14,7 +14,6 @@ import datetime as _dt
 import difflib
 import math
 import re
-import tomllib
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 
@@ -22,6 +21,7 @@ import numpy as np
 
 from .composition import looks_like as looks_like_composition
 from .errors import SpecError, TablegenError
+from .texts import bad_character, one_line_rule
 from .units import P_ATM
 
 #: Largest number of rows one table may have. A printed table of 20 000 rows
@@ -208,8 +208,9 @@ def _text(raw, key, where, default="", required=False, max_len=200):
         _fail(_path(where, key), "must not be empty")
     if len(v) > max_len:
         _fail(_path(where, key), f"is {len(v)} characters long; at most {max_len} allowed")
-    if any(ord(c) < 32 for c in v):
-        _fail(_path(where, key), "must be one line of text without control characters")
+    bad = bad_character(v)
+    if bad:
+        _fail(_path(where, key), f"{one_line_rule()} (it holds {bad})")
     return v
 
 
@@ -235,6 +236,8 @@ def _temp_unit(v: str, where):
     m = _NUM.match(v)
     if not m or not m.group(2):
         _fail(where, f"{v!r} is not a temperature with a unit; write e.g. \"300 K\" or \"25 °C\"")
+    if not math.isfinite(float(m.group(1))):
+        _fail(where, f"{v!r} is not a finite number; write e.g. \"300 K\"")
     try:
         u = unit(m.group(2), "temperature")
     except TablegenError as e:
@@ -792,6 +795,10 @@ def _table(raw, where, defaults, doc, subs, source, data) -> TableSpec:
         sub.check_T(allT, extrapolate)
     except TablegenError as e:
         _fail(f"{where}.grid", f"{e}")
+    try:                 # finite results only: an anchor or an extrapolation may not overflow
+        sub.properties(allT, extrapolate=extrapolate, molar_only=True)
+    except TablegenError as e:
+        _fail(where, f"{e}")
     # T decimals: fewest that print the grid exactly, unless given
     fixed = []
     for c in cols:
@@ -835,23 +842,33 @@ def load(path, *, source: str | None = None, data=()) -> BookSpec:
     """
     p = Path(path)
     raw = read_toml(p, missing="spec file not found")
-    return parse(raw, name=p.stem, base=p.parent, source=source, data=data)
+    return parse(raw, name=book_name(p), base=p.parent, source=source, data=data)
+
+
+_BOOK_NAME_BAD = set('/\\:*?"<>|')
+
+
+def book_name(path: Path) -> str:
+    """The book's name, the spec file's name without .toml; it names the files and the default folder."""
+    name = path.stem
+    if not name or not name[0].isalnum() or len(name) > 100 or bad_character(name) or \
+            _BOOK_NAME_BAD & set(name):
+        raise SpecError(f"{path.name}: the spec file's name gives the book name {name!r}, which names its "
+                        f"files and output/{name}/; allowed: up to 100 characters, starting with a letter "
+                        f"or digit, without control characters or / \\ : * ? \" < > |")
+    return name
 
 
 def read_toml(path, label: str = "", missing: str = "no such file") -> dict:
-    """A TOML file as a dict, or a SpecError naming the file (a byte-order mark is fine)."""
+    """A TOML file as a dict, or a SpecError naming the file (a byte-order mark is fine).
+
+    Its size and nesting are bounded before parsing (tablegen.tomlread).
+    """
+    from . import tomlread
     p = Path(path)
     name = f"{label} {p}" if label else str(p)
-    try:
-        text = p.read_text(encoding="utf-8-sig")
-    except FileNotFoundError:
-        raise SpecError(f"{name}: {missing}") from None
-    except (OSError, UnicodeDecodeError) as e:
-        raise SpecError(f"{name}: cannot be read ({e}); it must be a UTF-8 TOML file") from None
-    try:
-        return tomllib.loads(text)
-    except tomllib.TOMLDecodeError as e:
-        raise SpecError(f"{p.name}: not valid TOML ({e})") from None
+    text = tomlread.read_text(p, name, SpecError, missing=missing)
+    return tomlread.loads(text, p.name, SpecError)
 
 
 def parse(raw: dict, *, name: str, base: Path | None = None, source: str | None = None,

@@ -53,7 +53,6 @@ value.
 from __future__ import annotations
 
 import math
-import tomllib
 from dataclasses import dataclass, field
 from functools import lru_cache
 from types import MappingProxyType
@@ -303,10 +302,8 @@ def _norm(name: str) -> str:
 
 
 def _read_entries(path) -> dict:
-    try:
-        raw = tomllib.loads(path.read_text(encoding="utf-8"))
-    except (OSError, tomllib.TOMLDecodeError, UnicodeDecodeError) as e:
-        raise TablegenError(f"{path}: cannot read incompressible entries ({e})") from None
+    from . import tomlread
+    raw = tomlread.read(path, str(path))
     out = {}
     for i, e in enumerate(raw.get("incompressible", [])):
         where = f"{path}: incompressible[{i}]"

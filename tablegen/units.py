@@ -28,6 +28,7 @@ as ideal gas.
 
 from __future__ import annotations
 
+import math
 import re
 from dataclasses import dataclass
 
@@ -206,7 +207,10 @@ def quantity(text: str, dimension: str, what: str = "value") -> float:
     num, sym = float(m.group(1)), m.group(2)
     if not sym:
         raise UnitError(f"{what} {text!r} has no unit; allowed units: {', '.join(known_symbols(dimension))}")
-    return unit(sym, dimension).to_si(num)
+    si = unit(sym, dimension).to_si(num)
+    if not math.isfinite(si):
+        raise UnitError(f"{what} {text!r} is not a finite number; write e.g. {_example(dimension)}")
+    return si
 
 
 def temperature_K(text: str, what: str = "temperature") -> float:

@@ -30,6 +30,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import RangeError, SpecError, TablegenError
+from ..texts import bad_character, one_line_rule
 from ..units import P_ATM
 
 # --------------------------------------------------------------------------
@@ -281,6 +282,8 @@ def parse_chart(raw: dict, where: str, *, units: str = "SI",
     title = raw.get("title")
     if title is not None and (not isinstance(title, str) or len(title) > 100):
         _fail(f"{where}.title", "must be a text of at most 100 characters")
+    if title is not None and bad_character(title):
+        _fail(f"{where}.title", f"{one_line_rule()} (it holds {bad_character(title)})")
     ov = raw.get("overlays", [])
     if isinstance(ov, dict):
         ov = [ov]
@@ -1519,15 +1522,13 @@ def chart_pdf(models, *, title: str = "tablegen charts", date_text: str = "") ->
     """A PDF with one landscape page per chart model (reproducible bytes)."""
     import io
 
-    from reportlab.pdfgen.canvas import Canvas
-
     from .. import __version__
+    from . import fonts
     from .fonts import SANS, register
     register()
     buf = io.BytesIO()
     first = PAPERS[models[0].paper]
-    c = Canvas(buf, pagesize=first, invariant=1, initialFontName=SANS, initialFontSize=8,
-               pageCompression=1)
+    c = fonts.canvas(buf, pagesize=first, initialFontName=SANS, initialFontSize=8, pageCompression=1)
     c.setTitle(title)
     c.setAuthor("tablegen")
     c.setCreator(f"tablegen {__version__}")

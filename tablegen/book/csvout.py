@@ -25,18 +25,18 @@ def neutralise(text: str) -> str:
     """User text made safe for a comment line of a CSV file.
 
     Double quotes become single quotes (a comment is never a quoted field), and every
-    comma-separated piece that would start with a formula character gets a leading
-    apostrophe, which spreadsheets show as text.
+    piece between commas or semicolons (the separators spreadsheets split on) that would
+    start with a formula character gets a leading apostrophe, which spreadsheets show as text.
     """
     text = re.sub(r"[\r\n]+", " ", str(text)).replace('"', "'")
-    pieces = text.split(",")
+    pieces = re.split(r"([,;])", text)
     out = []
     for p in pieces:
         s = p.lstrip()
-        if s.startswith(_FORMULA_START):
+        if p not in (",", ";") and s.startswith(_FORMULA_START):
             p = p[: len(p) - len(s)] + "'" + s
         out.append(p)
-    return ",".join(out)
+    return "".join(out)
 
 
 def _field(s: str) -> str:

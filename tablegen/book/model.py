@@ -486,10 +486,16 @@ def build_table(t, doc) -> TableModel:
 
 # ---------------------------------------------------------------- fingerprint
 def data_files(spec) -> list[Path]:
-    """Coefficient and composition files the book's values depend on."""
+    """Coefficient and composition files the book's values depend on.
+
+    The files of the data sets its species come from, the atomic weights, shipped
+    mixtures and default sources, and every user data file read (a spec's [data],
+    --data and the user data folder), whether or not it supplied a species: a user
+    file can change which record a name resolves to.
+    """
     from ..data.library import library
     lib = library(tuple(spec.data_paths))
-    files = set()
+    files = set(lib.user_files)
     for t in spec.tables:
         for _, ds, _ in t.substance.sources:
             d = lib.datasets.get(ds)

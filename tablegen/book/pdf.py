@@ -19,7 +19,6 @@ from reportlab.lib.pagesizes import A3, A4, A5, landscape, letter
 from reportlab.lib.units import mm
 from reportlab.lib.utils import simpleSplit
 from reportlab.pdfbase.pdfmetrics import getFont, stringWidth
-from reportlab.pdfgen import canvas as rl_canvas
 
 from . import fonts
 from .fonts import MONO, SANS, SANS_BOLD, SANS_OBLIQUE
@@ -597,8 +596,8 @@ def render(book) -> bytes:
 
 def _render(book, L, pages, anchors, d) -> bytes:
     buf = io.BytesIO()
-    c = rl_canvas.Canvas(buf, pagesize=(L.width, L.height), invariant=1, initialFontName=SANS,
-                         initialFontSize=10, pageCompression=1)
+    c = fonts.canvas(buf, pagesize=(L.width, L.height), initialFontName=SANS, initialFontSize=10,
+                     pageCompression=1)
     c.setTitle(d.title)
     c.setAuthor(d.organisation or "")
     c.setSubject(f"{d.number} rev. {d.revision}, issued {d.issue_date}")

@@ -67,6 +67,9 @@ def made_from(s) -> tuple[list, dict | None, list]:
             figs.append(("relative_humidity", "relative humidity", o.relative_humidity, "%", None))
     elif isinstance(origin, CombustionResult):
         combustion = sheet.to_json(origin)
+        description.append(f"The {'dry' if 'H2O' not in {c.id for c in s.components} else 'wet'} flue gas of "
+                           f"{origin.fuel.name} with {origin.oxidant.name} at λ = {origin.air_ratio:.4f}, frozen "
+                           f"complete combustion: its combustion sheet states everything it was computed from.")
         figs = [f for f in figs if f[0] not in ("dew_point_K", "dew_point_P_Pa")] + sheet.figures(origin)
     if s.dew_point_P_Pa is not None:
         description.append(f"Water dew point {sheet.dew_point_sentence(s.dew_point_K, s.dew_point_P_Pa)}"

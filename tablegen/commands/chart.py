@@ -69,7 +69,7 @@ def add_arguments(p):
     g.add_argument("--name", default=None, metavar="STEM", help="file name stem (default: the substance id)")
     g.add_argument("--date", default=None, metavar="TEXT",
                    help="document date printed in the footer (fixed text, for reproducible files)")
-    g.add_argument("--force", action="store_true", help="overwrite existing files")
+    g.add_argument("--force", action="store_true", help="replace chart files that already exist")
     add_datum_options(p)
 
 
@@ -213,6 +213,9 @@ def run(args) -> int:
             raise TablegenError("no substance given; e.g. 'tablegen chart air' (or use --spec FILE)")
         sub_name = args.substance
         specs = charts_from_options(args)
+    from ..texts import bad_character, one_line_rule
+    if date is not None and (len(date) > 100 or bad_character(date)):
+        raise TablegenError(f"--date: {one_line_rule()}, at most 100 characters")
     sub = substance_with_options(args, sub_name)
     footer = f"tablegen {__version__} · " + (sub.name if sub.name == sub.id else f"{sub.name} ({sub.id})")
     try:
@@ -222,18 +225,19 @@ def run(args) -> int:
 
     stem = _stem(args.name or name or sub.id)
     out = Path(args.out)
-    files = {}
+    from ..outfiles import check_files, write_files
+    jobs = {}
     if args.format in ("pdf", "both"):
-        files[out / f"{stem}-charts.pdf"] = C.chart_pdf(models, title=f"{sub.name}: T-s and h-s charts",
-                                                       date_text=date or "")
+        jobs[out / f"{stem}-charts.pdf"] = lambda: C.chart_pdf(models, title=f"{sub.name}: T-s and h-s charts",
+                                                              date_text=date or "")
     if args.format in ("png", "both"):
         seen = {}
         for m in models:
             seen[m.kind] = seen.get(m.kind, 0) + 1
             suffix = "" if sum(1 for x in models if x.kind == m.kind) == 1 else f"-{seen[m.kind]}"
-            files[out / f"{stem}-{m.kind}{suffix}.png"] = C.chart_png(m, m.paper, dpi=args.dpi)
-    from ..outfiles import write_all
-    written = write_all(files, args.force)
+            jobs[out / f"{stem}-{m.kind}{suffix}.png"] = lambda m=m: C.chart_png(m, m.paper, dpi=args.dpi)
+    check_files(jobs, args.force)
+    written = write_files({p: make() for p, make in jobs.items()}, args.force)
     for p in written:
         sys.stdout.write(f"{p}\n")
     notice(args, f"{len(models)} chart(s) of {sub.id} written to {out}/")

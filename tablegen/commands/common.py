@@ -121,6 +121,40 @@ def substance_with_options(args, name: str, *, by_rule: bool = False):
                             anchor=anchor_from_text(getattr(args, "anchor", None)))
 
 
+def published(args, out, files, notes, what: str, detail: str = "", paths: bool = True) -> None:
+    """After a folder was published: its notes, one 'wrote' line, and (paths) every file on stdout."""
+    from ..outfiles import MANIFEST
+    for n in notes:
+        notice(args, n)
+    notice(args, f"wrote {len(files)} {what} and their manifest {MANIFEST} to {out}/{detail}")
+    if paths:
+        for name in sorted([*files, MANIFEST]):
+            print(out / name)
+
+
+#: Notices of the running command, printed only once it has succeeded (None: print at once).
+_held: list | None = None
+
+
+def hold_notices() -> None:
+    """Keep notices until the command ends, so a refusal is the only line on stderr."""
+    global _held
+    _held = []
+
+
+def release_notices(print_them: bool) -> None:
+    """Print the held notices (after success) or drop them (after a refusal)."""
+    global _held
+    held, _held = _held or [], None
+    if print_them:
+        for text in held:
+            print(text, file=sys.stderr)
+
+
 def notice(args, text: str):
-    if not getattr(args, "quiet", False):
+    if getattr(args, "quiet", False):
+        return
+    if _held is not None:
+        _held.append(text)
+    else:
         print(text, file=sys.stderr)

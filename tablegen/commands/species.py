@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import sys
 
-from .common import dumps
+from .common import dumps, notice
 
 EXAMPLE = """example:
   tablegen species
@@ -154,8 +154,7 @@ def run(args) -> int:
     from ..data.library import library
     lib = library(args.data, strict=not args.check)
     for m in lib.messages:
-        if not args.quiet:
-            print(f"note: {m}", file=sys.stderr)
+        notice(args, f"note: {m}")
     if args.sources:
         return sources(lib, args.sources, args.json)
     if args.check:

@@ -20,11 +20,16 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from ..constants import P_STD, R_MOLAR, T_REF  # noqa: F401  (re-exported)
-from ..errors import RangeError, TablegenError
+from ..errors import InputError, RangeError, TablegenError
 from .polynomial import Polynomial
 
 #: Relative tolerance of the inverse functions (in T).
 INVERSE_RTOL = 1e-10
+#: Extrapolation reaches at most this factor beyond the data range: from T_min / 2 to
+#: 2 T_max (a polynomial fit says nothing further out; docs/spec.md, "extrapolate").
+EXTRAPOLATION_FACTOR = 2.0
+#: Largest |ln Pr| and |ln vr| given: Pr and vr stay between 1e-300 and 1e300.
+LN_SCALE_MAX = 690.0
 #: A point leaves the inverse iteration when its Newton step is below this part of T
 #: (above the rounding noise of the published forms, about 1e-11 in narrow intervals)
 #: (Newton converges quadratically: the next step would be far below INVERSE_RTOL).
@@ -181,6 +186,13 @@ class Substance:
             raise RangeError(f"{self.id}: temperatures must be finite and above 0 K")
         lo, hi = self.T_min, self.T_max
         if extrapolate:
+            x_lo, x_hi = lo / EXTRAPOLATION_FACTOR, hi * EXTRAPOLATION_FACTOR
+            if t_lo < x_lo or t_hi > x_hi:
+                bad = t_lo if t_lo < x_lo else t_hi
+                raise RangeError(
+                    f"{self.id}: T = {bad:g} K is beyond the extrapolation range {x_lo:g}-{x_hi:g} K "
+                    f"(data {lo:g}-{hi:g} K); allowed: from half the lowest to twice the highest "
+                    f"temperature of the data")
             return (T < lo) | (T > hi)
         if t_lo >= lo and t_hi <= hi:
             return None
@@ -192,6 +204,27 @@ class Substance:
                 f"allowed: {lo:g} to {hi:g} K, or opt in to extrapolation (--extrapolate), "
                 f"which marks every extrapolated value")
         return None
+
+    def _check_scales(self, ln_lo: float, ln_hi: float, T_lo: float, T_hi: float) -> None:
+        """Refuse Pr or vr beyond 1e300 or below 1e-300 (ln Pr from ln_lo to ln_hi at T_lo-T_hi)."""
+        a = self.anchor
+        base = self._cache.get("ln_vr_base")
+        if base is None:
+            base = self._cache["ln_vr_base"] = math.log(a.vr) + math.log(a.Pr) - math.log(a.T_K)
+        ln_vr = (base + math.log(T_lo) - ln_hi, base + math.log(T_hi) - ln_lo)
+        if max(abs(ln_lo), abs(ln_hi), abs(ln_vr[0]), abs(ln_vr[1])) < LN_SCALE_MAX:
+            return
+        raise RangeError(f"{self.id}: Pr or vr would be beyond 1e300 or below 1e-300 with the anchor Pr = "
+                         f"{a.Pr:g}, vr = {a.vr:g} at {a.T_K:g} K; allowed: an anchor that keeps Pr and vr "
+                         f"between 1e-300 and 1e300 over the temperatures asked")
+
+    def _check_cv(self, T, cv_m) -> None:
+        """Refuse an extrapolation where the polynomial gives cp <= R (cv <= 0), which no gas has."""
+        bad = np.asarray(T)[~(np.asarray(cv_m) > 0)]
+        if bad.size:
+            raise RangeError(f"{self.id}: extrapolated to T = {float(bad.flat[0]):g} K the polynomial gives "
+                             f"cp <= R (cv <= 0), which no gas has; allowed: temperatures nearer the data "
+                             f"range {self.T_min:g}-{self.T_max:g} K")
 
     # ------------------------------------------------------------- constants
     def _constants(self):
@@ -264,6 +297,8 @@ class Substance:
             cp_m = raw["cp"]
             cp_m *= R_MOLAR
             cv_m = cp_m - R_MOLAR
+            if mask is not None and mask.any():
+                self._check_cv(T[mask], cv_m[mask])
             k = cp_m / cv_m
             out.update(cp_molar=cp_m, cv_molar=cv_m, k=k)
             if "cp" in want:
@@ -297,6 +332,8 @@ class Substance:
             if want & {"Pr", "vr"}:
                 lnPr = sR
                 lnPr -= c["sR_anchor"] - math.log(self.anchor.Pr)
+                if T.size:
+                    self._check_scales(float(lnPr.min()), float(lnPr.max()), float(T.min()), float(T.max()))
                 if "Pr" in want:
                     out["Pr"] = np.exp(lnPr)
                 if "vr" in want:
@@ -316,7 +353,7 @@ class Substance:
             try:
                 shape = np.broadcast_shapes(P.shape, T.shape)
             except ValueError:
-                raise TablegenError(f"{self.id}: {P.size} pressures for {T.size} temperatures; give one "
+                raise InputError(f"{self.id}: {P.size} pressures for {T.size} temperatures; give one "
                                     f"pressure, or one per temperature") from None
             out["P_Pa"] = np.broadcast_to(P, shape)
             if want & {"s", "s_molar"}:
@@ -361,8 +398,8 @@ class Substance:
         if not (T > 0 and math.isfinite(T)):
             raise RangeError(f"{self.id}: temperatures must be finite and above 0 K")
         outside = T < self.poly._lo or T > self.poly._hi
-        if outside and not extrapolate:
-            self.check_T(np.array([T]))          # raises the usual message
+        if outside:
+            self.check_T(np.array([T]), extrapolate)   # raises the usual message, or beyond the extrapolation range
         return outside
 
     def _properties_point(self, T: float, extrapolate: bool, molar_only: bool) -> dict:
@@ -381,6 +418,9 @@ class Substance:
         s0_m = (sR - c["lnP"]) * R_MOLAR
         g0_m = h_m - T * s0_m
         lnPr = math.log(self.anchor.Pr) + (sR - c["sR_anchor"])
+        self._check_scales(lnPr, lnPr, T, T)
+        if outside:
+            self._check_cv(T, cv_m)
         k = cp_m / cv_m
         vals = {
             "T_K": T, "cp_molar": cp_m, "cv_molar": cv_m, "h_molar": h_m, "u_molar": u_m,
@@ -617,9 +657,9 @@ def _as_numbers(values, what: str, unit: str) -> np.ndarray:
     try:
         arr = np.asarray(values)
     except (TypeError, ValueError):
-        raise TablegenError(f"{what} must be real numbers {unit}") from None
+        raise InputError(f"{what} must be real numbers {unit}") from None
     if arr.dtype.kind not in "biuf":
-        raise TablegenError(f"{what} must be real numbers {unit}, got {arr.dtype.name} values"
+        raise InputError(f"{what} must be real numbers {unit}, got {arr.dtype.name} values"
                             + (" (give numbers, e.g. 300.0, not text)" if arr.dtype.kind in "USO" else ""))
     return arr.astype(float, copy=False)
 
