@@ -231,6 +231,13 @@ def model_statements(substance, vir: VirialEstimate, T: np.ndarray, P: float, pr
                    f"{1 - vir.covered:.3g}): the virial estimate uses the other components")
     crit = critical_constants()
     for c in substance.components:
+        if c.id == "H2O" and getattr(substance, "dew_point_P_Pa", None) is not None:
+            # the one water dew point of the substance (IAPWS-IF97), the figure every document prints
+            from .saturation import dew_point_text
+            out.append(f"caution: water dew point {dew_point_text(substance.dew_point_K, substance.dew_point_P_Pa)}: "
+                       f"at and below it water may condense, and ideal-gas values and this budget do not hold "
+                       f"there (rows marked c)")
+            continue
         if c.id not in crit:
             continue
         Tc, Pc, _, om, _ = crit[c.id]

@@ -429,10 +429,10 @@ def _substances(raw, where, source, data, comp_u=None) -> dict:
 
 def _combustion(raw, where, *, source=None, data=()):
     """Combustion products of a fuel (or a measured flue-gas analysis), by tablegen.burn."""
-    from . import burn
+    from . import flue
     if not isinstance(raw, dict):
         _fail(where, f"must be a table, not {_typename(raw)}")
-    return burn.substance_from_spec(raw, where, source=source, data=data)
+    return flue.substance_from_spec(raw, where, source=source, data=data)
 
 
 # ---------------------------------------------------------------- grids
@@ -934,6 +934,28 @@ def parse(raw: dict, *, name: str, base: Path | None = None, source: str | None 
     return spec
 
 
+#: Summary entries of a combustion that state what it was computed from (the fingerprint covers them).
+COMBUSTION_INPUTS = ("fuel", "oxidant", "amount_given", "T_fuel_K", "T_fuel_source", "T_oxidant_K",
+                     "T_oxidant_source", "flue_pressure_Pa", "combustion_reference_T_K", "metering_T_K",
+                     "metering_P_Pa")
+
+
+def _made_from(sub) -> dict:
+    """What a substance was made from, for the normalised spec: the inputs of its combustion,
+    or the conditions of a humid air; {} for others."""
+    from .burn import CombustionResult
+    from .oxidants import Oxidant
+    o = getattr(sub, "origin", None)
+    out = {}
+    if isinstance(o, CombustionResult):
+        out["combustion"] = {k: o.summary[k] for k in COMBUSTION_INPUTS if k in o.summary}
+    elif isinstance(o, Oxidant):
+        out["humid_air"] = o.describe()
+    if getattr(sub, "dew_point_P_Pa", None) is not None:
+        out["dew_point"] = {"T_K": sub.dew_point_K, "P_Pa": sub.dew_point_P_Pa}
+    return out
+
+
 def normalise(spec: BookSpec, source) -> dict:
     """The spec as plain JSON-ready data with every default applied, SI values.
 
@@ -965,6 +987,8 @@ def normalise(spec: BookSpec, source) -> dict:
             "anchor": {"T_K": s.anchor.T_K, "Pr": s.anchor.Pr, "vr": s.anchor.vr},
             "mean_cp_from_K": t.T_mean_ref_K, "extrapolate": t.extrapolate,
         })
+        if t.substance_ref not in spec.substances:
+            tables[-1].update(_made_from(s))
         if t.charts:
             from dataclasses import asdict, is_dataclass
             tables[-1]["charts"] = [asdict(c) if is_dataclass(c) else repr(c) for c in t.charts]
@@ -972,6 +996,9 @@ def normalise(spec: BookSpec, source) -> dict:
     for k, s in sorted(spec.substances.items()):
         subs[k] = {"id": s.id, "name": s.name, "kind": s.kind,
                    "mole_fractions": {c.id: c.mole_fraction for c in s.components}}
+        made = _made_from(s)
+        if made:
+            subs[k].update(made)
     for t in spec.tables:
         if t.composition_u is not None and t.substance_ref in subs:
             subs[t.substance_ref]["fraction_uncertainty"] = {"basis": t.composition_u[0],

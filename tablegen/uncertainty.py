@@ -321,7 +321,7 @@ def _rounding(u: dict, keys, T, printed_step) -> None:
 def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: float = P_STD,
            composition_u: dict | None = None, composition_basis: str = "mole",
            printed_step: dict | None = None, agreement=None, T_rows=None,
-           held_out: str | None = None) -> Budget:
+           held_out: str | None = None, composition_inputs: dict | None = None) -> Budget:
     """The uncertainty budget of ``substance`` at temperatures ``T_K``.
 
     Parameters
@@ -341,6 +341,10 @@ def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: floa
         when it has at least 2 points)
     held_out : an evaluation left out of the evidence (tablegen.evidence.species_data),
         for a calibration against it
+    composition_inputs : input label -> {species id: signed change of its mole
+        fraction for one standard uncertainty of that input}, for a composition
+        computed from uncertain inputs (a flue gas: tablegen.burn_inputs); each input
+        is a component of its own, "composition: LABEL"
 
     Raises
     ------
@@ -371,6 +375,10 @@ def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: floa
         comp = composition_sensitivity(substance, T, keys, composition_u, composition_basis, P)
         for k in keys:
             u[k]["composition"] = comp[k]
+    for label, dy in (composition_inputs or {}).items():
+        part = input_sensitivity(substance, T, keys, dy, P)
+        for k in keys:
+            u[k][f"composition: {label}"] = part[k]
     _rounding(u, keys, T, printed_step)
     validity, departures = _validity(substance, T, P, props, keys)
 
@@ -395,8 +403,13 @@ def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: floa
         statements.append("figures marked 'upper estimate' rest on the spread against a less accurate "
                           "evaluation, the only one that compares there: the printed values are likely "
                           "better than stated")
+    assumptions = _assumptions(P, composition_u, composition_basis, fit_u is not None)
+    if composition_inputs:
+        assumptions.append("composition from uncertain inputs (" + ", ".join(composition_inputs) + "): each "
+                           "input's effect on all mole fractions together, propagated through the combustion "
+                           "calculation (JCGM 100:2008, 5.1.2), independent between inputs")
     return Budget(substance.id, T, keys, P, values, u, est, inter, tuple(statements),
-                  tuple(_assumptions(P, composition_u, composition_basis, fit_u is not None)),
+                  tuple(assumptions),
                   tuple(sources), validity=tuple(validity), departures=departures, upper=upper)
 
 
@@ -444,6 +457,32 @@ def _perturbed(fr: dict, sid: str, delta: float) -> dict:
     out[sid] = fr[sid] + delta
     tot = sum(out.values())
     return {k: v / tot for k, v in out.items()}
+
+
+def input_sensitivity(substance, T, keys, dy: dict, P: float = P_STD) -> dict:
+    """Standard uncertainty per key from one input that moves all mole fractions together.
+
+    ``dy`` = {species: signed change of its mole fraction for one standard
+    uncertainty of the input}; the properties at y + ε dy and y − ε dy give the
+    linear change (ε small enough to keep every fraction positive), so
+    u = |X(y + ε dy) − X(y − ε dy)| / (2 ε).
+    """
+    fr = {c.id: c.mole_fraction for c in substance.components}
+    bad = [k for k in dy if k not in fr]
+    if bad:
+        raise TablegenError(f"uncertainty: {bad[0]!r} is not a component of {substance.id}; "
+                            f"allowed: {', '.join(fr)}")
+    scale = max((abs(v) / fr[k] for k, v in dy.items() if v), default=0.0)
+    if scale == 0.0:
+        return {k: np.zeros_like(T) for k in keys}
+    eps = min(1.0, 0.5 / scale)
+
+    def at(sign):
+        y = {k: v + sign * eps * dy.get(k, 0.0) for k, v in fr.items()}
+        tot = sum(y.values())
+        return _rebuild(substance, {k: v / tot for k, v in y.items()}, "mole").properties(T, P)
+    hi, lo = at(1.0), at(-1.0)
+    return {k: np.abs(np.asarray(hi[k], float) - np.asarray(lo[k], float)) / (2 * eps) for k in keys}
 
 
 def composition_sensitivity(substance, T, keys, composition_u: dict, basis: str = "mole",

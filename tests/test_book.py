@@ -188,7 +188,7 @@ def parse_table_pages(reader: PdfReader):
         while j < len(lines):
             toks = lines[j].split()
             mark = ""
-            if toks and toks[0] in ("*", "x", "*x"):
+            if toks and re.fullmatch(r"[*xc]+", toks[0]):     # row marks (how-to-read page)
                 mark, toks = toks[0], toks[1:]
             if toks and all(NUM.match(t) for t in toks) and len(toks) >= 2 and header:
                 rows.append(toks)

@@ -479,6 +479,7 @@ STYLES = {
     "process": (2.2, None, (0.52, 0.03, 0.03)),
     "isentropic": (1.4, (5.0, 2.5), (0.52, 0.03, 0.03)),
     "aux": (0.9, (1.2, 1.6), (0.52, 0.03, 0.03)),
+    "dewpoint": (1.5, (0.9, 1.5), (0.05, 0.38, 0.62)),
     "frame": (0.8, None, (0.0, 0.0, 0.0)),
 }
 BLACK = (0.0, 0.0, 0.0)
@@ -768,6 +769,15 @@ def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None
                 lines.append(Line("isotherm", xx, np.full(xx.shape, cv.h.from_si(ht)), "isotherm",
                                   value_SI=float(t), T_K=np.full(xx.shape, t), P_Pa=P_line))
 
+    # ---- the gas's water dew point (its one figure, at its stated pressure), a labelled line
+    dew = getattr(substance, "dew_point_K", None)
+    if dew is not None and lo <= dew <= hi:
+        y_dew = cv.T.from_si(dew) if spec.kind == "ts" else \
+            cv.h.from_si(float(substance.properties(np.array([dew]))["h"][0]))
+        xx = np.linspace(x_axis.lo, x_axis.hi, 24)
+        lines.append(Line("dewpoint", xx, np.full(xx.shape, float(y_dew)), "dewpoint", value_SI=float(dew),
+                          T_K=np.full(xx.shape, dew), P_Pa=np.full(xx.shape, substance.dew_point_P_Pa)))
+
     # ---- right-hand scale: h on T-s, T on h-s (ideal gas: h is a function of T)
     side = None
     if spec.kind == "ts":
@@ -872,6 +882,11 @@ def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None
             text = f"{_fmt_value(cv.T.from_si(ln.value_SI))} {cv.sym['T']}"
             lab = placer.place_on_line(text, ln.x, ln.y, size, along_x=True,
                                        targets=(0.90, 0.80, 0.70, 0.60, 0.50, 0.30, 0.15))
+        elif ln.family == "dewpoint":
+            text = (f"water dew point {cv.T.from_si(ln.value_SI):.1f} {cv.sym['T']} at "
+                    f"{cv.P.from_si(substance.dew_point_P_Pa):.4g} {Psym}: condensation below")
+            lab = placer.place_on_line(text, ln.x, ln.y, size * 1.05, along_x=True,
+                                       targets=(0.70, 0.55, 0.85, 0.40, 0.25))
         else:
             lab = None
         labelled.append(Line(ln.family, ln.x, ln.y, ln.style, lab, ln.value_SI, ln.T_K, ln.P_Pa))
@@ -913,6 +928,8 @@ def _panel(substance, spec, cv, ov_states, ov_steps, points, system, notes, fs, 
         key.append(("isochore", "specific volume v = const"))
     if spec.kind == "hs":
         key.append(("isotherm", "isotherm, T = const (h = const)"))
+    if "dewpoint" in used:
+        key.append(("dewpoint", "water dew point (water condenses below)"))
     if spec.overlays:
         key.append(("process", "process, actual path"))
         if "isentropic" in used:
@@ -967,15 +984,20 @@ def _panel(substance, spec, cv, ov_states, ov_steps, points, system, notes, fs, 
         text.append(f"Composition, mole fractions: {comp}; s° includes the ideal mixing term.")
     text += list(notes)
     ids = {c.id for c in substance.components} | {substance.id}
-    if "H2O" in ids:
-        text.append("Contains water vapour: below its dew point water (and any acid formed from "
-                    "SO2 or SO3) condenses; lines there do not describe the gas, and condensing "
-                    "acid attacks metal surfaces.")
+    sulfur = "SO2" in ids or any("sulfur" in c for c in getattr(substance, "cautions", ()))
+    if getattr(substance, "dew_point_P_Pa", None) is not None:
+        from ..saturation import dew_point_text
+        text.append(f"Water dew point {dew_point_text(substance.dew_point_K, substance.dew_point_P_Pa)}"
+                    f" (IAPWS-IF97): below it water condenses and the lines do not describe the gas"
+                    + ("; condensing acid attacks metal surfaces." if sulfur else "."))
+    elif "H2O" in ids and substance.kind == "mixture":
+        text.append("Contains water vapour: below its dew point water condenses; lines there do not "
+                    "describe the gas.")
     if getattr(substance, "cautions", ()):
         # combustion products: the cautions that travel with the gas, in short
         text.append("Combustion products (frozen complete combustion, no dissociation): flue gas is "
-                    "toxic and asphyxiant; the acid dew point of sulfur-bearing flue gas lies well "
-                    "above the water dew point and is not computed.")
+                    "toxic and asphyxiant" + ("; the acid dew point of this sulfur-bearing flue gas lies well "
+                                              "above the water dew point and is not computed." if sulfur else "."))
     text.append("Ideal-gas model: not valid near saturation or at high pressure, where real-gas "
                 "effects matter; for design, check against real-gas data and follow local codes "
                 "and licensed engineering practice.")
@@ -1183,7 +1205,7 @@ def _compose(surf, model: ChartModel, x0, y0, width, height, page_text: str = ""
         surf.polyline([(px, float(Y(v))), (px + pw, float(Y(v)))], *STYLES["grid_major"])
 
     # lines (thin families first, overlays on top)
-    order = {"isotherm": 0, "isochore": 1, "isobar": 2, "aux": 3, "isentropic": 4, "process": 5}
+    order = {"isotherm": 0, "isochore": 1, "isobar": 2, "dewpoint": 3, "aux": 4, "isentropic": 5, "process": 6}
     for ln in sorted(model.lines, key=lambda ln: order.get(ln.family, 9)):
         w, dash, rgb = STYLES[ln.style]
         surf.polyline(np.column_stack([X(ln.x), Y(ln.y)]), w, dash, rgb, clip)

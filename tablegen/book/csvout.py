@@ -50,7 +50,9 @@ def _field(s: str) -> str:
 MARK_HEADER = "mark"
 
 #: The codes of the mark column, as the PDF prints and explains them.
-MARK_CODES = {"*": "an extra row at a named temperature", "x": "extrapolated beyond the coefficient data"}
+MARK_CODES = {"*": "an extra row at a named temperature", "x": "extrapolated beyond the coefficient data",
+              "c": "at or below the water dew point of the gas: water may condense at this temperature; "
+                   "ideal-gas values do not hold"}
 
 
 def comment_lines(book, t) -> list[str]:
@@ -70,12 +72,20 @@ def comment_lines(book, t) -> list[str]:
     xt = [repr(float(T)) for T, m in zip(t.T_K, t.marks) if "x" in m]
     if xt:
         lines.append(f"# extrapolated beyond the data range at T_K = {' '.join(xt)}")
+    ct = [repr(float(T)) for T, m in zip(t.T_K, t.marks) if "c" in m]
+    if ct:
+        lines.append(f"# at or below the water dew point (water may condense) at T_K = {' '.join(ct)}")
     if t.U_columns:
         lines.append("# U_<column>: expanded uncertainty (k = 2) of that column, same unit; "
                      "empty where none is stated (extrapolated rows)")
     if t.validity_columns:
         lines.append("# Z, realgas_<column>: the real gas at max_pressure (second-virial estimate), "
                      "where the ideal-gas values apply; not part of U")
+    for key, label, value, unit, U in t.substance.figures:
+        lines.append(f"# {key} = {value!r} {unit}" + ("" if U is None else f" (U k=2 {U!r})") +
+                     f": {neutralise(label)}")
+    for n in t.notes:
+        lines.append(f"# note: {neutralise(n)}")
     return lines
 
 
@@ -150,6 +160,11 @@ def metadata(book, t, csv_name: str) -> dict:
                                               "SHA-256 of each coefficient data file"},
         "prov:wasGeneratedBy": f"tablegen {book.versions['tablegen']}",
         "rdfs:comment": list(t.notes),
+        "schema:additionalProperty": [
+            {"@type": "schema:PropertyValue", "schema:propertyID": key, "schema:name": label,
+             "schema:value": value, "schema:unitText": unit,
+             **({} if U is None else {"schema:description": f"expanded uncertainty U (k = 2) {U!r} {unit}"})}
+            for key, label, value, unit, U in s.figures],
         "dialect": {"header": True, "delimiter": ",", "encoding": "utf-8",
                     "lineTerminators": ["\r\n"], "doubleQuote": True},
         "tableSchema": {"columns": cols, "primaryKey": cols[0]["name"]},

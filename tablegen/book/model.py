@@ -122,9 +122,9 @@ CAUTIONS = (
     "These tables follow the ideal-gas model: the properties depend on temperature only "
     "(entropy also on pressure through −R ln(P/P°)). Real-gas effects at high pressure or "
     "near saturation are not included.",
-    "Mixtures are of frozen composition: no dissociation, reaction or condensation. Below the "
-    "dew point of a flue gas, water and acids condense and the tabulated values do not apply; "
-    "condensing acid attacks steel.",
+    "Mixtures are of frozen composition: no dissociation, reaction or condensation. At and below "
+    "the water dew point of a gas holding water vapour (rows marked c) water may condense and the "
+    "tabulated values do not describe the gas.",
     "Values are valid only inside the temperature range of the coefficient data named in the "
     "sources section; values outside it are refused unless extrapolation was asked for, and "
     "are then marked.",
@@ -159,6 +159,12 @@ class SubstanceInfo:
     mixing_entropy_R: float
     components: tuple
     sources: tuple          # (species id, data set, citation)
+    dew_point_K: float | None = None     # water dew point at dew_point_P_Pa (None: none, or below 0 °C)
+    dew_point_P_Pa: float | None = None  # None: the gas holds no water vapour
+    description: tuple = ()              # sentences on what the gas was made from (humid air)
+    combustion: dict | None = None       # tablegen.book.sheet.to_json of the combustion that made it
+    figures: tuple = ()                  # (key, label, value, unit, U_k2): dew point, combustion figures
+    origin_key: int | None = None        # the same number for substances of one combustion
 
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -237,6 +243,8 @@ class BookModel:
     versions: dict
     normalised_spec: dict
     appendix: list = field(default_factory=list)   # Section, printed after the tables
+    sheets: tuple = ()      # tablegen.book.sheet.Sheet, one per combustion, in the substances section
+    caution_refs: dict = field(default_factory=dict)   # substance id -> ids of the cautions that concern it
 
 
 # ---------------------------------------------------------------- evaluation
@@ -336,10 +344,16 @@ def _csv_key(key: str, basis: str) -> str:
 
 
 def _substance_info(ref: str, s) -> SubstanceInfo:
+    from .provenance import made_from
     comps = tuple(ComponentInfo(c.id, c.mole_fraction, c.mass_fraction, c.M, c.source) for c in s.components)
+    description, combustion, figs = made_from(s)
+    origin = getattr(s, "origin", None)
     return SubstanceInfo(ref=ref, id=s.id, name=s.name, kind=s.kind, M=s.M, R=s.R, T_min=s.T_min,
                          T_max=s.T_max, mixing_entropy_R=s.mixing_entropy_R, components=comps,
-                         sources=tuple(tuple(x) for x in s.sources))
+                         sources=tuple(tuple(x) for x in s.sources), dew_point_K=s.dew_point_K,
+                         dew_point_P_Pa=s.dew_point_P_Pa, description=tuple(description),
+                         combustion=combustion, figures=tuple(figs),
+                         origin_key=None if origin is None else id(origin))
 
 
 def _fmtK(T: float) -> str:
@@ -418,7 +432,9 @@ def build_table(t, doc) -> TableModel:
         cols.append(Column(key=c.key, system=c.system, unit=c.unit, symbol=DEFINITIONS[c.key][0],
                            decimals=c.decimals, significant=c.significant, values=v, cells=cells,
                            csv_key=_csv_key(c.key, t.basis)))
+    from .provenance import condensing, dew_point_note
     ext = vals.get("extrapolated")
+    wet = condensing(sub, t.T_K)
     marks = []
     for i in range(t.T_K.size):
         m = ""
@@ -426,6 +442,8 @@ def build_table(t, doc) -> TableModel:
             m += "*"
         if ext is not None and ext[i]:
             m += "x"
+        if wet[i]:
+            m += "c"
         marks.append(m)
     notes = []
     if t.extra_rows:
@@ -435,6 +453,8 @@ def build_table(t, doc) -> TableModel:
     if ext is not None and np.any(ext):
         notes.append(f"x extrapolated beyond the data range {sub.T_min:g}-{sub.T_max:g} K: "
                      f"use with care.")
+    if sub.dew_point_P_Pa is not None:
+        notes.append(dew_point_note(sub, t.temperature_units[0], int(np.sum(wet))))
     basis_text = {"mass": "per unit mass", "molar": "per mole",
                   "volumetric": f"per m³ (SI) or ft³ (US) at {doc.reference.text}"}[t.basis]
     an = sub.anchor
@@ -448,9 +468,6 @@ def build_table(t, doc) -> TableModel:
                   f"Values {basis_text}; entropy at P° = {pressure_text(sub.P_ref_Pa)}",
                   f"Enthalpy datum {datum_text}; Pr/vr anchor: {anchor_text_of(sub.anchor, t_unit)}")
     unc, U_cols, V_cols = uncertainty_notes(t, doc, sub, cols, notes)
-    if sub.cautions:
-        notes.append(f"{sub.name}: read the cautions for this gas in the Caution section "
-                     f"(combustion products: toxic, asphyxiant, acid dew point not computed).")
     charts = ()
     if t.charts:
         from .charts import build_chart
@@ -545,14 +562,11 @@ def build_book(spec, tables=None) -> BookModel:
         definitions.append((k, sym, name, formula, tuple(units)))
     ref_text = doc.reference.text if any(t.basis == "volumetric" for t in tables) else ""
     fp, listed = fingerprint(spec.normalised, data_files(spec))
-    cautions = list(CAUTIONS)
-    for t in spec.tables:
-        for text in t.substance.cautions:
-            line = f"{t.substance.name}: {text}"
-            if line not in cautions:
-                cautions.append(line)
+    from .provenance import numbered_cautions, sheets_of
+    cautions, refs = numbered_cautions(spec, tables, CAUTIONS)
+    sheets = sheets_of(spec, tables, refs, cautions)
     appendix = appendix_sections(tables, doc)
     return BookModel(appendix=appendix, name=spec.name, document=doc, tables=tables, substances=tuple(subs),
                      definitions=tuple(definitions), cautions=tuple(cautions), rounding_rule=ROUNDING_RULE,
                      reference_text=ref_text, data_files=listed, fingerprint=fp, versions=versions(),
-                     normalised_spec=spec.normalised)
+                     normalised_spec=spec.normalised, sheets=sheets, caution_refs=refs)

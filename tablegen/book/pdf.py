@@ -239,7 +239,9 @@ def _front(book, L: Layout, pages: list, contents: list):
            "between rows may be interpolated linearly; the row spacing sets the interpolation error.")
     f.para(book.rounding_rule)
     f.para("Row marks in the narrow first column: * an extra row at a named temperature; "
-           "x a value extrapolated beyond the range of the coefficient data.")
+           "x a value extrapolated beyond the range of the coefficient data; c at or below the water dew "
+           "point of the gas: water may condense at this temperature; ideal-gas values do not hold. The "
+           "CSV files carry the same marks in their last column, mark.")
     if book.reference_text:
         f.para(f"Volumetric basis: values per cubic metre (SI) or cubic foot (US) of gas at "
                f"{book.reference_text}, that is per amount n = P/(R T) of ideal gas at those conditions.")
@@ -260,10 +262,15 @@ def _front(book, L: Layout, pages: list, contents: list):
     # compositions
     f.new_page()
     f.heading("Substances and compositions", anchor="subs")
+    sheets = {}
+    for sh in book.sheets:
+        sheets.setdefault(sh.substances[-1], sh)
     for s in book.substances:
         f.heading(f"{s.name} ({s.id})", L.text * 1.1)
         f.para(f"M = {s.M:.4f} kg/kmol, R = {s.R:.3f} J/(kg K); coefficient data valid "
                f"{s.T_min:g} K to {s.T_max:g} K.")
+        for line in s.description:
+            f.para(line)
         if s.kind == "mixture":
             rows = [(c.id, _fmt_frac(c.mole_fraction), _fmt_frac(c.mass_fraction), f"{c.M:.4f}", c.source)
                     for c in s.components]
@@ -272,6 +279,11 @@ def _front(book, L: Layout, pages: list, contents: list):
             f.para(f"The mixture's s° includes the ideal mixing term −R Σ yᵢ ln yᵢ = "
                    f"{s.mixing_entropy_R:.6f} R = {s.mixing_entropy_R * s.R / 1000:.6f} kJ/(kg K). "
                    f"Composition is frozen at all temperatures.", size=L.text * 0.92)
+        sh = sheets.pop(s.name, None)
+        if sh is not None:
+            _sheet(f, sh, book.sheets.index(sh) + 1)
+            if s is not book.substances[-1]:
+                f.new_page()
     # sources
     f.heading("Data sources", anchor="sources")
     rows = []
@@ -288,6 +300,21 @@ def _front(book, L: Layout, pages: list, contents: list):
            size=L.text * 0.8, mono_cols=(1,))
     f.heading("Caution", anchor="caution")
     f.box("CAUTION", book.cautions)
+
+
+def _sheet(f: Flow, sh, n: int):
+    """A combustion sheet, after the last substance it defines."""
+    L = f.L
+    f.new_page()
+    f.heading(sh.title, L.text * 1.25, anchor=f"sheet{n}")
+    for b in sh.blocks:
+        if b[0] == "heading":
+            f.heading(b[1], L.text * 1.05)
+        elif b[0] == "para":
+            f.para(b[1], size=L.text * 0.95)
+        else:
+            _, header, rows, fractions, right = b
+            f.grid(header, rows, fractions, size=L.text * 0.88, right_cols=right)
 
 
 def _grouped(hexdigest: str) -> str:
@@ -369,7 +396,7 @@ def plan_table(t, L: Layout):
         head = max(_w(c.symbol, SANS_BOLD, L.head), _w(c.unit, SANS, L.body * 0.82))
         colw.append(max(longest, head))
     has_marks = any(t.marks)
-    markw = _w("*x", SANS, L.body) + 2 if has_marks else 0.0
+    markw = max(_w(m, SANS, L.body) for m in t.marks) + 2 if has_marks else 0.0
     avail = L.width - 2 * L.margin_x - markw
     tcols = [i for i, c in enumerate(t.columns) if c.key == "T"]
     others = [i for i, c in enumerate(t.columns) if c.key != "T"]
@@ -509,8 +536,9 @@ def plan(book):
     fonts.register()
     d = book.document
     L = layout_for(d.paper, d.orientation)
-    contents = [("How to read these tables", "read"), ("Substances and compositions", "subs"),
-                ("Data sources", "sources"), ("Caution", "caution")]
+    contents = [("How to read these tables", "read"), ("Substances and compositions", "subs")]
+    contents += [(sh.title, f"sheet{i}") for i, sh in enumerate(book.sheets, 1)]
+    contents += [("Data sources", "sources"), ("Caution", "caution")]
     contents += [(f"Table {i}. {t.title}", f"table{i}") for i, t in enumerate(book.tables, 1)]
     grouped = d.chart_placement == "grouped" and any(t.charts for t in book.tables)
     if grouped:

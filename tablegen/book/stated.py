@@ -89,10 +89,12 @@ def uncertainty_notes(t, doc, sub, cols, notes):
         first.setdefault(c.key, c)
     steps = {k: 10.0 ** (-first[k].decimals) * _printed_factor(k, first[k], t, doc, sub)
              for k in keys if first[k].decimals is not None}
+    from ..burn_inputs import composition_inputs
     cu = getattr(t, "composition_u", None)
     b = unc.budget(sub, t.T_K[inside], keys, P_max_Pa=doc.max_pressure_Pa, printed_step=steps,
                    composition_u=None if cu is None else cu[1],
-                   composition_basis="mole" if cu is None else cu[0])
+                   composition_basis="mole" if cu is None else cu[0],
+                   composition_inputs=composition_inputs(sub))
     figures, departs = [], []
     for k in keys:
         c = first[k]
@@ -208,6 +210,8 @@ def _uncertainty_section(tables, doc):
         "range of validity of the tables. These figures describe the tables, not a design margin.",
     ]
     paras += paras_tables
+    from .provenance import input_contributions
+    paras += input_contributions(tables)
     paras += [f"Assumption: {a}" for a in assumptions]
     if sources:
         paras.append("Sources of the figures: " + "; ".join(sources) + ".")

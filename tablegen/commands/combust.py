@@ -18,6 +18,7 @@ example:
   tablegen combust --fuel propane --excess-air 20 --flow 50kg/h
   tablegen combust --fuel methane --lambda 1.15 --ref-temperature 60F --flow 2000SCFM
   tablegen combust --fuel propane --o2-dry 3.5 --oxidant air,rh=60%,T=20C,P=1atm --json
+  tablegen combust --fuel "CH4=87%±0.5%,C2H6=6%±0.2%,C3H8=2%,N2=3%,CO2=2%" --o2-dry "3.5%±0.2%"
   tablegen combust --fuel fuels/heavy-oil.toml --lambda 1.2 --ref-temperature 15C
 
 A fuel file holds a [fuel] table: composition = {CH4 = 90, ...} with basis = "mole",
@@ -66,18 +67,22 @@ def add_arguments(p):
     p.epilog = EXAMPLE
     p.add_argument("--fuel", required=True, metavar="SPEC",
                    help="a composition, mole fractions CH4=0.9,C2H6=0.06,N2=0.04 or percentages "
-                        "CH4=90%%,C2H6=6%%,N2=4%% (basis=mass,... for mass fractions), one species (propane), "
-                        "or a TOML fuel file")
+                        "CH4=90%%,C2H6=6%%,N2=4%% (basis=mass,... for mass fractions), with the analysis' "
+                        "expanded uncertainty (k = 2) of any part written as the part is: CH4=87%%±0.5%% or "
+                        "CH4=0.87±0.005 (+- for ±); one species (propane), or a TOML fuel file")
     g = p.add_argument_group("amount of oxidant (give exactly one)").add_mutually_exclusive_group(required=True)
     g.add_argument("--excess-air", metavar="P", help="excess air in %% (0 = stoichiometric)")
     g.add_argument("--lambda", dest="air_ratio", metavar="L", help="air ratio λ (>= 1)")
     g.add_argument("--phi", metavar="F", help="equivalence ratio φ = 1/λ (0 < φ <= 1)")
-    g.add_argument("--o2-dry", metavar="P", help="measured flue-gas O2, %% by volume, dry basis")
-    g.add_argument("--o2-wet", metavar="P", help="measured flue-gas O2, %% by volume, wet basis")
+    g.add_argument("--o2-dry", metavar="P", help="measured flue-gas O2, %% by volume, dry basis; with its "
+                                                   "expanded uncertainty (k = 2): 3.5%%±0.2%% (or 3.5%%+-0.2%%)")
+    g.add_argument("--o2-wet", metavar="P", help="measured flue-gas O2, %% by volume, wet basis (3.1%%±0.2%% as "
+                                                   "for --o2-dry)")
     p.add_argument("--oxidant", default="air", metavar="SPEC",
                    help="air (default, dry), oxygen, air,rh=60%%,T=25C[,P=1atm] (humid, relative "
-                        "humidity at T and P), air,w=8g/kg (humid, humidity ratio), air,O2=30%% (enriched "
-                        "to 30 %% O2, dry), or a dry composition O2=0.3,N2=0.7")
+                        "humidity at T and P), air,w=8g/kg (humid, humidity ratio), air,dew=5C[,P=1atm] "
+                        "(humid, dew point), air,O2=30%% (enriched to 30 %% O2, dry), or a dry composition "
+                        "O2=0.3,N2=0.7; T=... states the air temperature, which the flame temperature uses")
     p.add_argument("--ref-temperature", default=None, metavar="T",
                    help="combustion reference temperature of the heating values: 25C (default), 20C, "
                         "15.55C (= 60F), 15C or 0C")
@@ -86,7 +91,8 @@ def add_arguments(p):
     p.add_argument("--fuel-temperature", default=None, metavar="T",
                    help="fuel inlet temperature for the flame temperature (default 25C)")
     p.add_argument("--oxidant-temperature", default=None, metavar="T",
-                   help="oxidant inlet temperature for the flame temperature (default 25C)")
+                   help="oxidant inlet temperature for the flame temperature (default: the T of --oxidant, "
+                        "else 25C)")
     p.add_argument("--flue-pressure", default=None, metavar="P",
                    help="flue-gas pressure for the water dew point (default 101.325kPa; gauge values "
                         "such as 5mbarg are read against --barometer)")
@@ -102,6 +108,12 @@ def _percent(text, what):
         return float(t)
     except ValueError:
         raise TablegenError(f"{what} {text!r} is not a number; give e.g. 15 or 15%") from None
+
+
+def measured_o2(text, what) -> tuple[float, float | None]:
+    """'3.5' or '3.5%' -> (3.5, None); '3.5%±0.2%' -> (3.5, 0.2): the O2 and its expanded uncertainty, %."""
+    from ..burn import measured_o2 as read
+    return read(text, what)
 
 
 #: Defaults of the condition options (None in argparse, so that typed values can be told apart).
@@ -145,15 +157,17 @@ def compute(args):
     elif args.phi is not None:
         amount["phi"] = _percent(args.phi, "--phi")
     elif args.o2_dry is not None:
-        amount["o2_dry"] = _percent(args.o2_dry, "--o2-dry")
+        amount["o2_dry"], amount["o2_uncertainty"] = measured_o2(args.o2_dry, "--o2-dry")
     else:
-        amount["o2_wet"] = _percent(args.o2_wet, "--o2-wet")
+        amount["o2_wet"], amount["o2_uncertainty"] = measured_o2(args.o2_wet, "--o2-wet")
     return combustion(
         args.fuel, args.oxidant, T_ref_K=REF_CHOICES[ref],
         T_meter_K=temperature_K(parts[0], "--metering temperature"),
         P_meter_Pa=pressure_Pa(parts[1], "--metering pressure"),
-        T_fuel_K=temperature_K(_given(args, "fuel_temperature"), "--fuel-temperature"),
-        T_oxidant_K=temperature_K(_given(args, "oxidant_temperature"), "--oxidant-temperature"),
+        T_fuel_K=None if args.fuel_temperature is None else temperature_K(args.fuel_temperature,
+                                                                           "--fuel-temperature"),
+        T_oxidant_K=None if args.oxidant_temperature is None else temperature_K(args.oxidant_temperature,
+                                                                                 "--oxidant-temperature"),
         P_flue_Pa=pressure_Pa(_given(args, "flue_pressure"), "--flue-pressure",
                               barometer_Pa=barometer_Pa(args.barometer)),
         data=args.data, source=args.source, **amount)
@@ -225,8 +239,9 @@ def render_text(r, sh=None, flow=None, flows=None) -> str:
     Tm, Pm = s["metering_T_K"], s["metering_P_Pa"]
     norm = f"normal m³ = {unit(sh.T).from_si(Tm):g} {sh.T}, {Pm / 1000:g} kPa"
     out = [f"Combustion of {f.name}" + (f" (M = {f.M:.4f} kg/kmol)" if f.M else ""),
-           f"  oxidant: {ox.name} (O2 {ox.y_O2 * 100:.4g} % by volume, M = {ox.M:.4f} kg/kmol)",
-           f"  λ = {s['lambda']:.4f}   excess air = {s['excess_air_percent']:.2f} %   φ = {s['phi']:.4f}",
+           f"  oxidant: {oxidant_text(ox)}",
+           f"  λ = {s['lambda']:.4f}   excess air = {s['excess_air_percent']:.2f} %   φ = {s['phi']:.4f}"
+           + amount_text(s),
            f"  volumes: {norm}, ideal gas", ""]
     if flows is not None:
         out += render_flow(flows, flow, sh, norm) + [""]
@@ -273,10 +288,13 @@ def render_text(r, sh=None, flow=None, flows=None) -> str:
                 f"(Δh_vap of water {s['h_vap_water_J_per_kg'] / 1000:.2f} kJ/kg)"] + \
         _table(("", "LHV", "HHV"), rows)
     Ta = s["t_adiabatic_K"]
-    out += ["", f"Adiabatic flame temperature (fuel at {unit(sh.T).from_si(s['T_fuel_K']):g} {sh.T}, oxidant at "
-                f"{unit(sh.T).from_si(s['T_oxidant_K']):g} {sh.T}): " +
+    out += ["", "Adiabatic flame temperature: " +
             (_T(sh, Ta, 0) if Ta is not None else
-             f"above {r.products.T_max:g} K, the end of the data (not given)")]
+             f"above {r.products.T_max:g} K, the end of the data (not given)") +
+            f", fuel at {unit(sh.T).from_si(s['T_fuel_K']):g} {sh.T} ({s.get('T_fuel_source', 'as given')}), "
+            f"oxidant at {unit(sh.T).from_si(s['T_oxidant_K']):g} {sh.T} ({s.get('T_oxidant_source', 'as given')})"]
+    if r.uncertainty is not None:
+        out += ["", *uncertainty_lines(r)]
     out += ["", "Notes"] + [f"  - {n}" for n in s["notes"]]
     out += ["", "Printed digits: heating values to 0.001 MJ/kg (the data agree with ISO 6976 to about 0.01 %), "
                 "dew point to 0.1 K, flame temperature to 1 K; fractions and ratios are exact to round-off "
@@ -285,6 +303,57 @@ def render_text(r, sh=None, flow=None, flows=None) -> str:
     if r.products.id.lower().startswith("flue@"):
         out += ["", f"Tabulate this flue gas: tablegen state \"{r.products.id}\" --T 400K,1500K"]
     return "\n".join(out) + "\n"
+
+
+def oxidant_text(ox) -> str:
+    """'humid air, RH 60 % at 15 °C and 101.325 kPa; humidity ratio 6.35 g/kg, water dew point 7.3 °C; ...'."""
+    parts = [ox.name]
+    if ox.y_H2O > 0:
+        dp = "below 0 °C" if ox.dew_point_K is None else f"{ox.dew_point_K - 273.15:.1f} °C"
+        extra = [f"humidity ratio {ox.humidity_ratio * 1000:.4g} g/kg", f"water {ox.y_H2O * 100:.4g} % by volume",
+                 f"water dew point {dp} at {ox.P_Pa / 1000:g} kPa"]
+        if ox.humidity_given != "relative_humidity" and ox.relative_humidity is not None:
+            extra.insert(0, f"RH {ox.relative_humidity:.3g} % at {ox.T_K - 273.15:g} °C")
+        parts.append(", ".join(extra))
+    parts.append(f"O2 {ox.y_O2 * 100:.4g} % by volume{' (wet)' if ox.y_H2O > 0 else ''}, M = {ox.M:.4f} kg/kmol")
+    return "; ".join(parts)
+
+
+def amount_text(s) -> str:
+    """Where λ came from, when it was not given directly: '  (from measured O2 3.5 ± 0.2 % dry)'."""
+    a = s.get("amount_given") or {}
+    if a.get("key") in ("o2_dry", "o2_wet"):
+        pm = "" if a.get("U_k2") is None else f" ± {a['U_k2']:g}"
+        return f"   (from measured O2 {a['value']:g}{pm} % {'dry' if a['key'] == 'o2_dry' else 'wet'})"
+    return ""
+
+
+#: Figures of the uncertainty block: summary key, label, unit, scale, format.
+U_FIGURES = (("lambda", "λ", "", 1.0, "{:.4f}"), ("excess_air_percent", "excess air", "%", 1.0, "{:.2f}"),
+             ("afr_mass", "oxidant/fuel, mass", "kg/kg", 1.0, "{:.4f}"),
+             ("flue_gas_volume_wet_per_kg", "flue gas, wet", "m³/kg fuel", 1.0, "{:.4f}"),
+             ("lhv_mass", "LHV", "MJ/kg", 1.0, "{:.3f}"), ("hhv_mass", "HHV", "MJ/kg", 1.0, "{:.3f}"),
+             ("dew_point_K", "water dew point", "K", 1.0, "{:.2f}"),
+             ("t_adiabatic_K", "adiabatic flame temperature", "K", 1.0, "{:.1f}"))
+
+
+def uncertainty_lines(r) -> list[str]:
+    """The stated input uncertainties and what they give (expanded, k = 2)."""
+    u, s = r.uncertainty, r.summary
+    out = ["Uncertainty from the stated inputs (expanded, k = 2; JCGM 100:2008 linear propagation)"]
+    out += [f"  input  {i.label}: {i.value * 100 if i.unit == 'fraction' else i.value:.6g} ± "
+            f"{i.U * 100 if i.unit == 'fraction' else i.U:.3g} %" for i in u.inputs]
+    rows = []
+    for key, label, unit, f, fmt in U_FIGURES:
+        U = u.U(key)
+        if U is None or s.get(key) is None or U == 0.0:
+            continue           # e.g. λ when the excess air is given: exact
+        big = max(u.figures[key]["parts"].items(), key=lambda kv: abs(kv[1]))[0] if U > 0 else "-"
+        rows.append((f"{label}{' [' + unit + ']' if unit else ''}", fmt.format(s[key] * f), fmt.format(U * f), big))
+    for k, y in s["products_wet"].items():
+        rows.append((f"{k} wet [mole %]", f"{y * 100:.4f}", f"{u.products['wet'].get(k, 0.0) * 100:.4f}", ""))
+    out += _table(("", "value", "U (k = 2)", "largest part"), rows)
+    return out
 
 
 def run(args) -> int:

@@ -33,6 +33,7 @@ example:
   tablegen process "CO2=0.12,H2O=0.1,N2=0.74,O2=0.04" --from T=1400K,P=12bar --expand-to 1.05bar --eta 0.9
   tablegen process N2 --from T=300K,P=2bar --heat-to 800K --boundary-T 1100K --json
   tablegen process air --from T=400K,P=5bar --cool-by 80kJ/kg --flow 3t/h
+  tablegen process "air,rh=80%,T=25C" --from T=400K,P=8bar --heat-to 30C
   tablegen process --incompressible water --from T=20C,P=0barg --compress-to 12barg --eta 0.7
   tablegen process --incompressible c=0.9,rho=2700 --from T=20C,P=1bar --heat-to 120C"""
 
@@ -51,7 +52,7 @@ STEP_OPTIONS = {
 }
 
 CAUTION_GAS = ("ideal-gas model: at high pressure or near condensation real-gas effects "
-               "(compressibility, Joule-Thomson change, condensing water or acid) are not included")
+               "(compressibility, Joule-Thomson change, condensing water) are not included")
 CAUTION_LIQUID = ("incompressible model: one density and c(T); no phase change, no boiling or "
                   "cavitation check")
 CAUTION_CODES = ("check machines, vessels and heaters against local codes and licensed "
@@ -61,8 +62,8 @@ CAUTION_CODES = ("check machines, vessels and heaters against local codes and li
 def add_arguments(p):
     p.epilog = EXAMPLE
     p.add_argument("substance", nargs="?", default=None,
-                   help="gas: species id or alias, shipped mixture (air), or a composition NAME=x,NAME=y "
-                        "(mole fractions; NAME=x%%,... or basis=mass,...) "
+                   help="gas: species id or alias, shipped mixture (air), a composition NAME=x,NAME=y "
+                        "(mole fractions; NAME=x%%,... or basis=mass,...), a humid air air,rh=60%%,T=15C "
                         "(leave out with --incompressible)")
     p.add_argument("--incompressible", default=None, metavar="NAME|c=..,rho=..",
                    help="a liquid or solid instead of a gas: a shipped entry (water-liquid, ice-Ih), "
@@ -282,12 +283,30 @@ def result_to_json(res, sub, step, params) -> dict:
         out["P_ref_Pa"] = sub.P_ref_Pa
         out["sources"] = [list(s) for s in sub.sources]
         out["cautions"] = [CAUTION_GAS, *getattr(sub, "cautions", ()), CAUTION_CODES]
+        out.update(dew_points(sub, out))
     else:
         out["h_datum"] = f"u = 0 and s = 0 at {sub.T_ref_K:g} K; h = u + P v"
         out["incompressible"] = {"c_J_per_kgK": list(sub.c_J_per_kgK), "rho_kg_per_m3": sub.rho_kg_per_m3,
                                  "T_range_K": [sub.T_min, None if math.isinf(sub.T_max) else sub.T_max]}
         out["sources"] = [[sub.id, sub.source, sub.source_note]]
         out["cautions"] = [CAUTION_LIQUID, CAUTION_CODES]
+    return out
+
+
+def dew_points(sub, d: dict) -> dict:
+    """The gas's water dew point, and each state at or below the dew point at its own pressure."""
+    from ..saturation import dew_point_at
+    T0, P0 = dew_point_at(sub)
+    if P0 is None:
+        return {}
+    out = {"dew_point_K": T0, "dew_point_P_Pa": P0, "condensing_states": []}
+    for name, kT, kP in (("1", "T1_K", "P1_Pa"), ("2", "T2_K", "P2_Pa"), ("2s", "T2s_K", "P2_Pa")):
+        T, P = d.get(kT), d.get(kP)
+        if T is None or P is None:
+            continue
+        Td, _ = dew_point_at(sub, P)
+        if Td is not None and T <= Td:
+            out["condensing_states"].append({"state": name, "T_K": T, "P_Pa": P, "dew_point_K": Td})
     return out
 
 

@@ -254,7 +254,21 @@ def format_text(d: dict, sub, sh, flow, line: str, *, compare: bool = False, ext
         lines.append("")
     for n in notes:
         lines.append(f"note: {n}")
+    lines += _dew_lines(d, sh)
     lines.append("")
     for c in d["cautions"]:
         lines.append(f"caution: {c}")
     return "\n".join(lines) + "\n"
+
+
+def _dew_lines(d: dict, sh) -> list[str]:
+    """The gas's water dew point (its one figure) and the states at or below the dew point at their pressure."""
+    if d.get("dew_point_P_Pa") is None:
+        return []
+    from ..saturation import dew_point_text
+    out = [f"water dew point of this gas {dew_point_text(d['dew_point_K'], d['dew_point_P_Pa'])}"]
+    for c in d.get("condensing_states", ()):
+        out.append(f"caution: state {c['state']} ({sh.T_text(c['T_K'], 2)}, {pressure_text(sh, c['P_Pa'])}) is at "
+                   f"or below the water dew point at its pressure, {sh.T_text(c['dew_point_K'], 2)}: water "
+                   f"condenses there and the ideal-gas figures do not hold")
+    return out

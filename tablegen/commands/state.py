@@ -17,7 +17,11 @@ example:
   tablegen state "CH4=0.9,C2H6=0.06,N2=0.04" --T 60F --h-datum sensible:0C
   tablegen state "CH4=90%,C2H6=6%,N2=4%" --T 15C,800C --json
   tablegen state air --T 60F,400F --P 120psig --units US
-  tablegen state methane --T 15C --h-datum formation"""
+  tablegen state methane --T 15C --h-datum formation
+  tablegen state "air,rh=60%,T=15C" --T 0C,15C,200C
+
+Humid air is written as combust --oxidant reads it (air,rh=60%,T=15C, air,w=8g/kg,
+air,dew=5C,P=1atm); rows at or below the water dew point of a gas are marked c."""
 
 #: JSON key -> (factor from SI, unit) for the mass-basis keys of the state output.
 JSON_UNITS = {
@@ -40,8 +44,9 @@ TEXT_COLUMNS = [("cp", "cp", "s", "{:.5f}"), ("k", "k", None, "{:.5f}"), ("h", "
 
 def add_arguments(p):
     p.epilog = EXAMPLE
-    p.add_argument("substance", help="species id or alias, shipped mixture (air), or a composition "
-                                      "NAME=x,NAME=y (mole fractions; NAME=x%%,... or basis=mass,...)")
+    p.add_argument("substance", help="species id or alias, shipped mixture (air), a composition "
+                                      "NAME=x,NAME=y (mole fractions; NAME=x%%,... or basis=mass,...), a humid air "
+                                      "air,rh=60%%,T=15C, or a flue gas flue@FUEL@AMOUNT")
     p.add_argument("--T", required=True, metavar="LIST",
                    help="temperatures with units, comma-separated: K, C, F or R (e.g. 25C,1000K)")
     p.add_argument("--P", default=None, metavar="VALUE",
@@ -65,6 +70,8 @@ def compute(args) -> tuple[list[dict], object]:
     pr = parse_pressure(args.P, "--P", barometer_Pa=barometer_Pa(args.barometer)) if args.P is not None else None
     P = None if pr is None else pr.Pa
     p = sub.properties(T, P, extrapolate=args.extrapolate)
+    from ..saturation import dew_point_at
+    dew = dew_point_at(sub, P)        # the gas's own figure, or at --P when that differs
     typed_T = [t.strip() for t in str(args.T).split(",")]
     units = {k: u for k, (_, u) in JSON_UNITS.items() if k in p}
     units.update({k: u for k, u in OTHER_UNITS.items() if k != "P_Pa" or P is not None})
@@ -84,6 +91,9 @@ def compute(args) -> tuple[list[dict], object]:
                 row["input"].update(P_gauge_Pa=pr.gauge_Pa, barometer_Pa=pr.barometer_Pa, P_gauge_unit=pr.gauge)
         if "extrapolated" in p:
             row["extrapolated"] = bool(p["extrapolated"][i])
+        if dew[1] is not None:
+            row["dew_point_K"], row["dew_point_P_Pa"] = dew
+            row["condensing"] = bool(dew[0] is not None and T[i] <= dew[0])
         if sub.cautions:
             row["cautions"] = list(sub.cautions)
         rows.append(row)
@@ -114,7 +124,8 @@ def run(args) -> int:
     for r in rows:
         cells = []
         for j, (key, _, _, fmt) in enumerate(cols):
-            cells.append(fmt(r[key]) + ("*" if r.get("extrapolated") and j == 0 else ""))
+            cells.append(fmt(r[key]) + ("*" if r.get("extrapolated") and j == 0 else "")
+                         + ("c" if r.get("condensing") and j == 0 else ""))
         table.append(cells)
     widths = [max(len(row[j]) for row in table) for j in range(len(cols))]
     from .process_text import datum_text
@@ -129,6 +140,11 @@ def run(args) -> int:
         out.append("  ".join(c.rjust(w) for c, w in zip(row, widths)))
     if any(r.get("extrapolated") for r in rows):
         out.append("* extrapolated beyond the data range: not for design use")
+    if rows and rows[0].get("dew_point_P_Pa") is not None:
+        from ..saturation import dew_point_text
+        out.append(f"water dew point {dew_point_text(rows[0]['dew_point_K'], rows[0]['dew_point_P_Pa'])}"
+                   + ("; c at or below it: water may condense at this temperature; ideal-gas values do not hold"
+                      if any(r.get("condensing") for r in rows) else ""))
     out.extend(f"caution: {c}" for c in sub.cautions)
     if args.verbose and sub.kind == "mixture":
         out.append(f"note: {MIXING_NOTE}")

@@ -145,6 +145,9 @@ class Substance:
     anchor: Anchor = Anchor()
     mixing_entropy_R: float = 0.0  # -Σ y ln y, already inside poly
     cautions: tuple = ()           # texts every document that shows this substance must print
+    dew_point_K: float | None = None     # water dew point at dew_point_P_Pa (mixtures holding H2O), K
+    dew_point_P_Pa: float | None = None  # the pressure it is stated at (the gas's stated pressure), Pa
+    origin: object = None          # what the substance was made from (e.g. a combustion result), or None
     _cache: dict = field(default_factory=dict, repr=False)
 
     # --------------------------------------------------------------- options
