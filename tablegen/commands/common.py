@@ -27,6 +27,8 @@ def add_datum_options(p, *, with_pressure: bool = True, default: str | None = "f
                    help="Pr/vr scale: Pr and vr at temperature T (default T=298.15K,Pr=1,vr=1)")
     g.add_argument("--extrapolate", action="store_true",
                    help="allow temperatures outside the data range; such values are marked")
+    # what a refusal outside the data range names as the way to opt in (cli.main)
+    p.set_defaults(extrapolate_option="--extrapolate")
 
 
 def add_unit_options(p, *, pressure: bool = True, flow: str | None = None):

@@ -20,7 +20,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from ..constants import P_STD, R_MOLAR, T_REF  # noqa: F401  (re-exported)
-from ..errors import InputError, RangeError, TablegenError
+from ..errors import DataRangeError, InputError, RangeError, TablegenError
 from .polynomial import Polynomial
 
 #: Relative tolerance of the inverse functions (in T).
@@ -196,10 +196,8 @@ class Substance:
         out = (T < lo) | (T > hi)
         if np.any(out):
             bad = float(T[out].flat[0])
-            raise RangeError(
-                f"{self.id}: T = {bad:g} K is outside the data range {lo:g}-{hi:g} K; "
-                f"allowed: {lo:g} to {hi:g} K, or opt in to extrapolation (--extrapolate), "
-                f"which marks every extrapolated value")
+            raise DataRangeError(f"{self.id}: T = {bad:g} K is outside the data range {lo:g}-{hi:g} K",
+                                 f"{lo:g} to {hi:g} K")
         return None
 
     def _check_scales(self, ln_lo: float, ln_hi: float, T_lo: float, T_hi: float) -> None:
