@@ -98,17 +98,17 @@ def anchor_from_text(text: str | None):
 
 
 def data_notices(args):
-    """Print the library's notices once, on stderr unless --quiet.
+    """Print the library's notices, on stderr unless --quiet: once in each run, however
+    often a command asks (notice() says a text once per run; the library itself is
+    cached for the process, so a flag on it would silence a second run in one process).
 
     They say which user records replace shipped ones and what validation
     found in user files (tablegen.data.library.Library.messages).
     """
     from ..data.library import library
     lib = library(tuple(getattr(args, "data", ()) or ()))
-    if not lib.announced:
-        lib.announced = True
-        for m in lib.messages:
-            notice(args, f"note: {m}")
+    for m in lib.messages:
+        notice(args, f"note: {m}")
     return lib
 
 
@@ -136,12 +136,16 @@ def published(args, out, files, notes, what: str, detail: str = "", paths: bool 
 
 #: Notices of the running command, printed only once it has succeeded (None: print at once).
 _held: list | None = None
+#: Notices already given in this run: each is said once (a note repeated per table or per
+#: substance tells the reader nothing new).
+_said: set = set()
 
 
 def hold_notices() -> None:
     """Keep notices until the command ends, so a refusal is the only line on stderr."""
     global _held
     _held = []
+    _said.clear()
 
 
 def release_notices(print_them: bool) -> None:
@@ -154,8 +158,10 @@ def release_notices(print_them: bool) -> None:
 
 
 def notice(args, text: str):
-    if getattr(args, "quiet", False):
+    """A message line on stderr (held until the command succeeds; each text once per run)."""
+    if getattr(args, "quiet", False) or text in _said:
         return
+    _said.add(text)
     if _held is not None:
         _held.append(text)
     else:
