@@ -757,7 +757,11 @@ def _table(raw, where, defaults, doc, subs, source, data) -> TableSpec:
     system = _choice(merged, "units", UNIT_SYSTEMS, where, doc.units)
     basis = _choice(merged, "basis", BASES, where, doc.basis)
     try:
-        datum = _datum(merged.get("datum", "formation"), f"{where}.datum")
+        if "datum" in merged:
+            datum = _datum(merged["datum"], f"{where}.datum")
+        else:           # the rule of state, process and charts: thermo.substance.default_datum
+            from .thermo.substance import default_datum
+            datum = default_datum(sub, reacting=None, basis=basis)
         P_ref = _pressure(merged["P_ref"], f"{where}.P_ref") if "P_ref" in merged else 1e5
         anchor = _anchor(merged["anchor"], f"{where}.anchor") if "anchor" in merged else None
         sub = sub.with_options(datum=datum, P_ref_Pa=P_ref, anchor=anchor)

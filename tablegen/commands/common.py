@@ -12,13 +12,19 @@ from ..jsonout import clean, dumps  # noqa: F401  (the commands import them from
 H_DATUM_DEFAULT_HELP = ("sensible[:T[:h]] (h(T) = h; the default, with T = 0 °C and h = 0, as no "
                         "reaction takes place here) or formation (h(298.15 K) = enthalpy of "
                         "formation, for reacting energy balances), e.g. sensible:25C")
+#: --h-datum help of a reference chart (default_datum with reacting=None).
+H_DATUM_REFERENCE_HELP = ("formation (h(298.15 K) = enthalpy of formation; the default, except for "
+                          "combustion products) or sensible[:T[:h]] (h(T) = h; the default for "
+                          "combustion products, with T = 0 °C and h = 0), e.g. sensible:25C")
 
 
-def add_datum_options(p, *, with_pressure: bool = True, default: str | None = "formation"):
-    """--h-datum, --p-ref, --anchor, --extrapolate; ``default=None``: the substance's default datum."""
+def add_datum_options(p, *, with_pressure: bool = True, default: str | None = "formation",
+                      datum_help: str = H_DATUM_DEFAULT_HELP):
+    """--h-datum, --p-ref, --anchor, --extrapolate; ``default=None``: the substance's default
+    datum (``datum_help`` says which)."""
     g = p.add_argument_group("datums and scales")
     g.add_argument("--h-datum", default=default, metavar="DATUM",
-                   help=H_DATUM_DEFAULT_HELP if default is None else
+                   help=datum_help if default is None else
                    "formation (default: h(298.15 K) = enthalpy of formation) or "
                    "sensible[:T[:h]] (h(T) = h kJ/kg, default 298.15 K and 0), e.g. sensible:0C")
     g.add_argument("--p-ref", default="1bar", metavar="P",
@@ -51,18 +57,20 @@ def add_unit_options(p, *, pressure: bool = True, flow: str | None = None):
                             "every converted value")
 
 
-def datum_from_text(text: str | None, substance=None, *, by_rule: bool = False):
+def datum_from_text(text: str | None, substance=None, *, by_rule: bool = False,
+                    reacting: bool | None = False):
     """--h-datum text -> Datum.
 
-    ``by_rule`` (state, process): no text gives the substance's default datum
-    (thermo.substance.default_datum) and a bare ``sensible`` puts h = 0 at
-    0 °C, as that default does. Otherwise (compare, chart) no text is the
-    formation datum and a bare ``sensible`` means h = 0 at 298.15 K.
+    ``by_rule`` (state, process, chart): no text gives the substance's default
+    datum (thermo.substance.default_datum with ``reacting``: False for state and
+    process, None for a chart) and a bare ``sensible`` puts h = 0 at 0 °C, as
+    that default does. Otherwise (compare) no text is the formation datum and a
+    bare ``sensible`` means h = 0 at 298.15 K.
     """
     from ..thermo.substance import SENSIBLE_DATUM_T_K, T_REF, Datum, default_datum
     from ..units import quantity, temperature_K
     if text is None:
-        return default_datum(substance) if by_rule else Datum("formation")
+        return default_datum(substance, reacting=reacting) if by_rule else Datum("formation")
     t = text.strip()
     if t == "formation":
         return Datum("formation")
@@ -112,13 +120,14 @@ def data_notices(args):
     return lib
 
 
-def substance_with_options(args, name: str, *, by_rule: bool = False):
+def substance_with_options(args, name: str, *, by_rule: bool = False, reacting: bool | None = False):
     """Resolve a substance and apply --h-datum, --p-ref and --anchor (see datum_from_text)."""
     from .. import api
     from ..units import pressure_Pa
     data_notices(args)
     sub = api.substance(name, source=args.source, data=args.data)
-    return sub.with_options(datum=datum_from_text(getattr(args, "h_datum", None), sub, by_rule=by_rule),
+    return sub.with_options(datum=datum_from_text(getattr(args, "h_datum", None), sub, by_rule=by_rule,
+                                                  reacting=reacting),
                             P_ref_Pa=pressure_Pa(getattr(args, "p_ref", "1bar") or "1bar", "--p-ref"),
                             anchor=anchor_from_text(getattr(args, "anchor", None)))
 
