@@ -40,7 +40,9 @@ BASES = ("mass", "molar", "volumetric")
 #: Column keys a table may print, in the order of docs/spec.md.
 COLUMN_KEYS = ("T", "cp", "cv", "k", "h", "u", "s0", "Pr", "vr", "a", "g0", "cp_mean_h", "cp_mean_s")
 DEFAULT_COLUMNS = ("T", "cp", "cv", "k", "h", "u", "s0", "Pr", "vr", "a")
-#: Columns printed with a number of significant digits rather than decimals by default.
+#: Columns printed with a number of significant digits rather than decimals by default; the
+#: count is chosen from the column's uncertainty (book.stated.auto_digits), this one where no
+#: uncertainty is stated (every row extrapolated).
 SIGNIFICANT_BY_DEFAULT = {"Pr": 5, "vr": 5}
 
 #: Named reference conditions of the volumetric basis: name -> (T_K, P_Pa, text).
@@ -112,7 +114,7 @@ class ColumnSpec:
     unit: str            # unit symbol as printed (temperature unit for T)
     decimals: int | None
     significant: int | None
-    auto: bool = False   # digits not set by the spec: the book chooses decimals from the uncertainty
+    auto: bool = False   # digits not set by the spec: the book chooses them from the uncertainty
 
 
 @dataclass(frozen=True, slots=True)
@@ -715,8 +717,8 @@ def _columns(raw, where, system, basis, t_units, decimals, significant) -> tuple
                 out.append(ColumnSpec(c, s, u, None, significant[c]))
             elif c in decimals:
                 out.append(ColumnSpec(c, s, u, decimals[c], None))
-            elif c in SIGNIFICANT_BY_DEFAULT:
-                out.append(ColumnSpec(c, s, u, None, SIGNIFICANT_BY_DEFAULT[c]))
+            elif c in SIGNIFICANT_BY_DEFAULT:   # the count is chosen from U (book.stated.auto_digits)
+                out.append(ColumnSpec(c, s, u, None, SIGNIFICANT_BY_DEFAULT[c], auto=True))
             else:
                 out.append(ColumnSpec(c, s, u, default_decimals(c, s, basis), None, auto=True))
     return tuple(out)
@@ -979,8 +981,9 @@ def normalise(spec: BookSpec, source) -> dict:
             "grid": t.grid, "rows": int(t.T_K.size), "T_K": [float(x) for x in t.T_K],
             "extra_rows": [{"T_K": e.T_K, "label": e.label} for e in t.extra_rows],
             "columns": [{"key": c.key, "system": c.system, "unit": c.unit,
-                         "decimals": "auto" if c.auto else c.decimals,
-                         "significant": c.significant} for c in t.columns],
+                         "decimals": "auto" if c.auto and c.decimals is not None else c.decimals,
+                         "significant": "auto" if c.auto and c.significant is not None else c.significant}
+                        for c in t.columns],
             "datum": {"kind": s.datum.kind, "T_ref_K": s.datum.T_ref_K, "h_ref_J_per_kg": s.datum.h_ref_J_per_kg},
             "P_ref_Pa": s.P_ref_Pa,
             "anchor": {"T_K": s.anchor.T_K, "Pr": s.anchor.Pr, "vr": s.anchor.vr},

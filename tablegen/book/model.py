@@ -24,7 +24,7 @@ import numpy as np
 from ..errors import TablegenError
 from ..thermo.substance import R_MOLAR, T_REF
 from ..units import BTU, FT, LBM
-from .stated import appendix_sections, auto_decimals, uncertainty_notes
+from .stated import appendix_sections, auto_digits, uncertainty_notes
 
 # ---------------------------------------------------------------- units
 _J_PER_BTU_FT3 = BTU / FT ** 3        # Btu/ft³ -> J/m³ (exact from the 1959 definitions)
@@ -116,7 +116,11 @@ ROUNDING_RULE = ("Each printed value is the computed double-precision value roun
                  "2.0182e-05 = 2.0182 × 10⁻⁵. Where the spec does not set them, the decimals of a "
                  "column are chosen from its stated uncertainty U: the last printed digit is the "
                  "largest power of ten not above U/2 at the row where U is smallest, so rounding "
-                 "adds at most 4 % to U there and no precision is thrown away at any row.")
+                 "adds at most 4 % to U there and no precision is thrown away at any row. Pr and vr, "
+                 "printed to a count n of significant digits, follow the same rule relative to the "
+                 "value: 10¹⁻ⁿ is the largest power of ten not above U/(2 |value|) where that ratio is "
+                 "smallest, so at no row is the last digit coarser than U/2 (a row whose leading digit "
+                 "is large shows up to one digit more).")
 
 CAUTIONS = (
     "These tables follow the ideal-gas model: the properties depend on temperature only "
@@ -401,12 +405,12 @@ def build_table(t, doc) -> TableModel:
     keys = list(dict.fromkeys(c.key for c in t.columns))
     vals = column_values_SI(sub, t.T_K, keys, extrapolate=t.extrapolate, basis=t.basis,
                             reference=doc.reference, T_mean_ref_K=t.T_mean_ref_K)
-    auto = auto_decimals(t, doc, sub)
+    auto = auto_digits(t, doc, sub)
     cols = []
     for c in t.columns:
         if getattr(c, "auto", False) and (c.key, c.system) in auto:
             from dataclasses import replace as _replace
-            c = _replace(c, decimals=auto[(c.key, c.system)])
+            c = _replace(c, **auto[(c.key, c.system)])
         if c.key == "T":
             # grid temperatures are exact decimals in their own unit; conversion leaves binary
             # noise (-59.66999999999996 °F) that 1e-9 rounding removes without loss

@@ -35,16 +35,17 @@ def _printed_factor(key, col, t, doc, sub) -> float:
     return unit_factor(key, col.system, t.basis) / basis_scale(key, sub, t.basis, doc.reference)
 
 
-def auto_decimals(t, doc, sub) -> dict:
-    """Decimals of the columns whose digits the spec leaves open, from their uncertainty.
+def auto_digits(t, doc, sub) -> dict:
+    """Digits of the columns whose digits the spec leaves open, from their uncertainty.
 
-    (key, system) -> decimals: tablegen.uncertainty.digits_for at the row where the
-    data part of U (with a refit's residual) is smallest. The composition part
-    differs between users of one table and the rounding part depends on this very
-    choice, so neither enters.
+    (key, system) -> {"decimals": n} for a column printed to decimals
+    (tablegen.uncertainty.digits_for) or {"significant": n} for one printed to
+    significant digits, Pr and vr (tablegen.uncertainty.significant_for), at the row
+    where the data part of U (with a refit's residual), absolute or relative, is
+    smallest. The composition part differs between users of one table and the
+    rounding part depends on this very choice, so neither enters.
     """
-    want = [c for c in t.columns if getattr(c, "auto", False) and c.decimals is not None
-            and c.key in BUDGET_KEYS]
+    want = [c for c in t.columns if getattr(c, "auto", False) and c.key in BUDGET_KEYS]
     inside = (t.T_K >= sub.T_min) & (t.T_K <= sub.T_max)
     if not want or not inside.any():
         return {}
@@ -57,9 +58,13 @@ def auto_decimals(t, doc, sub) -> dict:
         parts = b.u[c.key]
         U = unc.COVERAGE * np.hypot(parts["data"], parts.get("fit residual", 0.0))
         ok = np.isfinite(U) & (U > 0)
-        if ok.any():
+        if not ok.any():
+            continue
+        if c.significant is not None:
+            out[(c.key, c.system)] = {"significant": unc.significant_for(U[ok] / np.abs(b.values[c.key][ok]))}
+        else:
             uf = _printed_factor(c.key, c, t, doc, sub)
-            out[(c.key, c.system)] = int(np.clip(np.max(unc.digits_for(U[ok], unit_factor=uf)), 0, 8))
+            out[(c.key, c.system)] = {"decimals": int(np.clip(np.max(unc.digits_for(U[ok], unit_factor=uf)), 0, 8))}
     return out
 
 
@@ -120,6 +125,15 @@ def uncertainty_notes(t, doc, sub, cols, notes):
             elif c.decimals > hi + 1:
                 notes.append(f"{c.symbol}: {c.decimals} decimals print finer than the uncertainty "
                              f"supports (the last {c.decimals - hi - 1} digit(s) are not significant).")
+        elif c.significant is not None:
+            want = unc.significant_for(U[ok] / np.abs(b.values[k][ok]))
+            if c.significant < want:
+                notes.append(f"{c.symbol}: {c.significant} significant digits print coarser than the "
+                             f"uncertainty supports ({want} would keep rounding below U/4).")
+            elif c.significant > want + 1:
+                notes.append(f"{c.symbol}: {c.significant} significant digits print finer than the "
+                             f"uncertainty supports (the last {c.significant - want - 1} digit(s) are "
+                             f"not significant).")
     P_bar = doc.max_pressure_Pa / 1e5
     if figures:
         notes.append("Uncertainty U (k = 2) of the printed ideal-gas values (data and fit, composition, rounding), "
