@@ -736,6 +736,7 @@ def _T_decimals(T_K: np.ndarray, unit_symbol: str) -> int:
 
 def _table(raw, where, defaults, doc, subs, source, data) -> TableSpec:
     from . import api
+    from .thermo.substance import default_datum
     if not isinstance(raw, dict):
         _fail(where, f"must be a table ([[tables]]), not {_typename(raw)}")
     _check_keys(raw, TABLE_KEYS, where)
@@ -759,11 +760,9 @@ def _table(raw, where, defaults, doc, subs, source, data) -> TableSpec:
     system = _choice(merged, "units", UNIT_SYSTEMS, where, doc.units)
     basis = _choice(merged, "basis", BASES, where, doc.basis)
     try:
-        if "datum" in merged:
-            datum = _datum(merged["datum"], f"{where}.datum")
-        else:           # the rule of state, process and charts: thermo.substance.default_datum
-            from .thermo.substance import default_datum
-            datum = default_datum(sub, reacting=None, basis=basis)
+        # no datum key: the rule of state, process and charts (thermo.substance.default_datum)
+        datum = _datum(merged["datum"], f"{where}.datum") if "datum" in merged else \
+            default_datum(sub, reacting=None, basis=basis)
         P_ref = _pressure(merged["P_ref"], f"{where}.P_ref") if "P_ref" in merged else 1e5
         anchor = _anchor(merged["anchor"], f"{where}.anchor") if "anchor" in merged else None
         sub = sub.with_options(datum=datum, P_ref_Pa=P_ref, anchor=anchor)

@@ -121,7 +121,8 @@ def _si_figures(text: str) -> list:
 
 
 def test_us_tables_state_every_figure_in_us_units(demo):
-    """In the appendix sections of a US customary table, and in its notes and head lines, no
+    """In the appendix sections of a US customary table, in its notes and head lines and on the
+    how-to-read page (datum, P°, Tₘ), no
     figure carries an SI unit unless bracketed beside its US value; the paragraphs are those
     the PDF prints (read back with pypdf)."""
     _, books = demo
@@ -136,7 +137,7 @@ def test_us_tables_state_every_figure_in_us_units(demo):
         assert len(said) >= 4 and len(rows) >= 10, t.name
         for p in said:
             assert " ".join(p.split())[:80] in text, p
-        for line in [*said, *rows, *t.notes, *t.head_lines]:
+        for line in [*said, *rows, *t.notes, *t.head_lines, t.datum_text, t.P_ref_text, t.mean_cp_text]:
             assert _si_figures(line) == [], (t.name, line)
         assert any("psia" in p for p in said) and any("°F" in r or "°R" in r for r in rows)
     # the check has teeth: the SI table beside them speaks SI

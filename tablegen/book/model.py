@@ -212,6 +212,8 @@ class TableModel:
     validity_columns: tuple = ()
     #: what the appendix says about the table, in its own units (book.stated._in_table_units)
     stated: dict = field(default_factory=dict)
+    P_ref_text: str = ""    # P° in the table's units (how-to-read page)
+    mean_cp_text: str = ""  # Tₘ in the table's temperature unit (how-to-read page)
 
     @property
     def rows(self) -> int:
@@ -393,17 +395,21 @@ def _range_text(sub, unit_symbol: str) -> str:
             f"({sub.T_min:g}-{sub.T_max:g} K)")
 
 
+def _P0_text(t, sub) -> str:
+    """P° as a table prints it: in psia for a US table, with bar beside it."""
+    from ..units import PSI
+    P0 = pressure_text(sub.P_ref_Pa)
+    return f"{sub.P_ref_Pa / PSI:.5g} psia ({P0.split(' (')[0]})" if t.units == "US" else P0
+
+
 def _head_lines(t, sub, basis_text: str, datum_text: str) -> tuple:
     """The lines under the title on every page of a table, in the table's units (SI beside US)."""
-    from ..units import PSI
     unit_symbol = t.temperature_units[0]
     R = f"R = {sub.R:.3f} J/(kg K)"
-    P0 = pressure_text(sub.P_ref_Pa)
     if t.units == "US":
         R = f"R = {sub.R / unit_factor('cp', 'US', 'mass'):.6f} Btu/(lbm °R) ({sub.R:.3f} J/(kg K))"
-        P0 = f"{sub.P_ref_Pa / PSI:.5g} psia ({P0.split(' (')[0]})"
     return (f"{sub.name} ({sub.id}), M = {sub.M:.4f} kg/kmol, {R}; data valid {_range_text(sub, unit_symbol)}",
-            f"Values {basis_text}; entropy at P° = {P0}",
+            f"Values {basis_text}; entropy at P° = {_P0_text(t, sub)}",
             f"Enthalpy datum {datum_text}; Pr/vr anchor: {anchor_text_of(sub.anchor, unit_symbol)}")
 
 
@@ -503,6 +509,7 @@ def build_table(t, doc) -> TableModel:
         name=t.name, title=t.title, subtitle=subtitle, substance=_substance_info(t.substance_ref, sub),
         basis=t.basis, basis_text=basis_text, units=t.units, datum_text=datum_text, head_lines=head_lines,
         P_ref_Pa=sub.P_ref_Pa, anchor_text=anchor_text, mean_cp_from_K=t.T_mean_ref_K,
+        P_ref_text=_P0_text(t, sub), mean_cp_text=_fmtT(t.T_mean_ref_K, t_unit),
         grid_text=_grid_text(t.grid),
         datum={"kind": sub.datum.kind, "T_ref_K": sub.datum.T_ref_K, "h_ref_J_per_kg": sub.datum.h_ref_J_per_kg},
         anchor={"T_K": an.T_K, "Pr": an.Pr, "vr": an.vr}, T_K=np.asarray(t.T_K, float), marks=tuple(marks),

@@ -256,7 +256,8 @@ def _front(book, L: Layout, pages: list, contents: list):
     rows = []
     for i, t in enumerate(book.tables, 1):
         rows.append((f"{i}. {t.title}", f"{t.substance.name}", t.datum_text,
-                     pressure_text(t.P_ref_Pa), t.anchor_text, f"{t.mean_cp_from_K:g} K", t.grid_text))
+                     t.P_ref_text or pressure_text(t.P_ref_Pa), t.anchor_text,
+                     t.mean_cp_text or f"{t.mean_cp_from_K:g} K", t.grid_text))
     f.grid(("Table", "Substance", "Enthalpy datum", "P°", "Pr/vr anchor", "Tₘ", "Grid"), rows,
            (0.15, 0.12, 0.2, 0.1, 0.15, 0.08, 0.2), size=L.text * 0.8)
 

@@ -277,6 +277,8 @@ def _uncertainty_section(tables, doc):
         if not u:
             continue
         for a in u.get("assumptions", []):
+            # the one figure of the assumptions, in psia too where a table is in US units
+            a = a.replace(f"P_max = {doc.max_pressure_Pa / 1e5:g} bar", f"P_max = {_max_pressure_text(tables, doc)}")
             if a not in assumptions:
                 assumptions.append(a)
         for sname in u.get("sources", []):
