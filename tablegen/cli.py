@@ -14,7 +14,7 @@ import importlib.util
 import sys
 
 from . import __version__
-from .errors import TablegenError, Terminated
+from .errors import DataRangeError, TablegenError, Terminated
 
 #: (command, module, one-line summary) in the order --help lists them.
 COMMANDS = [
@@ -160,6 +160,7 @@ def main(argv=None) -> int:
     common.hold_notices()
     outfiles.WRITTEN.clear()
     ok = False
+    args = None
     try:
         parser = make_parser(_selected(argv))
         args = parser.parse_args(argv)
@@ -180,6 +181,9 @@ def main(argv=None) -> int:
                 print(f"note: {note}", file=sys.stderr)
         return status
     except TablegenError as e:
+        if isinstance(e, DataRangeError):
+            # name the command's own way to extrapolate, or none where it has none
+            e = e.offering(getattr(args, "extrapolate_option", None))
         print(f"tablegen: {e}", file=sys.stderr)
         return e.exit_status
     except (KeyboardInterrupt, Terminated) as e:

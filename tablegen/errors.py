@@ -24,6 +24,29 @@ class RangeError(TablegenError):
     """A temperature or value lies outside the range of the data."""
 
 
+class DataRangeError(RangeError):
+    """A temperature outside the data range, where extrapolation may be asked for.
+
+    The way to ask depends on who asks: a Python caller passes
+    ``extrapolate=True`` (the default text says so), a command its
+    ``--extrapolate`` option, a book spec its ``extrapolate`` key.
+    :meth:`offering` gives the same message naming the way the caller has, or
+    none (then only the data range is allowed), so a message never names an
+    option the command does not have.
+    """
+
+    def __init__(self, what: str, allowed: str, how: str | None = "extrapolate=True"):
+        self.what, self.allowed, self.how = what, allowed, how
+        text = f"{what}; allowed: {allowed}"
+        if how:
+            text += f", or opt in to extrapolation ({how}), which marks every extrapolated value"
+        super().__init__(text)
+
+    def offering(self, how: str | None) -> "DataRangeError":
+        """The same refusal, naming ``how`` as the way to opt in (None: no way offered)."""
+        return DataRangeError(self.what, self.allowed, how)
+
+
 class UnitError(TablegenError):
     """A unit is unknown or does not fit the quantity."""
 

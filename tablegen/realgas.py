@@ -190,8 +190,61 @@ def vapour_pressure_estimate(T, Tc, Pc, omega):
     return Pc * 10.0 ** (7.0 / 3.0 * (1.0 + omega) * (1.0 - Tc / T))
 
 
-def model_statements(substance, vir: VirialEstimate, T: np.ndarray, P: float, props) -> list:
-    """Sentences such as 'ideal-gas values within 0.1 % up to X bar above Y K'."""
+class Wording:
+    """How the validity statements print their figures: SI, as in the JSON sidecar.
+
+    A document in other units changes the attributes below (tablegen.book.stated
+    does, so that every figure about a table is in that table's units). ``M_kg``
+    is the molar mass in kg/mol: the departures are molar.
+    """
+
+    #: symbol and SI value (Pa) of the pressure unit
+    pressure_unit = ("bar", 1e5)
+    #: symbol of the temperature unit, and what joins the two ends of a range
+    temperature_symbol, range_join = "K", "-"
+    #: symbol and SI value on the mass basis (J/kg, J/(kg K)) of the units of h and s
+    energy_units = {"h": ("kJ/kg", 1e3), "s": ("J/(kg K)", 1.0)}
+
+    def __init__(self, M_kg: float):
+        self.M_kg = M_kg
+
+    def number(self, x: float) -> str:
+        """A departure or bound, to two significant digits."""
+        return f"{x:.2g}"
+
+    def temperature(self, T_K: float, fmt: str = "g") -> str:
+        """A temperature in the unit of ``temperature_symbol``, without the symbol."""
+        return f"{T_K:{fmt}}"
+
+    def T(self, T_K: float) -> str:
+        return f"{self.temperature(T_K)} {self.temperature_symbol}"
+
+    def T_about(self, T_K: float) -> str:
+        return f"{self.temperature(T_K, '.0f')} {self.temperature_symbol}"
+
+    def T_range(self, lo_K: float, hi_K: float) -> str:
+        return f"{self.temperature(lo_K)}{self.range_join}{self.temperature(hi_K)} {self.temperature_symbol}"
+
+    def P(self, P_Pa: float) -> str:
+        sym, f = self.pressure_unit
+        return f"{P_Pa / f:g} {sym}"
+
+    def P_limit(self, P_Pa: float) -> str:
+        """A pressure limit, rounded down (stated conservatively)."""
+        sym, f = self.pressure_unit
+        return f"{_round_down(P_Pa / f)} {sym}"
+
+    def energy(self, key: str, per_mol: float) -> str:
+        """h ("h", J/mol) or s ("s", J/(mol K)) in ``energy_units``."""
+        sym, f = self.energy_units[key]
+        return f"{self.number(per_mol / self.M_kg / f)} {sym}"
+
+
+def model_statements(substance, vir: VirialEstimate, T: np.ndarray, P: float, props,
+                     wording: Wording | None = None) -> list:
+    """Sentences such as 'ideal-gas values within 0.1 % up to X bar above Y K'
+    (figures as ``wording`` prints them; default SI)."""
+    w = Wording(substance.M * 1e-3) if wording is None else wording
     out = []
     T_lo, T_hi = float(T.min()), float(T.max())
     Tg = np.linspace(T_lo, T_hi, 400) if T_hi > T_lo else np.array([T_lo])
@@ -206,24 +259,24 @@ def model_statements(substance, vir: VirialEstimate, T: np.ndarray, P: float, pr
         for Y in cands:
             m = Tg >= Y - 1e-9
             X = tol / float(np.max(per_pa[m]))
-            parts.append(f"up to {_round_down(X / 1e5)} bar above {Y:g} K")
+            parts.append(f"up to {w.P_limit(X)} above {w.T(Y)}")
         out.append(f"ideal-gas values (Z, cp) within {tol * 100:g} % " + ", ".join(parts))
     dep = model_departures(vir, T, P)
     bnd = departure_bounds(vir, T, P)
-    Mk = substance.M * 1e-3
 
     def figures(d):
         return (f"|Z-1| {np.max(np.abs(d['Z'])) * 100:.2g} %, "
                 f"cp {np.max(np.abs(d['cp']) / props['cp_molar']) * 100:.2g} %, "
-                f"h {np.max(np.abs(d['h'])) / Mk / 1e3:.2g} kJ/kg, s {np.max(np.abs(d['s'])) / Mk:.2g} J/(kg K)")
+                f"h {w.energy('h', float(np.max(np.abs(d['h']))))}, "
+                f"s {w.energy('s', float(np.max(np.abs(d['s']))))}")
     out.append(
-        f"at {P / 1e5:g} bar over {T_lo:g}-{T_hi:g} K the real gas departs from these values by up to "
+        f"at {w.P(P)} over {w.T_range(T_lo, T_hi)} the real gas departs from these values by up to "
         f"{figures(dep)} (second virial coefficient, Tsonopoulos 1974); with the estimate's own "
         f"uncertainty, by at most {figures(bnd)}")
     rho_vc = P * vir.Vc / (R_MOLAR * T * np.maximum(1 + vir.B * P / (R_MOLAR * T), 0.1))
     if np.any(rho_vc > 0.1):
         bad = float(T[rho_vc > 0.1].max())
-        out.append(f"caution: at {P / 1e5:g} bar below about {bad:.0f} K the density exceeds a tenth of the "
+        out.append(f"caution: at {w.P(P)} below about {w.T_about(bad)} the density exceeds a tenth of the "
                    f"critical density, beyond the range of the second-virial estimate; the ideal-gas "
                    f"departures stated there are indicative only")
     if vir.missing:
@@ -234,7 +287,10 @@ def model_statements(substance, vir: VirialEstimate, T: np.ndarray, P: float, pr
         if c.id == "H2O" and getattr(substance, "dew_point_P_Pa", None) is not None:
             # the one water dew point of the substance (IAPWS-IF97), the figure every document prints
             from .saturation import dew_point_text
-            out.append(f"caution: water dew point {dew_point_text(substance.dew_point_K, substance.dew_point_P_Pa)}: "
+            dew = dew_point_text(substance.dew_point_K, substance.dew_point_P_Pa)
+            if getattr(w, "pressure_unit", ("bar",))[0] != "bar":     # a US table: its units first, SI in brackets
+                dew = f"{w.T(substance.dew_point_K)} at {w.P(substance.dew_point_P_Pa)} ({dew})"
+            out.append(f"caution: water dew point {dew}: "
                        f"at and below it water may condense, and ideal-gas values and this budget do not hold "
                        f"there (rows marked c)")
             continue
@@ -243,8 +299,8 @@ def model_statements(substance, vir: VirialEstimate, T: np.ndarray, P: float, pr
         Tc, Pc, _, om, _ = crit[c.id]
         low = Tg[(Tg < Tc) & (c.mole_fraction * P > vapour_pressure_estimate(Tg, Tc, Pc, om))]
         if low.size:
-            out.append(f"caution: below about {float(low.max()):.0f} K the partial pressure of {c.id} at "
-                       f"{P / 1e5:g} bar exceeds its estimated vapour pressure; it may condense, and "
+            out.append(f"caution: below about {w.T_about(float(low.max()))} the partial pressure of {c.id} at "
+                       f"{w.P(P)} exceeds its estimated vapour pressure; it may condense, and "
                        f"ideal-gas values and this budget do not hold there")
     return out
 

@@ -20,7 +20,7 @@ from pathlib import Path
 import numpy as np
 
 from .composition import looks_like as looks_like_composition
-from .errors import SpecError, TablegenError
+from .errors import DataRangeError, SpecError, TablegenError
 from .texts import bad_character, one_line_rule
 from .units import P_ATM
 
@@ -40,7 +40,9 @@ BASES = ("mass", "molar", "volumetric")
 #: Column keys a table may print, in the order of docs/spec.md.
 COLUMN_KEYS = ("T", "cp", "cv", "k", "h", "u", "s0", "Pr", "vr", "a", "g0", "cp_mean_h", "cp_mean_s")
 DEFAULT_COLUMNS = ("T", "cp", "cv", "k", "h", "u", "s0", "Pr", "vr", "a")
-#: Columns printed with a number of significant digits rather than decimals by default.
+#: Columns printed with a number of significant digits rather than decimals by default; the
+#: count is chosen from the column's uncertainty (book.stated.auto_digits), this one where no
+#: uncertainty is stated (every row extrapolated).
 SIGNIFICANT_BY_DEFAULT = {"Pr": 5, "vr": 5}
 
 #: Named reference conditions of the volumetric basis: name -> (T_K, P_Pa, text).
@@ -91,6 +93,7 @@ class Document:
     csv_comments: bool = False         # "#" comment lines above the CSV header (off: plain CSV)
     chart_placement: str = "after-table"  # or "grouped": all chart pages after the last table
     barometer_Pa: float | None = None  # barometric pressure of gauge values (None: not given, 1.01325 bar)
+    extrapolate_all: bool = False      # every table extrapolates: the command line asked (build --extrapolate)
 
     @property
     def barometer(self) -> float:
@@ -111,7 +114,7 @@ class ColumnSpec:
     unit: str            # unit symbol as printed (temperature unit for T)
     decimals: int | None
     significant: int | None
-    auto: bool = False   # digits not set by the spec: the book chooses decimals from the uncertainty
+    auto: bool = False   # digits not set by the spec: the book chooses them from the uncertainty
 
 
 @dataclass(frozen=True, slots=True)
@@ -531,6 +534,16 @@ def _grid(raw, where, sub, columns_for_auto, extrapolate):
                "worst_interpolation_error": worst, "rows": int(T.size)}
 
 
+#: How a spec asks for extrapolation, named where a temperature is outside the data range
+#: (build and compare read a spec and both take --extrapolate for every table).
+EXTRAPOLATE_HOW = "extrapolate = true in this table or in [defaults], or --extrapolate for every table"
+
+
+def _fail_range(where: str, e: TablegenError):
+    """_fail with a range error, naming the spec's way to extrapolate."""
+    _fail(where, str(e.offering(EXTRAPOLATE_HOW) if isinstance(e, DataRangeError) else e))
+
+
 def _nice_steps(span: float):
     """Candidate steps 1, 2, 2.5, 5 x 10^n from large to small."""
     out = []
@@ -567,7 +580,7 @@ def auto_step(sub, a, b, ua, keys, tol, extrapolate, where):
             fT = column_values_SI(sub, T, keys, extrapolate=extrapolate)
             fm = column_values_SI(sub, mid, keys, extrapolate=extrapolate)
         except TablegenError as e:
-            _fail(where, str(e))
+            _fail_range(where, e)
         worst = 0.0
         for k in keys:
             y, ym = fT[k], fm[k]
@@ -704,8 +717,8 @@ def _columns(raw, where, system, basis, t_units, decimals, significant) -> tuple
                 out.append(ColumnSpec(c, s, u, None, significant[c]))
             elif c in decimals:
                 out.append(ColumnSpec(c, s, u, decimals[c], None))
-            elif c in SIGNIFICANT_BY_DEFAULT:
-                out.append(ColumnSpec(c, s, u, None, SIGNIFICANT_BY_DEFAULT[c]))
+            elif c in SIGNIFICANT_BY_DEFAULT:   # the count is chosen from U (book.stated.auto_digits)
+                out.append(ColumnSpec(c, s, u, None, SIGNIFICANT_BY_DEFAULT[c], auto=True))
             else:
                 out.append(ColumnSpec(c, s, u, default_decimals(c, s, basis), None, auto=True))
     return tuple(out)
@@ -723,6 +736,7 @@ def _T_decimals(T_K: np.ndarray, unit_symbol: str) -> int:
 
 def _table(raw, where, defaults, doc, subs, source, data) -> TableSpec:
     from . import api
+    from .thermo.substance import default_datum
     if not isinstance(raw, dict):
         _fail(where, f"must be a table ([[tables]]), not {_typename(raw)}")
     _check_keys(raw, TABLE_KEYS, where)
@@ -746,7 +760,9 @@ def _table(raw, where, defaults, doc, subs, source, data) -> TableSpec:
     system = _choice(merged, "units", UNIT_SYSTEMS, where, doc.units)
     basis = _choice(merged, "basis", BASES, where, doc.basis)
     try:
-        datum = _datum(merged.get("datum", "formation"), f"{where}.datum")
+        # no datum key: the rule of state, process and charts (thermo.substance.default_datum)
+        datum = _datum(merged["datum"], f"{where}.datum") if "datum" in merged else \
+            default_datum(sub, reacting=None, basis=basis)
         P_ref = _pressure(merged["P_ref"], f"{where}.P_ref") if "P_ref" in merged else 1e5
         anchor = _anchor(merged["anchor"], f"{where}.anchor") if "anchor" in merged else None
         sub = sub.with_options(datum=datum, P_ref_Pa=P_ref, anchor=anchor)
@@ -754,7 +770,7 @@ def _table(raw, where, defaults, doc, subs, source, data) -> TableSpec:
         raise
     except TablegenError as e:
         _fail(where, str(e))
-    extrapolate = _get(merged, "extrapolate", bool, where, False)
+    extrapolate = _get(merged, "extrapolate", bool, where, False) or doc.extrapolate_all
     t_units = _temperature_units(merged, where, system)
     decimals = _digits_map(merged, "decimals", where, 0, 9)
     significant = _digits_map(merged, "significant", where, 2, 12)
@@ -794,11 +810,11 @@ def _table(raw, where, defaults, doc, subs, source, data) -> TableSpec:
     try:
         sub.check_T(allT, extrapolate)
     except TablegenError as e:
-        _fail(f"{where}.grid", f"{e}")
+        _fail_range(f"{where}.grid", e)
     try:                 # finite results only: an anchor or an extrapolation may not overflow
         sub.properties(allT, extrapolate=extrapolate, molar_only=True)
     except TablegenError as e:
-        _fail(where, f"{e}")
+        _fail_range(where, e)
     # T decimals: fewest that print the grid exactly, unless given
     fixed = []
     for c in cols:
@@ -827,7 +843,7 @@ def _table(raw, where, defaults, doc, subs, source, data) -> TableSpec:
 TOP_KEYS = ("document", "data", "substances", "defaults", "tables")
 
 
-def load(path, *, source: str | None = None, data=()) -> BookSpec:
+def load(path, *, source: str | None = None, data=(), extrapolate: bool = False) -> BookSpec:
     """Read and validate a spec file.
 
     Parameters
@@ -835,6 +851,8 @@ def load(path, *, source: str | None = None, data=()) -> BookSpec:
     path : the TOML spec
     source, data : --source and --data from the command line (the spec's own
         [data] section adds to them; the command line's source wins)
+    extrapolate : --extrapolate from the command line: every table may extrapolate
+        (as ``extrapolate = true`` in each), and the document says so
 
     Raises
     ------
@@ -842,7 +860,7 @@ def load(path, *, source: str | None = None, data=()) -> BookSpec:
     """
     p = Path(path)
     raw = read_toml(p, missing="spec file not found")
-    return parse(raw, name=book_name(p), base=p.parent, source=source, data=data)
+    return parse(raw, name=book_name(p), base=p.parent, source=source, data=data, extrapolate=extrapolate)
 
 
 _BOOK_NAME_BAD = set('/\\:*?"<>|')
@@ -872,12 +890,14 @@ def read_toml(path, label: str = "", missing: str = "no such file") -> dict:
 
 
 def parse(raw: dict, *, name: str, base: Path | None = None, source: str | None = None,
-          data=()) -> BookSpec:
+          data=(), extrapolate: bool = False) -> BookSpec:
     """Validate parsed TOML into a BookSpec (see :func:`load`)."""
     _check_keys(raw, TOP_KEYS, "")
     if "document" not in raw:
         _fail("document", "is required ([document] with title, number and revision)")
     doc = _document(raw["document"])
+    if extrapolate:
+        doc = replace(doc, extrapolate_all=True)
     dsec = raw.get("data", {})
     if not isinstance(dsec, dict):
         _fail("data", f"must be a table, not {_typename(dsec)}")
@@ -970,6 +990,8 @@ def normalise(spec: BookSpec, source) -> dict:
     doc["reference"] = {"name": d.reference.name, "T_K": d.reference.T_K, "P_Pa": d.reference.P_Pa}
     if d.barometer_Pa is not None:          # only where given, so older specs keep their fingerprint
         doc["barometer_Pa"] = d.barometer_Pa
+    if d.extrapolate_all:                   # likewise: only when the command line asked
+        doc["extrapolate_all"] = True
     doc["source"] = source
     tables = []
     for t in spec.tables:
@@ -980,8 +1002,9 @@ def normalise(spec: BookSpec, source) -> dict:
             "grid": t.grid, "rows": int(t.T_K.size), "T_K": [float(x) for x in t.T_K],
             "extra_rows": [{"T_K": e.T_K, "label": e.label} for e in t.extra_rows],
             "columns": [{"key": c.key, "system": c.system, "unit": c.unit,
-                         "decimals": "auto" if c.auto else c.decimals,
-                         "significant": c.significant} for c in t.columns],
+                         "decimals": "auto" if c.auto and c.decimals is not None else c.decimals,
+                         "significant": "auto" if c.auto and c.significant is not None else c.significant}
+                        for c in t.columns],
             "datum": {"kind": s.datum.kind, "T_ref_K": s.datum.T_ref_K, "h_ref_J_per_kg": s.datum.h_ref_J_per_kg},
             "P_ref_Pa": s.P_ref_Pa,
             "anchor": {"T_K": s.anchor.T_K, "Pr": s.anchor.Pr, "vr": s.anchor.vr},

@@ -674,6 +674,34 @@ def digits_for(U, *, unit_factor: float = 1.0) -> np.ndarray:
     return np.clip(d, -12, 12).astype(int)
 
 
+def significant_for(U_rel) -> int:
+    """Significant digits to print for a column of relative uncertainty ``U_rel``.
+
+    The rule of :func:`digits_for` for a value printed to a fixed count of
+    significant digits (Pr, vr): n = 1 - log10 of the largest power of ten not
+    above U_rel/2, taken where U_rel is smallest. A value printed to n digits has
+    its last digit at most |value| · 10^(1-n) <= |value| · U_rel/2 = U/2 at every
+    row, so no row prints coarser than :func:`digits_for` asks; where the leading
+    digit is large, or U_rel larger, the last digit lies at most about one digit
+    inside U.
+
+    Parameters
+    ----------
+    U_rel : expanded uncertainty relative to |value|, array_like (non-finite or
+        zero entries are ignored)
+
+    Returns
+    -------
+    int between 2 and 12 (12 where no finite U_rel is given)
+    """
+    r = np.asarray(U_rel, float)
+    r = r[np.isfinite(r) & (r > 0)]
+    if r.size == 0:
+        return 12
+    n = 1 - int(np.floor(np.log10(float(r.min()) / 2.0)))
+    return int(np.clip(n, 2, 12))
+
+
 # ------------------------------------------------------------ properties hook
 def uncertainty_columns(substance, T, P=None) -> dict:
     """U_<key> for every key the budget knows, for ``Substance.properties(uncertainty=True)``."""

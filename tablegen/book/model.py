@@ -24,7 +24,7 @@ import numpy as np
 from ..errors import TablegenError
 from ..thermo.substance import R_MOLAR, T_REF
 from ..units import BTU, FT, LBM
-from .stated import appendix_sections, auto_decimals, uncertainty_notes
+from .stated import appendix_sections, auto_digits, uncertainty_notes, worked_example
 
 # ---------------------------------------------------------------- units
 _J_PER_BTU_FT3 = BTU / FT ** 3        # Btu/ft³ -> J/m³ (exact from the 1959 definitions)
@@ -116,7 +116,11 @@ ROUNDING_RULE = ("Each printed value is the computed double-precision value roun
                  "2.0182e-05 = 2.0182 × 10⁻⁵. Where the spec does not set them, the decimals of a "
                  "column are chosen from its stated uncertainty U: the last printed digit is the "
                  "largest power of ten not above U/2 at the row where U is smallest, so rounding "
-                 "adds at most 4 % to U there and no precision is thrown away at any row.")
+                 "adds at most 4 % to U there and no precision is thrown away at any row. Pr and vr, "
+                 "printed to a count n of significant digits, follow the same rule relative to the "
+                 "value: 10¹⁻ⁿ is the largest power of ten not above U/(2 |value|) where that ratio is "
+                 "smallest, so at no row is the last digit coarser than U/2 (a row whose leading digit "
+                 "is large shows up to one digit more).")
 
 CAUTIONS = (
     "These tables follow the ideal-gas model: the properties depend on temperature only "
@@ -212,6 +216,10 @@ class TableModel:
     #: (csv header, values, description) of the Z and real-gas departure columns
     #: (document.validity_columns): where the ideal-gas values apply, not their uncertainty
     validity_columns: tuple = ()
+    #: what the appendix says about the table, in its own units (book.stated._in_table_units)
+    stated: dict = field(default_factory=dict)
+    P_ref_text: str = ""    # P° in the table's units (how-to-read page)
+    mean_cp_text: str = ""  # Tₘ in the table's temperature unit (how-to-read page)
 
     @property
     def rows(self) -> int:
@@ -245,6 +253,8 @@ class BookModel:
     appendix: list = field(default_factory=list)   # Section, printed after the tables
     sheets: tuple = ()      # tablegen.book.sheet.Sheet, one per combustion, in the substances section
     caution_refs: dict = field(default_factory=dict)   # substance id -> ids of the cautions that concern it
+    extrapolation: str = ""  # which tables may extrapolate, and who asked (document control block)
+    worked_example: Section | None = None   # reading between two rows of the first table (how-to-read page)
 
 
 # ---------------------------------------------------------------- evaluation
@@ -367,13 +377,54 @@ def _fmtT(T_K: float, unit_symbol: str) -> str:
     s = f"{v:.3f}".rstrip("0").rstrip(".")
     if s == "-0":
         s = "0"
-    return f"{s} {unit_symbol}" if unit_symbol == "K" else f"{s} {unit_symbol} = {_fmtK(T_K)}"
+    return f"{s} {unit_symbol}" if unit_symbol == "K" else f"{s} {unit_symbol} ({_fmtK(T_K)})"
 
 
-def _datum_text(d, unit_symbol: str = "K") -> str:
+def _datum_text(d, unit_symbol: str = "K", h_unit: tuple = ("kJ/kg", 1e3)) -> str:
+    """The datum in words; a sensible datum's h in ``h_unit`` (symbol, SI value on the mass basis)."""
     if d.kind == "formation":
         return "h(298.15 K) = enthalpy of formation (NASA/JANAF convention)"
-    return f"h({_fmtT(d.T_ref_K, unit_symbol)}) = {d.h_ref_J_per_kg / 1000:g} kJ/kg (sensible enthalpy)"
+    at = _fmtT(d.T_ref_K, unit_symbol)
+    if unit_symbol == "K":
+        return f"h({at}) = {d.h_ref_J_per_kg / h_unit[1]:g} {h_unit[0]} (sensible enthalpy)"
+    T, K = at.split(" (")
+    return f"h({T}) = {d.h_ref_J_per_kg / h_unit[1]:g} {h_unit[0]} (sensible enthalpy; {T} = {K[:-1]})"
+
+
+def _h_unit(t, doc, sub) -> tuple:
+    """The unit a table prints h in (its first system) and its SI value on the mass basis."""
+    from .stated import basis_scale
+    system = "US" if t.units == "US" else "SI"
+    return (unit_for("h", system, t.basis),
+            unit_factor("h", system, t.basis) / basis_scale("h", sub, t.basis, doc.reference))
+
+
+def _range_text(sub, unit_symbol: str) -> str:
+    """The data range in the table's temperature unit, in K beside it."""
+    if unit_symbol == "K":
+        return f"{sub.T_min:g}-{sub.T_max:g} K"
+    from ..units import unit
+    u = unit(unit_symbol, "temperature")
+    return (f"{u.from_si(sub.T_min):.6g} to {u.from_si(sub.T_max):.6g} {unit_symbol} "
+            f"({sub.T_min:g}-{sub.T_max:g} K)")
+
+
+def _P0_text(t, sub) -> str:
+    """P° as a table prints it: in psia for a US table, with bar beside it."""
+    from ..units import PSI
+    P0 = pressure_text(sub.P_ref_Pa)
+    return f"{sub.P_ref_Pa / PSI:.5g} psia ({P0.split(' (')[0]})" if t.units == "US" else P0
+
+
+def _head_lines(t, sub, basis_text: str, datum_text: str) -> tuple:
+    """The lines under the title on every page of a table, in the table's units (SI beside US)."""
+    unit_symbol = t.temperature_units[0]
+    R = f"R = {sub.R:.3f} J/(kg K)"
+    if t.units == "US":
+        R = f"R = {sub.R / unit_factor('cp', 'US', 'mass'):.6f} Btu/(lbm °R) ({sub.R:.3f} J/(kg K))"
+    return (f"{sub.name} ({sub.id}), M = {sub.M:.4f} kg/kmol, {R}; data valid {_range_text(sub, unit_symbol)}",
+            f"Values {basis_text}; entropy at P° = {_P0_text(t, sub)}",
+            f"Enthalpy datum {datum_text}; Pr/vr anchor: {anchor_text_of(sub.anchor, unit_symbol)}")
 
 
 def anchor_text_of(an, unit_symbol: str = "K") -> str:
@@ -415,12 +466,12 @@ def build_table(t, doc) -> TableModel:
     keys = list(dict.fromkeys(c.key for c in t.columns))
     vals = column_values_SI(sub, t.T_K, keys, extrapolate=t.extrapolate, basis=t.basis,
                             reference=doc.reference, T_mean_ref_K=t.T_mean_ref_K)
-    auto = auto_decimals(t, doc, sub)
+    auto = auto_digits(t, doc, sub)
     cols = []
     for c in t.columns:
         if getattr(c, "auto", False) and (c.key, c.system) in auto:
             from dataclasses import replace as _replace
-            c = _replace(c, decimals=auto[(c.key, c.system)])
+            c = _replace(c, **auto[(c.key, c.system)])
         if c.key == "T":
             # grid temperatures are exact decimals in their own unit; conversion leaves binary
             # noise (-59.66999999999996 °F) that 1e-9 rounding removes without loss
@@ -447,11 +498,11 @@ def build_table(t, doc) -> TableModel:
         marks.append(m)
     notes = []
     if t.extra_rows:
-        labels = [_fmtT(e.T_K, t.temperature_units[0]) + (f" ({e.label})" if e.label else "")
+        labels = [_fmtT(e.T_K, t.temperature_units[0]) + (f": {e.label}" if e.label else "")
                   for e in t.extra_rows]
-        notes.append("* extra row at a named temperature: " + ", ".join(labels) + ".")
+        notes.append("* extra row at a named temperature: " + "; ".join(labels) + ".")
     if ext is not None and np.any(ext):
-        notes.append(f"x extrapolated beyond the data range {sub.T_min:g}-{sub.T_max:g} K: "
+        notes.append(f"x extrapolated beyond the data range {_range_text(sub, t.temperature_units[0])}: "
                      f"use with care.")
     if sub.dew_point_P_Pa is not None:
         notes.append(dew_point_note(sub, t.temperature_units[0], int(np.sum(wet))))
@@ -462,12 +513,9 @@ def build_table(t, doc) -> TableModel:
     subtitle = (f"{sub.name} ({sub.id}), M = {sub.M:.4f} kg/kmol · {basis_text} · "
                 f"P° = {pressure_text(sub.P_ref_Pa)}")
     t_unit = t.temperature_units[0]
-    datum_text = _datum_text(sub.datum, t_unit)
-    head_lines = (f"{sub.name} ({sub.id}), M = {sub.M:.4f} kg/kmol, R = {sub.R:.3f} J/(kg K); "
-                  f"data valid {sub.T_min:g}-{sub.T_max:g} K",
-                  f"Values {basis_text}; entropy at P° = {pressure_text(sub.P_ref_Pa)}",
-                  f"Enthalpy datum {datum_text}; Pr/vr anchor: {anchor_text_of(sub.anchor, t_unit)}")
-    unc, U_cols, V_cols = uncertainty_notes(t, doc, sub, cols, notes)
+    datum_text = _datum_text(sub.datum, t_unit, _h_unit(t, doc, sub))
+    head_lines = _head_lines(t, sub, basis_text, datum_text)
+    unc, U_cols, V_cols, stated = uncertainty_notes(t, doc, sub, cols, notes)
     charts = ()
     if t.charts:
         from .charts import build_chart
@@ -478,10 +526,12 @@ def build_table(t, doc) -> TableModel:
         name=t.name, title=t.title, subtitle=subtitle, substance=_substance_info(t.substance_ref, sub),
         basis=t.basis, basis_text=basis_text, units=t.units, datum_text=datum_text, head_lines=head_lines,
         P_ref_Pa=sub.P_ref_Pa, anchor_text=anchor_text, mean_cp_from_K=t.T_mean_ref_K,
+        P_ref_text=_P0_text(t, sub), mean_cp_text=_fmtT(t.T_mean_ref_K, t_unit),
         grid_text=_grid_text(t.grid),
         datum={"kind": sub.datum.kind, "T_ref_K": sub.datum.T_ref_K, "h_ref_J_per_kg": sub.datum.h_ref_J_per_kg},
         anchor={"T_K": an.T_K, "Pr": an.Pr, "vr": an.vr}, T_K=np.asarray(t.T_K, float), marks=tuple(marks),
-        columns=tuple(cols), notes=notes, uncertainty=unc, U_columns=U_cols, validity_columns=V_cols)
+        columns=tuple(cols), notes=notes, uncertainty=unc, U_columns=U_cols, validity_columns=V_cols,
+        stated=stated)
 
 
 # ---------------------------------------------------------------- fingerprint
@@ -536,6 +586,19 @@ def versions() -> dict:
             "python": platform.python_version()}
 
 
+def extrapolation_text(spec) -> str:
+    """The document control entry on extrapolation: every table by the command line, the tables
+    whose spec asks, or "" where none may extrapolate (the caution notice says values outside the
+    data range are refused)."""
+    if spec.document.extrapolate_all:
+        return "allowed in every table (tablegen build --extrapolate); such rows are marked x"
+    asked = [str(i) for i, t in enumerate(spec.tables, 1) if t.extrapolate]
+    if not asked:
+        return ""
+    which = f"table {asked[0]}" if len(asked) == 1 else f"tables {', '.join(asked)}"
+    return f"allowed in {which} (spec key extrapolate); such rows are marked x"
+
+
 def build_book(spec, tables=None) -> BookModel:
     """Evaluate every table of a validated spec into the book model.
 
@@ -566,7 +629,9 @@ def build_book(spec, tables=None) -> BookModel:
     cautions, refs = numbered_cautions(spec, tables, CAUTIONS)
     sheets = sheets_of(spec, tables, refs, cautions)
     appendix = appendix_sections(tables, doc)
-    return BookModel(appendix=appendix, name=spec.name, document=doc, tables=tables, substances=tuple(subs),
+    example = worked_example(spec.tables[0], tables[0], doc) if tables else None
+    return BookModel(appendix=appendix, extrapolation=extrapolation_text(spec), worked_example=example,
+                     name=spec.name, document=doc, tables=tables, substances=tuple(subs),
                      definitions=tuple(definitions), cautions=tuple(cautions), rounding_rule=ROUNDING_RULE,
                      reference_text=ref_text, data_files=listed, fingerprint=fp, versions=versions(),
                      normalised_spec=spec.normalised, sheets=sheets, caution_refs=refs)

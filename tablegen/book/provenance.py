@@ -34,7 +34,11 @@ def dew_point_note(sub, unit_symbol: str, n_rows: int) -> str:
     from .sheet import dew_point_sentence
     dp = dew_point_sentence(sub.dew_point_K, sub.dew_point_P_Pa)
     if sub.dew_point_K is not None and unit_symbol not in ("K", "°C"):
-        dp += f" = {_fmtT(sub.dew_point_K, unit_symbol).split(' = ')[0]}"
+        # a US table: the figure in its units first, SI in brackets (every figure about a
+        # table in that table's units)
+        from ..units import PSI
+        T_us = _fmtT(sub.dew_point_K, unit_symbol).split(" = ")[0].split(" (")[0]
+        dp = f"{T_us} at {sub.dew_point_P_Pa / PSI:.4g} psia ({dp})"
     rows = (f"{n_rows} row{'s' if n_rows != 1 else ''} at or below it marked c: {CONDENSING_TEXT}"
             if n_rows else "no row of this table is at or below it")
     return f"c water dew point of this gas {dp}; {rows}."
@@ -79,6 +83,19 @@ def made_from(s) -> tuple[list, dict | None, list]:
     return description, combustion, figs
 
 
+def _in_table_unit(t, key: str, v: float, fig: dict) -> str:
+    """An absolute part of U (SI, as the budget holds it) in the unit the table prints that
+    column in: every figure about a table is in that table's units (a table in both
+    systems speaks SI, as its appendix does)."""
+    from .model import unit_factor, unit_for
+    system = "US" if t.units == "US" else "SI"
+    try:
+        factor, unit = unit_factor(key, system, t.basis), unit_for(key, system, t.basis)
+    except KeyError:
+        return _si_text(v, fig.get("unit", ""))
+    return f"{v / factor:.2g} {unit}"
+
+
 def _si_text(v: float, unit: str) -> str:
     """'2.5e+04 J/kg' -> '25 kJ/kg': an SI figure in the unit the tables print."""
     if unit.startswith("J/") and abs(v) >= 100:
@@ -109,7 +126,7 @@ def input_contributions(tables) -> list:
             continue
         items = []
         for name, per in parts.items():
-            figs = ", ".join(f"{k} {rel * 100:.2g} %" if rel is not None else f"{k} {_si_text(v, keys[k].get('unit', ''))}"
+            figs = ", ".join(f"{k} {rel * 100:.2g} %" if rel is not None else f"{k} {_in_table_unit(t, k, v, keys[k])}"
                              for k, (rel, v) in per.items())
             items.append(f"{name}: {figs}")
         out.append(f"{t.title}: the flue-gas composition comes from inputs stated with an uncertainty "

@@ -14,6 +14,11 @@ def add_arguments(p):
                         "or hold an earlier issue tablegen published there")
     p.add_argument("--force", action="store_true",
                    help="replace the earlier issue in the output folder with this one")
+    p.add_argument("--extrapolate", action="store_true",
+                   help="allow temperatures outside the data range in every table (as extrapolate = true "
+                        "in each), from half the data's lowest to twice its highest temperature; such rows "
+                        "are marked x, and the document control block says extrapolation was allowed")
+    p.set_defaults(extrapolate_option="--extrapolate")
     p.epilog = ("The spec is checked in full before anything is computed; a broken rule is named by its\n"
                 "key path (e.g. tables[2].grid.segments[0].step) and nothing is written.\n"
                 "Files: <spec name>.pdf, <spec name>.json, <table name>.csv and its\n"
@@ -23,7 +28,8 @@ def add_arguments(p):
                 "issue complete, and a folder holding files tablegen did not publish there is refused.\n\n"
                 "example:\n"
                 "  tablegen build plant-tables.toml\n"
-                "  tablegen build plant-tables.toml --out issued/rev-C --force")
+                "  tablegen build plant-tables.toml --out issued/rev-C --force\n"
+                "  tablegen build plant-tables.toml --out issued/extrapolated --extrapolate")
 
 
 def run(args) -> int:
@@ -32,7 +38,7 @@ def run(args) -> int:
     from .. import outfiles
     from .. import spec as specmod
     from ..book.build import all_names, issue_text, pdf_pages, progress_for, render_files
-    spec = specmod.load(args.spec, source=args.source, data=args.data)
+    spec = specmod.load(args.spec, source=args.source, data=args.data, extrapolate=args.extrapolate)
     data_notices(SimpleNamespace(data=spec.data_paths, quiet=args.quiet))
     out = Path(args.out) if args.out else Path("output") / spec.name
     outfiles.check_folder(out, all_names(spec), force=args.force)

@@ -8,7 +8,7 @@ import sys
 from pathlib import Path
 
 from ..errors import SpecError, TablegenError
-from .common import add_datum_options, notice, substance_with_options
+from .common import H_DATUM_REFERENCE_HELP, add_datum_options, notice, substance_with_options
 
 EXAMPLE = """example:
   tablegen chart air
@@ -70,7 +70,8 @@ def add_arguments(p):
     g.add_argument("--date", default=None, metavar="TEXT",
                    help="document date printed in the footer (fixed text, for reproducible files)")
     g.add_argument("--force", action="store_true", help="replace chart files that already exist")
-    add_datum_options(p)
+    add_datum_options(p, default=None, datum_help=H_DATUM_REFERENCE_HELP)   # the rule of the books
+    p.set_defaults(extrapolate_option=None)     # charts refuse --extrapolate: never offer it
 
 
 def parse_overlay_text(text: str, n: int) -> dict:
@@ -216,7 +217,7 @@ def run(args) -> int:
     from ..texts import bad_character, one_line_rule
     if date is not None and (len(date) > 100 or bad_character(date)):
         raise TablegenError(f"--date: {one_line_rule()}, at most 100 characters")
-    sub = substance_with_options(args, sub_name)
+    sub = substance_with_options(args, sub_name, by_rule=True, reacting=None)
     footer = f"tablegen {__version__} · " + (sub.name if sub.name == sub.id else f"{sub.name} ({sub.id})")
     try:
         models = [C.build_chart(sub, sp, units=sp.units, footer=footer) for sp in specs]

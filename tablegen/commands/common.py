@@ -12,13 +12,19 @@ from ..jsonout import clean, dumps  # noqa: F401  (the commands import them from
 H_DATUM_DEFAULT_HELP = ("sensible[:T[:h]] (h(T) = h; the default, with T = 0 °C and h = 0, as no "
                         "reaction takes place here) or formation (h(298.15 K) = enthalpy of "
                         "formation, for reacting energy balances), e.g. sensible:25C")
+#: --h-datum help of a reference chart (default_datum with reacting=None).
+H_DATUM_REFERENCE_HELP = ("formation (h(298.15 K) = enthalpy of formation; the default, except for "
+                          "combustion products) or sensible[:T[:h]] (h(T) = h; the default for "
+                          "combustion products, with T = 0 °C and h = 0), e.g. sensible:25C")
 
 
-def add_datum_options(p, *, with_pressure: bool = True, default: str | None = "formation"):
-    """--h-datum, --p-ref, --anchor, --extrapolate; ``default=None``: the substance's default datum."""
+def add_datum_options(p, *, with_pressure: bool = True, default: str | None = "formation",
+                      datum_help: str = H_DATUM_DEFAULT_HELP):
+    """--h-datum, --p-ref, --anchor, --extrapolate; ``default=None``: the substance's default
+    datum (``datum_help`` says which)."""
     g = p.add_argument_group("datums and scales")
     g.add_argument("--h-datum", default=default, metavar="DATUM",
-                   help=H_DATUM_DEFAULT_HELP if default is None else
+                   help=datum_help if default is None else
                    "formation (default: h(298.15 K) = enthalpy of formation) or "
                    "sensible[:T[:h]] (h(T) = h kJ/kg, default 298.15 K and 0), e.g. sensible:0C")
     g.add_argument("--p-ref", default="1bar", metavar="P",
@@ -27,6 +33,8 @@ def add_datum_options(p, *, with_pressure: bool = True, default: str | None = "f
                    help="Pr/vr scale: Pr and vr at temperature T (default T=298.15K,Pr=1,vr=1)")
     g.add_argument("--extrapolate", action="store_true",
                    help="allow temperatures outside the data range; such values are marked")
+    # what a refusal outside the data range names as the way to opt in (cli.main)
+    p.set_defaults(extrapolate_option="--extrapolate")
 
 
 def add_unit_options(p, *, pressure: bool = True, flow: str | None = None):
@@ -49,18 +57,20 @@ def add_unit_options(p, *, pressure: bool = True, flow: str | None = None):
                             "every converted value")
 
 
-def datum_from_text(text: str | None, substance=None, *, by_rule: bool = False):
+def datum_from_text(text: str | None, substance=None, *, by_rule: bool = False,
+                    reacting: bool | None = False):
     """--h-datum text -> Datum.
 
-    ``by_rule`` (state, process): no text gives the substance's default datum
-    (thermo.substance.default_datum) and a bare ``sensible`` puts h = 0 at
-    0 °C, as that default does. Otherwise (compare, chart) no text is the
-    formation datum and a bare ``sensible`` means h = 0 at 298.15 K.
+    ``by_rule`` (state, process, chart): no text gives the substance's default
+    datum (thermo.substance.default_datum with ``reacting``: False for state and
+    process, None for a chart) and a bare ``sensible`` puts h = 0 at 0 °C, as
+    that default does. Otherwise (compare) no text is the formation datum and a
+    bare ``sensible`` means h = 0 at 298.15 K.
     """
     from ..thermo.substance import SENSIBLE_DATUM_T_K, T_REF, Datum, default_datum
     from ..units import quantity, temperature_K
     if text is None:
-        return default_datum(substance) if by_rule else Datum("formation")
+        return default_datum(substance, reacting=reacting) if by_rule else Datum("formation")
     t = text.strip()
     if t == "formation":
         return Datum("formation")
@@ -96,27 +106,28 @@ def anchor_from_text(text: str | None):
 
 
 def data_notices(args):
-    """Print the library's notices once, on stderr unless --quiet.
+    """Print the library's notices, on stderr unless --quiet: once in each run, however
+    often a command asks (notice() says a text once per run; the library itself is
+    cached for the process, so a flag on it would silence a second run in one process).
 
     They say which user records replace shipped ones and what validation
     found in user files (tablegen.data.library.Library.messages).
     """
     from ..data.library import library
     lib = library(tuple(getattr(args, "data", ()) or ()))
-    if not lib.announced:
-        lib.announced = True
-        for m in lib.messages:
-            notice(args, f"note: {m}")
+    for m in lib.messages:
+        notice(args, f"note: {m}")
     return lib
 
 
-def substance_with_options(args, name: str, *, by_rule: bool = False):
+def substance_with_options(args, name: str, *, by_rule: bool = False, reacting: bool | None = False):
     """Resolve a substance and apply --h-datum, --p-ref and --anchor (see datum_from_text)."""
     from .. import api
     from ..units import pressure_Pa
     data_notices(args)
     sub = api.substance(name, source=args.source, data=args.data)
-    return sub.with_options(datum=datum_from_text(getattr(args, "h_datum", None), sub, by_rule=by_rule),
+    return sub.with_options(datum=datum_from_text(getattr(args, "h_datum", None), sub, by_rule=by_rule,
+                                                  reacting=reacting),
                             P_ref_Pa=pressure_Pa(getattr(args, "p_ref", "1bar") or "1bar", "--p-ref"),
                             anchor=anchor_from_text(getattr(args, "anchor", None)))
 
@@ -134,12 +145,16 @@ def published(args, out, files, notes, what: str, detail: str = "", paths: bool 
 
 #: Notices of the running command, printed only once it has succeeded (None: print at once).
 _held: list | None = None
+#: Notices already given in this run: each is said once (a note repeated per table or per
+#: substance tells the reader nothing new).
+_said: set = set()
 
 
 def hold_notices() -> None:
     """Keep notices until the command ends, so a refusal is the only line on stderr."""
     global _held
     _held = []
+    _said.clear()
 
 
 def release_notices(print_them: bool) -> None:
@@ -152,8 +167,10 @@ def release_notices(print_them: bool) -> None:
 
 
 def notice(args, text: str):
-    if getattr(args, "quiet", False):
+    """A message line on stderr (held until the command succeeds; each text once per run)."""
+    if getattr(args, "quiet", False) or text in _said:
         return
+    _said.add(text)
     if _held is not None:
         _held.append(text)
     else:

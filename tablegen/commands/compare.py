@@ -107,7 +107,9 @@ def _refuse_datum_options(args, target):
 
 def load_spec(args):
     from .. import spec as spec_module
-    return spec_module.load(args.substance, source=args.source, data=args.data)
+    # --extrapolate opens every table of the book, as it does for tablegen build
+    return spec_module.load(args.substance, source=args.source, data=args.data,
+                            extrapolate=bool(getattr(args, "extrapolate", False)))
 
 
 def resolve(args):

@@ -485,7 +485,6 @@ class Library:
         #: with strict=False: refusals of user files and records, instead of raising
         self.load_errors: list[str] = []
         self.strict = strict
-        self.announced = False
         #: (data set asked for, species id) -> data set the record came from, for each
         #: species a ``source`` did not hold (read and cleared by take_fallbacks)
         self.fallbacks: dict = {}

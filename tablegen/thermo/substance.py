@@ -20,7 +20,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from ..constants import P_STD, R_MOLAR, T_REF  # noqa: F401  (re-exported)
-from ..errors import InputError, RangeError, TablegenError
+from ..errors import DataRangeError, InputError, RangeError, TablegenError
 from .polynomial import Polynomial
 
 #: Relative tolerance of the inverse functions (in T).
@@ -70,30 +70,52 @@ class Datum:
 SENSIBLE_DATUM_T_K = 273.15
 
 
-def default_datum(substance=None, *, reacting: bool = False) -> Datum:
+def products_of_combustion(substance) -> bool:
+    """True for the products of a combustion, computed or measured (tablegen.burn).
+
+    They are the substances that carry the combustion cautions
+    (``Substance.cautions``, which tablegen.burn gives every flue gas it makes
+    and no other substance has).
+    """
+    return bool(getattr(substance, "cautions", ()))
+
+
+def default_datum(substance=None, *, reacting: bool | None = False, basis: str = "mass") -> Datum:
     """The enthalpy datum a substance gets where the user names none.
 
-    The rule: a substance that does not react in the calculation at hand gets
-    the sensible datum h = 0 at 0 °C (273.15 K); a substance in a reacting
-    energy balance gets the formation datum (h(298.15 K) = ΔfH°).
+    The rule, by what the values are for and what the substance is:
+
+    * ``reacting=False``, nothing reacts in the calculation at hand (``state``,
+      ``process``): the sensible datum h = 0 at 0 °C (273.15 K).
+    * ``reacting=True``, a reacting energy balance uses these enthalpies
+      (``combust``): the formation datum, h(298.15 K) = ΔfH°.
+    * ``reacting=None``, a reference table or chart that may serve either (a
+      table book, ``tablegen chart``): the sensible datum h = 0 at 0 °C for the
+      products of combustion and for values per volume (``basis="volumetric"``),
+      the formation datum for every other substance.
 
     Why: without reaction only differences of h enter an answer (work, heat,
     duty), and h read as the heat content above 0 °C is what a person checks
     against a gauge or a heat balance (air at 15 °C: h = +15.07 kJ/kg rather
     than the -10.05 kJ/kg of the formation datum). In a reacting balance the
-    enthalpies of formation must be in h, or the heat of reaction is lost.
-    Every state and process step of tablegen keeps the composition frozen, so
-    ``state`` and ``process`` use the sensible datum; a table book or a
-    combustion balance passes ``reacting=True`` where its gas reacts.
+    enthalpies of formation must be in h, or the heat of reaction is lost, so a
+    table of a fuel, an oxidant or a species keeps them by default. A flue gas
+    is already burnt: its table is read for the heat it gives up as it cools,
+    and on the formation datum its h would be large and negative (about
+    -2630 kJ/kg at 300 K for the flue gas of methane at 15 % excess air), so it gets the sensible
+    datum; so do values per normal m³, the heat content of a gas stream in
+    boiler practice, and the mean heat capacities from 0 °C that go with them.
 
     Parameters
     ----------
-    substance : the Substance (the rule does not yet depend on its kind; the
-        argument is there so that callers need not change when it does)
-    reacting : the substance takes part in a reaction whose energy balance
-        uses these enthalpies
+    substance : the Substance (its kind: :func:`products_of_combustion`)
+    reacting : True, False, or None for a reference table or chart (above)
+    basis : "mass", "molar" or "volumetric": the basis of the values (reference
+        tables only)
     """
     if reacting:
+        return Datum("formation")
+    if reacting is None and not (basis == "volumetric" or products_of_combustion(substance)):
         return Datum("formation")
     return Datum("sensible", SENSIBLE_DATUM_T_K, 0.0)
 
@@ -199,10 +221,8 @@ class Substance:
         out = (T < lo) | (T > hi)
         if np.any(out):
             bad = float(T[out].flat[0])
-            raise RangeError(
-                f"{self.id}: T = {bad:g} K is outside the data range {lo:g}-{hi:g} K; "
-                f"allowed: {lo:g} to {hi:g} K, or opt in to extrapolation (--extrapolate), "
-                f"which marks every extrapolated value")
+            raise DataRangeError(f"{self.id}: T = {bad:g} K is outside the data range {lo:g}-{hi:g} K",
+                                 f"{lo:g} to {hi:g} K")
         return None
 
     def _check_scales(self, ln_lo: float, ln_hi: float, T_lo: float, T_hi: float) -> None:
