@@ -31,19 +31,45 @@ def render_files(spec, out_dir, progress=None) -> tuple[dict, object]:
     book = model.build_book(spec, tables=tuple(tables))
     files = {}
     from ..jsonout import dumps
-    names = {"pdf": f"{spec.name}.pdf", "csv": [f"{t.name}.csv" for t in book.tables]}
-    names["csv_metadata"] = [csvout.metadata_name(n) for n in names["csv"]]
-    for t, name, meta in zip(book.tables, names["csv"], names["csv_metadata"]):
+    names = file_names(spec)
+    for t, ts, name, meta in zip(book.tables, spec.tables, names["csv"], names["csv_metadata"]):
         files[out_dir / name] = csvout.render_table(book, t).encode("utf-8")
-        files[out_dir / meta] = dumps(csvout.metadata(book, t, name)).encode("utf-8")
+        files[out_dir / meta] = dumps(csvout.metadata(book, t, name, editions=ts.shared_by)).encode("utf-8")
     pdf_bytes = pdf.render(book)
     if progress:
         progress(n + 1, total, "PDF")
     files[out_dir / names["pdf"]] = pdf_bytes
-    files[out_dir / f"{spec.name}.json"] = jsonout.render(book, names).encode("utf-8")
+    files[out_dir / names["json"]] = jsonout.render(book, names).encode("utf-8")
     if progress:
         progress(total, total, "JSON")
     return files, book
+
+
+def file_names(spec) -> dict:
+    """Names of a book's files in its output folder.
+
+    Without editions: ``<spec>.pdf``, ``<spec>.json``, ``<table>.csv``. With editions,
+    one folder holds one issue of every edition: ``<spec>-<edition>.pdf`` and
+    ``<spec>-<edition>.json`` per edition, and the CSV names of
+    :func:`tablegen.editions.csv_names` (``<table>.csv``, or ``<table>-<edition>.csv``
+    for an edition that prints the table with other rows or columns). The booklet of
+    an edition (``--impose booklet``) is ``<stem>-booklet.pdf`` beside its PDF.
+    """
+    ed = spec.edition
+    stem = f"{spec.name}-{ed.name}" if ed is not None and ed.name else spec.name
+    csv = [t.csv_name or f"{t.name}.csv" for t in spec.tables]
+    from .csvout import metadata_name
+    return {"pdf": f"{stem}.pdf", "json": f"{stem}.json", "booklet": f"{stem}-booklet.pdf", "csv": csv,
+            "csv_metadata": [metadata_name(n) for n in csv]}
+
+
+def merge(into: dict, files: dict) -> dict:
+    """Add one edition's files to the set; a file two editions share must have the same bytes."""
+    for p, data in files.items():
+        if p in into and into[p] != data:      # pragma: no cover - the names follow the content
+            raise AssertionError(f"{p}: two editions write different bytes to one file")
+        into[p] = data
+    return into
 
 
 def write(files: dict, force: bool) -> list[Path]:

@@ -233,6 +233,7 @@ class BookModel:
     versions: dict
     normalised_spec: dict
     appendix: list = field(default_factory=list)   # Section, printed after the tables
+    edition: object = None  # tablegen.editions.Edition: paper, sides, figure size, printed number
 
 
 # ---------------------------------------------------------------- evaluation
@@ -371,6 +372,14 @@ def pressure_text(P: float) -> str:
 
 
 def _grid_text(g: dict) -> str:
+    text = _grid_text_of(g)
+    if "T_range_K" in g:      # an edition that prints part of the grid
+        lo, hi = g["T_range_K"]
+        text += f"; this edition prints the rows from {lo:g} K to {hi:g} K"
+    return text
+
+
+def _grid_text_of(g: dict) -> str:
     if g["kind"] == "segments":
         parts = []
         from ..units import unit
@@ -554,7 +563,8 @@ def build_table(t, doc) -> TableModel:
     charts = ()
     if t.charts:
         from .charts import build_chart
-        charts = tuple(build_chart(sub, c, T_range_K=(float(t.T_K.min()), float(t.T_K.max())), units=t.units)
+        charts = tuple(build_chart(sub, c, T_range_K=(float(t.T_K.min()), float(t.T_K.max())), units=t.units,
+                                   **chart_page(doc))
                        for c in t.charts)
     return TableModel(
         charts=charts,
@@ -567,13 +577,24 @@ def build_table(t, doc) -> TableModel:
         columns=tuple(cols), notes=notes, uncertainty=unc, U_columns=U_cols)
 
 
+def chart_page(doc) -> dict:
+    """How a chart goes onto the book's pages: the box it is drawn in (its labels are placed
+    for that box), on one page or with its reading panel on the facing page (small paper),
+    and the smallest text size there."""
+    from .pagination import MIN_TEXT_SMALL_PT, chart_box, chart_on_two_pages, layout_for
+    L = layout_for(doc.paper, doc.orientation)
+    _, _, w, h = chart_box(L)
+    small = chart_on_two_pages(L)
+    return {"box_pt": (w, h), "panel_page": small, "min_pt": MIN_TEXT_SMALL_PT if small else None}
+
+
 # ---------------------------------------------------------------- fingerprint
 def data_files(spec) -> list[Path]:
     """Coefficient and composition files the book's values depend on."""
     from ..data.library import library
     lib = library(tuple(spec.data_paths))
     files = set()
-    for t in spec.tables:
+    for t in getattr(spec, "all_tables", ()) or spec.tables:
         for _, ds, _ in t.substance.sources:
             d = lib.datasets.get(ds)
             if d is not None and getattr(d, "path", None) is not None:
@@ -694,4 +715,4 @@ def build_book(spec, tables=None) -> BookModel:
     return BookModel(appendix=appendix, name=spec.name, document=doc, tables=tables, substances=tuple(subs),
                      definitions=tuple(definitions), cautions=tuple(cautions), rounding_rule=ROUNDING_RULE,
                      reference_text=ref_text, data_files=listed, fingerprint=fp, versions=versions(),
-                     normalised_spec=spec.normalised)
+                     normalised_spec=spec.normalised, edition=getattr(spec, "edition", None))

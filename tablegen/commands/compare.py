@@ -79,6 +79,9 @@ def add_arguments(p):
     p.add_argument("--table", default=None, metavar="NAME[,NAME...]",
                    help="with a spec file: the table to compare (needed for one reference file when the "
                         "spec has several); with a folder, the tables to compare (default: all)")
+    p.add_argument("--edition", default=None, metavar="NAME",
+                   help="with a spec that declares editions and a folder: the edition whose files to "
+                        "compare (default: the spec's first edition)")
     p.add_argument("--map", default=None, metavar="MAP.toml",
                    help="with a folder: reference file of each table whose file has another name "
                         "([tables] name = \"file.csv\")")
@@ -107,7 +110,8 @@ def _refuse_datum_options(args, target):
 
 def load_spec(args):
     from .. import spec as spec_module
-    return spec_module.load(args.substance, source=args.source, data=args.data)
+    return spec_module.load(args.substance, source=args.source, data=args.data,
+                            edition=getattr(args, "edition", None))
 
 
 def resolve(args):
@@ -344,6 +348,9 @@ def run(args) -> int:
     if Path(args.reference).is_dir():
         from .compare_book import run_book
         return run_book(args)
+    if getattr(args, "edition", None) is not None:
+        raise TablegenError(f"--edition {args.edition}: applies to a book spec compared with a reference "
+                            f"folder (the folder holds the edition's files)")
     from ..compare_hints import suggested_options
     from ..compare_output import summary
     cmp, files, notes = compute(args)
