@@ -315,6 +315,9 @@ def restrict(spec, ed: EditionSpec):
             _fail(f"editions.{ed.name}.T_range", f"{lo:g}-{hi:g} K leaves table {t.name!r} with no rows (its "
                                                  f"grid runs {t.T_K.min():g}-{t.T_K.max():g} K); widen T_range or "
                                                  f"leave the table out with editions.{ed.name}.tables")
+        if keep.all():
+            out.append(t)
+            continue
         extra = tuple(e for e in t.extra_rows if lo - eps <= e.T_K <= hi + eps)
         grid = dict(t.grid, T_range_K=[lo, hi])
         out.append(replace(t, T_K=t.T_K[keep], extra=t.extra[keep], extra_rows=extra, grid=grid))

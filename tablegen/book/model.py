@@ -374,8 +374,10 @@ def pressure_text(P: float) -> str:
 def _grid_text(g: dict) -> str:
     text = _grid_text_of(g)
     if "T_range_K" in g:      # an edition that prints part of the grid
-        lo, hi = g["T_range_K"]
-        text += f"; this edition prints the rows from {lo:g} K to {hi:g} K"
+        from ..units import unit
+        u = unit(g["segments"][0]["unit"] if g["kind"] == "segments" else g.get("unit", "K"), "temperature")
+        lo, hi = (f"{u.from_si(T):.6g}".replace("-", "−") for T in g["T_range_K"])
+        text += f"; this edition prints the rows from {lo} to {hi} {u.symbol}"
     return text
 
 

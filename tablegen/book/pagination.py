@@ -130,37 +130,48 @@ def row_chunks(n: int, first: int, middle: int, last: int, single: int,
     ``first``, ``middle`` and ``last`` are the rows the first, a middle and the last
     page hold (the first page may carry the table's heading lines, the last its
     notes); ``single`` the rows of a table on one page. Every page but the last
-    holds whole groups of five; the last page holds at least ``min_rows`` rows: when
-    it would hold fewer, the last two pages share their rows (the earlier one a
-    whole number of groups of five).
+    holds whole groups of five, as many as fit; the last page holds at least
+    ``min_rows`` rows: where it would hold fewer, the last two pages share their rows
+    (the earlier one a whole number of groups of five, as near half as that allows),
+    and where that is not enough, earlier pages give up groups of five too.
     """
-    if n <= max(single, 0) or n <= 0:
-        return [(0, max(n, 0))]
-    chunks, a, cap = [], 0, first
-    while True:
-        rest = n - a
-        if chunks and rest <= last:
-            chunks.append((a, n))
-            break
-        take = _down(cap)
-        if rest - take < 1:
-            # this page could hold the rest but not the notes: leave rows for the last page
-            take = _down(rest - min(min_rows, rest - 1))
-        take = max(1, min(take, rest - 1))
-        chunks.append((a, a + take))
-        a += take
-        cap = middle
-    if len(chunks) >= 2:
-        (a0, b0), (a1, b1) = chunks[-2], chunks[-1]
-        if b1 - a1 < min_rows:
-            r = b1 - a0
-            cap_prev = first if len(chunks) == 2 else middle
-            share = min(_down(cap_prev), _up(math.ceil(r / 2)))
-            if r - share > last:
-                share = r - last
-            if min_rows <= r - share and share >= 1:
-                chunks[-2:] = [(a0, a0 + share), (a0 + share, b1)]
-    return chunks
+    if n <= 0:
+        return [(0, 0)]
+    if n <= single:
+        return [(0, n)]
+    sizes = [_down(first)]
+    while n - sum(sizes) > last:
+        sizes.append(_down(middle))
+    rest = n - sum(sizes)            # the last page's rows (<= 0: the page before cannot be the last)
+    # balance the last two pages
+    r = sizes[-1] + rest
+    floor = ROW_GROUP if len(sizes) == 1 else min_rows
+    share = min(sizes[-1], _up(math.ceil(r / 2)))
+    while r - share < min_rows and share - ROW_GROUP >= floor:
+        share -= ROW_GROUP
+    if r - share > last:
+        share = min(sizes[-1], _up(r - last))
+    if 1 <= r - share <= last and share >= 1:
+        sizes[-1], rest = share, r - share
+    # still short: earlier pages give up groups of five, the latest first
+    i = len(sizes) - 2
+    while rest < min_rows and i >= 0:
+        floor = ROW_GROUP if i == 0 else min_rows
+        if sizes[i] - ROW_GROUP >= floor and rest + ROW_GROUP <= last:
+            sizes[i] -= ROW_GROUP
+            rest += ROW_GROUP
+        else:
+            i -= 1
+    while rest < 1:                  # capacities too small for the rules: keep every row, in order
+        k = max(range(len(sizes)), key=lambda j: sizes[j])
+        sizes[k] -= 1
+        rest += 1
+    sizes.append(rest)
+    out, a = [], 0
+    for k in sizes:
+        out.append((a, a + k))
+        a += k
+    return out
 
 
 def _up(n: int) -> int:

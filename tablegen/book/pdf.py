@@ -225,8 +225,9 @@ def _front(book, L: Layout, pages: list, contents: list):
     f.para("Each table gives ideal-gas properties of one substance at the temperatures of its first "
            "column or columns. The substance, the basis (per unit mass, per mole or per volume at "
            "stated reference conditions), the enthalpy datum, the entropy reference pressure P° and "
-           "the Pr/vr anchor are printed at the head of every table page and listed below. Values "
-           "between rows may be interpolated linearly; the row spacing sets the interpolation error.")
+           f"the Pr/vr anchor are printed at the head of {'each table' if L.compact else 'every table page'} "
+           "and listed below. Values between rows may be interpolated linearly; the row spacing sets the "
+           "interpolation error.")
     f.para(book.rounding_rule)
     f.para("Row marks in the narrow first column: * an extra row at a named temperature; "
            "x a value extrapolated beyond the range of the coefficient data.")
@@ -235,8 +236,8 @@ def _front(book, L: Layout, pages: list, contents: list):
     if L.compact:
         f.para("On this small paper each table page repeats only what a reader needs on every page: the "
                "table title, the column symbols and units, the document number, revision and page. The "
-               "substance, basis, datum and anchor are printed on the first page of each table and the "
-               "notes on its last page.")
+               "substance, basis, datum and anchor are printed on the first page of each table, and its "
+               "notes (marked rows, uncertainty, cautions) on its last page.")
     if book.reference_text:
         f.para(f"Volumetric basis: values per cubic metre (SI) or cubic foot (US) of gas at "
                f"{book.reference_text}, that is per amount n = P/(R T) of ideal gas at those conditions.")
