@@ -38,7 +38,7 @@ STEP_K = 10.0
 
 #: Order of preference for the ``against`` side of a pair: the evaluation of
 #: the data themselves (JANAF) first, then the fitted sets, newest first.
-AGAINST_ORDER = ("janaf1998", "nasa2002-air", "nasa1993", "nuig2015")
+AGAINST_ORDER = ("janaf1998", "nasa2002-air", "eos-ideal", "nasa1993", "nuig2015")
 
 #: tablegen species id -> CoolProp fluid name (HEOS backend). The ideal-gas
 #: part of each equation is used only inside the range CoolProp states for it.
@@ -58,11 +58,40 @@ COOLPROP_FLUIDS = {
 #: Keys of one [[agreement]] table, in the order written.
 KEYS = ("species", "source", "against", "band_K", "n_points", "cp_max_rel", "cp_rms_rel",
         "dh_max_J_per_mol", "dh_rms_J_per_mol", "s0_max_J_per_molK", "s0_rms_J_per_molK",
-        "s0_relative_to_298", "h298_diff_J_per_mol")
+        "s0_relative_to_298", "h298_diff_J_per_mol", "beyond_range_of")
 
 #: Significant figures written to the file (the figures describe differences
 #: of 1e-5 and up; more digits would only record floating-point noise).
 DIGITS = 4
+
+#: The evaluation each source stands for. A refit or a copy counts as the
+#: evaluation it was made from: janaf1998 is the NIST-JANAF tables ("janaf", also
+#: the id of the direct JANAF comparison in agreement-janaf.toml); eos-ideal and
+#: CoolProp's cp0 are the ideal-gas parts of the reference equations of state
+#: ("eos"; IAPWS-95 for water). Two sources of one evaluation are never
+#: independent evidence of each other. A source not named here is its own.
+EVALUATION_OF = {"janaf1998": "janaf", "janaf": "janaf", "eos-ideal": "eos", "coolprop": "eos",
+                 "iapws95": "eos"}
+
+#: Quality tier of each evaluation (1 is best), for the uncertainty budget
+#: (docs/uncertainty.md): critically evaluated tables and reference equations
+#: (NIST-JANAF 1998, NASA/TP-2002-211556, the reference equations' ideal-gas
+#: parts) are tier 1; the 7-coefficient fits of NASA TM-4513, measured 1 % off
+#: IAPWS-95 for H2O at 2000 K and 0.4 % off JANAF and CoolProp for CO2 at 1500 K
+#: (gasdata/agreement.toml), tier 2; a mechanism's thermochemistry (nuig2015),
+#: tier 3; a user's data set, tier 2 unless named here.
+EVALUATION_TIER = {"janaf": 1, "eos": 1, "nasa2002-air": 1, "nasa1993": 2, "nuig2015": 3}
+
+
+def evaluation_of(source: str) -> str:
+    """The evaluation a source id stands for (EVALUATION_OF, else the id itself)."""
+    return EVALUATION_OF.get(source, source)
+
+
+def tier_of(evaluation: str) -> int:
+    """Quality tier of an evaluation (EVALUATION_TIER; 2 for one not named there)."""
+    return EVALUATION_TIER.get(evaluation, 2)
+
 
 #: Two sources agree when, in every band both cover, cp differs by at most
 #: AGREE_CP_REL and s° by at most AGREE_S0_J_PER_MOLK. Up to 3000 K the cp
@@ -78,8 +107,15 @@ AGREE_S0_J_PER_MOLK = 0.05
 #: Preference order of the default rule's tie-break (see choose_default):
 #: NIST-JANAF, the handbook that QA compares against, one self-consistent
 #: network of enthalpies of formation for every flue-gas species; then the
-#: newer NASA sets.
-PREFERENCE = ("janaf1998", "nasa2002-air", "nasa1993", "nuig2015")
+#: newer NASA set, then the refits of the reference equations' ideal-gas parts
+#: (reference quality where they hold, ahead of the 7-coefficient fits of TM-4513).
+PREFERENCE = ("janaf1998", "nasa2002-air", "eos-ideal", "nasa1993", "nuig2015")
+
+
+#: Upper temperature up to which the default rule compares the ranges of data sets
+#: (2a): 6000 K, where the NASA and JANAF tabulations of the flue-gas species end;
+#: beyond it lies the plasma range of the NASA 2002 air set.
+RANGE_CAP_K = 6000.0
 
 
 @dataclass(frozen=True, slots=True)
@@ -91,6 +127,10 @@ class Source:
     T_max: float
     kind: str            # "dataset" or "coolprop"
     handle: object       # Record or CoolProp fluid name
+    #: part of [T_min, T_max] where the source is the evaluation itself; outside it
+    #: (an equation's ideal-gas part extrapolated beyond the equation's range) its
+    #: figures are marked, and they count as evidence only about this source
+    valid_K: tuple | None = None
 
     def values(self, T: np.ndarray) -> dict:
         """cp (J/(mol K)), dh = h - h(298.15) (J/mol), s0 (J/(mol K)) and h298."""
@@ -100,7 +140,7 @@ class Source:
             ref = poly.evaluate(np.array([T_REF]))
             return {"cp": v["cp"] * R_MOLAR, "dh": (v["h"] - ref["h"][0]) * R_MOLAR,
                     "s0": v["s"] * R_MOLAR, "s0_298": ref["s"][0] * R_MOLAR, "h298": ref["h"][0] * R_MOLAR}
-        return _coolprop_values(self.handle, T)
+        return coolprop_ideal(self.handle, T)
 
 
 def _cp0(fluid: str, T: np.ndarray) -> np.ndarray:
@@ -113,7 +153,11 @@ def _cp0(fluid: str, T: np.ndarray) -> np.ndarray:
 _GL_X, _GL_W = np.polynomial.legendre.leggauss(8)
 
 
-def _coolprop_values(fluid: str, T: np.ndarray) -> dict:
+def coolprop_ideal(fluid: str, T) -> dict:
+    """The ideal-gas part of CoolProp's equation of state of ``fluid`` at T (K), molar SI:
+    cp0, dh = H(T) - H(298.15 K) and s0 = S(T) - S(298.15 K) (at fixed pressure), the
+    last two by 8-point Gauss-Legendre quadrature of cp0 between the sorted nodes.
+    Needs CoolProp (a development and test dependency, never imported at run time)."""
     T = np.asarray(T, dtype=float)
     nodes = np.unique(np.concatenate([T, [T_REF]]))
     a, b = nodes[:-1], nodes[1:]
@@ -139,7 +183,9 @@ def sources_of(species: str, lib=None) -> list[Source]:
     for d in order:
         r = lib.datasets[d].get(species)
         if r is not None and r.id == species:
-            out.append(Source(d, r.T_min, r.T_max, "dataset", r))
+            valid = r.extra.get("eos_T_range_K")
+            valid = None if valid is None else (max(float(valid[0]), r.T_min), min(float(valid[1]), r.T_max))
+            out.append(Source(d, r.T_min, r.T_max, "dataset", r, valid))
     fluid = COOLPROP_FLUIDS.get(species)
     if fluid is not None and out:
         from CoolProp.CoolProp import AbstractState
@@ -158,10 +204,17 @@ def compare(src: Source, ref: Source, species: str) -> list[dict]:
     lo_all, hi_all = max(src.T_min, ref.T_min), min(src.T_max, ref.T_max)
     rel298 = src.kind == "coolprop" or ref.kind == "coolprop"
     rows = []
-    for lo, hi in BANDS_K:
+    cuts = {x for band in BANDS_K for x in band}
+    for s_ in (src, ref):
+        if s_.valid_K is not None:
+            cuts |= set(s_.valid_K)
+    cuts = sorted(cuts)
+    for lo, hi in zip(cuts[:-1], cuts[1:]):
         a, b = max(lo, lo_all), min(hi, hi_all)
         if b - a < STEP_K:
             continue
+        beyond = [s_.id for s_ in (src, ref) if s_.valid_K is not None and
+                  not (s_.valid_K[0] - 1e-9 <= a and b <= s_.valid_K[1] + 1e-9)]
         T = np.arange(math.ceil(a / STEP_K) * STEP_K, b + 1e-9, STEP_K)
         T = np.unique(np.concatenate([[a], T, [b]]))
         v, w = src.values(T), ref.values(T)
@@ -181,6 +234,8 @@ def compare(src: Source, ref: Source, species: str) -> list[dict]:
         }
         if not rel298:
             row["h298_diff_J_per_mol"] = _sig(v["h298"] - w["h298"])
+        if beyond:
+            row["beyond_range_of"] = beyond
         rows.append(row)
     return rows
 
@@ -202,7 +257,8 @@ def figures_for(species: str, lib=None) -> list[dict]:
     rows = []
     for j, src in enumerate(srcs):
         for ref in srcs[:j]:
-            rows.extend(compare(src, ref, species))
+            if evaluation_of(src.id) != evaluation_of(ref.id):   # a refit against its own source: no evidence
+                rows.extend(compare(src, ref, species))
     return rows
 
 
@@ -216,22 +272,31 @@ def all_figures(lib=None) -> list[dict]:
 # ------------------------------------------------------------- agreement rule
 def agrees(rows: list[dict], a: str, b: str) -> bool | None:
     """Do sources a and b agree (every shared band within AGREE_*)? None if never compared."""
-    pair = [r for r in rows if {r["source"], r["against"]} == {a, b}]
+    # bands where one side is an equation's ideal-gas part beyond its range do not count
+    pair = [r for r in rows if {r["source"], r["against"]} == {a, b} and not r.get("beyond_range_of")]
     if not pair:
         return None
     return all(r["cp_max_rel"] <= (AGREE_CP_REL if r["band_K"][1] <= HOT_K else AGREE_CP_REL_HOT)
                and r["s0_max_J_per_molK"] <= AGREE_S0_J_PER_MOLK for r in pair)
 
 
-def choose_default(species: str, rows: list[dict], candidates: list[str]) -> tuple[str, str, bool]:
+def choose_default(species: str, rows: list[dict], candidates: list[str],
+                   T_max: dict | None = None) -> tuple[str, str, bool]:
     """Default data set of a species by the written rule; (source, reason, sources_agree).
 
     Rule (gasdata/defaults.toml header, docs/data-curation.md):
       1. Two sources agree when, in every band both cover, cp differs by at
-         most 0.1 % (0.5 % above 3000 K) and s° by at most 0.05 J/(mol K).
+         most 0.1 % (0.5 % above 3000 K) and s° by at most 0.05 J/(mol K);
+         bands where one is an equation's ideal-gas part beyond the
+         equation's range do not count.
       2. Among the data sets that hold the species, take the one that agrees
-         with the most other sources (data sets and the CoolProp equation of
-         state, an independent reference).
+         with the most other evaluations (data sets and the CoolProp equation
+         of state, an independent reference; two sources of one evaluation,
+         such as eos-ideal and CoolProp, count once and are not compared).
+      2a. A data set whose range ends below another candidate's is taken only
+         where every candidate of the widest range agrees with no other
+         evaluation: a default never narrows the temperature range a user
+         gets while a wider source is supported by another evaluation.
       3. On a tie, or where no source agrees with another, take the first in
          PREFERENCE: one consistent thermochemical network (JANAF) for as many
          species as possible, so the enthalpies of formation of a mixture's
@@ -243,8 +308,18 @@ def choose_default(species: str, rows: list[dict], candidates: list[str]) -> tup
     if len(ids) == 1:
         return candidates[0], "the only source", False
     mates = {c: [o for o in ids if o != c and agrees(rows, c, o)] for c in candidates}
-    best_n = max(len(m) for m in mates.values())
-    top = [c for c in candidates if len(mates[c]) == best_n]
+    # agreement with two sources of one evaluation (eos-ideal and coolprop) counts once
+    count = {c: len({evaluation_of(o) for o in m}) for c, m in mates.items()}
+    eligible = list(candidates)
+    narrow = []
+    if T_max:
+        widest = max(T_max[c] for c in candidates)
+        wide = [c for c in candidates if T_max[c] >= widest - 1e-9]
+        if any(count[c] > 0 for c in wide):
+            narrow = [c for c in candidates if c not in wide]
+            eligible = wide
+    best_n = max(count[c] for c in eligible)
+    top = [c for c in eligible if count[c] == best_n]
     rank = {d: k for k, d in enumerate(PREFERENCE)}
     pick = min(top, key=lambda c: (rank.get(c, len(rank)), c))
     within = (f"cp within {AGREE_CP_REL * 100:g} % to {HOT_K:g} K and {AGREE_CP_REL_HOT * 100:g} % above, "
@@ -260,6 +335,9 @@ def choose_default(species: str, rows: list[dict], candidates: list[str]) -> tup
         reason += f"; tied with {', '.join(tied)}, taken by the preference order"
     if disagree:
         reason += f"; differs from {', '.join(disagree)}"
+    if narrow:
+        reason += (f"; {', '.join(narrow)} not taken: its range ends below {T_max[pick]:g} K while "
+                   f"{pick} agrees with another evaluation")
     return pick, reason, True
 
 
@@ -328,15 +406,23 @@ DEFAULTS_HEADER = """\
 #  1. Two sources agree when, in every temperature band both cover
 #     (agreement.toml), cp differs by at most {cp:g} % ({cp_hot:g} % above {hot:g} K) and
 #     s° by at most {s0:g} J/(mol K).
+#     Bands where one source is an equation's ideal-gas part beyond the
+#     equation's range (beyond_range_of in agreement.toml) do not count.
 #  2. Among the data sets that hold the species, the default is the one that
-#     agrees with the most other sources, counting the other data sets and the
-#     CoolProp equation of state's ideal-gas part (an independent reference).
+#     agrees with the most other evaluations, counting the other data sets and
+#     the CoolProp equation of state's ideal-gas part (an independent
+#     reference); two sources of one evaluation (eos-ideal, the refit of the
+#     CoolProp ideal-gas parts, and CoolProp itself) count once.
+#     A data set whose range ends below another's (compared up to 6000 K) is
+#     taken only where every data set of the widest range agrees with no
+#     other evaluation.
 #  3. On a tie, or where no source agrees with another, the first of
 #       {pref}
 #     NIST-JANAF first: the handbook QA compares against, and one
 #     self-consistent network of enthalpies of formation for every flue-gas
 #     species, so a mixture's species share one evaluation; then the newer
-#     NASA set.
+#     NASA set; then the reference equations' ideal-gas parts (eos-ideal),
+#     ahead of the 7-coefficient fits of TM-4513.
 #  sources_agree = false marks a default that agrees with no other source:
 #  the sources disagree and the stated uncertainty must be wider.
 """
@@ -348,11 +434,12 @@ def defaults_from(rows: list[dict], lib=None) -> dict:
     lib = lib or library()
     out = {}
     for sid in sorted({r["species"] for r in rows}):
-        cands = [s.id for s in sources_of(sid, lib) if s.kind == "dataset"]
+        srcs = [s for s in sources_of(sid, lib) if s.kind == "dataset"]
+        cands = [s.id for s in srcs]
         if len(cands) < 2:
             continue
         mine = [r for r in rows if r["species"] == sid]
-        src, reason, ok = choose_default(sid, mine, cands)
+        src, reason, ok = choose_default(sid, mine, cands, {s.id: min(s.T_max, RANGE_CAP_K) for s in srcs})
         out[sid] = {"source": src, "reason": reason, "sources_agree": ok, "candidates": cands}
     return out
 

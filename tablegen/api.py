@@ -57,7 +57,8 @@ def substance(name: str, *, source: str | None = None, data=()) -> Substance:
         raise NameLookupError("substance name is empty; give a species id, alias or mixture")
     name = name.strip()
     if name[:5].lower() == "flue@":
-        from . import burn  # noqa: F401  (registers the flue-gas name resolver on import)
+        from . import flue
+        flue.register()
     for resolve in RESOLVERS:
         s = resolve(name, data, source)
         if s is not None:
@@ -68,12 +69,11 @@ def substance(name: str, *, source: str | None = None, data=()) -> Substance:
                       id=m["id"], name=m.get("name", m["id"]))
         return sub
     if composition.looks_like(name):
-        from .burn import is_oxidant_base
+        from .oxidants import humid_air_substance, is_oxidant_base
         head, comma, _ = name.partition(",")
         if comma and "=" not in head and is_oxidant_base(head):
-            raise NameLookupError(f"{name!r} is an oxidant ({head.strip()} with conditions) for combust --oxidant "
-                                  f"and the oxidant part of flue@ names, not a substance; write a mixture as "
-                                  f"NAME=fraction pairs, e.g. N2=0.77,O2=0.21,H2O=0.02")
+            # humid, enriched or tempered air (air,rh=60%,T=15C): the text combust --oxidant reads
+            return humid_air_substance(name, data=data, source=source)
         c = composition.parse(name, "mixture")
         return mixture(c.fractions, basis=c.basis, source=source, data=data, id=name)
     rec = library(tuple(data)).record(name, source=source)
@@ -104,4 +104,5 @@ def mixture(components: dict, basis: str = "mole", *, source: str | None = None,
         except NameLookupError as e:
             raise NameLookupError(f"mixture component: {e}") from None
         parts.append((rec, v))
-    return mixture_substance(parts, basis, id=id, name=name)
+    from .saturation import with_dew_point
+    return with_dew_point(mixture_substance(parts, basis, id=id, name=name))

@@ -14,7 +14,7 @@ import importlib.util
 import sys
 
 from . import __version__
-from .errors import TablegenError
+from .errors import TablegenError, Terminated
 
 #: (command, module, one-line summary) in the order --help lists them.
 COMMANDS = [
@@ -128,8 +128,38 @@ def _join_negative_values(argv: list[str]) -> list[str]:
     return out
 
 
+def _on_signal(signum, frame):
+    raise Terminated(signum)
+
+
+def _catch_termination() -> dict:
+    """SIGTERM and SIGHUP raise Terminated, so a run cleans up as after Ctrl-C (main thread only)."""
+    import signal
+    import threading
+    saved = {}
+    if threading.current_thread() is not threading.main_thread():
+        return saved
+    for name in ("SIGTERM", "SIGHUP"):
+        sig = getattr(signal, name, None)
+        if sig is not None:
+            saved[sig] = signal.signal(sig, _on_signal)
+    return saved
+
+
+def _restore(saved: dict) -> None:
+    import signal
+    for sig, handler in saved.items():
+        signal.signal(sig, handler)
+
+
 def main(argv=None) -> int:
+    from . import outfiles
+    from .commands import common
     argv = _join_negative_values(list(sys.argv[1:] if argv is None else argv))
+    saved = _catch_termination()
+    common.hold_notices()
+    outfiles.WRITTEN.clear()
+    ok = False
     try:
         parser = make_parser(_selected(argv))
         args = parser.parse_args(argv)
@@ -141,16 +171,29 @@ def main(argv=None) -> int:
                 setattr(args, key, getattr(args, "top_" + key))
         args.data = tuple(args.data or ())
         args.quiet = bool(args.quiet)
-        return int(args._run(args) or 0)
+        from .data.library import take_fallbacks
+        take_fallbacks()
+        status = int(args._run(args) or 0)
+        ok = True
+        if not args.quiet:
+            for note in take_fallbacks():
+                print(f"note: {note}", file=sys.stderr)
+        return status
     except TablegenError as e:
         print(f"tablegen: {e}", file=sys.stderr)
         return e.exit_status
-    except KeyboardInterrupt:
-        print("tablegen: interrupted; files being written were left under temporary names and removed",
-              file=sys.stderr)
-        return 130
+    except (KeyboardInterrupt, Terminated) as e:
+        word = "terminated" if isinstance(e, Terminated) else "interrupted"
+        done = outfiles.WRITTEN
+        left = (f"{len(done)} file{'s' if len(done) > 1 else ''} had been written (first: {done[0]})"
+                if done else "no file was written")
+        print(f"tablegen: {word}; {left}", file=sys.stderr)
+        return e.exit_status if isinstance(e, Terminated) else 130
     except BrokenPipeError:
         return 0
+    finally:
+        common.release_notices(ok)
+        _restore(saved)
 
 
 if __name__ == "__main__":  # pragma: no cover

@@ -48,6 +48,9 @@ from .thermo.substance import R_MOLAR
 from .units import Unit, unit as _unit
 
 COMMENT = "#"
+#: Largest reference table read: rows (a book table has at most 20 000) and bytes.
+MAX_REFERENCE_ROWS = 20000
+MAX_REFERENCE_BYTES = 8 << 20
 
 
 # ---------------------------------------------------------------- reading
@@ -121,7 +124,7 @@ def _quantum(text: str) -> float:
     mant, exp = m.group(1), m.group(2)
     decimals = len(mant.split(".", 1)[1]) if "." in mant else 0
     e = int(exp[1:]) if exp else 0
-    return 10.0 ** (e - decimals)
+    return 10.0 ** min(max(e - decimals, -400), 300)     # the cell is finite, so its exponent is too
 
 
 def read_reference(path) -> Reference:
@@ -141,6 +144,14 @@ def read_reference(path) -> Reference:
     """
     p = Path(path)
     name = str(path)
+    try:
+        size = p.stat().st_size
+    except OSError:
+        size = 0                       # the read below says what is wrong
+    if size > MAX_REFERENCE_BYTES:
+        raise TablegenError(f"{name}: {size} bytes; a reference table may have at most "
+                            f"{MAX_REFERENCE_BYTES} bytes ({MAX_REFERENCE_BYTES >> 20} MiB) and "
+                            f"{MAX_REFERENCE_ROWS} rows")
     try:
         raw = p.read_bytes()
     except FileNotFoundError:
@@ -178,6 +189,9 @@ def read_reference(path) -> Reference:
         else:
             cells = s.split()
         rows.append((i, [c.strip() for c in cells]))
+        if len(rows) > MAX_REFERENCE_ROWS:
+            raise TablegenError(f"{name}:{i}: more than {MAX_REFERENCE_ROWS} data rows; a reference table "
+                                f"may have at most {MAX_REFERENCE_ROWS} rows (split it and compare each part)")
     if header is None:
         raise TablegenError(f"{name}: no header line; the first line that is not a '#' comment must name "
                             f"each column as key [unit], e.g. T [K],cp [kJ/(kg K)]")
@@ -238,6 +252,9 @@ def read_reference(path) -> Reference:
             if not _NUMBER.match(c):
                 raise TablegenError(f"{name}:{line}: cell {c!r} in column {keys[j]!r} is not a number; "
                                     f"write plain decimal numbers (an empty cell or '-' marks a gap)")
+            if not math.isfinite(float(c)):
+                raise TablegenError(f"{name}:{line}: cell {c!r} in column {keys[j]!r} is beyond the range "
+                                    f"of a double (about 1.8e308); write a finite number")
             cells_by_col[j].append(c)
 
     lines = tuple(r[0] for r in rows)

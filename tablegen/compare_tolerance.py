@@ -26,6 +26,10 @@ from .units import unit
 #: any disagreement between evaluations of the same gas (docs/compare.md), so a wider
 #: one would pass a table with a wrong unit or a wrong gas (common practice).
 WIDE_REL = 0.20
+#: Hard limits, even for a wide tolerance: 100 % relative; 1e12 in SI units absolute
+#: (beyond any property value a table holds, so every bound and its plot stay finite).
+MAX_RELATIVE_PERCENT = 100.0
+MAX_ABSOLUTE_SI = 1e12
 
 
 @dataclass(frozen=True, slots=True)
@@ -126,6 +130,8 @@ def parse_tolerance(text: str, ref_units: dict, flag: str = "--tolerance") -> tu
         if pct:
             if sym or seen_rel:
                 raise TablegenError(f"{flag} {text!r}: write one relative part, e.g. {key}=0.1%")
+            if v > MAX_RELATIVE_PERCENT:
+                raise TablegenError(f"{flag} {text!r}: a relative tolerance is at most {MAX_RELATIVE_PERCENT:g} %")
             rel, seen_rel = v / 100.0, True
             continue
         if seen_abs:
@@ -136,6 +142,9 @@ def parse_tolerance(text: str, ref_units: dict, flag: str = "--tolerance") -> tu
         except UnitError as e:
             raise TablegenError(f"{flag} {text!r}: {e}") from None
         abs_si, seen_abs = v * u.factor, True
+        if not abs_si <= MAX_ABSOLUTE_SI:
+            raise TablegenError(f"{flag} {text!r}: an absolute tolerance is at most "
+                                f"{MAX_ABSOLUTE_SI / u.factor:.3g} {u.symbol} ({MAX_ABSOLUTE_SI:g} in SI units)")
     return key, Tolerance(rel, abs_si, val, "--tolerance")
 
 

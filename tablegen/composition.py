@@ -56,12 +56,19 @@ class Composition:
     basis : "mole" or "mass"
     percent : whether the amounts were given in %
     text : the text as typed, stripped
+    uncertainty : name -> expanded uncertainty U (k = 2) of its fraction, for the
+        parts written ``NAME=amount±U`` (only where the reader allows it)
     """
 
     fractions: dict
     basis: str
     percent: bool
     text: str
+    uncertainty: dict = None
+
+    def __post_init__(self):
+        if self.uncertainty is None:
+            object.__setattr__(self, "uncertainty", {})
 
 
 def looks_like(text: str) -> bool:
@@ -70,13 +77,20 @@ def looks_like(text: str) -> bool:
     return "=" in t or colon_form_fix(t) is not None
 
 
-def parse(text: str, what: str = "composition") -> Composition:
+#: Separators of a value and its expanded uncertainty: CH4=87%±0.5% (or the ASCII +-).
+PLUS_MINUS = ("±", "+-")
+
+
+def parse(text: str, what: str = "composition", *, uncertainty: bool = False) -> Composition:
     """Read ``NAME=fraction,...`` or ``NAME=percent%,...``, optionally after ``basis=mass,``.
 
     Parameters
     ----------
     text : the composition text
     what : what the text is, for messages ("fuel", "mixture", "oxidant")
+    uncertainty : accept ``NAME=amount±U``: the expanded uncertainty (k = 2) of that
+        part, written as the amount is (``CH4=87%±0.5%``, ``CH4=0.87±0.005``); the
+        ASCII ``+-`` is read as ``±``. Without it, a ``±`` is refused.
 
     Returns
     -------
@@ -112,6 +126,7 @@ def parse(text: str, what: str = "composition") -> Composition:
     for k, _ in pairs:
         if k.lower() == BASIS_KEY:
             raise TablegenError(f"{what} {t!r}: the basis comes first, e.g. basis=mass,CH4=0.8,N2=0.2")
+    pairs, unc_text = _split_uncertainty(pairs, t, what, uncertainty)
     with_pct = [v.endswith("%") for _, v in pairs]
     if any(with_pct) and not all(with_pct):
         bare = next(k for (k, _), p in zip(pairs, with_pct) if not p)
@@ -122,6 +137,20 @@ def parse(text: str, what: str = "composition") -> Composition:
         if k in fr:
             raise TablegenError(f"{what} {t!r}: {k!r} is given twice")
         fr[k] = _amount(v[:-1] if percent else v, percent, k, t, what)
+    unc = {}
+    for k, u in unc_text.items():
+        if u.endswith("%") != percent:
+            a = dict(pairs)[k]
+            if percent:
+                form = f"{k}={a}±{u}%"
+            else:
+                try:
+                    form = f"{k}={a}±{float(u[:-1]) / 100:g}"
+                except ValueError:
+                    form = f"{k}={a}±0.005"
+            raise TablegenError(f"{what} {t!r}: the uncertainty of {k} is written as its amount is "
+                                f"({'with' if percent else 'without'} '%'); write {form}")
+        unc[k] = _amount(u[:-1] if percent else u, percent, f"the uncertainty of {k}", t, what)
     total = sum(fr.values())
     as_percent = ",".join(f"{k}={v}%" for k, v in pairs)
     if not percent and abs(total - 100.0) <= 100.0 * SUM_TOLERANCE:
@@ -133,7 +162,28 @@ def parse(text: str, what: str = "composition") -> Composition:
         hint = f" (percentages carry the sign: {as_percent})" if not percent and total > 1.5 else ""
         raise TablegenError(f"{what} {t!r}: the parts sum to {given}; they must sum to {want} "
                             f"within {SUM_TOLERANCE:g} (relative){hint}")
-    return Composition(fractions=fr, basis=basis, percent=percent, text=t)
+    return Composition(fractions=fr, basis=basis, percent=percent, text=t, uncertainty=unc)
+
+
+def _split_uncertainty(pairs, t: str, what: str, allowed: bool):
+    """[(name, '87%±0.5%')] -> [(name, '87%')], {name: '0.5%'}; ± refused unless allowed."""
+    out, unc = [], {}
+    for k, v in pairs:
+        sep = next((m for m in PLUS_MINUS if m in v), None)
+        if sep is None:
+            out.append((k, v))
+            continue
+        if not allowed:
+            raise TablegenError(f"{what} {t!r}: '±' (an uncertainty) is read only in fuel analyses "
+                                f"(combust --fuel, a spec's fuel, flue@ names); remove ±{v.split(sep, 1)[1].strip()} "
+                                f"from {k} (a mixture in a spec states it as fraction_uncertainty)")
+        a, _, u = (x.strip() for x in v.partition(sep))
+        if not a or not u or any(m in u for m in PLUS_MINUS):
+            raise TablegenError(f"{what} {t!r}: {k}={v} is not NAME=amount±uncertainty; write e.g. "
+                                f"CH4=87%±0.5% or CH4=0.87±0.005")
+        out.append((k, a))
+        unc[k] = u
+    return out, unc
 
 
 def split_pairs(text: str, what: str = "composition") -> list[tuple[str, str]]:

@@ -34,3 +34,31 @@ class NameLookupError(TablegenError):
 
 class OutputExistsError(TablegenError):
     """A file to be written exists and --force was not given."""
+
+
+class OutputError(TablegenError):
+    """The operating system refused a write: no space, read-only, no permission, bad path."""
+
+
+class OutputBusyError(TablegenError):
+    """Another tablegen run is writing the same output folder."""
+
+
+class Interrupted(TablegenError):
+    """A run stopped by Ctrl-C or a termination signal; the text says what was left."""
+
+    def __init__(self, text: str, exit_status: int = 130):
+        super().__init__(text)
+        self.exit_status = exit_status
+
+
+class InputError(TablegenError, ValueError):
+    """A Python API argument of the wrong type, shape or value (also a ValueError)."""
+
+
+class Terminated(BaseException):
+    """Raised by the command line's SIGTERM/SIGHUP handler, so that clean-up runs."""
+
+    def __init__(self, signum: int = 15):
+        super().__init__(signum)
+        self.exit_status = 128 + signum

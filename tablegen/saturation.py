@@ -21,9 +21,11 @@ All functions take and return SI units and broadcast over numpy arrays.
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 import numpy as np
 
-from .errors import RangeError
+from .errors import RangeError, TablegenError
 
 #: Critical point of water (IAPWS R7-97 and Wagner & Pruss 1993): K, Pa, kg/m³.
 T_CRIT = 647.096
@@ -144,3 +146,66 @@ def h_vap_J_per_kg(T_K):
     rho_liq = RHO_CRIT * (1.0 + _wp_sum(tau, _WP_B, _WP_B_EXP))
     rho_vap = RHO_CRIT * np.exp(_wp_sum(tau, _WP_C, _WP_C_EXP))
     return T * dp_dT * (1.0 / rho_vap - 1.0 / rho_liq)
+
+
+#: Pressure of the dew point when none is stated: 101.325 kPa (1 atm).
+P_DEW_DEFAULT = 101325.0
+
+
+def water_dew_point_K(y_H2O: float, P_Pa: float = P_DEW_DEFAULT) -> float | None:
+    """Water dew point of a gas holding mole fraction ``y_H2O`` of water vapour at ``P_Pa``, K.
+
+    The saturation temperature (IAPWS-IF97 eq. 31) at the water partial pressure
+    y P (ideal gas, Dalton; the enhancement factor of real humid air, about 1.004
+    at 1 atm, is neglected: common practice for flue gas). None when the partial
+    pressure lies below 611.213 Pa, where water would deposit as ice (a frost
+    point, below 0 °C, not computed), or when there is no water.
+
+    Raises
+    ------
+    RangeError when the partial pressure exceeds the critical pressure.
+    """
+    pw = float(y_H2O) * float(P_Pa)
+    if not pw >= P_LOW_IF97:
+        return None
+    return float(T_sat_K(pw))
+
+
+def dew_point_text(T_K: float | None, P_Pa: float) -> str:
+    """'330.52 K (57.37 °C) at 101.325 kPa', or the frost-point sentence when T_K is None."""
+    if T_K is None:
+        return (f"below 0 °C at {P_Pa / 1000:g} kPa (a frost point, not computed: the water partial "
+                f"pressure is below 611.2 Pa)")
+    return f"{T_K:.2f} K ({T_K - 273.15:.2f} °C) at {P_Pa / 1000:g} kPa"
+
+
+def with_dew_point(substance, P_Pa: float = P_DEW_DEFAULT):
+    """The substance with its water dew point at ``P_Pa`` attached (once, for every document).
+
+    Only mixtures holding water vapour get one: for them the dew point is where
+    the tabulated ideal-gas values stop describing the gas. A pure species'
+    tables are of the ideal gas at P° (a standard state) and carry none.
+    """
+    P = float(P_Pa)
+    if not (P > 0 and np.isfinite(P)):
+        raise TablegenError(f"pressure of the dew point {P_Pa!r} Pa must be a positive number")
+    y = next((c.mole_fraction for c in substance.components if c.id == "H2O"), 0.0)
+    if substance.kind != "mixture" or not 0.0 < y < 1.0:
+        return substance
+    return replace(substance, dew_point_K=water_dew_point_K(y, P), dew_point_P_Pa=P, _cache={})
+
+
+def dew_point_at(substance, P_Pa: float | None = None) -> tuple[float | None, float | None]:
+    """(dew point K, its pressure Pa) of a substance: its own figure at its stated pressure, or
+    the dew point of the same water content at ``P_Pa`` (a state at another pressure).
+
+    (None, None) for a substance without water vapour; (None, P) when the dew
+    point lies below 0 °C.
+    """
+    P0 = getattr(substance, "dew_point_P_Pa", None)
+    if P0 is None:
+        return None, None
+    if P_Pa is None or abs(float(P_Pa) - P0) <= 1e-9 * P0:
+        return substance.dew_point_K, P0
+    y = next(c.mole_fraction for c in substance.components if c.id == "H2O")
+    return water_dew_point_K(y, float(P_Pa)), float(P_Pa)

@@ -14,7 +14,6 @@ import datetime as _dt
 import difflib
 import math
 import re
-import tomllib
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 
@@ -22,6 +21,8 @@ import numpy as np
 
 from .composition import looks_like as looks_like_composition
 from .errors import SpecError, TablegenError
+from .texts import bad_character, one_line_rule
+from .units import P_ATM
 
 #: Largest number of rows one table may have. A printed table of 20 000 rows
 #: is already some 400 A4 pages; more is a mistake in the grid, not a book.
@@ -88,8 +89,15 @@ class Document:
     subtitle: str
     max_pressure_Pa: float = 1e5      # largest pressure the values are used at (ideal-gas term of U)
     uncertainty_columns: bool = False  # U_<key> columns in the CSV files
+    validity_columns: bool = False     # Z and real-gas departure columns in the CSV files
     csv_comments: bool = False         # "#" comment lines above the CSV header (off: plain CSV)
     chart_placement: str = "after-table"  # or "grouped": all chart pages after the last table
+    barometer_Pa: float | None = None  # barometric pressure of gauge values (None: not given, 1.01325 bar)
+
+    @property
+    def barometer(self) -> float:
+        """Barometric pressure that the spec's gauge pressures are read against, Pa."""
+        return P_ATM if self.barometer_Pa is None else self.barometer_Pa
 
 
 @dataclass(frozen=True, slots=True)
@@ -208,8 +216,9 @@ def _text(raw, key, where, default="", required=False, max_len=200):
         _fail(_path(where, key), "must not be empty")
     if len(v) > max_len:
         _fail(_path(where, key), f"is {len(v)} characters long; at most {max_len} allowed")
-    if any(ord(c) < 32 for c in v):
-        _fail(_path(where, key), "must be one line of text without control characters")
+    bad = bad_character(v)
+    if bad:
+        _fail(_path(where, key), f"{one_line_rule()} (it holds {bad})")
     return v
 
 
@@ -235,6 +244,8 @@ def _temp_unit(v: str, where):
     m = _NUM.match(v)
     if not m or not m.group(2):
         _fail(where, f"{v!r} is not a temperature with a unit; write e.g. \"300 K\" or \"25 °C\"")
+    if not math.isfinite(float(m.group(1))):
+        _fail(where, f"{v!r} is not a finite number; write e.g. \"300 K\"")
     try:
         u = unit(m.group(2), "temperature")
     except TablegenError as e:
@@ -242,17 +253,31 @@ def _temp_unit(v: str, where):
     return float(m.group(1)), u
 
 
-def _pressure(v, where) -> float:
-    from .units import quantity
+def _pressure(v, where, barometer_Pa: float | None = None) -> float:
+    """An absolute pressure; a gauge one ('10 barg') only where ``barometer_Pa`` is given."""
+    from .units import pressure_Pa
     if isinstance(v, bool) or not isinstance(v, str):
         _fail(where, f"must be a pressure with a unit as a string, e.g. \"1 bar\", not {_typename(v)}")
     try:
-        P = quantity(v, "pressure", "pressure")
+        P = pressure_Pa(v, "pressure", barometer_Pa=barometer_Pa)
     except TablegenError as e:
         _fail(where, str(e))
     if not (math.isfinite(P) and P > 0):
         _fail(where, f"{v!r} must be above 0 Pa (absolute pressure)")
     return P
+
+
+def _barometer(v, where) -> float:
+    """document.barometer: the barometric pressure of the spec's gauge values (default 1.01325 bar)."""
+    from .units import barometer_Pa
+    if v is None:
+        return P_ATM
+    if isinstance(v, bool) or not isinstance(v, str):
+        _fail(where, f"must be a pressure with a unit as a string, e.g. \"0.95 bar\", not {_typename(v)}")
+    try:
+        return barometer_Pa(v, "barometer")
+    except TablegenError as e:
+        _fail(where, str(e))
 
 
 def _positive_number(raw, key, where, default):
@@ -265,8 +290,8 @@ def _positive_number(raw, key, where, default):
 # ---------------------------------------------------------------- document
 DOCUMENT_KEYS = ("title", "subtitle", "number", "revision", "issue_date", "organisation",
                  "prepared_by", "checked_by", "approved_by", "paper", "orientation", "units",
-                 "basis", "reference", "source", "max_pressure", "uncertainty_columns", "chart_placement",
-                 "csv_comments")
+                 "basis", "reference", "source", "max_pressure", "uncertainty_columns", "validity_columns",
+                 "chart_placement", "csv_comments", "barometer")
 
 
 def _document(raw, where="document") -> Document:
@@ -285,6 +310,7 @@ def _document(raw, where="document") -> Document:
             _fail(f"{where}.issue_date", f"{date!r} is not a date; write YYYY-MM-DD, e.g. 2026-11-30")
     else:
         _fail(f"{where}.issue_date", f"must be a date YYYY-MM-DD, not {_typename(date)}")
+    baro = _barometer(raw.get("barometer"), f"{where}.barometer")
     return Document(
         title=_text(raw, "title", where, required=True),
         subtitle=_text(raw, "subtitle", where),
@@ -301,10 +327,12 @@ def _document(raw, where="document") -> Document:
         basis=_choice(raw, "basis", BASES, where, "mass"),
         reference=_reference(raw.get("reference", "normal"), f"{where}.reference"),
         source=_get(raw, "source", str, where, None),
-        max_pressure_Pa=_pressure(raw.get("max_pressure", "1 bar"), f"{where}.max_pressure"),
+        max_pressure_Pa=_pressure(raw.get("max_pressure", "1 bar"), f"{where}.max_pressure", baro),
         uncertainty_columns=_get(raw, "uncertainty_columns", bool, where, False),
+        validity_columns=_get(raw, "validity_columns", bool, where, False),
         csv_comments=_get(raw, "csv_comments", bool, where, False),
         chart_placement=_choice(raw, "chart_placement", ("after-table", "grouped"), where, "after-table"),
+        barometer_Pa=None if "barometer" not in raw else baro,
     )
 
 
@@ -417,10 +445,10 @@ def _substances(raw, where, source, data, comp_u=None) -> dict:
 
 def _combustion(raw, where, *, source=None, data=()):
     """Combustion products of a fuel (or a measured flue-gas analysis), by tablegen.burn."""
-    from . import burn
+    from . import flue
     if not isinstance(raw, dict):
         _fail(where, f"must be a table, not {_typename(raw)}")
-    return burn.substance_from_spec(raw, where, source=source, data=data)
+    return flue.substance_from_spec(raw, where, source=source, data=data)
 
 
 # ---------------------------------------------------------------- grids
@@ -783,6 +811,10 @@ def _table(raw, where, defaults, doc, subs, source, data) -> TableSpec:
         sub.check_T(allT, extrapolate)
     except TablegenError as e:
         _fail(f"{where}.grid", f"{e}")
+    try:                 # finite results only: an anchor or an extrapolation may not overflow
+        sub.properties(allT, extrapolate=extrapolate, molar_only=True)
+    except TablegenError as e:
+        _fail(where, f"{e}")
     # T decimals: fewest that print the grid exactly, unless given
     fixed = []
     for c in cols:
@@ -800,7 +832,7 @@ def _table(raw, where, defaults, doc, subs, source, data) -> TableSpec:
             from .book.charts import parse_charts
         except ImportError:
             _fail(f"{where}.charts", "charts are not available in this build of tablegen")
-        charts = tuple(parse_charts(raw["charts"], f"{where}.charts", units=system))
+        charts = tuple(parse_charts(raw["charts"], f"{where}.charts", units=system, barometer_Pa=doc.barometer))
     return TableSpec(name=name, title=title, substance_ref=ref, substance=sub, T_K=allT, extra=flag,
                      extra_rows=tuple(extras), grid=grid, columns=tuple(fixed), units=system, basis=basis,
                      temperature_units=t_units, T_mean_ref_K=float(T_mean), extrapolate=bool(extrapolate),
@@ -840,7 +872,7 @@ def load_editions(path, *, source: str | None = None, data=(), editions=None,
     """
     p = Path(path)
     raw = read_toml(p, missing="spec file not found")
-    return parse_editions(raw, name=p.stem, base=p.parent, source=source, data=data, editions=editions,
+    return parse_editions(raw, name=book_name(p), base=p.parent, source=source, data=data, editions=editions,
                           paper=paper)
 
 
@@ -888,20 +920,30 @@ def parse_editions(raw: dict, *, name: str, base: Path | None = None, source: st
     return tuple(o for o in out if o.edition.name in picked)
 
 
+_BOOK_NAME_BAD = set('/\\:*?"<>|')
+
+
+def book_name(path: Path) -> str:
+    """The book's name, the spec file's name without .toml; it names the files and the default folder."""
+    name = path.stem
+    if not name or not name[0].isalnum() or len(name) > 100 or bad_character(name) or \
+            _BOOK_NAME_BAD & set(name):
+        raise SpecError(f"{path.name}: the spec file's name gives the book name {name!r}, which names its "
+                        f"files and output/{name}/; allowed: up to 100 characters, starting with a letter "
+                        f"or digit, without control characters or / \\ : * ? \" < > |")
+    return name
+
+
 def read_toml(path, label: str = "", missing: str = "no such file") -> dict:
-    """A TOML file as a dict, or a SpecError naming the file (a byte-order mark is fine)."""
+    """A TOML file as a dict, or a SpecError naming the file (a byte-order mark is fine).
+
+    Its size and nesting are bounded before parsing (tablegen.tomlread).
+    """
+    from . import tomlread
     p = Path(path)
     name = f"{label} {p}" if label else str(p)
-    try:
-        text = p.read_text(encoding="utf-8-sig")
-    except FileNotFoundError:
-        raise SpecError(f"{name}: {missing}") from None
-    except (OSError, UnicodeDecodeError) as e:
-        raise SpecError(f"{name}: cannot be read ({e}); it must be a UTF-8 TOML file") from None
-    try:
-        return tomllib.loads(text)
-    except tomllib.TOMLDecodeError as e:
-        raise SpecError(f"{p.name}: not valid TOML ({e})") from None
+    text = tomlread.read_text(p, name, SpecError, missing=missing)
+    return tomlread.loads(text, p.name, SpecError)
 
 
 def parse(raw: dict, *, name: str, base: Path | None = None, source: str | None = None,
@@ -975,6 +1017,28 @@ def parse(raw: dict, *, name: str, base: Path | None = None, source: str | None 
     return spec
 
 
+#: Summary entries of a combustion that state what it was computed from (the fingerprint covers them).
+COMBUSTION_INPUTS = ("fuel", "oxidant", "amount_given", "T_fuel_K", "T_fuel_source", "T_oxidant_K",
+                     "T_oxidant_source", "flue_pressure_Pa", "combustion_reference_T_K", "metering_T_K",
+                     "metering_P_Pa")
+
+
+def _made_from(sub) -> dict:
+    """What a substance was made from, for the normalised spec: the inputs of its combustion,
+    or the conditions of a humid air; {} for others."""
+    from .burn import CombustionResult
+    from .oxidants import Oxidant
+    o = getattr(sub, "origin", None)
+    out = {}
+    if isinstance(o, CombustionResult):
+        out["combustion"] = {k: o.summary[k] for k in COMBUSTION_INPUTS if k in o.summary}
+    elif isinstance(o, Oxidant):
+        out["humid_air"] = o.describe()
+    if getattr(sub, "dew_point_P_Pa", None) is not None:
+        out["dew_point"] = {"T_K": sub.dew_point_K, "P_Pa": sub.dew_point_P_Pa}
+    return out
+
+
 def normalise(spec: BookSpec, source) -> dict:
     """The spec as plain JSON-ready data with every default applied, SI values.
 
@@ -984,8 +1048,11 @@ def normalise(spec: BookSpec, source) -> dict:
     doc = {k: getattr(d, k) for k in ("title", "subtitle", "number", "revision", "issue_date",
                                        "organisation", "prepared_by", "checked_by", "approved_by",
                                        "paper", "orientation", "units", "basis", "max_pressure_Pa",
-                                       "uncertainty_columns", "chart_placement", "csv_comments")}
+                                       "uncertainty_columns", "validity_columns", "chart_placement",
+                                       "csv_comments")}
     doc["reference"] = {"name": d.reference.name, "T_K": d.reference.T_K, "P_Pa": d.reference.P_Pa}
+    if d.barometer_Pa is not None:          # only where given, so older specs keep their fingerprint
+        doc["barometer_Pa"] = d.barometer_Pa
     doc["source"] = source
     tables = []
     for t in spec.tables:
@@ -1003,6 +1070,8 @@ def normalise(spec: BookSpec, source) -> dict:
             "anchor": {"T_K": s.anchor.T_K, "Pr": s.anchor.Pr, "vr": s.anchor.vr},
             "mean_cp_from_K": t.T_mean_ref_K, "extrapolate": t.extrapolate,
         })
+        if t.substance_ref not in spec.substances:
+            tables[-1].update(_made_from(s))
         if t.charts:
             from dataclasses import asdict, is_dataclass
             tables[-1]["charts"] = [asdict(c) if is_dataclass(c) else repr(c) for c in t.charts]
@@ -1010,6 +1079,9 @@ def normalise(spec: BookSpec, source) -> dict:
     for k, s in sorted(spec.substances.items()):
         subs[k] = {"id": s.id, "name": s.name, "kind": s.kind,
                    "mole_fractions": {c.id: c.mole_fraction for c in s.components}}
+        made = _made_from(s)
+        if made:
+            subs[k].update(made)
     for t in spec.tables:
         if t.composition_u is not None and t.substance_ref in subs:
             subs[t.substance_ref]["fraction_uncertainty"] = {"basis": t.composition_u[0],

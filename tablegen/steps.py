@@ -53,7 +53,6 @@ value.
 from __future__ import annotations
 
 import math
-import tomllib
 from dataclasses import dataclass, field
 from functools import lru_cache
 from types import MappingProxyType
@@ -64,7 +63,7 @@ from .errors import RangeError, TablegenError
 from .thermo.substance import T_REF, Substance
 
 __all__ = ["process", "ProcessResult", "Estimate", "Incompressible", "incompressible",
-           "shipped_incompressibles", "parse_incompressible", "STEPS"]
+           "shipped_incompressibles", "parse_incompressible", "STEPS", "MIXING_NOTE"]
 
 #: step -> (parameters allowed, description)
 STEPS = MappingProxyType({
@@ -74,6 +73,10 @@ STEPS = MappingProxyType({
     "heat_v": (("T2_K", "q_J_per_kg", "T_boundary_K"), "heating or cooling at constant volume (closed, rigid)"),
     "throttle": (("P2_Pa",), "throttling (steady flow, adiabatic, no work)"),
 })
+
+#: True of every mixture, so not among a result's notes: the commands show it on request (--verbose).
+MIXING_NOTE = ("mixture s° includes the ideal mixing term -R Σ y ln y "
+               "(it cancels in s2 - s1 at fixed composition)")
 
 #: Relative tolerance of the fixed-point iteration of the power law with k at the mean temperature.
 MEAN_K_RTOL = 1e-12
@@ -299,10 +302,8 @@ def _norm(name: str) -> str:
 
 
 def _read_entries(path) -> dict:
-    try:
-        raw = tomllib.loads(path.read_text(encoding="utf-8"))
-    except (OSError, tomllib.TOMLDecodeError, UnicodeDecodeError) as e:
-        raise TablegenError(f"{path}: cannot read incompressible entries ({e})") from None
+    from . import tomlread
+    raw = tomlread.read(path, str(path))
     out = {}
     for i, e in enumerate(raw.get("incompressible", [])):
         where = f"{path}: incompressible[{i}]"
@@ -576,8 +577,6 @@ def _gas(sub: Substance, step, T1, P1, params):
     ds = p2["s"] - s1
     s_gen, s_gen_basis = _s_gen(step, ds, q, params, T1, T2)
     comp = _gas_comparison(sub, step, T1, P1, T2, P2, ds, T2s, w, q, eta, params, p1, p2)
-    if sub.kind == "mixture":
-        notes.append("mixture s° includes the ideal mixing term -R Σ y ln y (it cancels in s2 - s1 at fixed composition)")
     return dict(kind="ideal gas", basis=basis, M=sub.M, v1=v1, h1=h1, u1=u1, s1=s1,
                 T2_K=np.asarray(T2, float), P2_Pa=np.asarray(P2, float) * np.ones_like(T2),
                 v2=p2["v"], h2=p2["h"], u2=p2["u"], s2=p2["s"], T2s_K=T2s, h2s=h2s, eta=eta,

@@ -150,15 +150,14 @@ def text_runs(page) -> list[Run]:
 NUM = re.compile(r"^\u2212?\d+(\.\d+)?(e[+\u2212]\d+)?$")
 
 
-def parse_table_pages(reader):
+def parse_table_pages(reader, texts=None):
     """Table pages: (table number, header pairs, rows of tokens, marks, text) per page, None
-    for other pages.
+    for other pages. ``texts``: the pages' extracted text, when the caller has it already.
 
     A table page has its title line ("Table N. ...") and a column header starting with T;
     on small paper the heading lines (substance, datum) are on the first page of a table only."""
     pages = []
-    for page in reader.pages:
-        text = page.extract_text()
+    for text in (texts if texts is not None else (p.extract_text() for p in reader.pages)):
         lines = [ln.strip() for ln in text.split("\n")]
         title = next((j for j, ln in enumerate(lines) if re.match(r"Table \d+\. ", ln)), None)
         start = next((j for j in range(title + 1, len(lines)) if lines[j] == "T"), None) if title is not None \
@@ -172,7 +171,7 @@ def parse_table_pages(reader):
         while j < len(lines):
             toks = lines[j].split()
             mark = ""
-            if toks and toks[0] in ("*", "x", "*x"):
+            if toks and re.fullmatch(r"[*xc]+", toks[0]):     # row marks (how-to-read page)
                 mark, toks = toks[0], toks[1:]
             if toks and all(NUM.match(t) for t in toks) and len(toks) >= 2 and header:
                 rows.append(toks)

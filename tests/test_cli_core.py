@@ -29,8 +29,12 @@ def test_state_json_has_the_documented_keys(capsys):
 
 
 def test_state_text_table(capsys):
-    code, out, _ = run(capsys, "state", "air", "--T", "77F,540R")
+    code, out, _ = run(capsys, "state", "air", "--T", "77F,540R", "--units", "SI", "--T-unit", "K")
     assert code == 0 and "kJ/(kg K)" in out and "298.15" in out and "300.00" in out
+    # typed in °F: the answer in °F with °R beside, and US customary units (77 °F = 536.67 °R, exact)
+    code, out, _ = run(capsys, "state", "air", "--T", "77F,540R")
+    assert code == 0 and "[°F]" in out and "[°R]" in out and "Btu/(lbm °R)" in out
+    assert "536.67" in out and "77.00" in out and "540.00" in out
 
 
 @pytest.mark.parametrize("argv,fragment", [

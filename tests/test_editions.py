@@ -87,7 +87,15 @@ def test_one_spec_builds_both_editions_into_one_folder(both):
     assert names == sorted(["redshank-desk.pdf", "redshank-desk.json", "redshank-pocket.pdf", "redshank-pocket.json",
                             "air.csv", "air.csv-metadata.json", "n2.csv", "n2.csv-metadata.json",
                             "air-pocket.csv", "air-pocket.csv-metadata.json", "n2-pocket.csv",
-                            "n2-pocket.csv-metadata.json"])
+                            "n2-pocket.csv-metadata.json", "tablegen-issue.sha256"])
+    # one set, one issue: the manifest lists the files of both editions and names each edition
+    manifest = (out / "tablegen-issue.sha256").read_text(encoding="utf-8")
+    listed = {ln.split("  ", 1)[1] for ln in manifest.splitlines() if not ln.startswith("#")}
+    assert listed == set(names) - {"tablegen-issue.sha256"}
+    assert "# edition desk: redshank-desk.pdf" in manifest and "# edition pocket: redshank-pocket.pdf" in manifest
+    for name in listed:
+        digest = hashlib.sha256((out / name).read_bytes()).hexdigest()
+        assert f"{digest}  {name}" in manifest
     for e, m in metas.items():
         assert m["edition"]["name"] == e
         assert m["files"]["pdf"] == f"redshank-{e}.pdf"
@@ -163,9 +171,24 @@ def test_one_edition_alone_gives_the_same_bytes(both, tmp_path):
     assert cli.main(["build", str(spec), "--edition", "pocket", "--out", str(alone), "--quiet"]) == 0
     assert sorted(p.name for p in alone.iterdir()) == sorted(
         ["redshank-pocket.pdf", "redshank-pocket.json", "air-pocket.csv", "air-pocket.csv-metadata.json",
-         "n2-pocket.csv", "n2-pocket.csv-metadata.json"])
+         "n2-pocket.csv", "n2-pocket.csv-metadata.json", "tablegen-issue.sha256"])
     for p in alone.iterdir():
-        assert p.read_bytes() == (out / p.name).read_bytes(), p.name
+        if p.name != "tablegen-issue.sha256":         # the manifest lists this set only
+            assert p.read_bytes() == (out / p.name).read_bytes(), p.name
+
+
+def test_one_edition_into_the_folder_of_all_says_what_it_leaves_out(both, tmp_path, capsys):
+    import shutil
+    out, _ = both
+    folder = tmp_path / "issue"
+    shutil.copytree(out, folder)
+    spec = _write(tmp_path, SPEC)
+    assert cli.main(["build", str(spec), "--edition", "pocket", "--out", str(folder)]) == 2
+    assert "holds an earlier issue" in capsys.readouterr().err
+    assert cli.main(["build", str(spec), "--edition", "pocket", "--out", str(folder), "--force"]) == 0
+    err = capsys.readouterr().err
+    assert "held the desk edition too; this issue holds pocket only" in err
+    assert not (folder / "redshank-desk.pdf").exists() and (folder / "redshank-pocket.pdf").is_file()
 
 
 def test_editions_that_print_a_table_alike_share_its_csv(tmp_path):
@@ -212,7 +235,8 @@ def test_a_spec_without_editions_is_one_book_as_before(tmp_path):
     out = tmp_path / "o"
     assert cli.main(["build", str(_write(tmp_path, text)), "--out", str(out), "--quiet"]) == 0
     assert sorted(p.name for p in out.iterdir()) == sorted(
-        ["redshank.pdf", "redshank.json", "air.csv", "air.csv-metadata.json", "n2.csv", "n2.csv-metadata.json"])
+        ["redshank.pdf", "redshank.json", "air.csv", "air.csv-metadata.json", "n2.csv", "n2.csv-metadata.json",
+         "tablegen-issue.sha256"])
     m = json.loads((out / "redshank.json").read_text(encoding="utf-8"))
     assert m["edition"]["name"] == "" and m["edition"]["number"] == "RM-12"
     assert "editions" not in m["spec"]

@@ -270,3 +270,22 @@ def test_properties_of_a_few_keys_equal_the_full_call():
         mix.properties(T, keys=("s",))
     with pytest.raises(TablegenError, match="pressures for"):
         mix.properties(T, P=np.array([1e5, 2e5]))
+
+
+@pytest.mark.parametrize("n", [2, 3, 5000])
+def test_datum_and_anchor_values_are_exact_in_every_path(n):
+    # h at a sensible datum's temperature is the datum value and Pr, vr at the anchor
+    # temperature the anchor values, by definition (not the difference of two
+    # evaluations that two paths round an ulp apart)
+    sub = tablegen.substance("CO2").with_options(datum=Datum("sensible", 273.15, 0.0),
+                                                 anchor=Anchor(T_K=300.0, Pr=2.5, vr=0.4))
+    T = np.linspace(250.0, 2000.0, n)
+    T[0] = 273.15
+    T[-1] = 300.0
+    p = sub.properties(T)
+    assert p["h"][0] == 0.0 and p["h_molar"][0] == 0.0
+    assert p["Pr"][-1] == 2.5 and p["vr"][-1] == 0.4
+    one = sub.properties(300.0)
+    assert float(one["Pr"]) == 2.5 and float(one["vr"]) == 0.4
+    assert float(sub.properties(273.15)["h"]) == 0.0 and sub.cp_h_s0(273.15)[1] == 0.0
+    assert float(tablegen.substance("air").properties(298.15)["dh298_molar"]) == 0.0

@@ -26,15 +26,17 @@ def test_demo_book_has_charts_with_an_overlay(demo):
 def test_combustion_cautions_reach_the_book(demo):
     meta = json.loads((demo / "kestrel-fen-desk.json").read_text())
     joined = " ".join(meta["cautions"])
-    for phrase in ("toxic and asphyxiant", "acid dew point", "licensed engineering practice"):
+    for phrase in ("toxic and asphyxiant", "licensed engineering practice"):
         assert phrase in joined
+    assert "acid" not in joined          # the demo fuel holds no sulfur
     text = "\n".join(p.extract_text() for p in PdfReader(demo / "kestrel-fen-desk.pdf").pages[:8])
     assert "asphyxiant" in text
 
 
 def test_demo_flue_gas_is_the_combustion_result():
     # the book's flue gas is the products substance of the fuel at 15 % excess air
-    r = tablegen.combustion("CH4=0.86,C2H6=0.025,C3H8=0.005,CO2=0.075,N2=0.035", excess_air=15)
+    r = tablegen.combustion("CH4=86%±0.4%,C2H6=2.5%±0.1%,C3H8=0.5%±0.05%,CO2=7.5%±0.3%,N2=3.5%±0.2%",
+                            "air,rh=70%,T=15C", excess_air=15)
     assert r.summary["lambda"] == pytest.approx(1.15)
     assert r.products.cautions and "asphyxiant" in " ".join(r.products.cautions)
 
@@ -89,6 +91,50 @@ grid = { segments = [ { start = "300 K", stop = "1500 K", step = "100 K" } ] }
     i = head.index("U_cp [kJ/(kg K)]")
     got = np.array([float(r.split(",")[i]) for r in lines[1:]])
     np.testing.assert_allclose(got, b.U("cp") / 1e3, rtol=1e-12)
+
+
+def test_csv_validity_columns_give_z_and_departure_bounds_against_coolprop(tmp_path):
+    """document.validity_columns: the CSV gets Z and the real-gas departure bound of each
+    column at max_pressure. Checked against CoolProp's reference equation for nitrogen
+    (Span et al. 2000) at 10 bar: Z within the stated uncertainty of the second-virial
+    estimate, and the real cp - cp0 inside the stated bound; U itself does not grow."""
+    import numpy as np
+    import CoolProp.CoolProp as CP
+    from tablegen import uncertainty as unc
+    src = tmp_path / "v.toml"
+    src.write_text("""[document]
+title = "Validity columns"
+number = "T-2"
+revision = "A"
+issue_date = 2026-12-01
+max_pressure = "10 bar"
+validity_columns = true
+uncertainty_columns = true
+
+[[tables]]
+name = "n2"
+substance = "N2"
+columns = ["T", "cp", "h"]
+grid = { segments = [ { start = "300 K", stop = "1000 K", step = "100 K" } ] }
+""")
+    assert main(["build", str(src), "--out", str(tmp_path / "out"), "--quiet"]) == 0
+    lines = (tmp_path / "out" / "n2.csv").read_text().splitlines()
+    head = lines[0].split(",")
+    rows = np.array([[float(x) for x in ln.split(",")[:-1]] for ln in lines[1:]])
+    col = {h: rows[:, i] for i, h in enumerate(head[:-1])}
+    T = col["T [K]"]
+    est = unc.virial_mixture(__import__("tablegen").substance("N2").components, T)
+    U_Z = est.U_B * 1e6 / (unc.R_MOLAR * T)
+    Z_ref = CP.PropsSI("Z", "T", T, "P", np.full_like(T, 1e6), "Nitrogen")
+    assert np.all(np.abs(col["Z [-]"] - Z_ref) <= U_Z)
+    cp_real = CP.PropsSI("Cpmass", "T", T, "P", np.full_like(T, 1e6), "Nitrogen") / 1e3
+    cp0 = CP.PropsSI("Cp0mass", "T", T, "P", np.full_like(T, 1e6), "Nitrogen") / 1e3
+    assert np.all(np.abs(cp_real - cp0) <= col["realgas_cp [kJ/(kg K)]"])
+    # U is the ideal-gas values' own: far below the 10-bar departure
+    assert np.all(col["U_cp [kJ/(kg K)]"] < col["realgas_cp [kJ/(kg K)]"] / 5)
+    meta = json.loads((tmp_path / "out" / "n2.csv-metadata.json").read_text())
+    names = [c["name"] for c in meta["tableSchema"]["columns"]]
+    assert "Z" in names and "realgas_cp" in names
 
 
 def test_charts_grouped_after_the_tables(tmp_path):

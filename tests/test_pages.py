@@ -39,18 +39,19 @@ MIN_ROWS = 10
 
 @pytest.fixture(scope="module")
 def books(demo_book):
-    """Per edition: (layout, reader, text runs per page, text per page)."""
+    """Per edition: (layout, reader, text runs per page, text per page, table pages)."""
     out = {}
     for name, (paper, orientation) in EDITIONS.items():
         reader = PdfReader(str(demo_book / f"kestrel-fen-{name}.pdf"))
-        out[name] = (layout_for(paper, orientation), reader, [text_runs(p) for p in reader.pages],
-                     [p.extract_text() for p in reader.pages])
+        texts = [p.extract_text() for p in reader.pages]
+        out[name] = (layout_for(paper, orientation), reader, [text_runs(p) for p in reader.pages], texts,
+                     parse_table_pages(reader, texts))
     return out
 
 
 @pytest.mark.parametrize("edition", list(EDITIONS))
 def test_every_text_run_lies_inside_the_margins(books, edition):
-    L, reader, runs, _ = books[edition]
+    L, reader, runs, _, _ = books[edition]
     assert abs(float(reader.pages[0].mediabox.width) - L.width) < 0.01
     eps = 0.01
     for no, page in enumerate(runs, 1):
@@ -81,8 +82,7 @@ def test_the_margin_check_sees_text_past_the_margin(tmp_path):
 
 @pytest.mark.parametrize("edition", list(EDITIONS))
 def test_no_table_page_holds_fewer_than_the_minimum_rows(books, edition):
-    L, reader, _, texts = books[edition]
-    pages = parse_table_pages(reader)
+    pages = books[edition][4]
     sizes = {}
     for no, p in enumerate(pages, 1):
         if p is None:
@@ -113,7 +113,7 @@ def _parts(texts):
 
 
 def test_pocket_column_parts_face_each_other(books):
-    _, _, _, texts = books["pocket"]
+    texts = books["pocket"][3]
     parts = _parts(texts)
     assert any(n == 2 for *_, n in parts) and any(n == 4 for *_, n in parts)    # the demo splits tables
     at = {(t, a, k): no for no, t, a, k, _ in parts}
@@ -145,13 +145,13 @@ def test_a_left_hand_page_is_made_by_a_blank_verso_that_says_so():
 
 
 def test_desk_edition_is_one_sided(books):
-    _, _, _, texts = books["desk"]
+    texts = books["desk"][3]
     assert not any("intentionally left blank" in t for t in texts)
 
 
 @pytest.mark.parametrize("edition", ["pocket"])
 def test_small_paper_text_is_legible_and_a_page_holds_32_rows(books, edition):
-    L, reader, runs, texts = books[edition]
+    L, reader, runs, texts, pages = books[edition]
     for no, page in enumerate(runs, 1):
         for r in page:
             assert r.size >= 6.5 - 1e-6, (no, r)
@@ -159,7 +159,6 @@ def test_small_paper_text_is_legible_and_a_page_holds_32_rows(books, edition):
     assert len(charts) >= 4                                        # charts are among the pages checked
     # every page of a table but its last holds 32 rows or more, unless it shares the last rows
     # with the last page (fewer than 2 x 32 rows from its first to the table's end)
-    pages = parse_table_pages(reader)
     full = 0
     for no, p in enumerate(pages, 1):
         m = re.search(r"rows (\d+)-(\d+) of (\d+)", p[4]) if p is not None else None
@@ -174,7 +173,7 @@ def test_small_paper_text_is_legible_and_a_page_holds_32_rows(books, edition):
 
 @pytest.mark.parametrize("edition", list(EDITIONS))
 def test_contents_list_every_table_and_chart_page(books, edition):
-    _, _, _, texts = books[edition]
+    texts = books[edition][3]
     lines = []
     for text in texts[:3]:
         if "Contents" in text:
@@ -192,7 +191,7 @@ def test_contents_list_every_table_and_chart_page(books, edition):
     tables = sorted({int(m.group(1)) for t in texts for m in re.finditer(r"^Table (\d+)\. ", t, re.M)})
     listed = {int(re.match(r"Table (\d+)", k).group(1)): v for k, v in entries.items() if k.startswith("Table")}
     assert sorted(listed) == tables
-    table_pages = parse_table_pages(books[edition][1])
+    table_pages = books[edition][4]
     for t, page in listed.items():
         first = next(no for no, p in enumerate(table_pages, 1) if p is not None and p[0] == t)
         assert page == first, (edition, t)
@@ -207,7 +206,7 @@ def test_contents_list_every_table_and_chart_page(books, edition):
 
 @pytest.mark.parametrize("edition", list(EDITIONS))
 def test_running_head_is_whole_and_headings_keep_with_what_follows(books, edition):
-    L, _, runs, _ = books[edition]
+    L, _, runs, _, _ = books[edition]
     title = "Kestrel Fen Heat Station: gas property tables"
     for no, page in enumerate(runs, 1):
         head = [r.text for r in page if r.y0 > L.body_top]
@@ -234,7 +233,7 @@ def _reading_order(pages: int) -> list[tuple[int, int, int]]:
 
 
 def test_pocket_booklet_is_in_saddle_stitch_order(demo_book, books):
-    L, reader, _, _ = books["pocket"]
+    L, reader = books["pocket"][:2]
     n = len(reader.pages)
     booklet = PdfReader(str(demo_book / "kestrel-fen-pocket-booklet.pdf"))
     sheets = math.ceil(n / 4)

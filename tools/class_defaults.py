@@ -49,13 +49,46 @@ JANAF = {
 BINS = ((200.0, 1000.0), (1000.0, 3000.0), (3000.0, 6000.0))
 
 
-def main() -> int:
+#: Floor of the figures: the gas constants of the fits (uncertainty.CP_FLOOR_REL / 2).
+FLOOR = 5e-6
+
+
+def round_up2(x: float) -> float:
+    """x rounded up to two significant digits."""
+    if x <= 0:
+        return 0.0
+    e = math.floor(math.log10(x)) - 1
+    return float(f"{math.ceil(x / 10 ** e - 1e-9) * 10 ** e:.2g}")
+
+
+def derive(per_class: dict | None = None) -> dict:
+    """class -> {"cp_rel", "dh_rel", "ds_rel"}: three bins each, as CLASS_DEFAULTS holds them
+    (mean of maxima / sqrt 3, rounded up to two significant digits, at least FLOOR,
+    non-decreasing with temperature)."""
+    per_class = per_class if per_class is not None else measure()
+    out: dict = {}
+    for cls in sorted({c for c, _ in per_class}):
+        figs = {}
+        for j, what in enumerate(("cp_rel", "dh_rel", "ds_rel")):
+            vals, run = [], 0.0
+            for b in range(len(BINS)):
+                rows = per_class.get((cls, b))
+                u = float(np.nanmean([r[1 + j] for r in rows])) / math.sqrt(3) if rows else 0.0
+                run = max(run, max(round_up2(u), FLOOR))
+                vals.append(run)
+            figs[what] = tuple(vals)
+        out[cls] = figs
+    return out
+
+
+def measure() -> dict:
+    """(class, bin) -> [(species, max |dcp|/cp, max |ddh|/|dh|, max |dds|/|ds|, last T)]."""
     import janaf
     warnings.filterwarnings("ignore")
     lib = library()
     per_class: dict = {}
     for sid, idx in JANAF.items():
-        rec = lib.record(sid)
+        rec = lib.record(sid, source="nasa1993")   # TM-4513 itself, not the species' default
         df = janaf.Table(idx).df
         T = df["T(K)"].to_numpy()
         cp = df["Cp"].to_numpy()
@@ -87,6 +120,11 @@ def main() -> int:
             else:
                 f_dh = f_ds = 0.0
             per_class.setdefault((cls, b), []).append((sid, f_cp, f_dh, f_ds, Tk[-1]))
+    return per_class
+
+
+def main() -> int:
+    per_class = measure()
     print("class, bin, n, u_cp_rel, u_dh_rel, u_ds_rel (mean of maxima / sqrt 3), species")
     for (cls, b), rows in sorted(per_class.items()):
         arr = np.array([r[1:4] for r in rows])
@@ -94,6 +132,9 @@ def main() -> int:
         print(f"{cls:22s} {BINS[b][0]:.0f}-{BINS[b][1]:.0f} K  n={len(rows):2d}  "
               f"{u[0]:.2e} {u[1]:.2e} {u[2]:.2e}  "
               + " ".join(f"{r[0]}:{r[1]:.1e}" for r in rows))
+    print("\nCLASS_DEFAULTS figures (rounded up to two digits, floor 5e-6, non-decreasing):")
+    for cls, figs in derive(per_class).items():
+        print(f"  {cls:22s} " + "  ".join(f"{k} {v}" for k, v in figs.items()))
     return 0
 
 

@@ -152,16 +152,7 @@ def fit_one(sid: str, index: str, formula: str, base) -> dict:
         k = int(np.argmax(s_dev))
         notes.append(f"JANAF's S at {T[k]:g} K departs {s_dev[k]:.2g} J/(mol K) from the integral of its cp")
     rec = {
-        "id": base.id,
-        "name": base.name,
-        "aliases": list(base.aliases),
-        "elements": dict(base.elements),
-        "molar_mass_g_per_mol": round(base.M, 6),
-        "phase": "gas",
-        "form": NINE,
-        "T_bounds_K": list(fit.T_bounds),
-        "coefficients": coefficients,
-        "h_formation_298_J_per_mol": dfH,
+        **record_head(base, fit.T_bounds, coefficients, dfH),
         "source": "janaf1998",
         "source_note": f"NIST-JANAF table {index} ({t.name}), refit 200-6000 K" + (
             "; " + "; ".join(notes) if notes else ""),
@@ -170,32 +161,32 @@ def fit_one(sid: str, index: str, formula: str, base) -> dict:
         "fit_n_points": int(T.size),
         "fit_method": "cp fitted; h and s° by exact integration from JANAF's 298.15 K values",
         "fit_target": target,
-        "fit_residuals": {
-            "cp_max_rel": round_up(res["cp_max_rel"]),
-            "cp_rms_rel": round_up(res["cp_rms_rel"]),
-            "h_max_J_per_mol": round_up(res["h_max_J_per_mol"]),
-            "h_rms_J_per_mol": round_up(res["h_rms_J_per_mol"]),
-            "s0_max_J_per_molK": round_up(res["s_max_J_per_molK"]),
-            "s0_rms_J_per_molK": round_up(res["s_rms_J_per_molK"]),
-        },
+        "fit_residuals": stated_residuals(res),
     }
     print(f"{sid:5s} {index:7s} bounds {fit.T_bounds}  {fit.describe()}; vs JANAF h {res['h_max_J_per_mol']:.3g} J/mol,"
           f" s° {res['s_max_J_per_molK']:.3g} J/(mol K)", file=sys.stderr)
     return rec
 
 
-def main(argv=None) -> int:
+def refit_arguments(argv, description: str, file_name: str, species) -> tuple:
+    """(--out path, --only ids) of a refit tool's command line."""
     import argparse
-    ap = argparse.ArgumentParser(description="Refit NIST-JANAF tables into gasdata/janaf1998.toml")
-    ap.add_argument("--out", type=Path, default=ROOT / "gasdata" / "janaf1998.toml",
-                    help="file to write (default: gasdata/janaf1998.toml)")
+    ap = argparse.ArgumentParser(description=description)
+    ap.add_argument("--out", type=Path, default=ROOT / "gasdata" / file_name,
+                    help=f"file to write (default: gasdata/{file_name})")
     ap.add_argument("--only", default="", help="comma-separated species ids to refit (default: all); "
                     "for checks only: the shipped file holds all of them")
     args = ap.parse_args(argv)
     only = [x for x in args.only.split(",") if x]
-    unknown = sorted(set(only) - set(SPECIES))
+    unknown = sorted(set(only) - set(species))
     if unknown:
         raise SystemExit(f"--only: {', '.join(unknown)} not refitted by this tool")
+    return args.out, only
+
+
+def main(argv=None) -> int:
+    out, only = refit_arguments(argv, "Refit NIST-JANAF tables into gasdata/janaf1998.toml",
+                                "janaf1998.toml", SPECIES)
     lib = library()
     nasa = lib.datasets["nasa1993"]
     records = []
@@ -227,9 +218,44 @@ def main(argv=None) -> int:
                            "0.01 J/(mol K) in others, and H-H(298.15 K) to 1 J/mol"),
         "licence": "NIST-JANAF values: US Government work (Standard Reference Data)",
     }
+    write_dataset(out, header, records, "tools/refit_janaf.py from the NIST-JANAF tables")
+    return 0
+
+
+def record_head(base, T_bounds, coefficients, h298: float) -> dict:
+    """The identity and polynomial of a refit record: names and elements of the shipped
+    record it replaces, the 9-coefficient form, and h(298.15 K)."""
+    return {
+        "id": base.id,
+        "name": base.name,
+        "aliases": list(base.aliases),
+        "elements": dict(base.elements),
+        "molar_mass_g_per_mol": round(base.M, 6),
+        "phase": "gas",
+        "form": NINE,
+        "T_bounds_K": list(T_bounds),
+        "coefficients": coefficients,
+        "h_formation_298_J_per_mol": h298,
+    }
+
+
+def stated_residuals(res: dict) -> dict:
+    """The fit_residuals table of a record: residuals_against's figures rounded up."""
+    return {
+        "cp_max_rel": round_up(res["cp_max_rel"]),
+        "cp_rms_rel": round_up(res["cp_rms_rel"]),
+        "h_max_J_per_mol": round_up(res["h_max_J_per_mol"]),
+        "h_rms_J_per_mol": round_up(res["h_rms_J_per_mol"]),
+        "s0_max_J_per_molK": round_up(res["s_max_J_per_molK"]),
+        "s0_rms_J_per_molK": round_up(res["s_rms_J_per_molK"]),
+    }
+
+
+def write_dataset(out: Path, header: dict, records: list, written_by: str) -> None:
+    """Write a gasdata file: the [dataset] table, then one [[species]] table a record."""
     text = [
         "# tablegen gasdata file: one [dataset] table, then one [[species]] table a record.",
-        "# Written by tools/refit_janaf.py from the NIST-JANAF tables; do not edit numbers by hand.",
+        f"# Written by {written_by}; do not edit numbers by hand.",
         "# Format: gasdata/README.md; method: docs/data-curation.md.",
         "",
         table("dataset", header),
@@ -237,9 +263,8 @@ def main(argv=None) -> int:
     for r in records:
         text.append("")
         text.append(table("species", r, array=True))
-    write_bytes(args.out, "\n".join(text).encode("utf-8"))
-    print(f"wrote {args.out} ({len(records)} records)", file=sys.stderr)
-    return 0
+    write_bytes(out, "\n".join(text).encode("utf-8"))
+    print(f"wrote {out} ({len(records)} records)", file=sys.stderr)
 
 
 if __name__ == "__main__":

@@ -1,26 +1,55 @@
-"""Building a book: spec -> model -> PDF, CSV and JSON bytes -> files.
+"""Building a book: spec -> model -> PDF, CSV and JSON bytes -> one published set.
 
-Every file is produced in memory first; only when all of them exist are the
-targets checked (none may exist without force) and written, each under a
-temporary name and renamed, so a failed or interrupted build leaves no
-half-written file and never touches a user's file without --force.
+Every file is produced in memory first; only then is the set published into its
+folder by :func:`tablegen.outfiles.publish_folder` (staged beside it and swapped in
+whole), so a failed or interrupted build leaves the folder's previous issue as it
+was and never touches a user's file.
 """
 
 from __future__ import annotations
 
 import sys
-from pathlib import Path
-
-from ..outfiles import check_targets, write_bytes
 
 
-def render_files(spec, out_dir, progress=None) -> tuple[dict, object]:
-    """{path: bytes} of every output of a book, and the book model.
+def file_names(spec) -> dict:
+    """Names of the files of a book: ``pdf``, ``json``, ``booklet``, ``csv`` and ``csv_metadata`` (lists).
+
+    Without editions: ``<spec>.pdf``, ``<spec>.json``, ``<table>.csv``. With editions,
+    one folder holds one issue of every edition: ``<spec>-<edition>.pdf`` and
+    ``<spec>-<edition>.json`` per edition, and the CSV names of
+    :func:`tablegen.editions.csv_names` (``<table>.csv``, or ``<table>-<edition>.csv``
+    for an edition that prints the table with other rows or columns). The booklet of
+    an edition (``--impose booklet``) is ``<stem>-booklet.pdf`` beside its PDF.
+    """
+    from .csvout import metadata_name
+    ed = spec.edition
+    stem = f"{spec.name}-{ed.name}" if ed is not None and ed.name else spec.name
+    csv = [t.csv_name or f"{t.name}.csv" for t in spec.tables]
+    return {"pdf": f"{stem}.pdf", "json": f"{stem}.json", "booklet": f"{stem}-booklet.pdf", "csv": csv,
+            "csv_metadata": [metadata_name(n) for n in csv]}
+
+
+def all_names(spec, booklet: bool = False) -> list[str]:
+    n = file_names(spec)
+    return [n["pdf"], n["json"], *n["csv"], *n["csv_metadata"], *([n["booklet"]] if booklet else [])]
+
+
+def merge(into: dict, files: dict) -> dict:
+    """Add one edition's files to the set; a file two editions share must have the same bytes."""
+    for name, data in files.items():
+        if name in into and into[name] != data:      # pragma: no cover - the names follow the content
+            raise AssertionError(f"{name}: two editions write different bytes to one file")
+        into[name] = data
+    return into
+
+
+def render_files(spec, progress=None) -> tuple[dict, object]:
+    """{file name: bytes} of every output of a book, and the book model.
 
     ``progress(done, total, what)`` is called as tables are evaluated and rendered.
     """
+    from ..jsonout import dumps
     from . import csvout, jsonout, model, pdf
-    out_dir = Path(out_dir)
     n = len(spec.tables)
     total = n + 2
     tables = []
@@ -30,55 +59,32 @@ def render_files(spec, out_dir, progress=None) -> tuple[dict, object]:
             progress(i + 1, total, t.name)
     book = model.build_book(spec, tables=tuple(tables))
     files = {}
-    from ..jsonout import dumps
     names = file_names(spec)
     for t, ts, name, meta in zip(book.tables, spec.tables, names["csv"], names["csv_metadata"]):
-        files[out_dir / name] = csvout.render_table(book, t).encode("utf-8")
-        files[out_dir / meta] = dumps(csvout.metadata(book, t, name, editions=ts.shared_by)).encode("utf-8")
+        files[name] = csvout.render_table(book, t).encode("utf-8")
+        files[meta] = dumps(csvout.metadata(book, t, name, editions=ts.shared_by)).encode("utf-8")
     pdf_bytes = pdf.render(book)
     if progress:
         progress(n + 1, total, "PDF")
-    files[out_dir / names["pdf"]] = pdf_bytes
-    files[out_dir / names["json"]] = jsonout.render(book, names).encode("utf-8")
+    files[names["pdf"]] = pdf_bytes
+    files[names["json"]] = jsonout.render(book, {k: names[k] for k in ("pdf", "csv", "csv_metadata")}
+                                          ).encode("utf-8")
     if progress:
         progress(total, total, "JSON")
     return files, book
 
 
-def file_names(spec) -> dict:
-    """Names of a book's files in its output folder.
-
-    Without editions: ``<spec>.pdf``, ``<spec>.json``, ``<table>.csv``. With editions,
-    one folder holds one issue of every edition: ``<spec>-<edition>.pdf`` and
-    ``<spec>-<edition>.json`` per edition, and the CSV names of
-    :func:`tablegen.editions.csv_names` (``<table>.csv``, or ``<table>-<edition>.csv``
-    for an edition that prints the table with other rows or columns). The booklet of
-    an edition (``--impose booklet``) is ``<stem>-booklet.pdf`` beside its PDF.
-    """
-    ed = spec.edition
-    stem = f"{spec.name}-{ed.name}" if ed is not None and ed.name else spec.name
-    csv = [t.csv_name or f"{t.name}.csv" for t in spec.tables]
-    from .csvout import metadata_name
-    return {"pdf": f"{stem}.pdf", "json": f"{stem}.json", "booklet": f"{stem}-booklet.pdf", "csv": csv,
-            "csv_metadata": [metadata_name(n) for n in csv]}
+def issue_text(book) -> str:
+    """One line naming an issue of a book, for its folder's manifest and later refusals."""
+    d = book.document
+    return (f"book {book.name}: document {d.number}, revision {d.revision}, issued {d.issue_date}, "
+            f"fingerprint {book.fingerprint}")
 
 
-def merge(into: dict, files: dict) -> dict:
-    """Add one edition's files to the set; a file two editions share must have the same bytes."""
-    for p, data in files.items():
-        if p in into and into[p] != data:      # pragma: no cover - the names follow the content
-            raise AssertionError(f"{p}: two editions write different bytes to one file")
-        into[p] = data
-    return into
-
-
-def write(files: dict, force: bool) -> list[Path]:
-    """Check all targets, then write each atomically."""
-    paths = list(files)
-    check_targets(paths, force)
-    for p in paths:
-        write_bytes(p, files[p])
-    return paths
+def pdf_pages(pdf: bytes) -> int:
+    import re
+    m = re.search(rb"/Type /Pages /Count (\d+)", pdf) or re.search(rb"/Count (\d+)", pdf)
+    return int(m.group(1)) if m else 0
 
 
 class Bar:

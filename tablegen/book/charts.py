@@ -30,6 +30,8 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from ..errors import RangeError, SpecError, TablegenError
+from ..texts import bad_character, one_line_rule
+from ..units import P_ATM
 
 # --------------------------------------------------------------------------
 # paper and unit systems
@@ -121,9 +123,10 @@ def _system(text, path: str) -> str:
     return text.upper()
 
 
-def _value(v, dim: str, default_unit: str, path: str, *, positive: bool = True) -> float:
-    """A quantity: a string with a unit ('12bar') or a bare number in the chart's unit."""
-    from ..units import quantity, unit
+def _value(v, dim: str, default_unit: str, path: str, *, positive: bool = True,
+           barometer_Pa: float | None = None) -> float:
+    """A quantity: a string with a unit ('12bar', or a gauge '11barg') or a bare number in the chart's unit."""
+    from ..units import pressure_Pa, quantity, unit
     if isinstance(v, bool):
         _fail(path, f"{v!r} is not a quantity; write a number with a unit, e.g. {_EXAMPLES[dim]}")
     try:
@@ -134,7 +137,8 @@ def _value(v, dim: str, default_unit: str, path: str, *, positive: bool = True) 
             try:
                 si = unit(default_unit, dim).to_si(float(s))
             except ValueError:
-                si = quantity(s, dim, "value")
+                si = pressure_Pa(s, "value", barometer_Pa=barometer_Pa) if dim == "pressure" \
+                    else quantity(s, dim, "value")
         else:
             _fail(path, f"{v!r} is not a quantity; write a number with a unit, e.g. {_EXAMPLES[dim]}")
     except SpecError:
@@ -150,12 +154,12 @@ _EXAMPLES = {"pressure": "'10bar'", "temperature": "'1200K'", "specific_volume":
              "specific_energy": "'500kJ/kg'"}
 
 
-def _list(v, dim, default_unit, path):
+def _list(v, dim, default_unit, path, barometer_Pa=None):
     if isinstance(v, (str, int, float)) and not isinstance(v, bool):
         v = [x for x in str(v).split(",")] if isinstance(v, str) else [v]
     if not isinstance(v, (list, tuple)) or not v:
         _fail(path, f"give a non-empty list, e.g. [{_EXAMPLES[dim]}, ...]")
-    out = [_value(x, dim, default_unit, f"{path}[{i}]") for i, x in enumerate(v)]
+    out = [_value(x, dim, default_unit, f"{path}[{i}]", barometer_Pa=barometer_Pa) for i, x in enumerate(v)]
     if len(out) > 40:
         _fail(path, f"{len(out)} lines are too many to read; allowed: at most 40")
     return tuple(sorted(set(out)))
@@ -192,7 +196,8 @@ def _parse_step(raw, path: str, sysu: dict) -> StepSpec:
         if "eta" not in raw:
             _fail(f"{path}.eta", "missing; give the isentropic efficiency, 0 < eta <= 1 (1 for isentropic)")
         eta = _number(raw["eta"], f"{path}.eta", 0.0, 1.0, "isentropic efficiency")
-        P2 = _value(raw["P2"], "pressure", sysu["P"], f"{path}.P2") if "P2" in raw else None
+        P2 = _value(raw["P2"], "pressure", sysu["P"], f"{path}.P2",
+                    barometer_Pa=sysu["barometer"]) if "P2" in raw else None
         ratio = None
         if "ratio" in raw:
             ratio = _number(raw["ratio"], f"{path}.ratio", 1.0, 1e4, "pressure ratio")
@@ -206,7 +211,8 @@ def _parse_step(raw, path: str, sysu: dict) -> StepSpec:
         return StepSpec(kind, T2_K=_value(raw["T2"], "temperature", sysu["T"], f"{path}.T2"), where=path)
     if "P2" not in raw:
         _fail(f"{path}.P2", "missing; a throttle step needs the end pressure P2")
-    return StepSpec(kind, P2_Pa=_value(raw["P2"], "pressure", sysu["P"], f"{path}.P2"), where=path)
+    return StepSpec(kind, P2_Pa=_value(raw["P2"], "pressure", sysu["P"], f"{path}.P2",
+                                       barometer_Pa=sysu["barometer"]), where=path)
 
 
 def _parse_overlay(raw, path: str, sysu: dict, n: int) -> OverlaySpec:
@@ -221,7 +227,7 @@ def _parse_overlay(raw, path: str, sysu: dict, n: int) -> OverlaySpec:
         if k not in start:
             _fail(f"{path}.start.{k}", "missing; the start state needs T and P")
     T1 = _value(start["T"], "temperature", sysu["T"], f"{path}.start.T")
-    P1 = _value(start["P"], "pressure", sysu["P"], f"{path}.start.P")
+    P1 = _value(start["P"], "pressure", sysu["P"], f"{path}.start.P", barometer_Pa=sysu["barometer"])
     steps = raw.get("steps", [])
     if not isinstance(steps, list):
         _fail(f"{path}.steps", "must be a list of step tables")
@@ -231,11 +237,12 @@ def _parse_overlay(raw, path: str, sysu: dict, n: int) -> OverlaySpec:
     return OverlaySpec(label.strip(), T1, P1, parsed, where=path)
 
 
-def parse_chart(raw: dict, where: str, *, units: str = "SI") -> tuple[ChartSpec, ...]:
+def parse_chart(raw: dict, where: str, *, units: str = "SI",
+                barometer_Pa: float = P_ATM) -> tuple[ChartSpec, ...]:
     """One chart table (kind = "both" gives two specs). See :func:`parse_charts`."""
     _table(raw, where, CHART_KEYS)
     system = _system(raw.get("units", units), f"{where}.units")
-    sysu = UNIT_SYSTEMS[system]
+    sysu = dict(UNIT_SYSTEMS[system], barometer=barometer_Pa)
     kind = raw.get("kind", "ts")
     if kind not in ("ts", "hs", "both"):
         _fail(f"{where}.kind", f"{kind!r} is not known; allowed: ts, hs, both")
@@ -253,7 +260,7 @@ def parse_chart(raw: dict, where: str, *, units: str = "SI") -> tuple[ChartSpec,
               f"{system} units; allowed: {', '.join(T_UNITS[system])}")
     pressures = None
     if "pressures" in raw:
-        pressures = _list(raw["pressures"], "pressure", sysu["P"], f"{where}.pressures")
+        pressures = _list(raw["pressures"], "pressure", sysu["P"], f"{where}.pressures", barometer_Pa)
     volumes = ()
     if "volumes" in raw:
         volumes = _list(raw["volumes"], "specific_volume", sysu["v"], f"{where}.volumes")
@@ -275,6 +282,8 @@ def parse_chart(raw: dict, where: str, *, units: str = "SI") -> tuple[ChartSpec,
     title = raw.get("title")
     if title is not None and (not isinstance(title, str) or len(title) > 100):
         _fail(f"{where}.title", "must be a text of at most 100 characters")
+    if title is not None and bad_character(title):
+        _fail(f"{where}.title", f"{one_line_rule()} (it holds {bad_character(title)})")
     ov = raw.get("overlays", [])
     if isinstance(ov, dict):
         ov = [ov]
@@ -291,7 +300,7 @@ def parse_chart(raw: dict, where: str, *, units: str = "SI") -> tuple[ChartSpec,
                  for k in kinds)
 
 
-def parse_charts(raw, where: str, *, units: str = "SI") -> tuple[ChartSpec, ...]:
+def parse_charts(raw, where: str, *, units: str = "SI", barometer_Pa: float = P_ATM) -> tuple[ChartSpec, ...]:
     """Validate a ``charts`` spec value into ChartSpecs.
 
     Parameters
@@ -300,6 +309,8 @@ def parse_charts(raw, where: str, *, units: str = "SI") -> tuple[ChartSpec, ...]
     where : key path of ``raw`` for messages, e.g. ``tables[0].charts``
     units : unit system of the document, "SI" or "US"; bare numbers in the
         spec are read in its units (K or °R, bar or psia, m³/kg or ft³/lbm)
+    barometer_Pa : barometric pressure that gauge pressures ('12barg', '150psig')
+        are read against; default 1.01325 bar
 
     Raises
     ------
@@ -312,7 +323,7 @@ def parse_charts(raw, where: str, *, units: str = "SI") -> tuple[ChartSpec, ...]
         _fail(where, "must be a list of chart tables, e.g. charts = [{kind = \"ts\"}]")
     out = []
     for i, c in enumerate(raw):
-        out.extend(parse_chart(c, f"{where}[{i}]", units=units))
+        out.extend(parse_chart(c, f"{where}[{i}]", units=units, barometer_Pa=barometer_Pa))
     return tuple(out)
 
 
@@ -468,6 +479,7 @@ STYLES = {
     "process": (2.2, None, (0.52, 0.03, 0.03)),
     "isentropic": (1.4, (5.0, 2.5), (0.52, 0.03, 0.03)),
     "aux": (0.9, (1.2, 1.6), (0.52, 0.03, 0.03)),
+    "dewpoint": (1.5, (0.9, 1.5), (0.05, 0.38, 0.62)),
     "frame": (0.8, None, (0.0, 0.0, 0.0)),
 }
 BLACK = (0.0, 0.0, 0.0)
@@ -819,6 +831,15 @@ def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None
                 lines.append(Line("isotherm", xx, np.full(xx.shape, cv.h.from_si(ht)), "isotherm",
                                   value_SI=float(t), T_K=np.full(xx.shape, t), P_Pa=P_line))
 
+    # ---- the gas's water dew point (its one figure, at its stated pressure), a labelled line
+    dew = getattr(substance, "dew_point_K", None)
+    if dew is not None and lo <= dew <= hi:
+        y_dew = cv.T.from_si(dew) if spec.kind == "ts" else \
+            cv.h.from_si(float(substance.properties(np.array([dew]))["h"][0]))
+        xx = np.linspace(x_axis.lo, x_axis.hi, 24)
+        lines.append(Line("dewpoint", xx, np.full(xx.shape, float(y_dew)), "dewpoint", value_SI=float(dew),
+                          T_K=np.full(xx.shape, dew), P_Pa=np.full(xx.shape, substance.dew_point_P_Pa)))
+
     # ---- right-hand scale: h on T-s, T on h-s (ideal gas: h is a function of T)
     side = None
     if spec.kind == "ts":
@@ -923,6 +944,16 @@ def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None
             text = f"{_fmt_value(cv.T.from_si(ln.value_SI))} {cv.sym['T']}"
             lab = placer.place_on_line(text, ln.x, ln.y, size, along_x=True,
                                        targets=(0.90, 0.80, 0.70, 0.60, 0.50, 0.30, 0.15))
+        elif ln.family == "dewpoint":
+            dew_T = f"{cv.T.from_si(ln.value_SI):.1f} {cv.sym['T']}"
+            # the longest wording that fits the plot (a small page's plot is narrower than the first)
+            for text in (f"water dew point {dew_T} at {cv.P.from_si(substance.dew_point_P_Pa):.4g} {Psym}: "
+                         f"condensation below", f"water dew point {dew_T}: condensation below",
+                         f"water dew point {dew_T}"):
+                if placer._width(text, size * 1.05) + 2.4 <= 0.9 * placer.W:
+                    break
+            lab = placer.place_on_line(text, ln.x, ln.y, size * 1.05, along_x=True,
+                                       targets=(0.70, 0.55, 0.85, 0.40, 0.25))
         else:
             lab = None
         labelled.append(Line(ln.family, ln.x, ln.y, ln.style, lab, ln.value_SI, ln.T_K, ln.P_Pa))
@@ -961,6 +992,8 @@ def _panel(substance, spec, cv, ov_states, ov_steps, points, system, notes, fs, 
         key.append(("isochore", "specific volume v = const"))
     if spec.kind == "hs":
         key.append(("isotherm", "isotherm, T = const (h = const)"))
+    if "dewpoint" in used:
+        key.append(("dewpoint", "water dew point (water condenses below)"))
     if spec.overlays:
         key.append(("process", "process, actual path"))
         if "isentropic" in used:
@@ -1015,15 +1048,20 @@ def _panel(substance, spec, cv, ov_states, ov_steps, points, system, notes, fs, 
         text.append(f"Composition, mole fractions: {comp}; s° includes the ideal mixing term.")
     text += list(notes)
     ids = {c.id for c in substance.components} | {substance.id}
-    if "H2O" in ids:
-        text.append("Contains water vapour: below its dew point water (and any acid formed from "
-                    "SO2 or SO3) condenses; lines there do not describe the gas, and condensing "
-                    "acid attacks metal surfaces.")
+    sulfur = "SO2" in ids or any("sulfur" in c for c in getattr(substance, "cautions", ()))
+    if getattr(substance, "dew_point_P_Pa", None) is not None:
+        from ..saturation import dew_point_text
+        text.append(f"Water dew point {dew_point_text(substance.dew_point_K, substance.dew_point_P_Pa)}"
+                    f" (IAPWS-IF97): below it water condenses and the lines do not describe the gas"
+                    + ("; condensing acid attacks metal surfaces." if sulfur else "."))
+    elif "H2O" in ids and substance.kind == "mixture":
+        text.append("Contains water vapour: below its dew point water condenses; lines there do not "
+                    "describe the gas.")
     if getattr(substance, "cautions", ()):
         # combustion products: the cautions that travel with the gas, in short
         text.append("Combustion products (frozen complete combustion, no dissociation): flue gas is "
-                    "toxic and asphyxiant; the acid dew point of sulfur-bearing flue gas lies well "
-                    "above the water dew point and is not computed.")
+                    "toxic and asphyxiant" + ("; the acid dew point of this sulfur-bearing flue gas lies well "
+                                              "above the water dew point and is not computed." if sulfur else "."))
     text.append("Ideal-gas model: not valid near saturation or at high pressure, where real-gas "
                 "effects matter; for design, check against real-gas data and follow local codes "
                 "and licensed engineering practice.")
@@ -1241,7 +1279,7 @@ def _compose(surf, model: ChartModel, x0, y0, width, height, page_text: str = ""
         surf.polyline([(px, float(Y(v))), (px + pw, float(Y(v)))], *STYLES["grid_major"])
 
     # lines (thin families first, overlays on top)
-    order = {"isotherm": 0, "isochore": 1, "isobar": 2, "aux": 3, "isentropic": 4, "process": 5}
+    order = {"isotherm": 0, "isochore": 1, "isobar": 2, "dewpoint": 3, "aux": 4, "isentropic": 5, "process": 6}
     for ln in sorted(model.lines, key=lambda ln: order.get(ln.family, 9)):
         w, dash, rgb = STYLES[ln.style]
         surf.polyline(np.column_stack([X(ln.x), Y(ln.y)]), w, dash, rgb, clip)
@@ -1570,15 +1608,13 @@ def chart_pdf(models, *, title: str = "tablegen charts", date_text: str = "") ->
     """A PDF with one landscape page per chart model (reproducible bytes)."""
     import io
 
-    from reportlab.pdfgen.canvas import Canvas
-
     from .. import __version__
+    from . import fonts
     from .fonts import SANS, register
     register()
     buf = io.BytesIO()
     first = PAPERS[models[0].paper]
-    c = Canvas(buf, pagesize=first, invariant=1, initialFontName=SANS, initialFontSize=8,
-               pageCompression=1)
+    c = fonts.canvas(buf, pagesize=first, initialFontName=SANS, initialFontSize=8, pageCompression=1)
     c.setTitle(title)
     c.setAuthor("tablegen")
     c.setCreator(f"tablegen {__version__}")

@@ -25,18 +25,18 @@ def neutralise(text: str) -> str:
     """User text made safe for a comment line of a CSV file.
 
     Double quotes become single quotes (a comment is never a quoted field), and every
-    comma-separated piece that would start with a formula character gets a leading
-    apostrophe, which spreadsheets show as text.
+    piece between commas or semicolons (the separators spreadsheets split on) that would
+    start with a formula character gets a leading apostrophe, which spreadsheets show as text.
     """
     text = re.sub(r"[\r\n]+", " ", str(text)).replace('"', "'")
-    pieces = text.split(",")
+    pieces = re.split(r"([,;])", text)
     out = []
     for p in pieces:
         s = p.lstrip()
-        if s.startswith(_FORMULA_START):
+        if p not in (",", ";") and s.startswith(_FORMULA_START):
             p = p[: len(p) - len(s)] + "'" + s
         out.append(p)
-    return ",".join(out)
+    return "".join(out)
 
 
 def _field(s: str) -> str:
@@ -50,7 +50,9 @@ def _field(s: str) -> str:
 MARK_HEADER = "mark"
 
 #: The codes of the mark column, as the PDF prints and explains them.
-MARK_CODES = {"*": "an extra row at a named temperature", "x": "extrapolated beyond the coefficient data"}
+MARK_CODES = {"*": "an extra row at a named temperature", "x": "extrapolated beyond the coefficient data",
+              "c": "at or below the water dew point of the gas: water may condense at this temperature; "
+                   "ideal-gas values do not hold"}
 
 
 def comment_lines(book, t) -> list[str]:
@@ -70,22 +72,35 @@ def comment_lines(book, t) -> list[str]:
     xt = [repr(float(T)) for T, m in zip(t.T_K, t.marks) if "x" in m]
     if xt:
         lines.append(f"# extrapolated beyond the data range at T_K = {' '.join(xt)}")
+    ct = [repr(float(T)) for T, m in zip(t.T_K, t.marks) if "c" in m]
+    if ct:
+        lines.append(f"# at or below the water dew point (water may condense) at T_K = {' '.join(ct)}")
     if t.U_columns:
         lines.append("# U_<column>: expanded uncertainty (k = 2) of that column, same unit; "
                      "empty where none is stated (extrapolated rows)")
+    if t.validity_columns:
+        lines.append("# Z, realgas_<column>: the real gas at max_pressure (second-virial estimate), "
+                     "where the ideal-gas values apply; not part of U")
+    for key, label, value, unit, U in t.substance.figures:
+        lines.append(f"# {key} = {value!r} {unit}" + ("" if U is None else f" (U k=2 {U!r})") +
+                     f": {neutralise(label)}")
+    for n in t.notes:
+        lines.append(f"# note: {neutralise(n)}")
     return lines
 
 
 def headers(t) -> list[str]:
     """Row 1 of the CSV: the value columns, the U columns, then ``mark``."""
-    return [c.csv_header for c in t.columns] + [h for h, _ in t.U_columns] + [MARK_HEADER]
+    return ([c.csv_header for c in t.columns] + [h for h, _ in t.U_columns]
+            + [h for h, _, _ in t.validity_columns] + [MARK_HEADER])
 
 
 def render_table(book, t) -> str:
     """The CSV text of one table model (CRLF line ends, as RFC 4180 asks)."""
     lines = comment_lines(book, t) if book.document.csv_comments else []
     lines.append(",".join(_field(h) for h in headers(t)))
-    cols = [c.values.tolist() for c in t.columns] + [v.tolist() for _, v in t.U_columns]
+    cols = ([c.values.tolist() for c in t.columns] + [v.tolist() for _, v in t.U_columns]
+            + [v.tolist() for _, v, _ in t.validity_columns])
     for row, mark in zip(zip(*cols), t.marks):
         lines.append(",".join(["" if x != x else repr(x) for x in row] + [_field(mark)]))
     return "\r\n".join(lines) + "\r\n"
@@ -119,6 +134,10 @@ def metadata(book, t, csv_name: str, editions: tuple = ()) -> dict:
                      "schema:unitText": h.split("[", 1)[1].rstrip("]") if "[" in h else "",
                      "dc:description": "expanded uncertainty (k = 2) of the column named, same unit; "
                                        "empty where none is stated"})
+    for h, _, text in t.validity_columns:
+        cols.append({"name": h.split(" ", 1)[0], "titles": h, "datatype": "double", "null": "",
+                     "schema:unitText": h.split("[", 1)[1].rstrip("]") if "[" in h else "",
+                     "dc:description": text})
     cols.append({"name": MARK_HEADER, "titles": MARK_HEADER, "datatype": "string", "null": "",
                  "dc:description": "row mark as printed in the PDF: " +
                                    "; ".join(f"{k} {v}" for k, v in MARK_CODES.items()) +
@@ -144,6 +163,11 @@ def metadata(book, t, csv_name: str, editions: tuple = ()) -> dict:
                                               "SHA-256 of each coefficient data file"},
         "prov:wasGeneratedBy": f"tablegen {book.versions['tablegen']}",
         "rdfs:comment": list(t.notes),
+        "schema:additionalProperty": [
+            {"@type": "schema:PropertyValue", "schema:propertyID": key, "schema:name": label,
+             "schema:value": value, "schema:unitText": unit,
+             **({} if U is None else {"schema:description": f"expanded uncertainty U (k = 2) {U!r} {unit}"})}
+            for key, label, value, unit, U in s.figures],
         "dialect": {"header": True, "delimiter": ",", "encoding": "utf-8",
                     "lineTerminators": ["\r\n"], "doubleQuote": True},
         "tableSchema": {"columns": cols, "primaryKey": cols[0]["name"]},

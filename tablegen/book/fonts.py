@@ -1,9 +1,9 @@
-"""Embedded fonts for every PDF: the DejaVu TrueType faces that matplotlib ships.
+"""Embedded fonts for every PDF (the DejaVu TrueType faces that matplotlib ships) and its canvas.
 
 They cover °, ·, ², ³, Greek letters and sub/superscript digits, so no new
 dependency is needed; registering them with reportlab embeds subsets in the PDF.
 Start canvases with ``initialFontName=SANS`` so no unembedded standard font is
-referenced.
+referenced; :func:`canvas` makes one whose bytes depend on nothing but what is drawn.
 """
 
 from __future__ import annotations
@@ -56,3 +56,21 @@ def register() -> dict:
     addMapping(SANS, 0, 1, SANS_OBLIQUE)
     addMapping(SANS, 1, 1, SANS_BOLD)
     return out
+
+
+def canvas(buf, **kw):
+    """A reportlab canvas in invariant mode whose dates are fixed whatever the environment says.
+
+    reportlab takes the document dates from SOURCE_DATE_EPOCH when it is set, even in
+    invariant mode; same input must give the same bytes, so the variable is hidden from
+    it while the document is made (the dates are reportlab's invariant 2000-01-01).
+    """
+    import os
+
+    from reportlab.pdfgen.canvas import Canvas
+    saved = os.environ.pop("SOURCE_DATE_EPOCH", None)
+    try:
+        return Canvas(buf, invariant=1, **kw)
+    finally:
+        if saved is not None:
+            os.environ["SOURCE_DATE_EPOCH"] = saved

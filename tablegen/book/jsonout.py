@@ -13,6 +13,7 @@ SCHEMA_ID = "tablegen-book/1"
 
 def sidecar(book, files: dict) -> dict:
     """JSON-ready dict; ``files`` maps "pdf" and "csv" to the file names written."""
+    from .csvout import MARK_CODES
     subs = []
     for s in book.substances:
         subs.append({
@@ -21,6 +22,13 @@ def sidecar(book, files: dict) -> dict:
             "components": [{"id": c.id, "mole_fraction": c.mole_fraction, "mass_fraction": c.mass_fraction,
                             "M_g_per_mol": c.M, "data_set": c.source} for c in s.components],
             "sources": [{"species": a, "data_set": b, "citation": c} for a, b, c in s.sources],
+            "dew_point": None if s.dew_point_P_Pa is None else {"T_K": s.dew_point_K, "P_Pa": s.dew_point_P_Pa,
+                                                                 "method": "IAPWS-IF97 eq. 31 at the water "
+                                                                           "partial pressure"},
+            "description": list(s.description),
+            "combustion": None if s.combustion is None else
+            dict(s.combustion, cautions=list(book.caution_refs.get(s.id, ()))),
+            "cautions": list(book.caution_refs.get(s.id, ())),
         })
     tables = []
     for t, csv, meta in zip(book.tables, files["csv"], files["csv_metadata"]):
@@ -32,6 +40,8 @@ def sidecar(book, files: dict) -> dict:
             "columns": [{"key": c.key, "csv_header": c.csv_header, "unit": c.unit, "system": c.system,
                          "decimals": c.decimals, "significant": c.significant} for c in t.columns],
             "notes": list(t.notes),
+            "marks": {m: MARK_CODES[m] for m in MARK_CODES if any(m in r for r in t.marks)},
+            "cautions": list(book.caution_refs.get(t.substance.id, ())),
             "uncertainty": t.uncertainty,
         })
     d = book.document
@@ -49,6 +59,9 @@ def sidecar(book, files: dict) -> dict:
         "tables": tables,
         "rounding_rule": book.rounding_rule,
         "cautions": list(book.cautions),
+        "mark_codes": dict(MARK_CODES),
+        "combustion_sheets": [{"title": sh.title, "substances": list(sh.substances),
+                               "cautions": list(sh.caution_refs)} for sh in book.sheets],
         "appendix": [{"title": s.title, "paragraphs": list(s.paragraphs)} for s in book.appendix],
         "files": {"pdf": files["pdf"], "csv": list(files["csv"]), "csv_metadata": list(files["csv_metadata"])},
         "edition": edition(book),

@@ -24,6 +24,7 @@ import numpy as np
 from ..errors import TablegenError
 from ..thermo.substance import R_MOLAR, T_REF
 from ..units import BTU, FT, LBM
+from .stated import appendix_sections, auto_decimals, uncertainty_notes
 
 # ---------------------------------------------------------------- units
 _J_PER_BTU_FT3 = BTU / FT ** 3        # Btu/ft³ -> J/m³ (exact from the 1959 definitions)
@@ -121,9 +122,9 @@ CAUTIONS = (
     "These tables follow the ideal-gas model: the properties depend on temperature only "
     "(entropy also on pressure through −R ln(P/P°)). Real-gas effects at high pressure or "
     "near saturation are not included.",
-    "Mixtures are of frozen composition: no dissociation, reaction or condensation. Below the "
-    "dew point of a flue gas, water and acids condense and the tabulated values do not apply; "
-    "condensing acid attacks steel.",
+    "Mixtures are of frozen composition: no dissociation, reaction or condensation. At and below "
+    "the water dew point of a gas holding water vapour (rows marked c) water may condense and the "
+    "tabulated values do not describe the gas.",
     "Values are valid only inside the temperature range of the coefficient data named in the "
     "sources section; values outside it are refused unless extrapolation was asked for, and "
     "are then marked.",
@@ -158,6 +159,12 @@ class SubstanceInfo:
     mixing_entropy_R: float
     components: tuple
     sources: tuple          # (species id, data set, citation)
+    dew_point_K: float | None = None     # water dew point at dew_point_P_Pa (None: none, or below 0 °C)
+    dew_point_P_Pa: float | None = None  # None: the gas holds no water vapour
+    description: tuple = ()              # sentences on what the gas was made from (humid air)
+    combustion: dict | None = None       # tablegen.book.sheet.to_json of the combustion that made it
+    figures: tuple = ()                  # (key, label, value, unit, U_k2): dew point, combustion figures
+    origin_key: int | None = None        # the same number for substances of one combustion
 
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -202,6 +209,9 @@ class TableModel:
     charts: tuple = ()      # chart models (tablegen.book.charts), drawn after the table
     uncertainty: dict | None = None   # the budget's figures (tablegen.uncertainty), for the JSON
     U_columns: tuple = ()   # (csv header, values) of U_<key> columns, when the spec asks for them
+    #: (csv header, values, description) of the Z and real-gas departure columns
+    #: (document.validity_columns): where the ideal-gas values apply, not their uncertainty
+    validity_columns: tuple = ()
 
     @property
     def rows(self) -> int:
@@ -233,6 +243,8 @@ class BookModel:
     versions: dict
     normalised_spec: dict
     appendix: list = field(default_factory=list)   # Section, printed after the tables
+    sheets: tuple = ()      # tablegen.book.sheet.Sheet, one per combustion, in the substances section
+    caution_refs: dict = field(default_factory=dict)   # substance id -> ids of the cautions that concern it
     edition: object = None  # tablegen.editions.Edition: paper, sides, figure size, printed number
 
 
@@ -333,10 +345,16 @@ def _csv_key(key: str, basis: str) -> str:
 
 
 def _substance_info(ref: str, s) -> SubstanceInfo:
+    from .provenance import made_from
     comps = tuple(ComponentInfo(c.id, c.mole_fraction, c.mass_fraction, c.M, c.source) for c in s.components)
+    description, combustion, figs = made_from(s)
+    origin = getattr(s, "origin", None)
     return SubstanceInfo(ref=ref, id=s.id, name=s.name, kind=s.kind, M=s.M, R=s.R, T_min=s.T_min,
                          T_max=s.T_max, mixing_entropy_R=s.mixing_entropy_R, components=comps,
-                         sources=tuple(tuple(x) for x in s.sources))
+                         sources=tuple(tuple(x) for x in s.sources), dew_point_K=s.dew_point_K,
+                         dew_point_P_Pa=s.dew_point_P_Pa, description=tuple(description),
+                         combustion=combustion, figures=tuple(figs),
+                         origin_key=None if origin is None else id(origin))
 
 
 def _fmtK(T: float) -> str:
@@ -401,110 +419,6 @@ def _grid_text_of(g: dict) -> str:
 
 
 
-#: Columns the uncertainty budget covers (tablegen.uncertainty); the mean-cp aids are not.
-BUDGET_KEYS = ("cp", "cv", "k", "h", "u", "s0", "g0", "Pr", "vr", "a")
-
-
-def basis_scale(key: str, sub, basis: str, reference) -> float:
-    """SI value on the table's basis of one SI unit on the mass basis, for ``key``."""
-    if key in ("k", "Pr", "vr", "a") or basis == "mass":
-        return 1.0
-    Mk = sub.M * 1e-3
-    if basis == "molar":
-        return Mk
-    return Mk * reference.P_Pa / (R_MOLAR * reference.T_K)
-
-
-def _auto_decimals(t, doc, sub) -> dict:
-    """Decimals of the columns whose digits the spec leaves open, from their uncertainty.
-
-    (key, system) -> decimals: tablegen.uncertainty.digits_for at the row where the
-    data part of U is smallest. Digits follow the data uncertainty, as the budget's own
-    rule does: the pressure- and composition-dependent parts differ between users of one
-    table, and the rounding part depends on this very choice.
-    """
-    want = [c for c in t.columns if getattr(c, "auto", False) and c.decimals is not None
-            and c.key in BUDGET_KEYS]
-    inside = (t.T_K >= sub.T_min) & (t.T_K <= sub.T_max)
-    if not want or not inside.any():
-        return {}
-    from .. import uncertainty as unc
-    keys = list(dict.fromkeys(c.key for c in want))
-    # one row for T_rows: the interpolation part is not needed for this choice
-    b = unc.budget(sub, t.T_K[inside], keys, P_max_Pa=doc.max_pressure_Pa, T_rows=t.T_K[inside][:1])
-    out = {}
-    for c in want:
-        U = b.U(c.key, "data")
-        ok = np.isfinite(U) & (U > 0)
-        if ok.any():
-            uf = unit_factor(c.key, c.system, t.basis) / basis_scale(c.key, sub, t.basis, doc.reference)
-            out[(c.key, c.system)] = int(np.clip(np.max(unc.digits_for(U[ok], unit_factor=uf)), 0, 8))
-    return out
-
-
-def _uncertainty(t, doc, sub, cols, notes):
-    """Budget of the table's printed columns: notes per column, JSON figures, CSV columns.
-
-    The expanded uncertainty (k = 2) per column and temperature band goes under
-    the table; the printed digits are checked against it (tablegen.uncertainty.digits_for).
-    Values outside the data range (extrapolated) carry no stated uncertainty.
-    """
-    from .. import uncertainty as unc
-    keys = [k for k in dict.fromkeys(c.key for c in cols) if k in BUDGET_KEYS]
-    inside = (t.T_K >= sub.T_min) & (t.T_K <= sub.T_max)
-    if not keys or not inside.any():
-        return None, ()
-    first = {}
-    for c in cols:
-        first.setdefault(c.key, c)
-    steps = {}
-    for k in keys:
-        c = first[k]
-        if c.decimals is not None:
-            steps[k] = 10.0 ** (-c.decimals) * unit_factor(k, c.system, t.basis) / basis_scale(
-                k, sub, t.basis, doc.reference)
-    cu = getattr(t, "composition_u", None)
-    b = unc.budget(sub, t.T_K[inside], keys, P_max_Pa=doc.max_pressure_Pa, printed_step=steps,
-                   composition_u=None if cu is None else cu[1],
-                   composition_basis="mole" if cu is None else cu[0])
-    figures = []
-    for k in keys:
-        c = first[k]
-        uf = unit_factor(k, c.system, t.basis) / basis_scale(k, sub, t.basis, doc.reference)
-        U = b.U(k)
-        ok = np.isfinite(U) & (U > 0)
-        if not ok.any():
-            continue
-        rel = [x.U_rel_max for x in b.bands(k) if np.isfinite(x.U_rel_max)]
-        est = any(x.estimated for x in b.bands(k))
-        fig = f"{max(rel) * 100:.2g} %" if rel and k not in ("h", "u", "g0") else f"{U[ok].max() / uf:.2g} {c.unit}"
-        figures.append(f"{c.symbol} {fig}{' (est.)' if est else ''}")
-        if c.decimals is not None:
-            want = unc.digits_for(U[ok], unit_factor=uf)
-            lo, hi = int(np.min(want)), int(np.max(want))
-            if c.decimals < lo:
-                notes.append(f"{c.symbol}: {c.decimals} decimals print coarser than the uncertainty "
-                             f"supports ({lo} would keep rounding below U/4).")
-            elif c.decimals > hi + 1:
-                notes.append(f"{c.symbol}: {c.decimals} decimals print finer than the uncertainty "
-                             f"supports (the last {c.decimals - hi - 1} digit(s) are not significant).")
-    if figures:
-        notes.append("Uncertainty U (k = 2), largest over the table: " + ", ".join(figures) +
-                     f"; per band, and the ideal-gas limits at {doc.max_pressure_Pa / 1e5:g} bar, "
-                     f"in the appendix.")
-    U_cols = ()
-    if doc.uncertainty_columns:
-        U_cols = []
-        for c in cols:
-            if c.key in keys:
-                full = np.full(t.T_K.shape, np.nan)
-                full[inside] = b.U(c.key) * basis_scale(c.key, sub, t.basis, doc.reference) / \
-                    unit_factor(c.key, c.system, t.basis)
-                U_cols.append((f"U_{c.csv_header}", full))
-        U_cols = tuple(U_cols)
-    return b.to_json(), U_cols
-
-
 def build_table(t, doc) -> TableModel:
     """Evaluate and format one table spec."""
     from ..units import unit
@@ -512,7 +426,7 @@ def build_table(t, doc) -> TableModel:
     keys = list(dict.fromkeys(c.key for c in t.columns))
     vals = column_values_SI(sub, t.T_K, keys, extrapolate=t.extrapolate, basis=t.basis,
                             reference=doc.reference, T_mean_ref_K=t.T_mean_ref_K)
-    auto = _auto_decimals(t, doc, sub)
+    auto = auto_decimals(t, doc, sub)
     cols = []
     for c in t.columns:
         if getattr(c, "auto", False) and (c.key, c.system) in auto:
@@ -529,7 +443,9 @@ def build_table(t, doc) -> TableModel:
         cols.append(Column(key=c.key, system=c.system, unit=c.unit, symbol=DEFINITIONS[c.key][0],
                            decimals=c.decimals, significant=c.significant, values=v, cells=cells,
                            csv_key=_csv_key(c.key, t.basis)))
+    from .provenance import condensing, dew_point_note
     ext = vals.get("extrapolated")
+    wet = condensing(sub, t.T_K)
     marks = []
     for i in range(t.T_K.size):
         m = ""
@@ -537,6 +453,8 @@ def build_table(t, doc) -> TableModel:
             m += "*"
         if ext is not None and ext[i]:
             m += "x"
+        if wet[i]:
+            m += "c"
         marks.append(m)
     notes = []
     if t.extra_rows:
@@ -546,6 +464,8 @@ def build_table(t, doc) -> TableModel:
     if ext is not None and np.any(ext):
         notes.append(f"x extrapolated beyond the data range {sub.T_min:g}-{sub.T_max:g} K: "
                      f"use with care.")
+    if sub.dew_point_P_Pa is not None:
+        notes.append(dew_point_note(sub, t.temperature_units[0], int(np.sum(wet))))
     basis_text = {"mass": "per unit mass", "molar": "per mole",
                   "volumetric": f"per m³ (SI) or ft³ (US) at {doc.reference.text}"}[t.basis]
     an = sub.anchor
@@ -558,10 +478,7 @@ def build_table(t, doc) -> TableModel:
                   f"data valid {sub.T_min:g}-{sub.T_max:g} K",
                   f"Values {basis_text}; entropy at P° = {pressure_text(sub.P_ref_Pa)}",
                   f"Enthalpy datum {datum_text}; Pr/vr anchor: {anchor_text_of(sub.anchor, t_unit)}")
-    unc, U_cols = _uncertainty(t, doc, sub, cols, notes)
-    if sub.cautions:
-        notes.append(f"{sub.name}: read the cautions for this gas in the Caution section "
-                     f"(combustion products: toxic, asphyxiant, acid dew point not computed).")
+    unc, U_cols, V_cols = uncertainty_notes(t, doc, sub, cols, notes)
     charts = ()
     if t.charts:
         from .charts import build_chart
@@ -576,7 +493,7 @@ def build_table(t, doc) -> TableModel:
         grid_text=_grid_text(t.grid),
         datum={"kind": sub.datum.kind, "T_ref_K": sub.datum.T_ref_K, "h_ref_J_per_kg": sub.datum.h_ref_J_per_kg},
         anchor={"T_K": an.T_K, "Pr": an.Pr, "vr": an.vr}, T_K=np.asarray(t.T_K, float), marks=tuple(marks),
-        columns=tuple(cols), notes=notes, uncertainty=unc, U_columns=U_cols)
+        columns=tuple(cols), notes=notes, uncertainty=unc, U_columns=U_cols, validity_columns=V_cols)
 
 
 def chart_page(doc) -> dict:
@@ -592,10 +509,16 @@ def chart_page(doc) -> dict:
 
 # ---------------------------------------------------------------- fingerprint
 def data_files(spec) -> list[Path]:
-    """Coefficient and composition files the book's values depend on."""
+    """Coefficient and composition files the book's values depend on.
+
+    The files of the data sets its species come from, the atomic weights, shipped
+    mixtures and default sources, and every user data file read (a spec's [data],
+    --data and the user data folder), whether or not it supplied a species: a user
+    file can change which record a name resolves to.
+    """
     from ..data.library import library
     lib = library(tuple(spec.data_paths))
-    files = set()
+    files = set(lib.user_files)
     for t in getattr(spec, "all_tables", ()) or spec.tables:
         for _, ds, _ in t.substance.sources:
             d = lib.datasets.get(ds)
@@ -636,51 +559,6 @@ def versions() -> dict:
             "python": platform.python_version()}
 
 
-def _uncertainty_appendix(tables, doc) -> Section:
-    """The appendix that explains the uncertainty budget and lists its figures."""
-    rows = []
-    assumptions, sources, paras_tables = [], [], []
-    for t in tables:
-        u = t.uncertainty
-        if not u:
-            continue
-        for a in u.get("assumptions", []):
-            if a not in assumptions:
-                assumptions.append(a)
-        for sname in u.get("sources", []):
-            if str(sname) not in sources:
-                sources.append(str(sname))
-        for st in u.get("statements", []):
-            paras_tables.append(f"{t.title}: {st}")
-        for key, fig in u.get("keys", {}).items():
-            for b in fig.get("bands", []):
-                rel = b.get("U_rel")
-                val = f"{rel * 100:.2g} %" if rel is not None else f"{b.get('U')} {fig.get('unit', '')}"
-                rows.append((t.name, key, f"{b['T_lo_K']:g}-{b['T_hi_K']:g} K",
-                             val + (" (estimated)" if b.get("estimated") else "")))
-    paras = [
-        "Each printed column carries a combined expanded uncertainty U (coverage factor k = 2), "
-        "given per temperature band under its table and listed below. The budget has five parts, "
-        "each computed, not assumed: (1) data: the published uncertainty of the source functions "
-        "where one exists (CODATA key values at 298.15 K), across temperature the spread between "
-        "independent sources (gasdata/agreement.toml), otherwise a documented default for the "
-        "species' class marked \"estimated\"; (2) composition, when fraction uncertainties are "
-        "given, by linear sensitivity; (3) rounding: half a unit of the last printed digit; "
-        "(4) the ideal-gas model: the departure of the real gas at the stated maximum pressure "
-        f"({doc.max_pressure_Pa / 1e5:g} bar), estimated from the second virial coefficient "
-        "(Tsonopoulos correlation); (5) interpolation between printed rows, stated separately as "
-        "the largest error linear interpolation can make.",
-        "The components are combined in quadrature and expanded with k = 2. These figures describe "
-        "the tables, not a design margin.",
-    ]
-    paras += paras_tables
-    paras += [f"Assumption: {a}" for a in assumptions]
-    if sources:
-        paras.append("Sources of the figures: " + "; ".join(sources) + ".")
-    return Section(title="Uncertainty of the printed values", paragraphs=tuple(paras),
-                   header=("table", "column", "band", "U (k = 2)"), rows=tuple(rows))
-
-
 def build_book(spec, tables=None) -> BookModel:
     """Evaluate every table of a validated spec into the book model.
 
@@ -707,14 +585,12 @@ def build_book(spec, tables=None) -> BookModel:
         definitions.append((k, sym, name, formula, tuple(units)))
     ref_text = doc.reference.text if any(t.basis == "volumetric" for t in tables) else ""
     fp, listed = fingerprint(spec.normalised, data_files(spec))
-    cautions = list(CAUTIONS)
-    for t in spec.tables:
-        for text in t.substance.cautions:
-            line = f"{t.substance.name}: {text}"
-            if line not in cautions:
-                cautions.append(line)
-    appendix = [_uncertainty_appendix(tables, doc)] if any(t.uncertainty for t in tables) else []
+    from .provenance import numbered_cautions, sheets_of
+    cautions, refs = numbered_cautions(spec, tables, CAUTIONS)
+    sheets = sheets_of(spec, tables, refs, cautions)
+    appendix = appendix_sections(tables, doc)
     return BookModel(appendix=appendix, name=spec.name, document=doc, tables=tables, substances=tuple(subs),
                      definitions=tuple(definitions), cautions=tuple(cautions), rounding_rule=ROUNDING_RULE,
                      reference_text=ref_text, data_files=listed, fingerprint=fp, versions=versions(),
-                     normalised_spec=spec.normalised, edition=getattr(spec, "edition", None))
+                     normalised_spec=spec.normalised, sheets=sheets, caution_refs=refs,
+                     edition=getattr(spec, "edition", None))

@@ -16,9 +16,8 @@ import io
 import re
 from dataclasses import replace
 
-from reportlab.lib.utils import simpleSplit
+from reportlab.lib.utils import simpleSplit as _split_words
 from reportlab.pdfbase.pdfmetrics import getFont, stringWidth
-from reportlab.pdfgen import canvas as rl_canvas
 
 from . import fonts, pagination
 from .fonts import MONO, SANS, SANS_BOLD, SANS_OBLIQUE
@@ -54,6 +53,25 @@ class Page:
 
 def _w(text: str, font: str, size: float) -> float:
     return stringWidth(text, font, size)
+
+
+def simpleSplit(text: str, font: str, size: float, width: float) -> list[str]:
+    """Lines of text within a width: broken between words, and a word longer than the
+    width (a composition, a hash, a path) after a comma, semicolon, slash or '=' where
+    it can be, else between characters, so no line runs past the margin."""
+    out = []
+    for line in _split_words(text, font, size, width):
+        while _w(line, font, size) > width and len(line) > 1:
+            cut = len(line) - 1
+            while cut > 1 and _w(line[:cut], font, size) > width:
+                cut -= 1
+            soft = max(line.rfind(ch, 0, cut) for ch in ",;/=")
+            if soft > 0 and _w(line[:soft + 1], font, size) <= width:
+                cut = soft + 1
+            out.append(line[:cut])
+            line = line[cut:]
+        out.append(line)
+    return out
 
 
 class Flow:
@@ -230,7 +248,9 @@ def _front(book, L: Layout, pages: list, contents: list):
            "interpolation error.")
     f.para(book.rounding_rule)
     f.para("Row marks in the narrow first column: * an extra row at a named temperature; "
-           "x a value extrapolated beyond the range of the coefficient data.")
+           "x a value extrapolated beyond the range of the coefficient data; c at or below the water dew "
+           "point of the gas: water may condense at this temperature; ideal-gas values do not hold. The "
+           "CSV files carry the same marks in their last column, mark.")
     if _facing_note(book, L):
         f.para(_facing_note(book, L))
     if L.compact:
@@ -258,10 +278,15 @@ def _front(book, L: Layout, pages: list, contents: list):
     # compositions
     f.new_page()
     f.heading("Substances and compositions", anchor="subs")
+    sheets = {}
+    for sh in book.sheets:
+        sheets.setdefault(sh.substances[-1], sh)
     for s in book.substances:
         f.heading(f"{s.name} ({s.id})", L.text * 1.1)
         f.para(f"M = {s.M:.4f} kg/kmol, R = {s.R:.3f} J/(kg K); coefficient data valid "
                f"{s.T_min:g} K to {s.T_max:g} K.")
+        for line in s.description:
+            f.para(line)
         if s.kind == "mixture":
             rows = [(c.id, _fmt_frac(c.mole_fraction), _fmt_frac(c.mass_fraction), f"{c.M:.4f}", c.source)
                     for c in s.components]
@@ -270,6 +295,11 @@ def _front(book, L: Layout, pages: list, contents: list):
             f.para(f"The mixture's s° includes the ideal mixing term −R Σ yᵢ ln yᵢ = "
                    f"{s.mixing_entropy_R:.6f} R = {s.mixing_entropy_R * s.R / 1000:.6f} kJ/(kg K). "
                    f"Composition is frozen at all temperatures.", size=L.text * 0.92)
+        sh = sheets.pop(s.name, None)
+        if sh is not None:
+            _sheet(f, sh, book.sheets.index(sh) + 1)
+            if s is not book.substances[-1]:
+                f.new_page()
     # sources
     f.heading("Data sources", anchor="sources")
     rows = []
@@ -331,6 +361,21 @@ def _facing_note(book, L: Layout) -> str:
         text += (" Each chart takes a spread: the chart on the left-hand page, its key, states and "
                  "cautions on the right-hand page.")
     return text
+
+
+def _sheet(f: Flow, sh, n: int):
+    """A combustion sheet, after the last substance it defines."""
+    L = f.L
+    f.new_page()
+    f.heading(sh.title, L.text * 1.25, anchor=f"sheet{n}")
+    for b in sh.blocks:
+        if b[0] == "heading":
+            f.heading(b[1], L.text * 1.05)
+        elif b[0] == "para":
+            f.para(b[1], size=L.text * 0.95)
+        else:
+            _, header, rows, fractions, right = b
+            f.grid(header, rows, fractions, size=L.text * 0.88, right_cols=right)
 
 
 def _grouped(hexdigest: str) -> str:
@@ -435,7 +480,7 @@ def plan_table(t, L: Layout, index: int = 1) -> TablePlan:
         head = max(_w(c.symbol, SANS_BOLD, L.head), _w(c.unit, SANS, L.body * 0.82))
         colw.append(max(longest, head))
     has_marks = any(t.marks)
-    markw = _w("*x", SANS, L.body) + 2 if has_marks else 0.0
+    markw = max(_w(m, SANS, L.body) for m in t.marks) + 2 if has_marks else 0.0
     full = L.live_width
     tcols = [i for i, c in enumerate(t.columns) if c.key == "T"]
     others = [i for i, c in enumerate(t.columns) if c.key != "T"]
@@ -641,8 +686,9 @@ def _foot_text(book, L: Layout) -> str:
 def _contents_entries(book) -> list:
     """Every section, table and chart page of the book, in page order, with its anchor."""
     d = book.document
-    entries = [("How to read these tables", "read"), ("Substances and compositions", "subs"),
-               ("Data sources", "sources"), ("Caution", "caution")]
+    entries = [("How to read these tables", "read"), ("Substances and compositions", "subs")]
+    entries += [(sh.title, f"sheet{i}") for i, sh in enumerate(book.sheets, 1)]
+    entries += [("Data sources", "sources"), ("Caution", "caution")]
     grouped = d.chart_placement == "grouped" and any(t.charts for t in book.tables)
     charts = []
     for i, t in enumerate(book.tables, 1):
@@ -736,8 +782,7 @@ def _with_binary_streams(fn, *args):
 def _canvas(book, size):
     d = book.document
     buf = io.BytesIO()
-    c = rl_canvas.Canvas(buf, pagesize=size, invariant=1, initialFontName=SANS,
-                         initialFontSize=10, pageCompression=1)
+    c = fonts.canvas(buf, pagesize=size, initialFontName=SANS, initialFontSize=10, pageCompression=1)
     c.setTitle(d.title)
     c.setAuthor(d.organisation or "")
     c.setSubject(f"{_number_text(book).replace('  Rev. ', ' rev. ')}, issued {d.issue_date}")

@@ -495,11 +495,9 @@ def render_book_pdf(bc) -> bytes:
 # ------------------------------------------------------------------ render
 def _render(flow, *, title, subject, version, ok, right, foot) -> bytes:
     from reportlab import rl_config
-    from reportlab.pdfgen import canvas as rl_canvas
     a85, rl_config.useA85 = rl_config.useA85, 0     # binary streams: smaller and faster
     buf = io.BytesIO()
-    c = rl_canvas.Canvas(buf, pagesize=(PAGE_W, PAGE_H), invariant=1, initialFontName=fonts.SANS,
-                         pageCompression=1)
+    c = fonts.canvas(buf, pagesize=(PAGE_W, PAGE_H), initialFontName=fonts.SANS, pageCompression=1)
     c.setTitle(title)
     c.setAuthor("tablegen")
     c.setCreator(f"tablegen {version}")

@@ -28,7 +28,7 @@ harwick-gt2-charts.toml (a chart spec) is in the project's docs/examples/ folder
 OPTION_OF = {"kind": "--kind", "pressures": "--pressures", "volumes": "--volumes",
              "isotherms": "--isotherms", "T_range": "--T-range", "paper": "--paper",
              "units": "--units", "temperature_unit": "--T-unit", "title": "--title"}
-SPEC_KEYS = ("substance", "units", "date", "name", "charts")
+SPEC_KEYS = ("substance", "units", "date", "name", "barometer", "charts")
 
 
 def add_arguments(p):
@@ -56,6 +56,9 @@ def add_arguments(p):
     g.add_argument("--T-unit", dest="T_unit", default=None, metavar="UNIT",
                    help="temperature axis: K or C with SI, R or F with US")
     g.add_argument("--paper", default=None, metavar="SIZE", help="A4 (default) or A3, landscape")
+    g.add_argument("--barometer", default=None, metavar="P",
+                   help="barometric pressure that gauge pressures (12barg, 150psig) are read against, "
+                        "absolute (default 1.01325bar); in a spec file: barometer = \"0.95 bar\"")
     g = p.add_argument_group("files")
     g.add_argument("--spec", default=None, metavar="FILE",
                    help="TOML file with [[charts]] tables (and optional substance, units, date, name)")
@@ -66,7 +69,7 @@ def add_arguments(p):
     g.add_argument("--name", default=None, metavar="STEM", help="file name stem (default: the substance id)")
     g.add_argument("--date", default=None, metavar="TEXT",
                    help="document date printed in the footer (fixed text, for reproducible files)")
-    g.add_argument("--force", action="store_true", help="overwrite existing files")
+    g.add_argument("--force", action="store_true", help="replace chart files that already exist")
     add_datum_options(p)
 
 
@@ -127,6 +130,7 @@ def _split(text):
 
 def charts_from_options(args):
     from ..book.charts import parse_charts
+    from ..units import barometer_Pa
     raw = {"kind": args.kind or "both"}
     for key in ("pressures", "volumes", "isotherms"):
         v = getattr(args, key)
@@ -142,7 +146,7 @@ def charts_from_options(args):
     if args.overlay:
         raw["overlays"] = [parse_overlay_text(t, i) for i, t in enumerate(args.overlay)]
     try:
-        return parse_charts([raw], "cli", units="SI")
+        return parse_charts([raw], "cli", units="SI", barometer_Pa=barometer_Pa(args.barometer))
     except SpecError as e:
         raise SpecError(_cli_message(str(e))) from None
 
@@ -152,18 +156,23 @@ def load_spec(path: str):
 
     from ..book.charts import parse_charts
     from ..spec import read_toml
+    from ..units import barometer_Pa
     p = Path(path)
     raw = read_toml(p, "--spec")
     for k in raw:
         if k not in SPEC_KEYS:
             raise SpecError(f"{p.name}: {k}: unknown key; allowed: {', '.join(SPEC_KEYS)}")
-    for k in ("substance", "units", "date", "name"):
+    for k in ("substance", "units", "date", "name", "barometer"):
         if k in raw and not isinstance(raw[k], str):
             raise SpecError(f"{p.name}: {k}: must be a text")
     if "charts" not in raw:
         raise SpecError(f"{p.name}: charts: missing; add at least one [[charts]] table")
     units = raw.get("units", "SI")
-    specs = parse_charts(raw["charts"], f"{p.name}: charts", units=units)
+    try:
+        baro = barometer_Pa(raw.get("barometer"), "barometer")
+    except TablegenError as e:
+        raise SpecError(f"{p.name}: barometer: {e}") from None
+    specs = parse_charts(raw["charts"], f"{p.name}: charts", units=units, barometer_Pa=baro)
     return raw.get("substance"), units.upper(), raw.get("date"), raw.get("name"), specs
 
 
@@ -189,7 +198,8 @@ def run(args) -> int:
                                 ("--volumes", args.volumes), ("--isotherms", args.isotherms),
                                 ("--T-range", args.T_range), ("--overlay", args.overlay),
                                 ("--paper", args.paper), ("--T-unit", args.T_unit),
-                                ("--title", args.title), ("--units", args.units)) if v is not None]
+                                ("--title", args.title), ("--units", args.units),
+                                ("--barometer", args.barometer)) if v is not None]
         if clash:
             raise TablegenError(f"{clash[0]} cannot be combined with --spec; put it in the spec's "
                                 f"[[charts]] table instead")
@@ -203,6 +213,9 @@ def run(args) -> int:
             raise TablegenError("no substance given; e.g. 'tablegen chart air' (or use --spec FILE)")
         sub_name = args.substance
         specs = charts_from_options(args)
+    from ..texts import bad_character, one_line_rule
+    if date is not None and (len(date) > 100 or bad_character(date)):
+        raise TablegenError(f"--date: {one_line_rule()}, at most 100 characters")
     sub = substance_with_options(args, sub_name)
     footer = f"tablegen {__version__} · " + (sub.name if sub.name == sub.id else f"{sub.name} ({sub.id})")
     try:
@@ -212,18 +225,19 @@ def run(args) -> int:
 
     stem = _stem(args.name or name or sub.id)
     out = Path(args.out)
-    files = {}
+    from ..outfiles import check_files, write_files
+    jobs = {}
     if args.format in ("pdf", "both"):
-        files[out / f"{stem}-charts.pdf"] = C.chart_pdf(models, title=f"{sub.name}: T-s and h-s charts",
-                                                       date_text=date or "")
+        jobs[out / f"{stem}-charts.pdf"] = lambda: C.chart_pdf(models, title=f"{sub.name}: T-s and h-s charts",
+                                                              date_text=date or "")
     if args.format in ("png", "both"):
         seen = {}
         for m in models:
             seen[m.kind] = seen.get(m.kind, 0) + 1
             suffix = "" if sum(1 for x in models if x.kind == m.kind) == 1 else f"-{seen[m.kind]}"
-            files[out / f"{stem}-{m.kind}{suffix}.png"] = C.chart_png(m, m.paper, dpi=args.dpi)
-    from ..outfiles import write_all
-    written = write_all(files, args.force)
+            jobs[out / f"{stem}-{m.kind}{suffix}.png"] = lambda m=m: C.chart_png(m, m.paper, dpi=args.dpi)
+    check_files(jobs, args.force)
+    written = write_files({p: make() for p, make in jobs.items()}, args.force)
     for p in written:
         sys.stdout.write(f"{p}\n")
     notice(args, f"{len(models)} chart(s) of {sub.id} written to {out}/")

@@ -8,28 +8,66 @@ from ..errors import TablegenError
 from ..jsonout import clean, dumps  # noqa: F401  (the commands import them from here)
 
 
-def add_datum_options(p, *, with_pressure: bool = True):
+#: --h-datum help where the default follows tablegen.thermo.substance.default_datum.
+H_DATUM_DEFAULT_HELP = ("sensible[:T[:h]] (h(T) = h; the default, with T = 0 °C and h = 0, as no "
+                        "reaction takes place here) or formation (h(298.15 K) = enthalpy of "
+                        "formation, for reacting energy balances), e.g. sensible:25C")
+
+
+def add_datum_options(p, *, with_pressure: bool = True, default: str | None = "formation"):
+    """--h-datum, --p-ref, --anchor, --extrapolate; ``default=None``: the substance's default datum."""
     g = p.add_argument_group("datums and scales")
-    g.add_argument("--h-datum", default="formation", metavar="DATUM",
-                   help="formation (default: h(298.15 K) = enthalpy of formation) or "
-                        "sensible[:T[:h]] (h(T) = h kJ/kg, default 298.15 K and 0), e.g. sensible:0C")
+    g.add_argument("--h-datum", default=default, metavar="DATUM",
+                   help=H_DATUM_DEFAULT_HELP if default is None else
+                   "formation (default: h(298.15 K) = enthalpy of formation) or "
+                   "sensible[:T[:h]] (h(T) = h kJ/kg, default 298.15 K and 0), e.g. sensible:0C")
     g.add_argument("--p-ref", default="1bar", metavar="P",
-                   help="entropy reference pressure P°: 1bar (default) or 1atm (any pressure with a unit)")
+                   help="entropy reference pressure P°: 1bar (default) or 1atm (any absolute pressure with a unit)")
     g.add_argument("--anchor", default=None, metavar="T=..,Pr=..,vr=..",
                    help="Pr/vr scale: Pr and vr at temperature T (default T=298.15K,Pr=1,vr=1)")
     g.add_argument("--extrapolate", action="store_true",
                    help="allow temperatures outside the data range; such values are marked")
 
 
-def datum_from_text(text: str):
-    from ..thermo.substance import Datum
+def add_unit_options(p, *, pressure: bool = True, flow: str | None = None):
+    """--units, --T-unit; --P-unit and --barometer where pressures are taken; --flow with help ``flow``."""
+    g = p.add_argument_group(("flow, and " if flow else "") + "units of the answer (default: the units you typed)")
+    if flow:
+        g.add_argument("--flow", default=None, metavar="FLOW", help=flow)
+    g.add_argument("--units", default=None, metavar="SYSTEM",
+                   help="auto (default: the units of the question), SI (°C and K, bar, kJ/kg, kW, kg/s) "
+                        "or US (°F and °R, psia, Btu/lbm, hp, lb/h)")
+    g.add_argument("--T-unit", dest="T_unit", default=None, metavar="UNIT",
+                   help="temperature unit of the answer: C, K, F or R (°C and °F come with K or °R beside)")
+    if pressure:
+        g.add_argument("--P-unit", dest="P_unit", default=None, metavar="UNIT",
+                       help="pressure unit of the answer: bar, kPa, MPa, psia, ..., or a gauge unit "
+                            "barg, mbarg, kPag, psig (then the absolute pressure is printed beside)")
+        g.add_argument("--barometer", default=None, metavar="P",
+                       help="barometric pressure that gauge values (barg, mbarg, kPag, psig) are read against, "
+                            "absolute, e.g. 0.95bar or 950mbar (default 1.01325bar); printed beside "
+                            "every converted value")
+
+
+def datum_from_text(text: str | None, substance=None, *, by_rule: bool = False):
+    """--h-datum text -> Datum.
+
+    ``by_rule`` (state, process): no text gives the substance's default datum
+    (thermo.substance.default_datum) and a bare ``sensible`` puts h = 0 at
+    0 °C, as that default does. Otherwise (compare, chart) no text is the
+    formation datum and a bare ``sensible`` means h = 0 at 298.15 K.
+    """
+    from ..thermo.substance import SENSIBLE_DATUM_T_K, T_REF, Datum, default_datum
     from ..units import quantity, temperature_K
-    t = (text or "formation").strip()
+    if text is None:
+        return default_datum(substance) if by_rule else Datum("formation")
+    t = text.strip()
     if t == "formation":
         return Datum("formation")
     if t == "sensible" or t.startswith("sensible:"):
         parts = t.split(":")[1:]
-        T = temperature_K(parts[0], "--h-datum temperature") if parts and parts[0] else 298.15
+        T = temperature_K(parts[0], "--h-datum temperature") if parts and parts[0] else \
+            (SENSIBLE_DATUM_T_K if by_rule else T_REF)
         h = quantity(parts[1], "specific_energy", "--h-datum enthalpy") if len(parts) > 1 else 0.0
         return Datum("sensible", T, h)
     raise TablegenError(f"--h-datum {text!r} is not known; allowed: formation, sensible, sensible:T, sensible:T:h")
@@ -72,20 +110,51 @@ def data_notices(args):
     return lib
 
 
-def substance_with_options(args, name: str):
-    """Resolve a substance and apply --h-datum, --p-ref and --anchor."""
+def substance_with_options(args, name: str, *, by_rule: bool = False):
+    """Resolve a substance and apply --h-datum, --p-ref and --anchor (see datum_from_text)."""
     from .. import api
     from ..units import pressure_Pa
     data_notices(args)
     sub = api.substance(name, source=args.source, data=args.data)
-    return sub.with_options(datum=datum_from_text(getattr(args, "h_datum", None)),
+    return sub.with_options(datum=datum_from_text(getattr(args, "h_datum", None), sub, by_rule=by_rule),
                             P_ref_Pa=pressure_Pa(getattr(args, "p_ref", "1bar") or "1bar", "--p-ref"),
                             anchor=anchor_from_text(getattr(args, "anchor", None)))
 
 
+def published(args, out, files, notes, what: str, detail: str = "", paths: bool = True) -> None:
+    """After a folder was published: its notes, one 'wrote' line, and (paths) every file on stdout."""
+    from ..outfiles import MANIFEST
+    for n in notes:
+        notice(args, n)
+    notice(args, f"wrote {len(files)} {what} and their manifest {MANIFEST} to {out}/{detail}")
+    if paths:
+        for name in sorted([*files, MANIFEST]):
+            print(out / name)
 
+
+#: Notices of the running command, printed only once it has succeeded (None: print at once).
+_held: list | None = None
+
+
+def hold_notices() -> None:
+    """Keep notices until the command ends, so a refusal is the only line on stderr."""
+    global _held
+    _held = []
+
+
+def release_notices(print_them: bool) -> None:
+    """Print the held notices (after success) or drop them (after a refusal)."""
+    global _held
+    held, _held = _held or [], None
+    if print_them:
+        for text in held:
+            print(text, file=sys.stderr)
 
 
 def notice(args, text: str):
-    if not getattr(args, "quiet", False):
+    if getattr(args, "quiet", False):
+        return
+    if _held is not None:
+        _held.append(text)
+    else:
         print(text, file=sys.stderr)

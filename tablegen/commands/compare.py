@@ -255,27 +255,20 @@ def compute(args):
     return cmp, files, notes
 
 
-def write_outputs(files: dict, force: bool) -> None:
-    """Write every file through tablegen.outfiles; any fault is an output problem (exit 3).
-
-    Files this run created are removed again if a later one cannot be written, so a
-    failed run leaves no new file behind.
-    """
-    from ..outfiles import write_all
-    created = [Path(p) for p in files if not Path(p).exists()]
+def write_outputs(files: dict, force: bool, about=()) -> list[str]:
+    """Publish the files as the one set of their folder (tablegen.outfiles.publish_folder: staged
+    beside it, swapped in whole, with a manifest); any refusal or fault there is an output
+    problem (exit 3), after which the folder holds what it held. Returns notes to print."""
+    from .. import outfiles
+    from ..errors import Interrupted
+    folder = Path(next(iter(files))).parent
     try:
-        write_all(files, force)
+        return outfiles.publish_folder(folder, {Path(p).name: d for p, d in files.items()}, force=force,
+                                       about=about, what="comparison")
+    except Interrupted:
+        raise
     except TablegenError as e:
         raise OutputProblem(str(e)) from None
-    except OSError as e:
-        for p in created:
-            try:
-                p.unlink()
-            except OSError:
-                pass
-        where = e.filename or next(iter(files))
-        raise OutputProblem(f"cannot write {where}: {e.strerror or e}; free space, fix the folder's "
-                            f"permissions, or choose another --out folder") from None
 
 
 def text_summary(cmp, label: str = "") -> str:
@@ -354,7 +347,9 @@ def run(args) -> int:
     from ..compare_hints import suggested_options
     from ..compare_output import summary
     cmp, files, notes = compute(args)
-    write_outputs(files, args.force)
+    notes += write_outputs(files, args.force, [f"issue: comparison of {cmp.options.get('target') or cmp.substance['id']} "
+                                               f"against {cmp.reference.path} (sha256 {cmp.reference.sha256}): "
+                                               f"{cmp.verdict}"])
     for n in notes:
         notice(args, n)
     if args.json:
@@ -366,5 +361,5 @@ def run(args) -> int:
     if cmp.hints:
         notice(args, f"hint: together: {' '.join(suggested_options(cmp.hints))}")
     folder = Path(next(iter(files))).parent
-    notice(args, f"wrote {folder}/: {', '.join(FILES)}")
+    notice(args, f"wrote {folder}/: {', '.join(FILES)} and their manifest tablegen-issue.sha256")
     return 0 if cmp.passed else 1

@@ -183,7 +183,9 @@ def book_text(bc) -> str:
 def run_book(args) -> int:
     from ..compare_output import book_summary
     bc, files, notes = compute_book(args)
-    write_outputs(files, args.force)
+    notes += write_outputs(files, args.force, [f"issue: comparison of book {bc.spec.get('name', '')} against "
+                                               f"the folder {bc.folder.path}: "
+                                               f"{'PASS' if bc.passed else 'FAIL'}"])
     for n in notes:
         notice(args, n)
     sys.stdout.write(dumps(book_summary(bc)) if args.json else book_text(bc))
@@ -194,5 +196,5 @@ def run_book(args) -> int:
         for line in hint_lines(t.comparison.hints, f"{t.name}: "):
             notice(args, line)
     folder = Path(next(iter(files))).parent
-    notice(args, f"wrote {folder}/: {', '.join(FILES)}")
+    notice(args, f"wrote {folder}/: {', '.join(FILES)} and their manifest tablegen-issue.sha256")
     return 0 if bc.passed else 1

@@ -5,7 +5,7 @@ from __future__ import annotations
 from importlib import resources
 from pathlib import Path
 
-from .common import notice
+from .common import notice, published
 
 OUT = Path("output") / "demo"
 
@@ -24,30 +24,38 @@ def add_arguments(p):
                 "four editions: the A4 desk copy, the A5 pocket copy for the shift engineers (two-sided,\n"
                 "also imposed as an A4 booklet to print), a US Letter copy in US customary units and an\n"
                 "A3 wall chart. They hold dry air, the fuel blend, its flue gas and pure CO2, H2O and N2.\n"
-                "The demo always overwrites the files it writes into its output folder (no --force\n"
-                "needed); other files there are left alone. The spec it builds from is named on stderr:\n"
-                "copy it to start a book of your own.\n\n"
+                "The demo replaces its own earlier issue in its output folder (no --force needed),\n"
+                "publishing every edition as one set; a folder that holds other files is refused, so they\n"
+                "are never touched. The spec it builds from is named on stderr: copy it to start a book\n"
+                "of your own.\n\n"
                 "example:\n"
                 "  tablegen demo\n"
                 "  tablegen demo --out issued/demo")
 
 
 def run(args) -> int:
+    from .. import outfiles
     from .. import spec as specmod
-    from ..book.build import file_names, merge, progress_for, render_files, write
+    from ..book.build import all_names, file_names, issue_text, merge, progress_for, render_files
     from ..book.pdf import render_booklet
     out = Path(args.out) if args.out else OUT
-    all_files = {}
-    for path in spec_paths():
-        notice(args, f"demo spec {path}")
-        for spec in specmod.load_editions(path, source=args.source, data=args.data):
-            bar = progress_for(args, len(spec.tables), f"building {spec.name} ({spec.edition.name})")
-            files, book = render_files(spec, out, bar)
-            if spec.document.paper == "A5":
-                files[out / file_names(spec)["booklet"]] = render_booklet(book)
-            merge(all_files, files)
-    paths = write(all_files, force=True)
-    notice(args, f"wrote {len(paths)} demo files to {out}/ (the demo overwrites its own files)")
-    for p in paths:
-        print(p)
+    specs = [(path, e) for path in spec_paths()
+             for e in specmod.load_editions(path, source=args.source, data=args.data)]
+    outfiles.check_folder(out, [n for _, s in specs for n in all_names(s, s.document.paper == "A5")],
+                          force=True, what="demo")
+    all_files, about, seen = {}, [], set()
+    for path, spec in specs:
+        if path not in seen:
+            notice(args, f"demo spec {path}")
+            seen.add(path)
+        bar = progress_for(args, len(spec.tables), f"building {spec.name} ({spec.edition.name})")
+        files, book = render_files(spec, bar)
+        if spec.document.paper == "A5":
+            files[file_names(spec)["booklet"]] = render_booklet(book)
+        merge(all_files, files)
+        if not about:
+            about.append(f"issue: {issue_text(book)}")
+        about.append(f"edition {spec.edition.name}: {file_names(spec)['pdf']} ({spec.edition.label})")
+    notes = outfiles.publish_folder(out, all_files, force=True, about=about, what="demo")
+    published(args, out, all_files, notes, "demo files", " (the demo replaces its own earlier issue)")
     return 0

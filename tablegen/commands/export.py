@@ -20,7 +20,7 @@ import numpy as np
 from ..data.formats import TM4513, TP2002
 from ..errors import TablegenError
 from ..thermo.polynomial import NINE, SEVEN
-from .common import data_notices
+from .common import data_notices, notice
 
 EXAMPLE = """example:
   tablegen export "CH4=0.9,C2H6=0.06,N2=0.04" --format toml --id SITE-GAS --out site-gas.toml
@@ -48,7 +48,7 @@ def add_arguments(p):
                    help="species id of the record (default: the species id; for a mixture its name "
                         "plus '-mix', or MIX- and a digest of the composition)")
     p.add_argument("--out", default=None, metavar="FILE", help="write to FILE instead of stdout")
-    p.add_argument("--force", action="store_true", help="overwrite FILE if it exists")
+    p.add_argument("--force", action="store_true", help="replace FILE if it exists")
 
 
 def default_id(sub) -> str:
@@ -207,21 +207,22 @@ def render(sub, lib, fmt: str, rid: str) -> str:
 
 def run(args) -> int:
     from .. import api
-    from ..outfiles import write_all
+    from ..outfiles import check_files, write_files
+    if args.out:
+        check_files([args.out], args.force)
     lib = data_notices(args)
     sub = api.substance(args.substance, source=args.source, data=args.data)
     rid = check_id(args.id if args.id is not None else default_id(sub))
-    if args.id is None and sub.kind == "mixture" and not args.quiet:
-        print(f"note: record id {rid} (choose another with --id)", file=sys.stderr)
+    if args.id is None and sub.kind == "mixture":
+        notice(args, f"note: record id {rid} (choose another with --id)")
     text = render(sub, lib, args.format, rid)
-    if args.format != "toml" and sub.kind == "mixture" and not args.quiet:
+    if args.format != "toml" and sub.kind == "mixture":
         digits = 9 if args.format == TM4513 else 10
-        print(f"note: the {args.format} format holds {digits} significant digits a coefficient; "
-              f"--format toml keeps every digit of the collapsed polynomial", file=sys.stderr)
+        notice(args, f"note: the {args.format} format holds {digits} significant digits a coefficient; "
+                     f"--format toml keeps every digit of the collapsed polynomial")
     if args.out:
-        write_all({args.out: text}, args.force)
-        if not args.quiet:
-            print(f"wrote {args.out} (record {rid}, {args.format})", file=sys.stderr)
+        write_files({args.out: text}, args.force)
+        notice(args, f"wrote {args.out} (record {rid}, {args.format})")
     else:
         sys.stdout.write(text)
     return 0

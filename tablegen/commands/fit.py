@@ -71,7 +71,7 @@ def add_arguments(p):
                         "(NASA/TP-2002-211556) or toml (gasdata); default: tm-4513 for the 7-coefficient "
                         "form, tp-2002 for the 9-coefficient form")
     p.add_argument("--out", default=None, metavar="FILE", help="write to FILE instead of stdout")
-    p.add_argument("--force", action="store_true", help="overwrite FILE if it exists")
+    p.add_argument("--force", action="store_true", help="replace FILE if it exists")
 
 
 def parse_formula(text: str) -> dict:
@@ -191,7 +191,7 @@ def report(fit, tab, path: str) -> list[str]:
 def run(args) -> int:
     from ..data.validate import check_polynomial
     from ..fitting import fit_cp_table
-    from ..outfiles import write_all
+    from ..outfiles import check_files, write_files
     from ..units import quantity, temperature_K
     from .common import data_notices, notice
     from .export import check_id, with_poly, write_record
@@ -199,6 +199,8 @@ def run(args) -> int:
     if fmt == TM4513 and args.form != SEVEN:
         raise TablegenError(f"--format {TM4513} holds only the 7-coefficient form; use --form {SEVEN}, or "
                             f"--format {TP2002} or toml")
+    if args.out:
+        check_files([args.out], args.force)
     lib = data_notices(args)
     elements = parse_formula(args.formula)
     M = lib.weights.molar_mass(elements, f"--formula {args.formula}: ")
@@ -250,7 +252,7 @@ def run(args) -> int:
          "fit_input": Path(args.table).name}
     text = write_record(with_poly(r, fit.poly), fmt)
     if args.out:
-        write_all({args.out: text}, args.force)
+        write_files({args.out: text}, args.force)
         notice(args, f"wrote {args.out} (record {rid}, {fmt})")
     else:
         sys.stdout.write(text)

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import sys
 
-from .common import dumps
+from .common import dumps, notice
 
 EXAMPLE = """example:
   tablegen species
@@ -98,12 +98,14 @@ def sources(lib, name: str, as_json: bool) -> int:
     else:
         print(f"default source: {rec.dataset} (the only data set holding it)")
     print("figures: max and rms of source - against over each band; cp relative, "
-          "h - h(298.15 K) in J/mol, s° in J/(mol K) (* s° - s°(298.15 K))")
+          "h - h(298.15 K) in J/mol, s° in J/(mol K) (* s° - s°(298.15 K); "
+          "~ one source beyond its equation's range)")
     head = ["source", "against", "band K", "cp max %", "cp rms %", "dh max", "dh rms", "s° max", "s° rms"]
     table = [head]
     for r in rows:
         star = "*" if r.get("s0_relative_to_298") else ""
-        table.append([r["source"], r["against"], f"{r['band_K'][0]:g}-{r['band_K'][1]:g}",
+        beyond = "~" if r.get("beyond_range_of") else ""
+        table.append([r["source"], r["against"], f"{r['band_K'][0]:g}-{r['band_K'][1]:g}{beyond}",
                       f"{r['cp_max_rel'] * 100:.3f}", f"{r['cp_rms_rel'] * 100:.3f}",
                       f"{r['dh_max_J_per_mol']:.3g}", f"{r['dh_rms_J_per_mol']:.3g}",
                       f"{r['s0_max_J_per_molK']:.3g}{star}", f"{r['s0_rms_J_per_molK']:.3g}{star}"])
@@ -152,8 +154,7 @@ def run(args) -> int:
     from ..data.library import library
     lib = library(args.data, strict=not args.check)
     for m in lib.messages:
-        if not args.quiet:
-            print(f"note: {m}", file=sys.stderr)
+        notice(args, f"note: {m}")
     if args.sources:
         return sources(lib, args.sources, args.json)
     if args.check:

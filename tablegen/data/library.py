@@ -28,6 +28,7 @@ import numpy as np
 
 from ..constants import R_MOLAR
 from ..errors import DataError, NameLookupError
+from ..tomlread import MAX_DEPTH, nesting_depth, read_text
 from ..thermo.polynomial import FORMS, SEVEN, Polynomial, seven_to_nine
 from . import former_names
 from . import formats, validate
@@ -36,6 +37,9 @@ from . import formats, validate
 NOT_DATASETS = {"atomic-weights.toml", "mixtures.toml", "defaults.toml", "agreement.toml",
                 "critical.toml", "incompressible.toml", "uncertainty.toml", "codata1989.toml",
                 "agreement-janaf.toml"}
+
+#: Largest user data file read (a NASA thermo file of every species is about 2 MB).
+MAX_DATA_BYTES = 32 << 20
 
 #: Reference pressure of every polynomial once loaded (NASA 1993 and 2002 use 1 bar).
 P_STD_PA = 100000.0
@@ -161,16 +165,23 @@ class Dataset:
     _NAME = re.compile(r'^name\s*=\s*"([^"]*)"', re.M)
     _ALIASES = re.compile(r"^aliases\s*=\s*(\[[^\]\n]*\])", re.M)
 
-    def __init__(self, path: Path, weights: AtomicWeights, *, user: bool = False):
+    def __init__(self, path: Path, weights: AtomicWeights, *, user: bool = False, text: str | None = None):
         self.path = Path(path)
         self.weights = weights
         self.user = user
         self.label = str(self.path) if user else self.path.name
         self.notes: list[str] = []
-        try:
-            self.text = self.path.read_text(encoding="utf-8")
-        except (OSError, UnicodeDecodeError) as e:
-            raise DataError(f"{self.path}: cannot read ({e}); a gasdata file must be UTF-8 text") from None
+        if text is None:
+            try:
+                text = self.path.read_text(encoding="utf-8")
+            except (OSError, UnicodeDecodeError) as e:
+                raise DataError(f"{self.path}: cannot read ({e}); a gasdata file must be UTF-8 text") from None
+        if user:
+            depth, line = nesting_depth(text)
+            if depth > MAX_DEPTH:
+                raise DataError(f"{self.path}:{line}: arrays or inline tables nested more than {MAX_DEPTH} "
+                                f"deep; at most {MAX_DEPTH} levels are allowed")
+        self.text = text
         starts = [m.start() for m in self._HEADER.finditer(self.text)]
         head = self.text[: starts[0]] if starts else self.text
         self._blocks = [(s, self.text[s: e]) for s, e in zip(starts, [*starts[1:], len(self.text)])]
@@ -355,13 +366,10 @@ def open_dataset(path: Path, weights: AtomicWeights, *, user: bool) -> Dataset:
     path = Path(path)
     if not user:
         return Dataset(path, weights)
-    try:
-        text = path.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as e:
-        raise DataError(f"{path}: cannot read ({e}); a data file must be UTF-8 text") from None
+    text = read_text(path, str(path), DataError, max_bytes=MAX_DATA_BYTES, what="data file")
     fmt = formats.detect(path, text)
     if fmt == "toml":
-        return Dataset(path, weights, user=True)
+        return Dataset(path, weights, user=True, text=text)
     return CardDataset(path, weights, fmt, text)
 
 
@@ -478,6 +486,11 @@ class Library:
         self.load_errors: list[str] = []
         self.strict = strict
         self.announced = False
+        #: (data set asked for, species id) -> data set the record came from, for each
+        #: species a ``source`` did not hold (read and cleared by take_fallbacks)
+        self.fallbacks: dict = {}
+        #: every user data file read (user folder, --data, a spec's [data]), in order
+        self.user_files: list[Path] = []
         for p in sorted(self.root.glob("*.toml")):
             if p.name not in NOT_DATASETS:
                 self._add(p, announce=False)
@@ -514,6 +527,7 @@ class Library:
             ds = Dataset(path, self.weights)
             self.datasets[ds.id] = ds
             return
+        self.user_files.append(Path(path))
         try:
             ds = open_dataset(path, self.weights, user=True)
             names = ds.names  # noqa: F841  (duplicate ids are refused here)
@@ -626,7 +640,9 @@ class Library:
             if pref and pref in self.datasets and pref != base.dataset:
                 r = self.datasets[pref].get(base.id)
                 if r is not None:
-                    return r
+                    base = r
+            if source is not None:
+                self.fallbacks.setdefault((source, base.id), base.dataset)
             return base
         raise NameLookupError(self._unknown(name))
 
@@ -678,6 +694,21 @@ class Library:
 
 
 _LIB: dict = {}
+
+
+def take_fallbacks() -> list[str]:
+    """Notes on the species a requested data set did not hold, since the last call.
+
+    ``--source nasa2002-air`` holds no argon, so air takes its Ar from Ar's default
+    source; the command line prints these notes after a command succeeds, so that
+    no table mixes data sets silently.
+    """
+    out = []
+    for lib in _LIB.values():
+        for (src, sid), got in lib.fallbacks.items():
+            out.append(f"data set {src} holds no {sid}; {sid} was taken from {got} (its default source)")
+        lib.fallbacks.clear()
+    return list(dict.fromkeys(out))
 
 
 def library(extra_paths=(), *, strict: bool = True) -> Library:

@@ -194,16 +194,20 @@ class Polynomial:
         if T.size <= SMALL:
             return {k: v.reshape(shape) for k, v in self._evaluate_small(T, want).items()}
         out = {k: np.empty_like(T) for k in want}
+        # one set of scratch rows for the whole call (log, 1/T, two temporaries, gathered
+        # T and three gathered results): no temporary array per term, so no fresh memory
+        # pages per block, which cost more than the arithmetic
+        scratch = np.empty((8, min(BLOCK, T.size)))
         for a in range(0, T.size, BLOCK):
             b = min(a + BLOCK, T.size)
             part = {k: v[a:b] for k, v in out.items()}
-            self._evaluate_block(T[a:b], part)
+            self._evaluate_block(T[a:b], part, scratch)
         return {k: v.reshape(shape) for k, v in out.items()}
 
-    def _evaluate_block(self, T, out):
+    def _evaluate_block(self, T, out, scratch):
         n = self.n_intervals
         if n == 1:
-            self._eval_run(T, 0, out)
+            self._eval_run(T, 0, out, scratch)
             return
         if T.size < 2 or not np.any(T[1:] < T[:-1]):
             # sorted input (every table grid): each interval is a slice
@@ -211,7 +215,7 @@ class Polynomial:
             for k in range(n):
                 if edges[k] < edges[k + 1]:
                     sl = slice(edges[k], edges[k + 1])
-                    self._eval_run(T[sl], k, {key: v[sl] for key, v in out.items()})
+                    self._eval_run(T[sl], k, {key: v[sl] for key, v in out.items()}, scratch)
             return
         # a breakpoint belongs to the lower interval: count the bounds strictly below T
         # (a few vector compares beat a binary search per point)
@@ -220,47 +224,57 @@ class Polynomial:
             idx += T > b
         # unsorted: the points of each interval (index lists are cheaper than a sort),
         # evaluated as one run with scalar coefficients, results scattered back
+        rows = {"cp": 5, "h": 6, "s": 7}
         for k in range(n):
             sel = np.flatnonzero(idx == k)
             if sel.size:
-                part = {key: np.empty(sel.size) for key in out}
-                self._eval_run(T[sel], k, part)
+                m = sel.size
+                Tk = np.take(T, sel, out=scratch[4, :m])
+                part = {key: scratch[rows[key], :m] for key in out}
+                self._eval_run(Tk, k, part, scratch)
                 for key in out:
                     out[key][sel] = part[key]
 
-    def _eval_run(self, T, k, out):
-        neg = self._has_neg and bool(np.any(self.coeffs[k, :2] != 0.0))
-        need_log = "s" in out or ("h" in out and neg)
-        lnT = np.log(T) if need_log else None
-        inv = 1.0 / T if neg else None
-        self._eval_block(T, lnT, inv, self.coeffs[k], self._h[:, k], self._s[:, k], out, neg)
-
-    def _eval_block(self, T, lnT, inv, c, h, s, out, neg):
-        """Horner evaluation, in place, into the arrays of ``out``.
-
-        In-place operations keep the cost at a few passes over memory per
-        power of T, with no temporary arrays.
-        """
+    def _eval_run(self, T, k, out, scratch):
+        neg = self._has_neg and bool(self.coeffs[k, 0] != 0.0 or self.coeffs[k, 1] != 0.0)
+        m = T.size
+        lnT = np.log(T, out=scratch[0, :m]) if "s" in out or ("h" in out and neg) else None
+        inv = np.divide(1.0, T, out=scratch[1, :m]) if neg else None
+        tmp, tmp2 = scratch[2, :m], scratch[3, :m]
+        c, h, s = self.coeffs[k], self._h[:, k], self._s[:, k]
+        # The operations and their order are those of Polynomial.point (plain floats), so
+        # the two give the same bits.
         if "cp" in out:
-            _horner(out["cp"], T, (c[2], c[3], c[4], c[5], c[6]))
-            if neg:
-                out["cp"] += inv * (c[1] + c[0] * inv)
+            v = out["cp"]
+            _horner(v, T, (c[2], c[3], c[4], c[5], c[6]))
+            if neg:                            # + inv (a2 + a1 inv)
+                np.multiply(inv, c[0], out=tmp)
+                tmp += c[1]
+                tmp *= inv
+                v += tmp
         if "h" in out:
-            # h/R = b1 + T (a3 + T (a4/2 + ...)) [+ -a1/T + a2 ln T]
+            # h/R = b1 + T (a3 + T (a4/2 + ...)) [+ (-a1/T + a2 ln T)]
             v = out["h"]
             _horner(v, T, (h[2], h[3], h[4], h[5], h[6]))
             v *= T
             v += h[7]
             if neg:
-                v += h[0] * inv + h[1] * lnT
+                np.multiply(inv, h[0], out=tmp)
+                np.multiply(lnT, h[1], out=tmp2)
+                tmp += tmp2
+                v += tmp
         if "s" in out:
             v = out["s"]
             _horner(v, T, (s[3], s[4], s[5], s[6]))
             v *= T
             v += s[7]
-            v += s[2] * lnT
-            if neg:
-                v += inv * (s[1] + s[0] * inv)
+            np.multiply(lnT, s[2], out=tmp)
+            v += tmp
+            if neg:                            # + inv (s1 + s0 inv)
+                np.multiply(inv, s[0], out=tmp)
+                tmp += s[1]
+                tmp *= inv
+                v += tmp
 
 
     # ------------------------------------------------------------- algebra

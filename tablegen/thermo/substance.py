@@ -20,11 +20,16 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from ..constants import P_STD, R_MOLAR, T_REF  # noqa: F401  (re-exported)
-from ..errors import RangeError, TablegenError
+from ..errors import InputError, RangeError, TablegenError
 from .polynomial import Polynomial
 
 #: Relative tolerance of the inverse functions (in T).
 INVERSE_RTOL = 1e-10
+#: Extrapolation reaches at most this factor beyond the data range: from T_min / 2 to
+#: 2 T_max (a polynomial fit says nothing further out; docs/spec.md, "extrapolate").
+EXTRAPOLATION_FACTOR = 2.0
+#: Largest |ln Pr| and |ln vr| given: Pr and vr stay between 1e-300 and 1e300.
+LN_SCALE_MAX = 690.0
 #: A point leaves the inverse iteration when its Newton step is below this part of T
 #: (above the rounding noise of the published forms, about 1e-11 in narrow intervals)
 #: (Newton converges quadratically: the next step would be far below INVERSE_RTOL).
@@ -59,6 +64,38 @@ class Datum:
         if self.kind == "formation":
             return "h(298.15 K) = enthalpy of formation (NASA/JANAF convention)"
         return f"h({self.T_ref_K:g} K) = {self.h_ref_J_per_kg / 1000:g} kJ/kg (sensible enthalpy)"
+
+
+#: Temperature of the sensible datum a substance gets by default, K (0 °C).
+SENSIBLE_DATUM_T_K = 273.15
+
+
+def default_datum(substance=None, *, reacting: bool = False) -> Datum:
+    """The enthalpy datum a substance gets where the user names none.
+
+    The rule: a substance that does not react in the calculation at hand gets
+    the sensible datum h = 0 at 0 °C (273.15 K); a substance in a reacting
+    energy balance gets the formation datum (h(298.15 K) = ΔfH°).
+
+    Why: without reaction only differences of h enter an answer (work, heat,
+    duty), and h read as the heat content above 0 °C is what a person checks
+    against a gauge or a heat balance (air at 15 °C: h = +15.07 kJ/kg rather
+    than the -10.05 kJ/kg of the formation datum). In a reacting balance the
+    enthalpies of formation must be in h, or the heat of reaction is lost.
+    Every state and process step of tablegen keeps the composition frozen, so
+    ``state`` and ``process`` use the sensible datum; a table book or a
+    combustion balance passes ``reacting=True`` where its gas reacts.
+
+    Parameters
+    ----------
+    substance : the Substance (the rule does not yet depend on its kind; the
+        argument is there so that callers need not change when it does)
+    reacting : the substance takes part in a reaction whose energy balance
+        uses these enthalpies
+    """
+    if reacting:
+        return Datum("formation")
+    return Datum("sensible", SENSIBLE_DATUM_T_K, 0.0)
 
 
 @dataclass(frozen=True, slots=True)
@@ -108,6 +145,9 @@ class Substance:
     anchor: Anchor = Anchor()
     mixing_entropy_R: float = 0.0  # -Σ y ln y, already inside poly
     cautions: tuple = ()           # texts every document that shows this substance must print
+    dew_point_K: float | None = None     # water dew point at dew_point_P_Pa (mixtures holding H2O), K
+    dew_point_P_Pa: float | None = None  # the pressure it is stated at (the gas's stated pressure), Pa
+    origin: object = None          # what the substance was made from (e.g. a combustion result), or None
     _cache: dict = field(default_factory=dict, repr=False)
 
     # --------------------------------------------------------------- options
@@ -146,6 +186,13 @@ class Substance:
             raise RangeError(f"{self.id}: temperatures must be finite and above 0 K")
         lo, hi = self.T_min, self.T_max
         if extrapolate:
+            x_lo, x_hi = lo / EXTRAPOLATION_FACTOR, hi * EXTRAPOLATION_FACTOR
+            if t_lo < x_lo or t_hi > x_hi:
+                bad = t_lo if t_lo < x_lo else t_hi
+                raise RangeError(
+                    f"{self.id}: T = {bad:g} K is beyond the extrapolation range {x_lo:g}-{x_hi:g} K "
+                    f"(data {lo:g}-{hi:g} K); allowed: from half the lowest to twice the highest "
+                    f"temperature of the data")
             return (T < lo) | (T > hi)
         if t_lo >= lo and t_hi <= hi:
             return None
@@ -157,6 +204,27 @@ class Substance:
                 f"allowed: {lo:g} to {hi:g} K, or opt in to extrapolation (--extrapolate), "
                 f"which marks every extrapolated value")
         return None
+
+    def _check_scales(self, ln_lo: float, ln_hi: float, T_lo: float, T_hi: float) -> None:
+        """Refuse Pr or vr beyond 1e300 or below 1e-300 (ln Pr from ln_lo to ln_hi at T_lo-T_hi)."""
+        a = self.anchor
+        base = self._cache.get("ln_vr_base")
+        if base is None:
+            base = self._cache["ln_vr_base"] = math.log(a.vr) + math.log(a.Pr) - math.log(a.T_K)
+        ln_vr = (base + math.log(T_lo) - ln_hi, base + math.log(T_hi) - ln_lo)
+        if max(abs(ln_lo), abs(ln_hi), abs(ln_vr[0]), abs(ln_vr[1])) < LN_SCALE_MAX:
+            return
+        raise RangeError(f"{self.id}: Pr or vr would be beyond 1e300 or below 1e-300 with the anchor Pr = "
+                         f"{a.Pr:g}, vr = {a.vr:g} at {a.T_K:g} K; allowed: an anchor that keeps Pr and vr "
+                         f"between 1e-300 and 1e300 over the temperatures asked")
+
+    def _check_cv(self, T, cv_m) -> None:
+        """Refuse an extrapolation where the polynomial gives cp <= R (cv <= 0), which no gas has."""
+        bad = np.asarray(T)[~(np.asarray(cv_m) > 0)]
+        if bad.size:
+            raise RangeError(f"{self.id}: extrapolated to T = {float(bad.flat[0]):g} K the polynomial gives "
+                             f"cp <= R (cv <= 0), which no gas has; allowed: temperatures nearer the data "
+                             f"range {self.T_min:g}-{self.T_max:g} K")
 
     # ------------------------------------------------------------- constants
     def _constants(self):
@@ -229,6 +297,8 @@ class Substance:
             cp_m = raw["cp"]
             cp_m *= R_MOLAR
             cv_m = cp_m - R_MOLAR
+            if mask is not None and mask.any():
+                self._check_cv(T[mask], cv_m[mask])
             k = cp_m / cv_m
             out.update(cp_molar=cp_m, cv_molar=cv_m, k=k)
             if "cp" in want:
@@ -240,10 +310,11 @@ class Substance:
         if "h" in funcs:
             hR = raw["h"]
             if "dh298_molar" in want:
-                out["dh298_molar"] = (hR - c["h298R"]) * R_MOLAR
+                out["dh298_molar"] = _set_where((hR - c["h298R"]) * R_MOLAR, T == T_REF, 0.0)
             h_m = hR
             h_m *= R_MOLAR
             h_m += c["h_off"]
+            h_m = self._exact_at_datum(T, h_m, self.M * 1e-3)
             out["h_molar"] = h_m
             if want & {"u", "u_molar"}:
                 u_m = h_m - R_MOLAR * T
@@ -261,13 +332,16 @@ class Substance:
             if want & {"Pr", "vr"}:
                 lnPr = sR
                 lnPr -= c["sR_anchor"] - math.log(self.anchor.Pr)
+                if T.size:
+                    self._check_scales(float(lnPr.min()), float(lnPr.max()), float(T.min()), float(T.max()))
+                at_anchor = T == self.anchor.T_K     # the anchor values exactly, as the datum
                 if "Pr" in want:
-                    out["Pr"] = np.exp(lnPr)
+                    out["Pr"] = _set_where(np.exp(lnPr), at_anchor, self.anchor.Pr)
                 if "vr" in want:
                     vr = np.exp(math.log(self.anchor.Pr) - lnPr)
                     vr *= T
                     vr *= self.anchor.vr / self.anchor.T_K
-                    out["vr"] = vr
+                    out["vr"] = _set_where(vr, at_anchor, self.anchor.vr)
             if want & {"g0", "g0_molar"}:
                 g0_m = out["h_molar"] - T * s0_m
                 out["g0_molar"] = g0_m
@@ -280,7 +354,7 @@ class Substance:
             try:
                 shape = np.broadcast_shapes(P.shape, T.shape)
             except ValueError:
-                raise TablegenError(f"{self.id}: {P.size} pressures for {T.size} temperatures; give one "
+                raise InputError(f"{self.id}: {P.size} pressures for {T.size} temperatures; give one "
                                     f"pressure, or one per temperature") from None
             out["P_Pa"] = np.broadcast_to(P, shape)
             if want & {"s", "s_molar"}:
@@ -301,6 +375,15 @@ class Substance:
             out.update(uncertainty_columns(self, T, P))
         return out
 
+    def _exact_at_datum(self, T: np.ndarray, h, per_kg: float):
+        """h at the datum temperature is the datum value by definition: set it exactly,
+        not as the difference of two evaluations that the paths (one state, small array,
+        blocked) round apart by an ulp of the formation enthalpy. ``per_kg``: kg per unit
+        of ``h``'s amount (M/1000 for molar values, 1 for mass values)."""
+        if self.datum.kind != "sensible":
+            return h
+        return _set_where(h, T == self.datum.T_ref_K, self.datum.h_ref_J_per_kg * per_kg)
+
     def _point_constants(self) -> tuple:
         """(R/M, h offset per kg, ln(P°/1 bar)) for the one-state paths."""
         c = self._cache.get("point")
@@ -316,8 +399,8 @@ class Substance:
         if not (T > 0 and math.isfinite(T)):
             raise RangeError(f"{self.id}: temperatures must be finite and above 0 K")
         outside = T < self.poly._lo or T > self.poly._hi
-        if outside and not extrapolate:
-            self.check_T(np.array([T]))          # raises the usual message
+        if outside:
+            self.check_T(np.array([T]), extrapolate)   # raises the usual message, or beyond the extrapolation range
         return outside
 
     def _properties_point(self, T: float, extrapolate: bool, molar_only: bool) -> dict:
@@ -330,16 +413,24 @@ class Substance:
         cp_m = cpR * R_MOLAR
         cv_m = cp_m - R_MOLAR
         h_m = hR * R_MOLAR + c["h_off"]
+        if self.datum.kind == "sensible" and T == self.datum.T_ref_K:
+            h_m = self.datum.h_ref_J_per_kg * Mk
         u_m = h_m - R_MOLAR * T
         s0_m = (sR - c["lnP"]) * R_MOLAR
         g0_m = h_m - T * s0_m
         lnPr = math.log(self.anchor.Pr) + (sR - c["sR_anchor"])
+        self._check_scales(lnPr, lnPr, T, T)
+        if outside:
+            self._check_cv(T, cv_m)
         k = cp_m / cv_m
         vals = {
             "T_K": T, "cp_molar": cp_m, "cv_molar": cv_m, "h_molar": h_m, "u_molar": u_m,
-            "s0_molar": s0_m, "g0_molar": g0_m, "dh298_molar": (hR - c["h298R"]) * R_MOLAR,
-            "k": k, "Pr": math.exp(lnPr),
-            "vr": self.anchor.vr * (T / self.anchor.T_K) * math.exp(math.log(self.anchor.Pr) - lnPr),
+            "s0_molar": s0_m, "g0_molar": g0_m,
+            "dh298_molar": 0.0 if T == T_REF else (hR - c["h298R"]) * R_MOLAR,
+            "k": k,
+            "Pr": self.anchor.Pr if T == self.anchor.T_K else math.exp(lnPr),
+            "vr": self.anchor.vr if T == self.anchor.T_K else
+            self.anchor.vr * (T / self.anchor.T_K) * math.exp(math.log(self.anchor.Pr) - lnPr),
         }
         if not molar_only:
             vals.update(cp=cp_m / Mk, cv=cv_m / Mk, h=h_m / Mk, u=u_m / Mk, s0=s0_m / Mk, g0=g0_m / Mk,
@@ -365,7 +456,10 @@ class Substance:
                 self._check_point(T, extrapolate)
             cpR, hR, sR = poly.point(T)
             f, h_off, lnP = self._point_constants()
-            return cpR * f, hR * f + h_off, (sR - lnP) * f
+            h = hR * f + h_off
+            if self.datum.kind == "sensible" and T == self.datum.T_ref_K:
+                h = self.datum.h_ref_J_per_kg
+            return cpR * f, h, (sR - lnP) * f
         T = _as_temperatures(T)
         self.check_T(T, extrapolate)
         c = self._constants()
@@ -376,6 +470,7 @@ class Substance:
         h = raw["h"]
         h *= f
         h += c["h_off"] / (self.M * 1e-3)
+        h = self._exact_at_datum(T, h, 1.0)
         s0 = raw["s"]
         s0 -= c["lnP"]
         s0 *= f
@@ -552,14 +647,22 @@ _FUNCTIONS = {"cp_molar": "c", "cv_molar": "c", "k": "c", "cp": "c", "cv": "c", 
 _SCALARS = (float, int, np.float64, np.float32, np.int64, np.int32)
 
 
+def _set_where(a, mask, value):
+    """a with ``value`` where ``mask``; also for the numpy scalars that 0-d arithmetic gives."""
+    if np.ndim(a) == 0:
+        return np.float64(value) if bool(mask) else a
+    a[mask] = value
+    return a
+
+
 def _as_numbers(values, what: str, unit: str) -> np.ndarray:
     """values as a float array; text, complex numbers and other non-numbers are refused."""
     try:
         arr = np.asarray(values)
     except (TypeError, ValueError):
-        raise TablegenError(f"{what} must be real numbers {unit}") from None
+        raise InputError(f"{what} must be real numbers {unit}") from None
     if arr.dtype.kind not in "biuf":
-        raise TablegenError(f"{what} must be real numbers {unit}, got {arr.dtype.name} values"
+        raise InputError(f"{what} must be real numbers {unit}, got {arr.dtype.name} values"
                             + (" (give numbers, e.g. 300.0, not text)" if arr.dtype.kind in "USO" else ""))
     return arr.astype(float, copy=False)
 
