@@ -18,7 +18,6 @@ import pandas
 import pytest
 from pypdf import PdfReader
 
-from tablegen.cli import main as cli
 
 
 @pytest.fixture(scope="module")

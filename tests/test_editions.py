@@ -254,6 +254,8 @@ def test_a_spec_without_editions_is_one_book_as_before(tmp_path):
     (("grid_step = \"20 K\"", "grid_step = \"20 K\"\nT_range = [\"1200 K\", \"1500 K\"]"), [],
      "tablegen: editions.pocket.T_range: 1200-1500 K leaves table 'air' with no rows"),
     (("grid_step = \"20 K\"", "grid_step = \"-5 K\""), [], "tablegen: editions.pocket.grid_step: must be > 0"),
+    (("temperature_units = [\"°C\"]", "temperature_units = [\"°C\"]\ngrid = { list = [] }"), [],
+     "tablegen: editions.pocket: tables[1].grid.list: is empty"),
     (("paper = \"A5\"", "paper = \"B5\""), [], "tablegen: editions.pocket.paper: 'B5' is not known"),
     (("[editions.pocket.table.n2]", "[editions.pocket.table.co2]"), [],
      "tablegen: editions.pocket.table.co2: 'co2' is not a table of this spec"),

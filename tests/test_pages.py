@@ -174,11 +174,10 @@ def test_small_paper_text_is_legible_and_a_page_holds_32_rows(books, edition):
 @pytest.mark.parametrize("edition", list(EDITIONS))
 def test_contents_list_every_table_and_chart_page(books, edition):
     texts = books[edition][3]
-    lines = []
-    for text in texts[:3]:
-        if "Contents" in text:
-            block = text.split("Contents", 1)[1]
-            lines += [ln.strip() for ln in block.split("\n") if ln.strip()]
+    holding = [text for text in texts[:3] if re.search(r"^Contents$", text, re.M)]
+    assert len(holding) == 1                                     # the contents are kept on one page
+    block = holding[0].split("\nContents\n", 1)[1]
+    lines = [ln.strip() for ln in block.split("\n") if ln.strip()]
     entries, cur = {}, ""
     for ln in lines:
         cur = f"{cur} {ln}".strip() if cur else ln

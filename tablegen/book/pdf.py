@@ -127,9 +127,9 @@ class Flow:
         """A wrapped grid; the header repeats when the grid runs onto a new page."""
         size = size or self.L.text * 0.92
         lead = size * 1.28
-        widths = [f * self.width for f in fractions]
-        xs = [self.left + sum(widths[:i]) for i in range(len(widths))]
         pad = 3.0
+        widths = _fit_columns([f * self.width for f in fractions], header, rows, size, pad, mono_cols)
+        xs = [self.left + sum(widths[:i]) for i in range(len(widths))]
 
         def split(cells, bold=False):
             out = []
@@ -203,6 +203,27 @@ class Flow:
         self.y = top - h - lead
 
 
+def _fit_columns(widths, header, rows, size, pad, mono_cols=()) -> list:
+    """Column widths of a grid, widened where a column's longest word (its header in bold)
+    would not fit, taken from the columns with room to spare, so words are not broken in a
+    narrow column on small paper. The widths as given where the words cannot all fit."""
+    need = []
+    for j in range(len(widths)):
+        font = MONO if j in mono_cols else SANS
+        words = [w for w in str(header[j]).split()] if j < len(header) else []
+        longest = max((_w(w, SANS_BOLD, size) for w in words), default=0.0)
+        for r in rows:
+            if j < len(r):
+                longest = max(longest, max((_w(w, font, size) for w in str(r[j]).split()), default=0.0))
+        need.append(min(longest + 2 * pad + 0.5, 0.45 * sum(widths)))
+    short = sum(max(0.0, n - w) for n, w in zip(need, widths))
+    spare = sum(max(0.0, w - n) for n, w in zip(need, widths))
+    if short <= 0 or short > spare:
+        return widths
+    k = short / spare
+    return [n if n > w else w - (w - n) * k for n, w in zip(need, widths)]
+
+
 # ---------------------------------------------------------------- front matter
 def _fmt_frac(x: float) -> str:
     return f"{x:.6f}"
@@ -234,7 +255,9 @@ def _front(book, L: Layout, pages: list, contents: list):
     ], (0.3, 0.7), mono_cols=())
     f.heading("Approval", L.text * 1.25)
     _signatures(f, d)
-    f.heading("Contents", L.text * 1.25)
+    # the contents stay together: on this page if they fit, else all on the next
+    f.heading("Contents", L.text * 1.25, keep=min(sum(len(lines) for lines, _, _ in _contents_lines(f, contents))
+                                                  * L.text * 1.4, f.top - f.bottom - L.text * 4))
     _contents(f, contents)
 
     # how to read
@@ -318,14 +341,22 @@ def _front(book, L: Layout, pages: list, contents: list):
     f.box("CAUTION", book.cautions)
 
 
-def _contents(f: Flow, contents):
-    """One line per entry (wrapped, never past the page number), the page number at the right;
+def _contents_lines(f: Flow, contents):
+    """(lines, indent, anchor) of each contents entry: wrapped short of the page number;
     chart entries indented under their table."""
     L = f.L
     numw = _w("0000", SANS, L.text)
+    out = []
     for title, anchor in contents:
         indent = L.text * 1.5 if anchor.startswith("chart") else 0.0
-        lines = simpleSplit(title, SANS, L.text, f.width - numw - indent - 4) or [""]
+        out.append((simpleSplit(title, SANS, L.text, f.width - numw - indent - 4) or [""], indent, anchor))
+    return out
+
+
+def _contents(f: Flow, contents):
+    """One line per entry (wrapped, never past the page number), the page number at the right."""
+    L = f.L
+    for lines, indent, anchor in _contents_lines(f, contents):
         f.need(L.text * 1.4 * len(lines))
         for line in lines:
             f.y -= L.text * 1.4

@@ -6,7 +6,7 @@ from __future__ import annotations
 from pathlib import Path
 
 from ..errors import TablegenError
-from .common import data_notices, notice, published
+from .common import data_notices, published
 
 IMPOSITIONS = ("booklet",)
 
@@ -103,7 +103,8 @@ def run(args) -> int:
         notes.append(f"note: {out}/ held the {' and '.join(dropped)} edition{'s' if len(dropped) > 1 else ''} "
                      f"too; this issue holds {', '.join(s.edition.name for s, _, _ in made)} only (build "
                      f"without --edition to keep every edition in one folder)")
-    pages = f"{pdf_pages(files[made[0][2]['pdf']])} PDF pages, " if len(made) == 1 else ""
+    said = any(n.endswith("pages") or " pages;" in n for n in notes)
+    pages = f"{pdf_pages(files[made[0][2]['pdf']])} PDF pages, " if len(made) == 1 and not said else ""
     published(args, out, files, notes, "files", f" ({pages}fingerprint {made[0][1].fingerprint[:16]}…)")
     return 0
 
