@@ -55,10 +55,28 @@ def _w(text: str, font: str, size: float) -> float:
     return stringWidth(text, font, size)
 
 
+#: An upper bound of a DejaVu glyph's advance, em (the widest, W and the dashes, are about 1.0).
+_EM_MAX = 1.25
+
+
+def _longest_word(texts, font: str, size: float) -> float:
+    """Width of the widest word of some texts, measuring only words that could be the widest."""
+    words = sorted({w for t in texts for w in str(t).split()}, key=len, reverse=True)
+    best = 0.0
+    for w in words:
+        if len(w) * size * _EM_MAX <= best:
+            break
+        best = max(best, _w(w, font, size))
+    return best
+
+
 def simpleSplit(text: str, font: str, size: float, width: float) -> list[str]:
     """Lines of text within a width: broken between words, and a word longer than the
     width (a composition, a hash, a path) after a comma, semicolon, slash or '=' where
     it can be, else between characters, so no line runs past the margin."""
+    longest = max((len(w) for w in text.split()), default=0)
+    if longest * size * _EM_MAX <= width:          # no word can be wider than the line: words suffice
+        return _split_words(text, font, size, width)
     out = []
     for line in _split_words(text, font, size, width):
         while _w(line, font, size) > width and len(line) > 1:
@@ -210,11 +228,8 @@ def _fit_columns(widths, header, rows, size, pad, mono_cols=()) -> list:
     need = []
     for j in range(len(widths)):
         font = MONO if j in mono_cols else SANS
-        words = [w for w in str(header[j]).split()] if j < len(header) else []
-        longest = max((_w(w, SANS_BOLD, size) for w in words), default=0.0)
-        for r in rows:
-            if j < len(r):
-                longest = max(longest, max((_w(w, font, size) for w in str(r[j]).split()), default=0.0))
+        longest = max(_longest_word([header[j]] if j < len(header) else [], SANS_BOLD, size),
+                      _longest_word([r[j] for r in rows if j < len(r)], font, size))
         need.append(min(longest + 2 * pad + 0.5, 0.45 * sum(widths)))
     short = sum(max(0.0, n - w) for n, w in zip(need, widths))
     spare = sum(max(0.0, w - n) for n, w in zip(need, widths))
