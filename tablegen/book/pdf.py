@@ -16,13 +16,13 @@ import io
 import re
 from dataclasses import replace
 
-from reportlab.lib.utils import simpleSplit as _split_words
 from reportlab.pdfbase.pdfmetrics import getFont, stringWidth
 
 from . import fonts, pagination
 from .fonts import MONO, SANS, SANS_BOLD, SANS_OBLIQUE
 from .model import pressure_text
 from .pagination import Layout
+from .textfit import fit_columns, simpleSplit
 
 MINUS = "\u2212"
 
@@ -53,43 +53,6 @@ class Page:
 
 def _w(text: str, font: str, size: float) -> float:
     return stringWidth(text, font, size)
-
-
-#: An upper bound of a DejaVu glyph's advance, em (the widest, W and the dashes, are about 1.0).
-_EM_MAX = 1.25
-
-
-def _longest_word(texts, font: str, size: float) -> float:
-    """Width of the widest word of some texts, measuring only words that could be the widest."""
-    words = sorted({w for t in texts for w in str(t).split()}, key=len, reverse=True)
-    best = 0.0
-    for w in words:
-        if len(w) * size * _EM_MAX <= best:
-            break
-        best = max(best, _w(w, font, size))
-    return best
-
-
-def simpleSplit(text: str, font: str, size: float, width: float) -> list[str]:
-    """Lines of text within a width: broken between words, and a word longer than the
-    width (a composition, a hash, a path) after a comma, semicolon, slash or '=' where
-    it can be, else between characters, so no line runs past the margin."""
-    longest = max((len(w) for w in text.split()), default=0)
-    if longest * size * _EM_MAX <= width:          # no word can be wider than the line: words suffice
-        return _split_words(text, font, size, width)
-    out = []
-    for line in _split_words(text, font, size, width):
-        while _w(line, font, size) > width and len(line) > 1:
-            cut = len(line) - 1
-            while cut > 1 and _w(line[:cut], font, size) > width:
-                cut -= 1
-            soft = max(line.rfind(ch, 0, cut) for ch in ",;/=")
-            if soft > 0 and _w(line[:soft + 1], font, size) <= width:
-                cut = soft + 1
-            out.append(line[:cut])
-            line = line[cut:]
-        out.append(line)
-    return out
 
 
 class Flow:
@@ -146,7 +109,7 @@ class Flow:
         size = size or self.L.text * 0.92
         lead = size * 1.28
         pad = 3.0
-        widths = _fit_columns([f * self.width for f in fractions], header, rows, size, pad, mono_cols)
+        widths = fit_columns([f * self.width for f in fractions], header, rows, size, pad, mono_cols)
         xs = [self.left + sum(widths[:i]) for i in range(len(widths))]
 
         def split(cells, bold=False):
@@ -221,25 +184,6 @@ class Flow:
         self.y = top - h - lead
 
 
-def _fit_columns(widths, header, rows, size, pad, mono_cols=()) -> list:
-    """Column widths of a grid, widened where a column's longest word (its header in bold)
-    would not fit, taken from the columns with room to spare, so words are not broken in a
-    narrow column on small paper. The widths as given where the words cannot all fit."""
-    need = []
-    for j in range(len(widths)):
-        font = MONO if j in mono_cols else SANS
-        longest = max(_longest_word([header[j]] if j < len(header) else [], SANS_BOLD, size),
-                      _longest_word([r[j] for r in rows if j < len(r)], font, size))
-        need.append(min(longest + 2 * pad + 0.5, 0.45 * sum(widths)))
-    short = sum(max(0.0, n - w) for n, w in zip(need, widths))
-    spare = sum(max(0.0, w - n) for n, w in zip(need, widths))
-    if short <= 0 or short > spare:
-        return widths
-    k = short / spare
-    return [n if n > w else w - (w - n) * k for n, w in zip(need, widths)]
-
-
-# ---------------------------------------------------------------- front matter
 def _fmt_frac(x: float) -> str:
     return f"{x:.6f}"
 
@@ -804,10 +748,11 @@ def _chart_pages(t, index: int, L, pages):
 def render(book) -> bytes:
     """The PDF bytes of a book model."""
     L, pages = plan(book)
-    return _with_binary_streams(_render, book, L, pages, _anchors(pages))
+    return with_binary_streams(_render, book, L, pages, anchors_of(pages))
 
 
-def _anchors(pages) -> dict:
+def anchors_of(pages) -> dict:
+    """Anchor name -> page number (from 1) of a planned book."""
     anchors = {}
     for i, p in enumerate(pages, 1):
         for op in p.ops:
@@ -816,7 +761,8 @@ def _anchors(pages) -> dict:
     return anchors
 
 
-def _with_binary_streams(fn, *args):
+def with_binary_streams(fn, *args):
+    """fn(*args) with reportlab writing binary page streams."""
     from reportlab import rl_config
     a85, rl_config.useA85 = rl_config.useA85, 0     # binary streams: smaller and faster
     try:
@@ -825,7 +771,8 @@ def _with_binary_streams(fn, *args):
         rl_config.useA85 = a85
 
 
-def _canvas(book, size):
+def new_canvas(book, size):
+    """A canvas of the book's PDF metadata (title, document, fingerprint), reproducible bytes."""
     d = book.document
     buf = io.BytesIO()
     c = fonts.canvas(buf, pagesize=size, initialFontName=SANS, initialFontSize=10, pageCompression=1)
@@ -838,57 +785,25 @@ def _canvas(book, size):
 
 
 def _render(book, L, pages, anchors) -> bytes:
-    c, buf = _canvas(book, (L.width, L.height))
-    total = len(pages)
+    c, buf = new_canvas(book, (L.width, L.height))
     head = running_head(book, L)
-    for no, page in enumerate(pages, 1):
-        _decorate(c, book, L, no, total, head)
-        _draw_ops(c, page.ops, anchors, L)
+    for no in range(1, len(pages) + 1):
+        draw_page(c, book, L, pages, no, anchors, head)
         c.showPage()
     c.save()
     return buf.getvalue()
 
 
-def render_booklet(book) -> bytes:
-    """The book's pages imposed for a saddle-stitched booklet: two pages side by side on
-    each side of a sheet twice the page's width (A5 pages on A4), in the order
-    :func:`tablegen.book.pagination.saddle_stitch` gives; printed on both sides, flipped
-    on the short edge, folded and stapled at the fold. Pages that pad the count to a
-    multiple of four say that they are intentionally blank."""
-    L, pages = plan(book)
-    return _with_binary_streams(_render_booklet, book, L, pages, _anchors(pages))
+def draw_page(c, book, L: Layout, pages: list, no: int, anchors: dict, head=None):
+    """Page ``no`` (from 1) of a planned book, running head and foot included, onto a canvas
+    at its origin (tablegen.book.impose places pages two to a sheet)."""
+    _decorate(c, book, L, no, len(pages), head)
+    _draw_ops(c, pages[no - 1].ops, anchors, L)
 
 
-def _render_booklet(book, L, pages, anchors) -> bytes:
-    if L.paper == "A5" and L.width < L.height:
-        sheet_w, sheet_h = pagination.PAPER_PT["A4"][1], pagination.PAPER_PT["A4"][0]    # A4 landscape
-    else:
-        sheet_w, sheet_h = 2 * L.width, L.height
-    c, buf = _canvas(book, (sheet_w, sheet_h))
-    off = (sheet_w - 2 * L.width) / 2
-    total = len(pages)
-    head = running_head(book, L)
-    pad = blank_page(L, "It completes the last sheet of the booklet.")
-    for sides in pagination.saddle_stitch(total):
-        for pair in sides:
-            for slot, no in enumerate(pair):
-                c.saveState()
-                c.translate(off + slot * L.width, (sheet_h - L.height) / 2)
-                if no is None:
-                    _draw_ops(c, pad.ops, anchors, L)
-                else:
-                    _decorate(c, book, L, no, total, head)
-                    _draw_ops(c, pages[no - 1].ops, anchors, L)
-                c.restoreState()
-            # fold marks at the spine, outside the pages' margins
-            c.setLineWidth(0.4)
-            c.setStrokeGray(0.5)
-            c.line(sheet_w / 2, sheet_h, sheet_w / 2, sheet_h - 3 * pagination.MM)
-            c.line(sheet_w / 2, 0, sheet_w / 2, 3 * pagination.MM)
-            c.setStrokeGray(0.0)
-            c.showPage()
-    c.save()
-    return buf.getvalue()
+def draw_ops(c, page: Page, L: Layout):
+    """A page's drawing without running head or foot (a page that pads a booklet)."""
+    _draw_ops(c, page.ops, {}, L)
 
 
 def _decorate(c, book, L: Layout, no: int, total: int, head=None):

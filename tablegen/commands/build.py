@@ -80,7 +80,7 @@ def run(args) -> int:
         one, book = render_files(spec, progress_for(args, len(spec.tables), label))
         names = file_names(spec)
         if impose and _booklet(spec):
-            from ..book.pdf import render_booklet
+            from ..book.impose import render_booklet
             one[names["booklet"]] = render_booklet(book)
         merge(files, one)
         made.append((spec, book, names))

@@ -37,7 +37,7 @@ def run(args) -> int:
     from .. import outfiles
     from .. import spec as specmod
     from ..book.build import all_names, file_names, issue_text, merge, progress_for, render_files
-    from ..book.pdf import render_booklet
+    from ..book.impose import render_booklet
     out = Path(args.out) if args.out else OUT
     specs = [(path, e) for path in spec_paths()
              for e in specmod.load_editions(path, source=args.source, data=args.data)]
