@@ -342,8 +342,8 @@ def run(args) -> int:
         from .compare_book import run_book
         return run_book(args)
     if getattr(args, "edition", None) is not None:
-        raise TablegenError(f"--edition {args.edition}: applies to a book spec compared with a reference "
-                            f"folder (the folder holds the edition's files)")
+        raise TablegenError(f"--edition {args.edition}: an edition is chosen only for a book spec compared "
+                            f"with a reference folder; leave --edition out for one reference table")
     from ..compare_hints import suggested_options
     from ..compare_output import summary
     cmp, files, notes = compute(args)
