@@ -18,7 +18,7 @@ from .errors import DataRangeError, TablegenError, Terminated
 
 #: (command, module, one-line summary) in the order --help lists them.
 COMMANDS = [
-    ("demo", "demo", "build the demo book of the invented plant into output/demo/"),
+    ("demo", "demo", "build the demo book of the invented plant, in its four editions, into output/demo/"),
     ("build", "build", "build a table book (PDF, CSV, JSON) from a TOML spec"),
     ("state", "state", "properties of a substance at temperatures you list"),
     ("species", "species", "list the coefficient library, check it, or show a species' sources"),

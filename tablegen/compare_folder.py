@@ -85,8 +85,12 @@ def _sidecars(folder: Path) -> list[tuple[Path, dict]]:
     return out
 
 
-def _choose_sidecar(sidecars, book_name: str, tables) -> tuple[Path, dict] | tuple[None, None]:
-    """The sidecar of the same book name, else the one that lists most of the spec's tables."""
+def _choose_sidecar(sidecars, book_name: str, tables, edition: str = "") -> tuple[Path, dict] | tuple[None, None]:
+    """The sidecar of the same book name (and edition, for a spec with editions: one folder holds
+    the sidecar of every edition), else the one that lists most of the spec's tables."""
+    for p, d in sidecars:
+        if d.get("name") == book_name and (d.get("edition") or {}).get("name", "") == edition:
+            return p, d
     for p, d in sidecars:
         if d.get("name") == book_name:
             return p, d
@@ -146,7 +150,7 @@ def read_mapping(path) -> dict:
 
 
 def read_folder(folder, book_name: str, tables, mapping: dict | None = None,
-                mapping_name: str = "") -> ReferenceFolder:
+                mapping_name: str = "", edition: str = "") -> ReferenceFolder:
     """Match each spec table to its reference file in ``folder``.
 
     Parameters
@@ -155,6 +159,7 @@ def read_folder(folder, book_name: str, tables, mapping: dict | None = None,
     book_name : the spec's name (its sidecar, if there, is preferred)
     tables : names of the spec tables to compare, in order
     mapping : table name -> file (relative to the folder), from :func:`read_mapping`
+    edition : the edition of a spec with editions whose sidecar to prefer
 
     Raises
     ------
@@ -171,7 +176,7 @@ def read_folder(folder, book_name: str, tables, mapping: dict | None = None,
     if unknown:
         raise TablegenError(f"--map {mapping_name}: table {unknown[0]!r} is not compared; "
                             f"compared tables: {', '.join(tables)}")
-    side_path, side = _choose_sidecar(_sidecars(root), book_name, tables)
+    side_path, side = _choose_sidecar(_sidecars(root), book_name, tables, edition)
     listed = {}
     if side is not None:
         for t in side.get("tables", []):

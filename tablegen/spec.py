@@ -32,7 +32,9 @@ MAX_ROWS_PER_BOOK = 100000
 #: Largest number of tables in one book.
 MAX_TABLES = 200
 
-PAPERS = ("A4", "Letter", "A3", "A5-pocket")
+PAPERS = ("A4", "Letter", "A3", "A5")
+#: Former paper names, read as the name they stand for.
+PAPER_ALIASES = {"A5-pocket": "A5"}
 ORIENTATIONS = ("portrait", "landscape")
 UNIT_SYSTEMS = ("SI", "US", "both")
 BASES = ("mass", "molar", "volumetric")
@@ -141,6 +143,8 @@ class TableSpec:
     extrapolate: bool
     charts: tuple = ()           # ChartSpec (tablegen.book.charts)
     composition_u: tuple | None = None   # (basis, {species id: standard uncertainty}) of the fractions
+    csv_name: str = ""           # file name of its CSV (tablegen.editions.csv_names); "" : <name>.csv
+    shared_by: tuple = ()        # editions whose CSV of this table is that same file
 
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -151,6 +155,10 @@ class BookSpec:
     normalised: dict             # the spec as JSON-ready data, defaults applied
     data_paths: tuple = ()       # extra --data / [data] files
     substances: dict = field(default_factory=dict)
+    edition: object = None       # tablegen.editions.Edition of this build (None: no [editions], no --paper)
+    all_tables: tuple = ()       # every table of the spec (an edition may print fewer): the data they use
+                                 # enters the fingerprint every edition carries
+    editions: tuple = ()         # names of every edition the spec declares, in its order
 
 
 # ---------------------------------------------------------------- helpers
@@ -316,7 +324,7 @@ def _document(raw, where="document") -> Document:
         prepared_by=_text(raw, "prepared_by", where, max_len=80),
         checked_by=_text(raw, "checked_by", where, max_len=80),
         approved_by=_text(raw, "approved_by", where, max_len=80),
-        paper=_choice(raw, "paper", PAPERS, where, "A4"),
+        paper=_paper(raw, where, "A4"),
         orientation=_choice(raw, "orientation", ORIENTATIONS, where, "portrait"),
         units=_choice(raw, "units", UNIT_SYSTEMS, where, "SI"),
         basis=_choice(raw, "basis", BASES, where, "mass"),
@@ -329,6 +337,14 @@ def _document(raw, where="document") -> Document:
         chart_placement=_choice(raw, "chart_placement", ("after-table", "grouped"), where, "after-table"),
         barometer_Pa=None if "barometer" not in raw else baro,
     )
+
+
+def _paper(raw, where, default):
+    """The paper name (a former name such as A5-pocket read as the one it stands for)."""
+    v = raw.get("paper", default)
+    if isinstance(v, str) and v.strip() in PAPER_ALIASES:
+        return PAPER_ALIASES[v.strip()]
+    return _choice(raw, "paper", PAPERS, where, default)
 
 
 def _reference(v, where) -> Reference:
@@ -840,17 +856,20 @@ def _table(raw, where, defaults, doc, subs, source, data) -> TableSpec:
 
 
 # ---------------------------------------------------------------- book
-TOP_KEYS = ("document", "data", "substances", "defaults", "tables")
+TOP_KEYS = ("document", "data", "substances", "defaults", "tables", "editions")
 
 
-def load(path, *, source: str | None = None, data=(), extrapolate: bool = False) -> BookSpec:
-    """Read and validate a spec file.
+def load(path, *, source: str | None = None, data=(), edition: str | None = None,
+         paper: str | None = None, extrapolate: bool = False) -> BookSpec:
+    """Read and validate a spec file: the book as its first edition prints it (or the
+    edition named), or as written when the spec declares no editions.
 
     Parameters
     ----------
     path : the TOML spec
     source, data : --source and --data from the command line (the spec's own
         [data] section adds to them; the command line's source wins)
+    edition, paper : as :func:`load_editions`
     extrapolate : --extrapolate from the command line: every table may extrapolate
         (as ``extrapolate = true`` in each), and the document says so
 
@@ -858,9 +877,67 @@ def load(path, *, source: str | None = None, data=(), extrapolate: bool = False)
     ------
     SpecError naming the key path and the rule, for any broken rule.
     """
+    return load_editions(path, source=source, data=data, editions=edition, paper=paper,
+                         extrapolate=extrapolate)[0]
+
+
+def load_editions(path, *, source: str | None = None, data=(), editions=None,
+                  paper: str | None = None, extrapolate: bool = False) -> tuple:
+    """Every edition of a spec (or those named, comma-separated) as a BookSpec each.
+
+    Every edition is validated, whichever are asked for, so a spec that builds one
+    edition builds them all. ``paper`` prints the editions on another paper for once
+    (``--paper``); it is recorded in each edition and leaves the fingerprint alone.
+    """
     p = Path(path)
     raw = read_toml(p, missing="spec file not found")
-    return parse(raw, name=book_name(p), base=p.parent, source=source, data=data, extrapolate=extrapolate)
+    return parse_editions(raw, name=book_name(p), base=p.parent, source=source, data=data, editions=editions,
+                          paper=paper, extrapolate=extrapolate)
+
+
+def parse_editions(raw: dict, *, name: str, base: Path | None = None, source: str | None = None, data=(),
+                   editions=None, paper: str | None = None, extrapolate: bool = False) -> tuple:
+    """Validate parsed TOML into one BookSpec per edition (see :func:`load_editions`)."""
+    from . import editions as E
+    if paper is not None:
+        hit = [c for c in PAPERS if c.casefold() == PAPER_ALIASES.get(paper, paper).casefold()]
+        if not hit:
+            raise SpecError(f"--paper {paper!r}: not a paper tablegen prints on; allowed: {', '.join(PAPERS)}")
+        paper = hit[0]
+    book = parse(raw, name=name, base=base, source=source, data=data, extrapolate=extrapolate)
+    if "editions" not in raw:
+        if editions:
+            raise SpecError(f"--edition {editions}: {name} declares no editions; build it without "
+                            f"--edition, or declare [editions.NAME] tables (docs/spec.md, \"Editions\")")
+        d = replace(book.document, paper=paper) if paper else book.document
+        ed = E.Edition(name="", label="", suffix="", paper=d.paper, orientation=d.orientation,
+                       two_sided=d.paper == "A5", font_size_pt=None,
+                       paper_from="--paper" if paper else "spec")
+        return (replace(book, document=d, edition=ed),)
+    specs = E.parse(raw["editions"], [t.name for t in book.tables], PAPERS, _choice)
+    built = []
+    for i, es in enumerate(specs):
+        try:
+            one = parse(E.apply(raw, es, paper), name=name, base=base, source=source, data=data,
+                        extrapolate=extrapolate)
+        except SpecError as e:
+            raise SpecError(f"editions.{es.name}: {e}") from None
+        built.append((es, one, E.restrict(one, es)))
+    names = E.csv_names([(es.name, tables) for es, _, tables in built])
+    out = []
+    for i, (es, one, tables) in enumerate(built):
+        d = one.document
+        ed = E.Edition(name=es.name, label=es.label, suffix=es.suffix, paper=d.paper, orientation=d.orientation,
+                       two_sided=es.two_sided if es.two_sided is not None else d.paper == "A5",
+                       font_size_pt=es.font_size_pt,
+                       paper_from="--paper" if paper else ("edition" if es.paper else "spec"),
+                       primary=i == 0, normalised=es.normalised)
+        tables = tuple(replace(t, csv_name=names[(es.name, t.name)][0], shared_by=names[(es.name, t.name)][1])
+                       for t in tables)
+        out.append(replace(one, tables=tables, normalised=book.normalised, edition=ed,
+                           editions=tuple(s.name for s in specs), all_tables=book.tables))
+    picked = {e.name for e in E.selected([o.edition for o in out], editions)}
+    return tuple(o for o in out if o.edition.name in picked)
 
 
 _BOOK_NAME_BAD = set('/\\:*?"<>|')
@@ -948,9 +1025,17 @@ def parse(raw: dict, *, name: str, base: Path | None = None, source: str | None 
         if total > MAX_ROWS_PER_BOOK:
             _fail(f"tables[{i}]", f"brings the book to {total} rows; a book has at most {MAX_ROWS_PER_BOOK} rows")
         tables.append(ts)
+    eds = ()
+    if "editions" in raw:
+        from . import editions as E
+        eds = E.parse(raw["editions"], [t.name for t in tables], PAPERS, _choice)
     spec = BookSpec(name=name, document=doc, tables=tuple(tables), normalised={}, data_paths=data,
-                    substances=subs)
-    object.__setattr__(spec, "normalised", normalise(spec, src))
+                    substances=subs, editions=tuple(e.name for e in eds))
+    normalised = normalise(spec, src)
+    if eds:
+        # the editions are part of the spec: all of them enter the fingerprint every edition carries
+        normalised["editions"] = {e.name: e.normalised for e in eds}
+    object.__setattr__(spec, "normalised", normalised)
     return spec
 
 

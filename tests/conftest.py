@@ -10,6 +10,7 @@ it explores new examples each time.
 
 import os
 
+import pytest
 from hypothesis import settings
 
 settings.register_profile("ci", derandomize=True, deadline=None, print_blob=True)
@@ -29,3 +30,14 @@ def pytest_collection_finish(session):
     if picked and not session.config.option.collectonly:
         import test_examples
         test_examples.start_in_background(picked)
+
+
+@pytest.fixture(scope="session")
+def demo_book(tmp_path_factory):
+    """The demo book in all its editions (tablegen demo), built once for the session.
+
+    Read-only: a test that changes files copies the folder first."""
+    from tablegen import cli
+    out = tmp_path_factory.mktemp("demo-book") / "demo"
+    assert cli.main(["demo", "--out", str(out), "--quiet"]) == 0
+    return out

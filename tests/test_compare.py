@@ -596,15 +596,18 @@ def test_n2_table_at_1_atm_gives_the_reference_pressure_hint(tmp_path, capsys):
     assert rc == 0
 
 
-def test_book_against_book_one_changed_cell_fails_alone_and_a_changed_revision_is_stated(tmp_path, capsys):
-    """The demo book (tablegen demo) as the reference folder of its own spec: one cp cell changed by
+def test_book_against_book_one_changed_cell_fails_alone_and_a_changed_revision_is_stated(tmp_path, capsys,
+                                                                                           demo_book):
+    """The demo book (tablegen demo, its desk edition first) as the reference folder of its own spec: one cp cell changed by
     1 % (tolerance 0.5 %) in one CSV and the revision in another CSV's CSVW metadata: exit 1, exactly
     that cell fails, every other table passes, and the mixed revision is stated (it changes no verdict)."""
+    import shutil
+
     from tablegen.commands.demo import spec_paths
     folder = tmp_path / "demo"
-    assert run(["demo", "--out", folder], capsys)[0] == 0
-    spec = next(p for p in spec_paths() if p.stem == "kestrel-fen-desk")
-    csv_path = folder / "desk-n2-si.csv"
+    shutil.copytree(demo_book, folder)
+    spec = next(p for p in spec_paths() if p.stem == "kestrel-fen")
+    csv_path = folder / "n2.csv"
     lines = csv_path.read_bytes().decode("utf-8").split("\r\n")
     head = lines[0].split(",")
     j, row = head.index("cp [kJ/(kg K)]"), 10                   # file line 11
@@ -612,7 +615,7 @@ def test_book_against_book_one_changed_cell_fails_alone_and_a_changed_revision_i
     cells[j] = repr(float(cells[j]) * 1.01)
     lines[row] = ",".join(cells)
     csv_path.write_bytes("\r\n".join(lines).encode("utf-8"))
-    meta = folder / "desk-co2-molar.csv-metadata.json"
+    meta = folder / "co2.csv-metadata.json"
     m = json.loads(meta.read_text(encoding="utf-8"))
     m["dc:hasVersion"] = "D"
     meta.write_text(json.dumps(m), encoding="utf-8")
@@ -622,22 +625,22 @@ def test_book_against_book_one_changed_cell_fails_alone_and_a_changed_revision_i
     assert rc == 1 and s["exit_status"] == 1 and s["verdict"] == "fail"
     assert s["tables_compared"] == 8 and s["tables_failed"] == 1 and s["cells_out_of_tolerance"] == 1
     by = {t["name"]: t for t in s["tables"]}
-    assert by["desk-n2-si"]["verdict"] == "fail"
-    assert all(t["verdict"] == "pass" for n, t in by.items() if n != "desk-n2-si")
-    (cell,) = by["desk-n2-si"]["summary"]["out_of_tolerance"]
+    assert by["n2"]["verdict"] == "fail"
+    assert all(t["verdict"] == "pass" for n, t in by.items() if n != "n2")
+    (cell,) = by["n2"]["summary"]["out_of_tolerance"]
     assert (cell["line"], cell["column"]) == (row + 1, "cp")
-    assert by["desk-co2-molar"]["reference_identity"]["revision"] == "D"
-    assert by["desk-air-si"]["reference_identity"]["revision"] == "C"
+    assert by["co2"]["reference_identity"]["revision"] == "D"
+    assert by["air"]["reference_identity"]["revision"] == "C"
     assert any("revision D" in n and "mixes two issues" in n for n in s["reference_folder"]["notes"])
     assert s["reference_folder"]["book"]["number"] == "KFH-PT-0107" and s["same_fingerprint"] is True
-    assert by["desk-air-si"]["matched_by"] == "book sidecar kestrel-fen-desk.json"
+    assert by["air"]["matched_by"] == "book sidecar kestrel-fen-desk.json"
     assert "mixes two issues" in err
     dev = list(csv.DictReader(io.StringIO((tmp_path / "qa" / "deviations.csv").read_text(encoding="utf-8"))))
     assert [(r["table"], r["line"], r["column"]) for r in dev if r["status"] == "OUT"] == \
-        [("desk-n2-si", str(row + 1), "cp")]
+        [("n2", str(row + 1), "cp")]
     assert len(dev) == s["cells_compared"]
     first = pdf_text(tmp_path / "qa" / "report.pdf", 1)
-    for text in ("FAIL", "KFH-PT-0107", "desk-n2-si", "desk-co2-molar", "mixes two issues", "page 1 of"):
+    for text in ("FAIL", "KFH-PT-0107", "n2", "co2", "mixes two issues", "page 1 of"):
         assert text in first, text
     assert pdf_marked_cells(tmp_path / "qa" / "report.pdf") == {(row + 1, "cp")}
 

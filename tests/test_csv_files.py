@@ -18,13 +18,11 @@ import pandas
 import pytest
 from pypdf import PdfReader
 
-from tablegen.cli import main as cli
 
 
 @pytest.fixture(scope="module")
-def demo(tmp_path_factory):
-    out = tmp_path_factory.mktemp("demo") / "demo"
-    assert cli(["demo", "--out", str(out), "--quiet"]) == 0
+def demo(demo_book):
+    out = demo_book
     books = []
     for side in sorted(out.glob("*.json")):
         if side.name.endswith("-metadata.json"):

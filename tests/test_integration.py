@@ -12,10 +12,8 @@ from tablegen.cli import main
 
 
 @pytest.fixture(scope="module")
-def demo(tmp_path_factory):
-    out = tmp_path_factory.mktemp("demo")
-    assert main(["demo", "--out", str(out), "--quiet"]) == 0
-    return out
+def demo(demo_book):
+    return demo_book
 
 
 def test_demo_book_has_charts_with_an_overlay(demo):

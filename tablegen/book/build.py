@@ -12,16 +12,35 @@ import sys
 
 
 def file_names(spec) -> dict:
-    """Names of the files of a book: ``pdf``, ``json``, ``csv`` and ``csv_metadata`` (lists)."""
+    """Names of the files of a book: ``pdf``, ``json``, ``booklet``, ``csv`` and ``csv_metadata`` (lists).
+
+    Without editions: ``<spec>.pdf``, ``<spec>.json``, ``<table>.csv``. With editions,
+    one folder holds one issue of every edition: ``<spec>-<edition>.pdf`` and
+    ``<spec>-<edition>.json`` per edition, and the CSV names of
+    :func:`tablegen.editions.csv_names` (``<table>.csv``, or ``<table>-<edition>.csv``
+    for an edition that prints the table with other rows or columns). The booklet of
+    an edition (``--impose booklet``) is ``<stem>-booklet.pdf`` beside its PDF.
+    """
     from .csvout import metadata_name
-    csv = [f"{t.name}.csv" for t in spec.tables]
-    return {"pdf": f"{spec.name}.pdf", "json": f"{spec.name}.json", "csv": csv,
+    ed = spec.edition
+    stem = f"{spec.name}-{ed.name}" if ed is not None and ed.name else spec.name
+    csv = [t.csv_name or f"{t.name}.csv" for t in spec.tables]
+    return {"pdf": f"{stem}.pdf", "json": f"{stem}.json", "booklet": f"{stem}-booklet.pdf", "csv": csv,
             "csv_metadata": [metadata_name(n) for n in csv]}
 
 
-def all_names(spec) -> list[str]:
+def all_names(spec, booklet: bool = False) -> list[str]:
     n = file_names(spec)
-    return [n["pdf"], n["json"], *n["csv"], *n["csv_metadata"]]
+    return [n["pdf"], n["json"], *n["csv"], *n["csv_metadata"], *([n["booklet"]] if booklet else [])]
+
+
+def merge(into: dict, files: dict) -> dict:
+    """Add one edition's files to the set; a file two editions share must have the same bytes."""
+    for name, data in files.items():
+        if name in into and into[name] != data:      # pragma: no cover - the names follow the content
+            raise AssertionError(f"{name}: two editions write different bytes to one file")
+        into[name] = data
+    return into
 
 
 def render_files(spec, progress=None) -> tuple[dict, object]:
@@ -41,9 +60,9 @@ def render_files(spec, progress=None) -> tuple[dict, object]:
     book = model.build_book(spec, tables=tuple(tables))
     files = {}
     names = file_names(spec)
-    for t, name, meta in zip(book.tables, names["csv"], names["csv_metadata"]):
+    for t, ts, name, meta in zip(book.tables, spec.tables, names["csv"], names["csv_metadata"]):
         files[name] = csvout.render_table(book, t).encode("utf-8")
-        files[meta] = dumps(csvout.metadata(book, t, name)).encode("utf-8")
+        files[meta] = dumps(csvout.metadata(book, t, name, editions=ts.shared_by)).encode("utf-8")
     pdf_bytes = pdf.render(book)
     if progress:
         progress(n + 1, total, "PDF")

@@ -25,7 +25,7 @@ from __future__ import annotations
 
 import hashlib
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -499,24 +499,64 @@ class Layout:
     footer: tuple
     scale: float          # font scale
     columns: int = 1      # columns of the reading panel
+    title_lines: tuple = ()      # the title and subtitle wrapped to the band: ((text, size, font), ...)
 
 
-def layout(width: float, height: float) -> Layout:
+#: Smallest text size of the design at font scale 1 (the reading panel's notes), pt.
+SMALLEST_PT = 6.0
+
+
+def _title_lines(title: str, subtitle: str, s: float, width: float) -> tuple:
+    """Title and subtitle wrapped to the title band (the subtitle breaks at its ' · ')."""
+    m = _Measure()
+    out = [(line, 14.5 * s, "bold") for line in _wrap(m, title, 14.5 * s, width, "bold")] if title else []
+    cur = ""
+    for piece in subtitle.split(" · ") if subtitle else []:
+        t = piece if not cur else cur + " · " + piece
+        if cur and m.width(t, 8.2 * s) > width:
+            out.append((cur, 8.2 * s, "sans"))
+            cur = piece
+        else:
+            cur = t
+    if cur:
+        out.extend((line, 8.2 * s, "sans") for line in _wrap(m, cur, 8.2 * s, width))
+    return tuple(out)
+
+
+def _line_step(lines, i: int, s: float) -> float:
+    """Baseline distance from title-band line i - 1 to line i (3.2 s more where the subtitle starts)."""
+    return lines[i][1] * 1.2 + (3.2 * s if lines[i][2] != lines[i - 1][2] else 0.0)
+
+
+def layout(width: float, height: float, *, panel_page: bool = False, min_pt: float | None = None,
+           title: str = "", subtitle: str = "") -> Layout:
     """Our page design: title band on top, plot at left, reading panel at right.
 
     A portrait box (width < 1.15 height) puts the reading panel under the plot,
-    in two columns.
+    in two columns. ``panel_page``: the plot fills the box and the reading panel
+    goes on a page of its own (:func:`panel_layout`), for small paper. ``min_pt``:
+    the smallest text size allowed (the font scale grows to keep every text at or
+    above it). The title and subtitle, when given, are wrapped to the band.
     """
     s = max(0.8, min(1.45, math.sqrt(max(width, height) / PAPERS["A4"][0])))
+    if min_pt:
+        s = max(s, min_pt / SMALLEST_PT)
     m = 26.0 * s if width > 500 else 12.0 * s
-    title_h = 34.0 * s
+    lines = _title_lines(title, subtitle, s, width - 2 * m)
+    title_h = 34.0 * s if len(lines) <= 2 else 21.0 * s + sum(_line_step(lines, i, s) for i in range(1, len(lines)))
     foot_h = 14.0 * s
     left = 44.0 * s       # y tick labels and axis title
     right = 48.0 * s      # secondary scale
     bottom = 34.0 * s     # x tick labels and axis title
     px = m + left
     portrait = width < 1.15 * height
-    if portrait:
+    if panel_page:
+        panel = (m, m + foot_h, 0.0, 0.0)
+        py = m + foot_h + bottom
+        pw = width - 2 * m - left - right
+        ph = height - 2 * m - title_h - foot_h - bottom - 6.0 * s
+        cols = 1
+    elif portrait:
         panel_h = 0.36 * (height - 2 * m - title_h - foot_h)
         panel = (m, m + foot_h, width - 2 * m, panel_h)
         py = m + foot_h + panel_h + bottom + 6.0 * s
@@ -537,7 +577,18 @@ def layout(width: float, height: float) -> Layout:
     return Layout(page=(0.0, 0.0, width, height),
                   title=(m, height - m - title_h, width - 2 * m, title_h),
                   plot=(px, py, pw, ph), panel=panel,
-                  footer=(m, m, width - 2 * m, foot_h), scale=s, columns=cols)
+                  footer=(m, m, width - 2 * m, foot_h), scale=s, columns=cols, title_lines=lines)
+
+
+def panel_layout(width: float, height: float, *, min_pt: float | None = None, title: str = "",
+                 subtitle: str = "") -> Layout:
+    """The page of a chart's reading panel on its own (small paper): the title band, then
+    the panel in two columns over the rest of the box."""
+    lay = layout(width, height, panel_page=True, min_pt=min_pt, title=title, subtitle=subtitle)
+    m, s = lay.title[0], lay.scale
+    top = lay.title[1]
+    panel = (m, m + lay.footer[3], width - 2 * m, top - 6.0 * s - m - lay.footer[3])
+    return replace(lay, panel=panel, columns=2 if width > 300 else 1)
 
 
 def nice_ticks(lo: float, hi: float, target: float):
@@ -608,7 +659,8 @@ class _Conv:
 
 
 def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None = None,
-                footer: str = "", box_pt=None) -> ChartModel:
+                footer: str = "", box_pt=None, panel_page: bool = False,
+                min_pt: float | None = None) -> ChartModel:
     """The finished chart as data: every line sampled, every label placed.
 
     Parameters
@@ -622,6 +674,9 @@ def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None
     footer : document line printed at the bottom (the writer adds page numbers)
     box_pt : (width, height) of the box ``draw_chart`` will fill, points; labels
         are placed for it. Default: the spec's paper, landscape.
+    panel_page : the reading panel on a page of its own (small paper): the plot
+        fills the box; draw the two pages with ``part="plot"`` and ``part="panel"``
+    min_pt : smallest text size, pt (the font scale grows to keep to it)
 
     Raises
     ------
@@ -631,7 +686,14 @@ def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None
     system = _system(units or spec.units, "units")
     T_unit = spec.T_unit if spec.T_unit in T_UNITS[system] else T_UNITS[system][0]
     cv = _Conv(system, T_unit)
-    lay = layout(*(box_pt or PAPERS[spec.paper]))
+    kind_name = "Temperature-entropy (T-s) chart" if spec.kind == "ts" else "Enthalpy-entropy (h-s) chart"
+    title = spec.title or (substance.name if substance.name == substance.id
+                           else f"{substance.name} ({substance.id})")
+    subtitle = (f"{kind_name} · ideal gas · M = {substance.M:.4f} kg/kmol · "
+                f"R = {cv.s.from_si(substance.R):.5f} {cv.sym['s']} · s° at P° = "
+                f"{cv.P.from_si(substance.P_ref_Pa):.6g} {cv.sym['P']}")
+    box = box_pt or PAPERS[spec.paper]
+    lay = layout(*box, panel_page=panel_page, min_pt=min_pt, title=title, subtitle=subtitle)
     fs = lay.scale
 
     # ---- temperature range
@@ -883,8 +945,13 @@ def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None
             lab = placer.place_on_line(text, ln.x, ln.y, size, along_x=True,
                                        targets=(0.90, 0.80, 0.70, 0.60, 0.50, 0.30, 0.15))
         elif ln.family == "dewpoint":
-            text = (f"water dew point {cv.T.from_si(ln.value_SI):.1f} {cv.sym['T']} at "
-                    f"{cv.P.from_si(substance.dew_point_P_Pa):.4g} {Psym}: condensation below")
+            dew_T = f"{cv.T.from_si(ln.value_SI):.1f} {cv.sym['T']}"
+            # the longest wording that fits the plot (a small page's plot is narrower than the first)
+            for text in (f"water dew point {dew_T} at {cv.P.from_si(substance.dew_point_P_Pa):.4g} {Psym}: "
+                         f"condensation below", f"water dew point {dew_T}: condensation below",
+                         f"water dew point {dew_T}"):
+                if placer._width(text, size * 1.05) + 2.4 <= 0.9 * placer.W:
+                    break
             lab = placer.place_on_line(text, ln.x, ln.y, size * 1.05, along_x=True,
                                        targets=(0.70, 0.55, 0.85, 0.40, 0.25))
         else:
@@ -897,21 +964,18 @@ def build_chart(substance, spec: ChartSpec, *, T_range_K=None, units: str | None
         notes.append("Fixed composition: dissociation, which sets in above about 2000 K (common "
                      "practice), is not included.")
     panel = _panel(substance, spec, cv, ov_states, ov_steps, placed_points, system, notes, fs, used)
-    if not panel_fits(panel, lay):
+    if not panel_fits(panel, panel_layout(*box, min_pt=min_pt, title=title, subtitle=subtitle)
+                      if panel_page else lay, min_pt):
         _fail(f"{spec.where}.overlays", f"{len(spec.overlays)} overlays with "
               f"{sum(len(o.steps) for o in spec.overlays)} steps do not fit the reading panel of "
               f"{'this box' if box_pt else 'an ' + spec.paper + ' page'} in legible type; allowed: fewer "
               f"overlays or steps, or paper = \"A3\"")
-    kind_name = "Temperature-entropy (T-s) chart" if spec.kind == "ts" else "Enthalpy-entropy (h-s) chart"
-    title = spec.title or (substance.name if substance.name == substance.id
-                           else f"{substance.name} ({substance.id})")
-    subtitle = (f"{kind_name} · ideal gas · M = {substance.M:.4f} kg/kmol · "
-                f"R = {cv.s.from_si(R):.5f} {cv.sym['s']} · s° at P° = {cv.P.from_si(substance.P_ref_Pa):.6g} {Psym}")
     return ChartModel(kind=spec.kind, paper=spec.paper, units=system, title=title, subtitle=subtitle,
                       x_axis=x_axis, y_axis=y_axis, side=side, lines=tuple(labelled),
                       points=tuple(placed_points), arrows=tuple(arrow_objs), panel=panel,
                       footer=footer, fingerprint=_fingerprint(substance, spec, (lo, hi)),
-                      notes=tuple(notes), extra={"T_range_K": (lo, hi)})
+                      notes=tuple(notes), extra={"T_range_K": (lo, hi), "panel_page": bool(panel_page),
+                                                 "min_pt": min_pt})
 
 
 def _stagger(i: int, targets: tuple) -> tuple:
@@ -1170,8 +1234,10 @@ def _text_bg(surf, x, y, s, size, angle, font="sans", rgb=INK, pad=1.2):
     surf.text(bx, by, s, size, font, "center", angle, rgb)
 
 
-def _compose(surf, model: ChartModel, x0, y0, width, height, page_text: str = ""):
-    lay = layout(width, height)
+def _compose(surf, model: ChartModel, x0, y0, width, height, page_text: str = "", part: str = "whole"):
+    opts = {"min_pt": model.extra.get("min_pt"), "title": model.title, "subtitle": model.subtitle}
+    lay = (panel_layout(width, height, **opts) if part == "panel"
+           else layout(width, height, panel_page=part == "plot", **opts))
     fs = lay.scale
     px, py, pw, ph = lay.plot
     px, py = px + x0, py + y0
@@ -1190,9 +1256,17 @@ def _compose(surf, model: ChartModel, x0, y0, width, height, page_text: str = ""
     # title band
     tx, ty, tw, th = lay.title
     tx, ty = tx + x0, ty + y0
-    surf.text(tx, ty + th - 15 * fs, model.title, 14.5 * fs, "bold", "left", rgb=BLACK)
-    surf.text(tx, ty + th - 28 * fs, model.subtitle, 8.2 * fs, "sans", "left")
+    yl = ty + th - 15 * fs
+    for i, (line, size, font) in enumerate(lay.title_lines):
+        if i:
+            yl -= _line_step(lay.title_lines, i, fs)
+        surf.text(tx, yl, line, size, font, "left", rgb=BLACK if font == "bold" else INK)
     surf.polyline([(tx, ty + 1.5 * fs), (tx + tw, ty + 1.5 * fs)], 0.8 * fs, None, BLACK)
+    if part == "panel":
+        qx, qy, qw, qh = lay.panel
+        _draw_panel(surf, model.panel, (qx + x0, qy + y0, qw, qh), fs, lay.columns, opts["min_pt"])
+        _chart_footer(surf, model, lay, x0, y0, fs, page_text)
+        return
 
     # grid
     for v in xa.minor:
@@ -1269,10 +1343,13 @@ def _compose(surf, model: ChartModel, x0, y0, width, height, page_text: str = ""
         surf.text(px + pw + 40 * fs, py + ph / 2, sd.label, 8.6 * fs, "sans", "center", 90.0, BLACK)
 
     # reading panel
-    qx, qy, qw, qh = lay.panel
-    _draw_panel(surf, model.panel, (qx + x0, qy + y0, qw, qh), fs, lay.columns)
+    if part == "whole":
+        qx, qy, qw, qh = lay.panel
+        _draw_panel(surf, model.panel, (qx + x0, qy + y0, qw, qh), fs, lay.columns, opts["min_pt"])
+    _chart_footer(surf, model, lay, x0, y0, fs, page_text)
 
-    # footer
+
+def _chart_footer(surf, model, lay, x0, y0, fs, page_text):
     fx, fy, fw, fh = lay.footer
     fx, fy = fx + x0, fy + y0
     surf.polyline([(fx, fy + fh), (fx + fw, fy + fh)], 0.4, None, INK)
@@ -1369,19 +1446,26 @@ class _Measure:
         return stringWidth(s, SANS_BOLD if font == "bold" else SANS, size)
 
 
-def panel_fits(blocks, lay: Layout) -> bool:
+def _factors(fs: float, min_pt: float | None) -> tuple:
+    """The panel's font factors that keep its smallest text at or above ``min_pt``."""
+    if not min_pt:
+        return PANEL_FACTORS
+    return tuple(k for k in PANEL_FACTORS if SMALLEST_PT * fs * k >= min_pt - 1e-9) or PANEL_FACTORS[:1]
+
+
+def panel_fits(blocks, lay: Layout, min_pt: float | None = None) -> bool:
     qx, qy, qw, qh = lay.panel
     cw = (qw - 14.0 * lay.scale * (lay.columns - 1)) / lay.columns
     return any(_flow(_panel_ops(_Measure(), blocks, cw, lay.scale, k), qh - 4 * lay.scale, lay.columns)
-               is not None for k in PANEL_FACTORS)
+               is not None for k in _factors(lay.scale, min_pt))
 
 
-def _draw_panel(surf, blocks, rect, fs, columns):
+def _draw_panel(surf, blocks, rect, fs, columns, min_pt=None):
     qx, qy, qw, qh = rect
     gap = 14.0 * fs
     cw = (qw - gap * (columns - 1)) / columns
     placed = None
-    for k in PANEL_FACTORS:
+    for k in _factors(fs, min_pt):
         placed = _flow(_panel_ops(surf, blocks, cw, fs, k), qh - 4 * fs, columns)
         if placed is not None:
             break
@@ -1415,12 +1499,12 @@ def _draw_panel(surf, blocks, rect, fs, columns):
                 surf.polyline([(ox + x, oy + y), (ox + x + length, oy + y)], 0.4, None, INK)
 
 
-def _wrap(surf, text, size, width):
+def _wrap(surf, text, size, width, font="sans"):
     words = text.split(" ")
     out, cur = [], ""
     for w in words:
         t = w if not cur else cur + " " + w
-        if surf.width(t, size) <= width or not cur:
+        if surf.width(t, size, font) <= width or not cur:
             cur = t
         else:
             out.append(cur)
@@ -1509,13 +1593,15 @@ class _PdfSurface(_Surface):
 
 
 def draw_chart(canvas, model: ChartModel, x: float, y: float, width: float, height: float,
-               page_text: str = "") -> None:
+               page_text: str = "", part: str = "whole") -> None:
     """Draw the chart as vector graphics into the box (points) of a reportlab canvas.
 
     The box holds the whole chart page design (title band, plot, reading panel,
     footer); a landscape A4 or A3 page box gives the intended proportions.
+    ``part``: "whole"; or, for a model built with ``panel_page``, "plot" (title band
+    and plot) and "panel" (title band and reading panel), two facing pages.
     """
-    _compose(_PdfSurface(canvas), model, x, y, width, height, page_text)
+    _compose(_PdfSurface(canvas), model, x, y, width, height, page_text, part)
 
 
 def chart_pdf(models, *, title: str = "tablegen charts", date_text: str = "") -> bytes:

@@ -111,14 +111,16 @@ def metadata_name(csv_name: str) -> str:
     return csv_name + "-metadata.json"
 
 
-def metadata(book, t, csv_name: str) -> dict:
+def metadata(book, t, csv_name: str, editions: tuple = ()) -> dict:
     """W3C CSV on the Web metadata of one table's CSV (Tabular Metadata, W3C Recommendation
     17 December 2015): the table schema (column names, titles, datatypes, units) and what
     the values were computed from (document, revision, fingerprint, substance, datum).
 
     Units are annotated with ``schema:unitText`` on each column (schema.org); provenance
     with Dublin Core terms and ``prov:wasDerivedFrom``, whose ``@id`` is
-    ``urn:sha256:`` + the fingerprint printed in the PDF footer.
+    ``urn:sha256:`` + the fingerprint printed in the PDF footer. ``editions``: the
+    editions of the book that print this same file (schema.org ``bookEdition``), so one
+    folder can hold the files of every edition of one issue.
     """
     from .model import DEFINITIONS
     d = book.document
@@ -141,7 +143,8 @@ def metadata(book, t, csv_name: str) -> dict:
                                    "; ".join(f"{k} {v}" for k, v in MARK_CODES.items()) +
                                    "; empty for a plain row"})
     s = t.substance
-    return {
+    extra = {"schema:bookEdition": list(editions)} if editions else {}
+    return {**extra,
         "@context": ["http://www.w3.org/ns/csvw", {"@language": "en"}],
         "url": csv_name,
         "dc:title": t.title,

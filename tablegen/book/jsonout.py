@@ -64,7 +64,24 @@ def sidecar(book, files: dict) -> dict:
                                "cautions": list(sh.caution_refs)} for sh in book.sheets],
         "appendix": [{"title": s.title, "paragraphs": list(s.paragraphs)} for s in book.appendix],
         "files": {"pdf": files["pdf"], "csv": list(files["csv"]), "csv_metadata": list(files["csv_metadata"])},
+        "edition": edition(book),
     }
+
+
+def edition(book) -> dict:
+    """Which edition this file is: its name ("" for a spec without editions), label, printed
+    document number, paper, sides and figure size, and the rows of each of its tables."""
+    ed = book.edition
+    d = book.document
+    out = {"name": "", "label": "", "number": d.number, "paper": d.paper, "orientation": d.orientation,
+           "two_sided": False, "font_size_pt": None, "paper_from": "spec", "primary": True, "overrides": {}}
+    if ed is not None:
+        out.update(name=ed.name, label=ed.label, number=ed.number(d.number), two_sided=bool(ed.two_sided),
+                   font_size_pt=ed.font_size_pt, paper_from=ed.paper_from, primary=bool(ed.primary),
+                   overrides=dict(ed.normalised))
+    out["tables"] = [{"name": t.name, "rows": t.rows, "T_K": [float(x) for x in t.T_K],
+                      "columns": [c.csv_header for c in t.columns]} for t in book.tables]
+    return out
 
 
 def render(book, files: dict) -> str:

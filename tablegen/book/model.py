@@ -255,6 +255,7 @@ class BookModel:
     caution_refs: dict = field(default_factory=dict)   # substance id -> ids of the cautions that concern it
     extrapolation: str = ""  # which tables may extrapolate, and who asked (document control block)
     worked_example: Section | None = None   # reading between two rows of the first table (how-to-read page)
+    edition: object = None  # tablegen.editions.Edition: paper, sides, figure size, printed number
 
 
 # ---------------------------------------------------------------- evaluation
@@ -440,6 +441,16 @@ def pressure_text(P: float) -> str:
 
 
 def _grid_text(g: dict) -> str:
+    text = _grid_text_of(g)
+    if "T_range_K" in g:      # an edition that prints part of the grid
+        from ..units import unit
+        u = unit(g["segments"][0]["unit"] if g["kind"] == "segments" else g.get("unit", "K"), "temperature")
+        lo, hi = (f"{u.from_si(T):.6g}".replace("-", "−") for T in g["T_range_K"])
+        text += f"; this edition prints the rows from {lo} to {hi} {u.symbol}"
+    return text
+
+
+def _grid_text_of(g: dict) -> str:
     if g["kind"] == "segments":
         parts = []
         from ..units import unit
@@ -519,7 +530,8 @@ def build_table(t, doc) -> TableModel:
     charts = ()
     if t.charts:
         from .charts import build_chart
-        charts = tuple(build_chart(sub, c, T_range_K=(float(t.T_K.min()), float(t.T_K.max())), units=t.units)
+        charts = tuple(build_chart(sub, c, T_range_K=(float(t.T_K.min()), float(t.T_K.max())), units=t.units,
+                                   **chart_page(doc))
                        for c in t.charts)
     return TableModel(
         charts=charts,
@@ -534,6 +546,17 @@ def build_table(t, doc) -> TableModel:
         stated=stated)
 
 
+def chart_page(doc) -> dict:
+    """How a chart goes onto the book's pages: the box it is drawn in (its labels are placed
+    for that box), on one page or with its reading panel on the facing page (small paper),
+    and the smallest text size there."""
+    from .pagination import MIN_TEXT_SMALL_PT, chart_box, chart_on_two_pages, layout_for
+    L = layout_for(doc.paper, doc.orientation)
+    _, _, w, h = chart_box(L)
+    small = chart_on_two_pages(L)
+    return {"box_pt": (w, h), "panel_page": small, "min_pt": MIN_TEXT_SMALL_PT if small else None}
+
+
 # ---------------------------------------------------------------- fingerprint
 def data_files(spec) -> list[Path]:
     """Coefficient and composition files the book's values depend on.
@@ -546,7 +569,7 @@ def data_files(spec) -> list[Path]:
     from ..data.library import library
     lib = library(tuple(spec.data_paths))
     files = set(lib.user_files)
-    for t in spec.tables:
+    for t in getattr(spec, "all_tables", ()) or spec.tables:
         for _, ds, _ in t.substance.sources:
             d = lib.datasets.get(ds)
             if d is not None and getattr(d, "path", None) is not None:
@@ -634,4 +657,5 @@ def build_book(spec, tables=None) -> BookModel:
                      name=spec.name, document=doc, tables=tables, substances=tuple(subs),
                      definitions=tuple(definitions), cautions=tuple(cautions), rounding_rule=ROUNDING_RULE,
                      reference_text=ref_text, data_files=listed, fingerprint=fp, versions=versions(),
-                     normalised_spec=spec.normalised, sheets=sheets, caution_refs=refs)
+                     normalised_spec=spec.normalised, sheets=sheets, caution_refs=refs,
+                     edition=getattr(spec, "edition", None))

@@ -13,51 +13,32 @@ ids; the fonts are the embedded DejaVu faces of :mod:`tablegen.book.fonts`.
 from __future__ import annotations
 
 import io
-from dataclasses import dataclass
+import re
+from dataclasses import replace
 
-from reportlab.lib.pagesizes import A3, A4, A5, landscape, letter
-from reportlab.lib.units import mm
-from reportlab.lib.utils import simpleSplit
 from reportlab.pdfbase.pdfmetrics import getFont, stringWidth
 
-from . import fonts
+from . import fonts, pagination
 from .fonts import MONO, SANS, SANS_BOLD, SANS_OBLIQUE
 from .model import pressure_text
+from .pagination import Layout
+from .textfit import fit_columns, simpleSplit
 
 MINUS = "\u2212"
 
 
-@dataclass(frozen=True, slots=True)
-class Layout:
-    """Geometry and type sizes of one paper format."""
-
-    paper: str
-    width: float
-    height: float
-    margin_x: float
-    margin_top: float
-    margin_bottom: float
-    body: float          # table figures, pt
-    row: float           # row pitch, pt
-    head: float          # column symbols, pt
-    text: float          # front-matter text, pt
-    gap: float           # least space between columns, pt
-    max_columns: int     # property columns per page at most (0: as many as fit)
+def layout_for(paper: str, orientation: str = "portrait", font_size: float | None = None,
+               two_sided: bool = False) -> Layout:
+    """Geometry and type sizes of a paper (tablegen.book.pagination.layout_for)."""
+    return pagination.layout_for(paper, orientation, font_size, two_sided)
 
 
-_SIZES = {"A4": A4, "Letter": letter, "A3": A3, "A5-pocket": A5}
-
-
-def layout_for(paper: str, orientation: str) -> Layout:
-    w, h = _SIZES[paper]
-    if orientation == "landscape":
-        w, h = landscape((w, h))
-    if paper == "A5-pocket":
-        # field use: larger figures, fewer columns, wide row pitch for a pencil mark
-        return Layout(paper, w, h, 11 * mm, 13 * mm, 13 * mm, 9.0, 12.6, 9.5, 8.5, 9.0, 5)
-    if paper == "A3":
-        return Layout(paper, w, h, 20 * mm, 18 * mm, 18 * mm, 9.0, 11.6, 9.5, 10.0, 14.0, 0)
-    return Layout(paper, w, h, 15 * mm, 16 * mm, 16 * mm, 7.6, 9.8, 8.2, 9.0, 11.0, 0)
+def book_layout(book) -> Layout:
+    """The layout of a book's edition: its paper, sides and figure size, and a running head
+    of one or two lines (:func:`running_head`)."""
+    d, ed = book.document, book.edition
+    L = layout_for(d.paper, d.orientation, getattr(ed, "font_size_pt", None), bool(getattr(ed, "two_sided", False)))
+    return replace(L, head_lines=len(running_head(book, L)))
 
 
 # ---------------------------------------------------------------- page plan
@@ -79,8 +60,8 @@ class Flow:
 
     def __init__(self, book, L: Layout, pages: list, kind: str):
         self.L, self.pages, self.kind = L, pages, kind
-        self.top = L.height - L.margin_top - 10
-        self.bottom = L.margin_bottom + 14
+        self.top = L.body_top
+        self.bottom = L.body_bottom
         self.left = L.margin_x
         self.width = L.width - 2 * L.margin_x
         self.page = None
@@ -99,11 +80,15 @@ class Flow:
     def space(self, h: float):
         self.y -= h
 
-    def heading(self, text: str, size: float | None = None, anchor: str | None = None):
+    def heading(self, text: str, size: float | None = None, anchor: str | None = None, keep: float = 0.0):
+        """A heading, kept on one page with what follows it: ``keep`` points of it (by
+        default nine lines of text; a box or grid passes its own height)."""
         size = size or self.L.text * 1.45
-        self.need(size * 1.6 + self.L.text * 9)
-        self.y -= size * 1.1
-        self.page.ops.append(("t", SANS_BOLD, size, self.left, self.y, text))
+        lines = simpleSplit(text, SANS_BOLD, size, self.width) or [""]
+        self.need(size * (0.5 + 1.1 * len(lines)) + (keep or self.L.text * 9))
+        for i, line in enumerate(lines):
+            self.y -= size * 1.1
+            self.page.ops.append(("t", SANS_BOLD, size, self.left, self.y, line))
         if anchor:
             self.page.anchor = self.page.anchor or anchor
             self.page.ops.append(("anchor", anchor))
@@ -123,9 +108,9 @@ class Flow:
         """A wrapped grid; the header repeats when the grid runs onto a new page."""
         size = size or self.L.text * 0.92
         lead = size * 1.28
-        widths = [f * self.width for f in fractions]
-        xs = [self.left + sum(widths[:i]) for i in range(len(widths))]
         pad = 3.0
+        widths = fit_columns([f * self.width for f in fractions], header, rows, size, pad, mono_cols)
+        xs = [self.left + sum(widths[:i]) for i in range(len(widths))]
 
         def split(cells, bold=False):
             out = []
@@ -169,8 +154,8 @@ class Flow:
             self.page.ops.append(("l", self.left, self.y, self.left + self.width, self.y, 0.25, 0.65))
         self.y -= lead * 0.6
 
-    def box(self, title: str, paragraphs, size: float | None = None):
-        """A ruled box (the caution notice); kept on one page."""
+    def box_lines(self, paragraphs, size: float | None = None):
+        """Lines and height of a ruled box of these paragraphs (see :meth:`box`)."""
         size = size or self.L.text
         lead = size * 1.32
         pad = 7.0
@@ -178,7 +163,14 @@ class Flow:
         for p in paragraphs:
             lines.extend(simpleSplit(p, SANS, size, self.width - 2 * pad))
             lines.append("")
-        h = (len(lines) + 2) * lead + 2 * pad
+        return lines, (len(lines) + 2) * lead + 2 * pad
+
+    def box(self, title: str, paragraphs, size: float | None = None):
+        """A ruled box (the caution notice); kept on one page."""
+        size = size or self.L.text
+        lead = size * 1.32
+        pad = 7.0
+        lines, h = self.box_lines(paragraphs, size)
         self.need(h)
         top = self.y
         self.page.ops.append(("rect", self.left, top - h, self.width, h, 1.2))
@@ -192,7 +184,6 @@ class Flow:
         self.y = top - h - lead
 
 
-# ---------------------------------------------------------------- front matter
 def _fmt_frac(x: float) -> str:
     return f"{x:.6f}"
 
@@ -214,6 +205,7 @@ def _front(book, L: Layout, pages: list, contents: list):
         ("Issue date", d.issue_date),
         ("Organisation", d.organisation or "—"),
         ("Paper", f"{d.paper}, {d.orientation}"),
+        *_edition_rows(book),
         ("Units; basis", f"{units}; {d.basis} (tables may set their own)"),
         *([("Volumetric reference", book.reference_text)] if book.reference_text else []),
         *([("Extrapolation", book.extrapolation)] if book.extrapolation else []),
@@ -223,12 +215,10 @@ def _front(book, L: Layout, pages: list, contents: list):
     ], (0.3, 0.7), mono_cols=())
     f.heading("Approval", L.text * 1.25)
     _signatures(f, d)
-    f.heading("Contents", L.text * 1.25)
-    for title, anchor in contents:
-        f.need(L.text * 1.4)
-        f.y -= L.text * 1.4
-        f.page.ops.append(("t", SANS, L.text, f.left, f.y, title))
-        f.page.ops.append(("pageref", SANS, L.text, f.left + f.width, f.y, anchor))
+    # the contents stay together: on this page if they fit, else all on the next
+    f.heading("Contents", L.text * 1.25, keep=min(sum(len(lines) for lines, _, _ in _contents_lines(f, contents))
+                                                  * L.text * 1.4, f.top - f.bottom - L.text * 4))
+    _contents(f, contents)
 
     # how to read
     f.new_page()
@@ -236,14 +226,22 @@ def _front(book, L: Layout, pages: list, contents: list):
     f.para("Each table gives ideal-gas properties of one substance at the temperatures of its first "
            "column or columns. The substance, the basis (per unit mass, per mole or per volume at "
            "stated reference conditions), the enthalpy datum, the entropy reference pressure P° and "
-           "the Pr/vr anchor are printed at the head of every table page and listed below. Values "
-           "between rows may be interpolated linearly; the largest error that adds is printed under "
-           "each table, beside the uncertainty U, and the example below shows how to use it.")
+           f"the Pr/vr anchor are printed at the head of {'each table' if L.compact else 'every table page'} "
+           "and listed below. Values between rows may be interpolated linearly; the largest error that "
+           "adds is printed under each table, beside the uncertainty U, and the example below shows how "
+           "to use it.")
     f.para(book.rounding_rule)
     f.para("Row marks in the narrow first column: * an extra row at a named temperature; "
            "x a value extrapolated beyond the range of the coefficient data; c at or below the water dew "
            "point of the gas: water may condense at this temperature; ideal-gas values do not hold. The "
            "CSV files carry the same marks in their last column, mark.")
+    if _facing_note(book, L):
+        f.para(_facing_note(book, L))
+    if L.compact:
+        f.para("On this small paper each table page repeats only what a reader needs on every page: the "
+               "table title, the column symbols and units, the document number, revision and page. The "
+               "substance, basis, datum and anchor are printed on the first page of each table, and its "
+               "notes (marked rows, uncertainty, cautions) on its last page.")
     _worked_example(f, book)
     if book.reference_text:
         f.para(f"Volumetric basis: values per cubic metre (SI) or cubic foot (US) of gas at "
@@ -302,8 +300,61 @@ def _front(book, L: Layout, pages: list, contents: list):
            size=L.text * 0.9)
     f.grid(("File", "SHA-256"), [(n, _grouped(h)) for n, h in book.data_files], (0.28, 0.72),
            size=L.text * 0.8, mono_cols=(1,))
-    f.heading("Caution", anchor="caution")
+    f.heading("Caution", anchor="caution", keep=min(f.box_lines(book.cautions)[1], f.top - f.bottom - L.text * 3))
     f.box("CAUTION", book.cautions)
+
+
+def _contents_lines(f: Flow, contents):
+    """(lines, indent, anchor) of each contents entry: wrapped short of the page number;
+    chart entries indented under their table."""
+    L = f.L
+    numw = _w("0000", SANS, L.text)
+    out = []
+    for title, anchor in contents:
+        indent = L.text * 1.5 if anchor.startswith("chart") else 0.0
+        out.append((simpleSplit(title, SANS, L.text, f.width - numw - indent - 4) or [""], indent, anchor))
+    return out
+
+
+def _contents(f: Flow, contents):
+    """One line per entry (wrapped, never past the page number), the page number at the right."""
+    L = f.L
+    for lines, indent, anchor in _contents_lines(f, contents):
+        f.need(L.text * 1.4 * len(lines))
+        for line in lines:
+            f.y -= L.text * 1.4
+            f.page.ops.append(("t", SANS, L.text, f.left + indent, f.y, line))
+        f.page.ops.append(("pageref", SANS, L.text, f.left + f.width, f.y, anchor))
+
+
+def _edition_rows(book) -> list:
+    """Rows of the document control that say which edition this is (none without editions)."""
+    ed = book.edition
+    rows = []
+    if ed is not None and ed.name:
+        rows.append(("Edition", f"{ed.label} ({ed.name}), document number {ed.number(book.document.number)}; "
+                                f"every edition of revision {book.document.revision} carries the fingerprint below"))
+    if ed is not None and ed.paper_from == "--paper":
+        rows.append(("Paper chosen", "for this build only (tablegen build --paper); the spec gives "
+                                     f"{book.normalised_spec['document']['paper']}"))
+    if ed is not None and ed.two_sided:
+        rows.append(("Printing", "two-sided: column parts of a wide table face each other"))
+    return rows
+
+
+def _facing_note(book, L: Layout) -> str:
+    """The how-to-read paragraph on facing pages and blank versos (two-sided editions only)."""
+    if not L.two_sided:
+        return ""
+    text = ("This edition is printed on both sides of the paper. A table too wide for one page is printed "
+            "in column parts of about equal width, with the temperature columns repeated on each: part 1 on "
+            "a left-hand (even-numbered) page and part 2 on the right-hand page facing it (parts 3 and 4 on "
+            "the next spread), so each row reads straight across the spread. Where such a table would "
+            "start on a right-hand page, the page before it is left blank and says so.")
+    if any(t.charts for t in book.tables) and pagination.chart_on_two_pages(L):
+        text += (" Each chart takes a spread: the chart on the left-hand page, its key, states and "
+                 "cautions on the right-hand page.")
+    return text
 
 
 def _sheet(f: Flow, sh, n: int):
@@ -399,10 +450,33 @@ class _Widths:
         return [len(s) * d + (dm if s[:1] == "−" else 0.0) + (dd if "." in s else 0.0) for s in cells]
 
 
-def plan_table(t, L: Layout):
-    """Column groups and rows per page of one table.
+class TablePlan:
+    """How one table goes onto pages: column parts, row ranges, widths and the text lines."""
 
-    Returns (groups, rows_per_page, column widths, mark column width, note lines, head lines).
+    __slots__ = ("groups", "chunks", "colw", "markw", "note_lines", "head", "title", "title_more")
+
+    def __init__(self, **kw):
+        for k, v in kw.items():
+            setattr(self, k, v)
+
+
+def _title_size(L: Layout) -> float:
+    return L.text * 1.35
+
+
+def _head_size(L: Layout) -> tuple[float, float]:
+    """Size and line pitch of a table's heading lines (substance, basis, datum): tighter in the
+    compact layout, where they are printed once per table."""
+    return (L.body * 0.85, L.body * 1.1) if L.compact else (L.body * 0.9, L.body * 1.2)
+
+
+def plan_table(t, L: Layout, index: int = 1) -> TablePlan:
+    """Column parts and rows per page of one table (rules in tablegen.book.pagination).
+
+    Full layout: title, heading lines and notes on every page. Compact layout (small
+    paper): the heading lines on the first page of the table and the notes on its
+    last page; the title, column symbols and units on every page. Every column part
+    of a row range has the same lines, so the rows of facing parts line up.
     """
     widths = _Widths(SANS, L.body)
     colw = []
@@ -413,7 +487,7 @@ def plan_table(t, L: Layout):
         colw.append(max(longest, head))
     has_marks = any(t.marks)
     markw = max(_w(m, SANS, L.body) for m in t.marks) + 2 if has_marks else 0.0
-    avail = L.width - 2 * L.margin_x - markw
+    full = L.live_width
     tcols = [i for i, c in enumerate(t.columns) if c.key == "T"]
     others = [i for i, c in enumerate(t.columns) if c.key != "T"]
     base = sum(colw[i] + L.gap for i in tcols)
@@ -424,32 +498,33 @@ def plan_table(t, L: Layout):
             units[-1].append(i)
         else:
             units.append([i])
-    groups, cur, used = [], [], base
-    for u in units:
-        w = sum(colw[i] + L.gap for i in u)
-        if cur and (used + w > avail or (L.max_columns and len(cur) + len(u) > L.max_columns)):
-            groups.append(cur)
-            cur, used = [], base
-        cur.extend(u)
-        used += w
-    if cur or not groups:
-        groups.append(cur)
+    parts = pagination.column_parts([sum(colw[i] + L.gap for i in u) for u in units], base, full - markw,
+                                    L.max_columns, [len(u) for u in units], even=L.two_sided)
+    groups = [tcols + [i for ui in part for i in units[ui]] for part in parts] if units else [tcols]
     note_lines = []
     for n in t.notes:
-        note_lines.extend(simpleSplit(n, SANS_OBLIQUE, L.body * 0.85, L.width - 2 * L.margin_x))
-    top = L.height - L.margin_top - 10
-    bottom = L.margin_bottom + 14
+        note_lines.extend(simpleSplit(n, SANS_OBLIQUE, L.body * 0.85, full))
     head = []
     for line in t.head_lines:
-        head.extend(simpleSplit(line, SANS, L.body * 0.9, L.width - 2 * L.margin_x))
-    title_h = L.text * 1.35 * 1.3 + L.body * 1.2 * len(head) + 4
-    header_h = L.head * 1.3 + L.body * 0.82 * 1.3 + 6
-    notes_h = (len(note_lines) + 1) * L.body * 0.85 * 1.3 + 4
-    avail_h = top - bottom - title_h - header_h - notes_h
-    rpp = max(1, int(avail_h // L.row))
-    if rpp >= 10:
-        rpp -= rpp % 5
-    return [tcols + g for g in groups], rpp, colw, markw, note_lines, head
+        head.extend(simpleSplit(line, SANS, _head_size(L)[0], full))
+    ts = _title_size(L)
+    title = simpleSplit(f"Table {index}. {t.title}", SANS_BOLD, ts, full) or [""]
+    more = simpleSplit(f"Table {index}. {t.title} (continued)", SANS_BOLD, ts, full) or [""]
+    line_h = L.body * 0.85 * 1.3
+    height = (L.body_top - L.body_bottom - 6 - (L.head * 1.15 + L.body * 0.82 * 1.3 + 4) - line_h - 6)
+
+    def rows(first: bool, with_notes: bool) -> int:
+        """Rows of a page: the first has the title and the heading lines, a later one the
+        title with "(continued)" (and, in the full layout, the heading lines too)."""
+        with_head = first or not L.compact
+        h = (height - ts * 1.3 * len(title if first else more) - (_head_size(L)[1] * len(head) if with_head else 0.0)
+             - (line_h * len(note_lines) if with_notes else 0.0))
+        return max(1, int(h // L.row))
+    notes_later = L.compact      # compact: the notes on the last page only; full: on every page
+    chunks = pagination.row_chunks(t.rows, rows(True, not notes_later), rows(False, not notes_later),
+                                   rows(False, True), rows(True, True))
+    return TablePlan(groups=groups, chunks=chunks, colw=colw, markw=markw, note_lines=note_lines, head=head,
+                     title=title, title_more=more)
 
 
 def _shapes(cells):
@@ -462,20 +537,43 @@ def _shapes(cells):
     return seen.values()
 
 
+def blank_page(L: Layout, why: str) -> Page:
+    """A page left blank on purpose, saying so (and why)."""
+    page = Page("blank")
+    y = (L.body_top + L.body_bottom) / 2
+    page.ops.append(("c", SANS_OBLIQUE, L.text * 1.1, L.width / 2, y, "This page is intentionally left blank."))
+    for i, line in enumerate(simpleSplit(why, SANS_OBLIQUE, L.text * 0.9, L.live_width * 0.8)):
+        page.ops.append(("c", SANS_OBLIQUE, L.text * 0.9, L.width / 2, y - L.text * 1.6 - i * L.text * 1.2, line))
+    return page
+
+
+def to_left_page(pages: list, L: Layout, why: str):
+    """In a two-sided edition, a blank page so that the next page is a left-hand (even) one."""
+    if L.two_sided and (len(pages) + 1) % 2 == 1:
+        pages.append(blank_page(L, why))
+
+
 def table_pages(t, index: int, L: Layout, pages: list):
-    groups, rpp, colw, markw, note_lines, head = plan_table(t, L)
+    P = plan_table(t, L, index)
+    groups, colw, markw = P.groups, P.colw, P.markw
     n = t.rows
-    chunks = [(a, min(a + rpp, n)) for a in range(0, n, rpp)]
+    chunks = P.chunks
     widths = _Widths(SANS, L.body)
     cells_txt = [[_cell_text(s) for s in c.cells] for c in t.columns]
     cell_w = [widths.many(col) for col in cells_txt]
     left0 = L.margin_x
-    full = L.width - 2 * L.margin_x
-    top = L.height - L.margin_top - 10
+    full = L.live_width
+    top = L.body_top
+    ts = _title_size(L)
+    facing = L.two_sided and len(groups) > 1
+    start = len(pages)
     for ci, (a, b) in enumerate(chunks):
+        first, last = ci == 0, ci == len(chunks) - 1
+        if facing:
+            to_left_page(pages, L, f"The column parts of Table {index} follow on facing pages.")
         for gi, g in enumerate(groups):
             page = Page("table")
-            if ci == 0 and gi == 0:
+            if first and gi == 0:
                 page.anchor = f"table{index}"
                 page.ops.append(("anchor", f"table{index}"))
             ops = page.ops
@@ -484,19 +582,14 @@ def table_pages(t, index: int, L: Layout, pages: list):
             gap = L.gap + min(L.gap, max(0.0, (full - natural) / max(1, len(g))))
             tw = markw + sum(colw[i] + gap for i in g)
             x0 = left0 + (full - tw) / 2 if tw < full else left0
-            y = top - L.text * 1.35
-            part = []
-            if len(chunks) > 1:
-                part.append(f"rows {a + 1}-{b} of {n}")
-            if len(groups) > 1:
-                part.append(f"columns part {gi + 1} of {len(groups)}")
-            if b < n or gi + 1 < len(groups):
-                part.append("continued on the next page")
-            ops.append(("t", SANS_BOLD, L.text * 1.35, left0, y,
-                        _fit(f"Table {index}. {t.title}", SANS_BOLD, L.text * 1.35, full)))
-            for line in head:
-                y -= L.body * 1.2
-                ops.append(("t", SANS, L.body * 0.9, left0, y, line))
+            y = top
+            for line in (P.title if first else P.title_more):
+                y -= ts * 1.3
+                ops.append(("t", SANS_BOLD, ts, left0, y + ts * 0.3, line))
+            y -= 2
+            for line in (P.head if first or not L.compact else ()):
+                y -= _head_size(L)[1]
+                ops.append(("t", SANS, _head_size(L)[0], left0, y, line))
             y -= 6
             # column header: symbol, unit, rule
             xr = []
@@ -528,17 +621,29 @@ def table_pages(t, index: int, L: Layout, pages: list):
             ops.append(("cells", SANS, L.body, cells))
             ops.append(("l", x0, yy - 1, x0 + tw, yy - 1, 0.8, 0.0))
             ny = yy - 3
-            lines = list(note_lines)
-            if part:
-                lines.append(" · ".join(part))
-            for line in lines:
+            lines = list(P.note_lines) if last or not L.compact else []
+            lines.append(_part_line(a, b, n, gi, len(groups), facing, last and gi + 1 == len(groups)))
+            for line in filter(None, lines):
                 ny -= L.body * 0.85 * 1.3
                 ops.append(("t", SANS_OBLIQUE, L.body * 0.85, left0, ny, line))
             pages.append(page)
-    return len(chunks) * len(groups)
+    return len(pages) - start
+
+
+def _part_line(a: int, b: int, n: int, gi: int, parts: int, facing: bool, end: bool) -> str:
+    """The foot line of a table page: its rows, its column part, what follows."""
+    bits = [f"rows {a + 1}-{b} of {n}"] if (a, b) != (0, n) else []
+    if parts > 1:
+        other = gi + 2 if gi % 2 == 0 else gi
+        bits.append(f"columns part {gi + 1} of {parts}" +
+                    (f" (part {other} on the facing page)" if facing and other <= parts else ""))
+    if not end:
+        bits.append("continued on the next page")
+    return " · ".join(bits)
 
 
 def _fit(text: str, font: str, size: float, width: float) -> str:
+    """Text cut to a width with an ellipsis (the QA report's cells; never a book's running head)."""
     if _w(text, font, size) <= width:
         return text
     while text and _w(text + "…", font, size) > width:
@@ -546,30 +651,83 @@ def _fit(text: str, font: str, size: float, width: float) -> str:
     return text + "…"
 
 
+# ---------------------------------------------------------------- running head and foot
+_SHORTEN = re.compile(r"\s*(?::|\s[-–—]\s|\()")
+
+
+def running_head(book, L: Layout) -> list[str]:
+    """The running head's title, by rule: the full title if it fits beside the document
+    number; else the title up to its first colon, dash or bracket (the main title); else
+    the full title wrapped onto two lines. Never cut off."""
+    d = book.document
+    avail = L.live_width - _w(_number_text(book), SANS_BOLD, L.run) - L.run * 2
+    t = d.title
+    if _w(t, SANS, L.run) <= avail:
+        return [t]
+    main = _SHORTEN.split(t, maxsplit=1)[0].strip()
+    if main and _w(main, SANS, L.run) <= avail:
+        return [main]
+    return simpleSplit(t, SANS, L.run, avail)[:2] or [t]
+
+
+def _number_text(book) -> str:
+    d, ed = book.document, book.edition
+    number = ed.number(d.number) if ed is not None else d.number
+    return f"{number}  Rev. {d.revision}"
+
+
+def _foot_text(book, L: Layout) -> str:
+    """Document number, revision, the edition's label where it fits, and the issue date."""
+    d, ed = book.document, book.edition
+    number = ed.number(d.number) if ed is not None else d.number
+    room = L.live_width - _w("page 0000 of 0000", SANS, L.run) - L.run * 2
+    if ed is not None and ed.label:
+        text = f"{number} Rev. {d.revision} · {ed.label} · issued {d.issue_date}"
+        if _w(text, SANS, L.run) <= room:
+            return text
+    return f"{number} Rev. {d.revision} · issued {d.issue_date}"
+
+
 # ---------------------------------------------------------------- assembly
+def _contents_entries(book) -> list:
+    """Every section, table and chart page of the book, in page order, with its anchor."""
+    d = book.document
+    entries = [("How to read these tables", "read"), ("Substances and compositions", "subs")]
+    entries += [(sh.title, f"sheet{i}") for i, sh in enumerate(book.sheets, 1)]
+    entries += [("Data sources", "sources"), ("Caution", "caution")]
+    grouped = d.chart_placement == "grouped" and any(t.charts for t in book.tables)
+    charts = []
+    for i, t in enumerate(book.tables, 1):
+        entries.append((f"Table {i}. {t.title}", f"table{i}"))
+        for j, m in enumerate(t.charts, 1):
+            kind = "T-s chart" if m.kind == "ts" else "h-s chart"
+            charts.append((f"Chart {i}.{j}. {kind}: {m.title}", f"chart{i}.{j}"))
+        if not grouped:
+            entries += charts
+            charts = []
+    if grouped:
+        entries.append(("Charts", "charts"))
+        entries += charts
+    entries += [(f"Appendix {chr(64 + i)}. {s.title}", f"appendix{i}") for i, s in enumerate(book.appendix, 1)]
+    return entries
+
+
 def plan(book):
     """All pages of the book as drawing operations, and the layout."""
     fonts.register()
     d = book.document
-    L = layout_for(d.paper, d.orientation)
-    contents = [("How to read these tables", "read"), ("Substances and compositions", "subs")]
-    contents += [(sh.title, f"sheet{i}") for i, sh in enumerate(book.sheets, 1)]
-    contents += [("Data sources", "sources"), ("Caution", "caution")]
-    contents += [(f"Table {i}. {t.title}", f"table{i}") for i, t in enumerate(book.tables, 1)]
+    L = book_layout(book)
     grouped = d.chart_placement == "grouped" and any(t.charts for t in book.tables)
-    if grouped:
-        contents.append(("Charts", "charts"))
-    contents += [(f"Appendix {chr(64 + i)}. {s.title}", f"appendix{i}") for i, s in enumerate(book.appendix, 1)]
     pages: list[Page] = []
-    _front(book, L, pages, contents)
+    _front(book, L, pages, _contents_entries(book))
     for i, t in enumerate(book.tables, 1):
         table_pages(t, i, L, pages)
         if t.charts and not grouped:
-            _chart_pages(t, L, pages)
+            _chart_pages(t, i, L, pages)
     if grouped:
         first = len(pages)
-        for t in book.tables:
-            _chart_pages(t, L, pages)
+        for i, t in enumerate(book.tables, 1):
+            _chart_pages(t, i, L, pages)
         pages[first].ops.insert(0, ("anchor", "charts"))
     if book.appendix:
         f = Flow(book, L, pages, "appendix")
@@ -585,69 +743,106 @@ def plan(book):
     return L, pages
 
 
-def _chart_pages(t, L, pages):
-    """One page per chart model, drawn by tablegen.book.charts."""
-    for model in t.charts:
-        page = Page("chart")
-        page.ops.append(("chart", model))
-        pages.append(page)
+def _chart_pages(t, index: int, L, pages):
+    """One page per chart model, drawn by tablegen.book.charts; on small paper a spread of two
+    pages, the chart on the left and its reading panel on the right."""
+    for j, model in enumerate(t.charts, 1):
+        anchor = ("anchor", f"chart{index}.{j}")
+        if model.extra.get("panel_page"):
+            to_left_page(pages, L, "The chart that follows and its key face each other.")
+            for part in ("plot", "panel"):
+                page = Page("chart")
+                page.ops.append(("chart", model, part))
+                pages.append(page)
+            pages[-2].ops.insert(0, anchor)
+        else:
+            page = Page("chart")
+            page.ops += [anchor, ("chart", model, "whole")]
+            pages.append(page)
 
 
 def render(book) -> bytes:
     """The PDF bytes of a book model."""
     L, pages = plan(book)
+    return with_binary_streams(_render, book, L, pages, anchors_of(pages))
+
+
+def anchors_of(pages) -> dict:
+    """Anchor name -> page number (from 1) of a planned book."""
     anchors = {}
     for i, p in enumerate(pages, 1):
         for op in p.ops:
             if op[0] == "anchor":
                 anchors.setdefault(op[1], i)
-    d = book.document
+    return anchors
+
+
+def with_binary_streams(fn, *args):
+    """fn(*args) with reportlab writing binary page streams."""
     from reportlab import rl_config
     a85, rl_config.useA85 = rl_config.useA85, 0     # binary streams: smaller and faster
     try:
-        return _render(book, L, pages, anchors, d)
+        return fn(*args)
     finally:
         rl_config.useA85 = a85
 
 
-def _render(book, L, pages, anchors, d) -> bytes:
+def new_canvas(book, size):
+    """A canvas of the book's PDF metadata (title, document, fingerprint), reproducible bytes."""
+    d = book.document
     buf = io.BytesIO()
-    c = fonts.canvas(buf, pagesize=(L.width, L.height), initialFontName=SANS, initialFontSize=10,
-                     pageCompression=1)
+    c = fonts.canvas(buf, pagesize=size, initialFontName=SANS, initialFontSize=10, pageCompression=1)
     c.setTitle(d.title)
     c.setAuthor(d.organisation or "")
-    c.setSubject(f"{d.number} rev. {d.revision}, issued {d.issue_date}")
+    c.setSubject(f"{_number_text(book).replace('  Rev. ', ' rev. ')}, issued {d.issue_date}")
     c.setCreator(f"tablegen {book.versions['tablegen']}")
     c.setKeywords(f"fingerprint sha256:{book.fingerprint}")
-    total = len(pages)
-    for no, page in enumerate(pages, 1):
-        _decorate(c, book, L, no, total)
-        _draw_ops(c, page.ops, anchors, L)
+    return c, buf
+
+
+def _render(book, L, pages, anchors) -> bytes:
+    c, buf = new_canvas(book, (L.width, L.height))
+    head = running_head(book, L)
+    for no in range(1, len(pages) + 1):
+        draw_page(c, book, L, pages, no, anchors, head)
         c.showPage()
     c.save()
     return buf.getvalue()
 
 
-def _decorate(c, book, L: Layout, no: int, total: int):
-    d = book.document
+def draw_page(c, book, L: Layout, pages: list, no: int, anchors: dict, head=None):
+    """Page ``no`` (from 1) of a planned book, running head and foot included, onto a canvas
+    at its origin (tablegen.book.impose places pages two to a sheet)."""
+    _decorate(c, book, L, no, len(pages), head)
+    _draw_ops(c, pages[no - 1].ops, anchors, L)
+
+
+def draw_ops(c, page: Page, L: Layout):
+    """A page's drawing without running head or foot (a page that pads a booklet)."""
+    _draw_ops(c, page.ops, {}, L)
+
+
+def _decorate(c, book, L: Layout, no: int, total: int, head=None):
     left, right = L.margin_x, L.width - L.margin_x
-    ytop = L.height - L.margin_top + 4
-    size = L.text * 0.85
-    c.setFont(SANS, size)
+    size = L.run
     c.setFillGray(0.0)
-    c.drawString(left, ytop, _fit(d.title, SANS, size, (right - left) * 0.6))
+    ytop = L.head_y
+    c.setFont(SANS, size)
+    for i, line in enumerate(head or running_head(book, L)):
+        c.drawString(left, ytop - i * size * 1.2, line)
     c.setFont(SANS_BOLD, size)
-    c.drawRightString(right, ytop, f"{d.number}  Rev. {d.revision}")
+    c.drawRightString(right, ytop, _number_text(book))
+    y_rule = ytop - (len(head or [1]) - 1) * size * 1.2 - 3
     c.setLineWidth(0.5)
-    c.line(left, ytop - 3, right, ytop - 3)
-    yb = L.margin_bottom - 2
+    c.line(left, y_rule, right, y_rule)
+    yb = L.foot_y
     c.line(left, yb + size + 1, right, yb + size + 1)
     c.setFont(SANS, size)
-    c.drawString(left, yb - 1, f"{d.number} Rev. {d.revision} · issued {d.issue_date}")
-    c.drawRightString(right, yb - 1, f"page {no} of {total}")
-    fsize = size * 0.8
+    c.drawString(left, yb, _foot_text(book, L))
+    c.drawRightString(right, yb, f"page {no} of {total}")
+    fsize = L.foot_small
     c.setFont(MONO, fsize)
-    c.drawString(left, yb - 1 - fsize * 1.45, f"tablegen {book.versions['tablegen']} · sha256 {book.fingerprint}")
+    c.drawString(left, yb - fsize * 1.45, f"tablegen {book.versions['tablegen']} · sha256 {book.fingerprint}")
 
 
 def _draw_ops(c, ops, anchors, L):
@@ -678,11 +873,13 @@ def _draw_ops(c, ops, anchors, L):
             _, font, size, x, y, anchor = op
             c.setFont(font, size)
             c.drawRightString(x, y, str(anchors.get(anchor, "")))
+        elif kind == "c":
+            _, font, size, x, y, text = op
+            c.setFont(font, size)
+            c.drawCentredString(x, y, text)
         elif kind == "chart":
             from . import charts
-            model = op[1]
-            charts.draw_chart(c, model, L.margin_x, L.margin_bottom + 20, L.width - 2 * L.margin_x,
-                              L.height - L.margin_top - L.margin_bottom - 50)
+            charts.draw_chart(c, op[1], *pagination.chart_box(L), part=op[2])
         elif kind == "anchor":
             pass
 

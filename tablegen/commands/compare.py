@@ -79,6 +79,9 @@ def add_arguments(p):
     p.add_argument("--table", default=None, metavar="NAME[,NAME...]",
                    help="with a spec file: the table to compare (needed for one reference file when the "
                         "spec has several); with a folder, the tables to compare (default: all)")
+    p.add_argument("--edition", default=None, metavar="NAME",
+                   help="with a spec that declares editions and a folder: the edition whose files to "
+                        "compare (default: the spec's first edition)")
     p.add_argument("--map", default=None, metavar="MAP.toml",
                    help="with a folder: reference file of each table whose file has another name "
                         "([tables] name = \"file.csv\")")
@@ -109,6 +112,7 @@ def load_spec(args):
     from .. import spec as spec_module
     # --extrapolate opens every table of the book, as it does for tablegen build
     return spec_module.load(args.substance, source=args.source, data=args.data,
+                            edition=getattr(args, "edition", None),
                             extrapolate=bool(getattr(args, "extrapolate", False)))
 
 
@@ -339,6 +343,9 @@ def run(args) -> int:
     if Path(args.reference).is_dir():
         from .compare_book import run_book
         return run_book(args)
+    if getattr(args, "edition", None) is not None:
+        raise TablegenError(f"--edition {args.edition}: an edition is chosen only for a book spec compared "
+                            f"with a reference folder; leave --edition out for one reference table")
     from ..compare_hints import suggested_options
     from ..compare_output import summary
     cmp, files, notes = compute(args)

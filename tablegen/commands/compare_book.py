@@ -108,7 +108,8 @@ def compute_book(args):
                                 f"{args.substance}; its tables: {', '.join(t.name for t in specs)}")
         specs = [t for t in specs if t.name in wanted]
     mapping = read_mapping(args.map) if args.map else None
-    folder = read_folder(args.reference, spec.name, [t.name for t in specs], mapping, args.map or "")
+    folder = read_folder(args.reference, spec.name, [t.name for t in specs], mapping, args.map or "",
+                         edition=spec.edition.name if spec.edition is not None else "")
     refs = {e.table: read_reference(e.path) for e in folder.entries}
     per, notes = _table_options(args, specs, refs)
     r = spec.document.reference
