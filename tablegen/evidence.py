@@ -26,6 +26,7 @@ figures without one reference, for the calibration (benchmarks/calibrate_uncerta
 from __future__ import annotations
 
 import math
+import re
 import tomllib
 from dataclasses import dataclass
 from functools import lru_cache
@@ -171,15 +172,19 @@ def _read_agreement(path: str) -> tuple:
         raw = tomllib.loads(p.read_text(encoding="utf-8"))
     except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError) as e:
         raise TablegenError(f"{p}: cannot read agreement figures ({e})") from None
+    return tuple(_checked(raw.get("agreement", []), p))
+
+
+def _checked(tables, p) -> list:
     rows = []
-    for i, r in enumerate(raw.get("agreement", [])):
+    for i, r in enumerate(tables):
         missing = [k for k in ("species", "source", "against", "band_K", "cp_max_rel",
                                "dh_max_J_per_mol", "s0_max_J_per_molK") if k not in r]
         if missing:
             raise TablegenError(f"{p}: agreement[{i}] lacks {', '.join(missing)}; "
                                 f"allowed keys: {', '.join(AGREEMENT_KEYS)}")
         rows.append(dict(r))
-    return tuple(rows)
+    return rows
 
 
 def load_agreement(path=None) -> tuple:
@@ -196,6 +201,83 @@ def load_agreement(path=None) -> tuple:
         if p is not None:
             rows += _read_agreement(str(p))
     return tuple(rows)
+
+
+_BLOCK = re.compile(r'^\[\[agreement\]\][ \t]*$', re.M)
+_SPECIES = re.compile(r'^species\s*=\s*"([^"\\]*)"\s*$', re.M)
+
+
+@lru_cache(maxsize=None)
+def _blocks_by_species(path: str) -> dict:
+    """{species: [text of its [[agreement]] tables]} of an agreement file, found by a
+    pattern (one pass, no TOML parse); None where a table names no plain species."""
+    from pathlib import Path
+    p = Path(path)
+    try:
+        text = p.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError) as e:
+        raise TablegenError(f"{p}: cannot read agreement figures ({e})") from None
+    starts = [m.start() for m in _BLOCK.finditer(text)]
+    out: dict = {}
+    for a, b in zip(starts, [*starts[1:], len(text)]):
+        block = text[a:b]
+        m = _SPECIES.search(block)
+        out.setdefault(m.group(1) if m else None, []).append(block)
+    return out
+
+
+@lru_cache(maxsize=None)
+def _rows_of(path: str, species: str) -> tuple:
+    """The agreement rows of one species in one file: one TOML parse of its tables only."""
+    blocks = _blocks_by_species(path).get(species)
+    if not blocks:
+        return ()
+    try:
+        raw = tomllib.loads("".join(blocks))
+    except tomllib.TOMLDecodeError as e:
+        raise TablegenError(f"{path}: cannot read the agreement figures of {species} ({e})") from None
+    return tuple(_checked(raw.get("agreement", []), path))
+
+
+@lru_cache(maxsize=None)
+def _spread_of(species: str) -> tuple:
+    """shipped_spread() of one species (computed for it alone)."""
+    from .data.library import library
+    lib = library()
+    a, b = lib.datasets.get("nasa1993"), lib.datasets.get("nasa2002-air")
+    if a is None or b is None or species not in b.exact:
+        return ()
+    return tuple(_spread_pair(a, b, species))
+
+
+class AgreementIndex(dict):
+    """The shipped agreement rows as a mapping species -> rows, read on first use of each
+    species: a book reads the figures of its dozen species, not the 2,900 rows of every
+    file (a whole parse cost more than the rest of a 100-page book). Rows as
+    :func:`load_agreement` gives them; ``by_species(load_agreement())`` is the same map."""
+
+    def __missing__(self, species):
+        rows = list(_spread_of(species))
+        for name in AGREEMENT_FILES:
+            p = gasdata_file(name)
+            if p is not None:
+                if None in _blocks_by_species(str(p)):
+                    # a table without a plain species line: read the file as a whole
+                    rows += [r for r in _read_agreement(str(p)) if r["species"] == species]
+                else:
+                    rows += _rows_of(str(p), species)
+        self[species] = rows
+        return rows
+
+    def get(self, species, default=None):
+        rows = self[species]
+        return rows if rows else default
+
+
+@lru_cache(maxsize=1)
+def agreement_index() -> AgreementIndex:
+    """The shipped agreement figures by species, read lazily (see :class:`AgreementIndex`)."""
+    return AgreementIndex()
 
 
 def by_species(rows) -> dict:
@@ -262,15 +344,21 @@ def shipped_spread() -> tuple:
     if a is None or b is None:
         return ()
     for sid in b.ids:
-        ra, rb = a.get(sid), b.get(sid)
-        if ra is None or rb is None or ra.id != rb.id:
-            continue
-        lo, hi = max(ra.T_min, rb.T_min), min(ra.T_max, rb.T_max)
-        if lo < T_REF < hi:
-            fa, fb = record_functions(ra), record_functions(rb)
-            rows += spread_figures(sid, "nasa1993", "nasa2002-air", fa, fb, lo, hi)
-            rows += spread_figures(sid, "nasa2002-air", "nasa1993", fb, fa, lo, hi)
+        rows += _spread_pair(a, b, sid)
     return tuple(rows)
+
+
+def _spread_pair(a, b, sid) -> list:
+    """The two spread rows (each set against the other) of one species in two data sets."""
+    ra, rb = a.get(sid), b.get(sid)
+    if ra is None or rb is None or ra.id != rb.id:
+        return []
+    lo, hi = max(ra.T_min, rb.T_min), min(ra.T_max, rb.T_max)
+    if not lo < T_REF < hi:
+        return []
+    fa, fb = record_functions(ra), record_functions(rb)
+    return (spread_figures(sid, "nasa1993", "nasa2002-air", fa, fb, lo, hi)
+            + spread_figures(sid, "nasa2002-air", "nasa1993", fb, fa, lo, hi))
 
 
 # ------------------------------------------------------------- species data part

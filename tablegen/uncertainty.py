@@ -45,7 +45,7 @@ from .errors import SpecError, TablegenError
 # the evidence and real-gas parts live in their own modules; their names stay
 # importable from here (public API: tablegen.uncertainty.budget and friends)
 from .evidence import (BAND_EDGES_K, CLASS_DEFAULTS, CP_FLOOR_REL, SQRT3, SpeciesData,  # noqa: F401
-                       by_species, codata_values, load_agreement, record_for, record_functions,
+                       agreement_index, by_species, codata_values, load_agreement, record_for, record_functions,
                        shipped_spread, species_class, species_data, spread_figures)
 from .realgas import (VirialEstimate, critical_constants, departure_bounds,  # noqa: F401
                       model_departures, model_statements, second_virial, vapour_pressure_estimate,
@@ -118,6 +118,8 @@ class Budget:
     departures: dict = field(default_factory=dict)
     #: bool over T_K: only a less accurate evaluation compared (an upper estimate)
     upper: np.ndarray | None = None
+    #: bands() worked out, per key (a memo: the budget itself does not change)
+    _bands: dict = field(default_factory=dict, repr=False)
 
     def U(self, key: str, component: str | None = None) -> np.ndarray:
         """Expanded uncertainty (k = 2), SI unit of ``key``; one component if named."""
@@ -136,7 +138,14 @@ class Budget:
         return self.u[key]
 
     def bands(self, key: str) -> tuple:
-        """Per temperature band: the largest U, its parts and the interpolation bound."""
+        """Per temperature band: the largest U, its parts and the interpolation bound
+        (worked out once per key: a book asks for them several times)."""
+        got = self._bands.get(key)
+        if got is None:
+            got = self._bands[key] = self._make_bands(key)
+        return got
+
+    def _make_bands(self, key: str) -> tuple:
         U = self.U(key)
         parts = self._parts(key)
         val = self.values[key]
@@ -361,7 +370,7 @@ def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: floa
     P = float(P_max_Pa)
     props = substance.properties(T, P)
     values = {k: np.asarray(props[k], float) * np.ones_like(T) for k in keys}
-    rows = by_species(load_agreement() if agreement is None else tuple(agreement))
+    rows = agreement_index() if agreement is None else by_species(tuple(agreement))
     data_u, fit_u, est, upper, sources = _data_parts(substance, T, props, rows, held_out)
     u = {k: {"data": data_u[k]} for k in keys}
     if fit_u is not None:
@@ -387,8 +396,7 @@ def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: floa
     rows_T = T if T_rows is None else np.asarray(T_rows, float)
     inter = {}
     if rows_T.size >= 2 and np.all(np.diff(rows_T) > 0):
-        for k in keys:
-            inter[k] = interpolation_bound(substance, k, rows_T, P_Pa=P)
+        inter = interpolation_bounds(substance, keys, rows_T, P_Pa=P)
     if inter:
         worst = []
         for k in keys:
@@ -525,56 +533,77 @@ def composition_sensitivity(substance, T, keys, composition_u: dict, basis: str 
 
 
 # ------------------------------------------------------------- interpolation
-def _values(substance, key, T, P_Pa):
-    p = substance.properties(T, P_Pa if key in ("s", "s_molar", "v", "rho") else None)
-    if key not in p:
-        raise TablegenError(f"no property {key!r}; allowed: {', '.join(UNITS)}")
-    return np.asarray(p[key], float) * np.ones_like(T)
+_NEEDS_P = ("s", "s_molar", "v", "rho")
+
+
+def _values(substance, keys, T, P_Pa) -> dict:
+    """The values of ``keys`` at T, from one evaluation of exactly what they need."""
+    keys = tuple(keys)
+    for k in keys:
+        if k not in UNITS:
+            raise TablegenError(f"no property {k!r}; allowed: {', '.join(UNITS)}")
+    P = P_Pa if any(k in _NEEDS_P for k in keys) else None
+    p = substance.properties(T, P, keys=keys)
+    return {k: np.asarray(p[k], float) * np.ones_like(T) for k in keys}
 
 
 def interpolation_bound(substance, key: str, T_rows, *, P_Pa: float = P_STD, n_fine: int = 64) -> np.ndarray:
-    """Largest error of linear interpolation in ``key`` between adjacent rows.
+    """Largest error of linear interpolation in ``key`` between adjacent rows (see
+    :func:`interpolation_bounds`, which does every key of a table in one evaluation)."""
+    return interpolation_bounds(substance, (key,), T_rows, P_Pa=P_Pa, n_fine=n_fine)[key]
 
-    For each interval [T_i, T_i+1] the function is evaluated on a fine grid
+
+def interpolation_bounds(substance, keys, T_rows, *, P_Pa: float = P_STD, n_fine: int = 64) -> dict:
+    """Largest error of linear interpolation in each of ``keys`` between adjacent rows.
+
+    For each interval [T_i, T_i+1] the functions are evaluated on a fine grid
     (n_fine + 1 points, the data's breakpoints and both sides of them added),
     the largest |f(T) - L(T)| found and refined on a second grid around it;
     the result is raised by 1e-5 relative and a few units of rounding so that
-    it is a bound, not an estimate.
+    it is a bound, not an estimate. The fine grid is evaluated once for all keys
+    (only the functions they need); the refinement grid depends on where each key's
+    error is largest, so it is evaluated per key.
 
     Returns
     -------
-    array of len(T_rows) - 1 bounds, SI unit of ``key``.
+    {key: array of len(T_rows) - 1 bounds, SI unit of the key}.
     """
+    keys = tuple(keys)
     Tr = np.asarray(T_rows, float)
     if Tr.ndim != 1 or Tr.size < 2 or not np.all(np.diff(Tr) > 0):
         raise TablegenError("interpolation bound: rows must be at least 2 increasing temperatures")
     a, b = Tr[:-1], Tr[1:]
-    fa, fb = _values(substance, key, a, P_Pa), _values(substance, key, b, P_Pa)
+    ends = _values(substance, keys, Tr, P_Pa)
     t = np.linspace(0.0, 1.0, n_fine + 1)
     grid = a[:, None] + (b - a)[:, None] * t[None, :]
-
-    def err(tt, Tg):
-        f = _values(substance, key, Tg.ravel(), P_Pa).reshape(Tg.shape)
-        return np.abs(f - (fa[:, None] + (fb - fa)[:, None] * tt))
-
-    e = err(t[None, :], grid)
-    i = np.argmax(e, axis=1)
-    best = e[np.arange(e.shape[0]), i]
+    fine = _values(substance, keys, grid.ravel(), P_Pa)
     dt = 1.0 / n_fine
-    t2 = np.clip(t[i][:, None] + np.linspace(-dt, dt, 33)[None, :], 0.0, 1.0)
-    e2 = err(t2, a[:, None] + (b - a)[:, None] * t2)
-    best = np.maximum(best, e2.max(axis=1))
-    # breakpoints of the collapsed polynomial: the function may jump there
     bp = substance.poly.T_bounds[1:-1]
-    for Tb in bp:
-        j = np.searchsorted(Tr, Tb, side="right") - 1
-        if 0 <= j < a.size:
-            tb = (np.array([Tb * (1 - 1e-12), Tb, Tb * (1 + 1e-12)]) - a[j]) / (b[j] - a[j])
-            tb = np.clip(tb, 0.0, 1.0)
-            f = _values(substance, key, a[j] + (b[j] - a[j]) * tb, P_Pa)
-            best[j] = max(best[j], float(np.max(np.abs(f - (fa[j] + (fb[j] - fa[j]) * tb)))))
-    scale = np.maximum(np.abs(fa), np.abs(fb))
-    return best * (1 + 1e-5) + 8 * np.finfo(float).eps * scale
+    out = {}
+    for k in keys:
+        fa, fb = ends[k][:-1], ends[k][1:]
+
+        def line(tt, fa=fa, fb=fb):
+            return fa[:, None] + (fb - fa)[:, None] * tt
+
+        e = np.abs(fine[k].reshape(grid.shape) - line(t[None, :]))
+        i = np.argmax(e, axis=1)
+        best = e[np.arange(e.shape[0]), i]
+        t2 = np.clip(t[i][:, None] + np.linspace(-dt, dt, 33)[None, :], 0.0, 1.0)
+        T2 = a[:, None] + (b - a)[:, None] * t2
+        e2 = np.abs(_values(substance, (k,), T2.ravel(), P_Pa)[k].reshape(T2.shape) - line(t2))
+        best = np.maximum(best, e2.max(axis=1))
+        # breakpoints of the collapsed polynomial: the function may jump there
+        for Tb in bp:
+            j = np.searchsorted(Tr, Tb, side="right") - 1
+            if 0 <= j < a.size:
+                tb = (np.array([Tb * (1 - 1e-12), Tb, Tb * (1 + 1e-12)]) - a[j]) / (b[j] - a[j])
+                tb = np.clip(tb, 0.0, 1.0)
+                f = _values(substance, (k,), a[j] + (b[j] - a[j]) * tb, P_Pa)[k]
+                best[j] = max(best[j], float(np.max(np.abs(f - (fa[j] + (fb[j] - fa[j]) * tb)))))
+        scale = np.maximum(np.abs(fa), np.abs(fb))
+        out[k] = best * (1 + 1e-5) + 8 * np.finfo(float).eps * scale
+    return out
 
 
 def _nice_steps(span: float) -> list:
@@ -636,7 +665,7 @@ def auto_step(substance, keys, T_lo: float, T_hi: float, tolerance, *, P_Pa: flo
                     p = substance.properties(mid)
                     scale = (p["cp_molar"] if k.endswith("_molar") else p["cp"]) * mid
                 else:
-                    scale = np.abs(_values(substance, k, mid, P_Pa))
+                    scale = np.abs(_values(substance, (k,), mid, P_Pa)[k])
                 ok = bool(np.all(bnd <= tol[k] * scale))
             else:
                 ok = bool(np.all(bnd <= tol[k]))

@@ -132,3 +132,14 @@ def test_held_out_budget_drops_the_reference_and_the_refit_residual():
     assert np.all(full.fit_cp > 0) and np.all(no_janaf.fit_cp == 0)
     assert any("eos" in b for b in full.T_basis) and not any("eos" in b for b in no_eos.T_basis)
     assert np.all(no_eos.upper)             # only TM-4513 is left: an upper estimate
+
+
+def test_lazy_agreement_index_equals_the_whole_files():
+    # the per-species index a book reads gives the rows of a whole parse of every shipped
+    # agreement file (and the computed spread), species by species, in the same order
+    from tablegen.evidence import agreement_index, by_species, load_agreement
+    whole = by_species(load_agreement())
+    index = agreement_index()
+    for sid in sorted(whole):
+        assert index.get(sid) == whole[sid], sid
+    assert index.get("no-such-species") is None
