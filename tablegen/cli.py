@@ -14,7 +14,7 @@ import importlib.util
 import sys
 
 from . import __version__
-from .errors import DataRangeError, TablegenError, Terminated
+from .errors import DataRangeError, TablegenError, Terminated, UsageError
 
 #: (command, module, one-line summary) in the order --help lists them.
 COMMANDS = [
@@ -29,10 +29,6 @@ COMMANDS = [
     ("fit", "fit", "fit NASA polynomial coefficients to a tabulated cp(T)"),
     ("export", "export", "write a species or mixture as one coefficient record"),
 ]
-
-
-class UsageError(TablegenError):
-    pass
 
 
 class Parser(argparse.ArgumentParser):

@@ -3,6 +3,25 @@
 Every user error raises a ``TablegenError`` whose text says what was wrong and
 what is allowed; the command line prints it as one line and exits with status 2.
 Anything else that escapes is a bug.
+
+Raise the kind that says what went wrong, so an API caller can tell them apart:
+
+====================  ==========================================================
+kind                  raised when
+====================  ==========================================================
+``NameLookupError``   a substance, species, data set, key or option value is not known
+``RangeError``        a number lies outside what is allowed (``DataRangeError``:
+                      a temperature outside the data, where extrapolation may be asked)
+``UnitError``         a unit is unknown, missing or does not fit the quantity
+``InputError``        any other bad argument or typed text (also a ``ValueError``);
+                      ``UsageError`` for command-line arguments
+``SpecError``         a book spec or other structured input breaks a rule
+``DataError``         a coefficient or reference file cannot be read or fails validation
+``FitError``          a fit cannot be made or is not good enough
+``OutputError``       a file cannot be written (``OutputExistsError``, ``OutputBusyError``)
+====================  ==========================================================
+
+A bare ``TablegenError`` is only for what fits none of these.
 """
 
 
@@ -77,6 +96,14 @@ class Interrupted(TablegenError):
 
 class InputError(TablegenError, ValueError):
     """A Python API argument of the wrong type, shape or value (also a ValueError)."""
+
+
+class UsageError(InputError):
+    """Command-line arguments that argparse refuses (the text names the command's --help)."""
+
+
+class FitError(TablegenError):
+    """A fit cannot be made or is not good enough; the text says why."""
 
 
 class Terminated(BaseException):

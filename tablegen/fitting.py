@@ -40,7 +40,7 @@ from decimal import Context, Decimal
 
 import numpy as np
 
-from .errors import TablegenError
+from .errors import FitError, TablegenError
 from .thermo.polynomial import NCOEF, NINE, SEVEN, Polynomial
 from .thermo.substance import R_MOLAR, T_REF
 
@@ -67,10 +67,6 @@ TARGET_KEYS = ("cp_max_rel", "cp_rms_rel", "h_max_J_per_mol", "h_rms_J_per_mol",
 
 #: Breakpoints tried first by the automatic search (both NASA sets use 1000 K).
 CONVENTIONAL_BREAKPOINTS_K = (1000.0,)
-
-
-class FitError(TablegenError):
-    """A fit cannot be made or is not good enough; the text says why."""
 
 
 @dataclass(frozen=True, slots=True, eq=False)
