@@ -42,6 +42,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .errors import SpecError, TablegenError
+from .rounding import round_steps_down
 # the evidence and real-gas parts live in their own modules; their names stay
 # importable from here (public API: tablegen.uncertainty.budget and friends)
 from .evidence import (BAND_EDGES_K, CLASS_DEFAULTS, CP_FLOOR_REL, SQRT3, SpeciesData,  # noqa: F401
@@ -606,16 +607,6 @@ def interpolation_bounds(substance, keys, T_rows, *, P_Pa: float = P_STD, n_fine
     return out
 
 
-def _nice_steps(span: float) -> list:
-    out = []
-    for e in range(-2, int(math.floor(math.log10(max(span, 1e-2)))) + 1):
-        for m in (1.0, 2.0, 2.5, 5.0):
-            s = m * 10.0 ** e
-            if s <= span:
-                out.append(s)
-    return sorted(set(out), reverse=True)
-
-
 def auto_step(substance, keys, T_lo: float, T_hi: float, tolerance, *, P_Pa: float = P_STD) -> float:
     """Largest round temperature step (1, 2, 2.5, 5 × 10^n K) whose rows keep linear
     interpolation within ``tolerance`` for every key.
@@ -651,7 +642,7 @@ def auto_step(substance, keys, T_lo: float, T_hi: float, tolerance, *, P_Pa: flo
         rel = True
     if not all(math.isfinite(v) and v > 0 for v in tol.values()):
         raise SpecError("automatic step: tolerance must be a positive number")
-    for step in _nice_steps(T_hi - T_lo):
+    for step in round_steps_down(T_hi - T_lo):
         rows = np.arange(T_lo, T_hi, step)
         rows = np.append(rows[rows < T_hi - 1e-9 * T_hi], T_hi)
         if rows.size > 200000:

@@ -23,6 +23,7 @@ import tablegen
 from tablegen import uncertainty as un
 from tablegen.data.library import library
 from tablegen.errors import TablegenError
+from tablegen.rounding import round_steps_down
 
 # reference library from the test extra: a missing one fails the run, never skips it
 import CoolProp.CoolProp as CoolProp  # noqa: E402
@@ -193,8 +194,8 @@ def test_auto_step_is_largest_round_step_meeting_tolerance():
     1e-4 relative, and the next larger round step does not."""
     sub = tablegen.substance("air")
     step = un.auto_step(sub, ("cp", "h"), 300.0, 1500.0, 1e-4)
-    assert step in un._nice_steps(1200.0)
-    steps = un._nice_steps(1200.0)
+    assert step in round_steps_down(1200.0)
+    steps = round_steps_down(1200.0)
     bigger = steps[steps.index(step) - 1]
     rows = np.append(np.arange(300.0, 1500.0, bigger), 1500.0)
     mid = 0.5 * (rows[1:] + rows[:-1])
