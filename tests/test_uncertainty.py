@@ -273,23 +273,26 @@ def test_properties_with_uncertainty_adds_U_keys_of_the_same_shape():
     assert "U_cp" not in sub.properties([300.0])
 
 
+#: A bare N2 built below the public API (no hook registered), for the subprocess checks.
+_BARE_N2 = ("import sys; import tablegen.thermo.substance as S; from tablegen.data.library import library; "
+            "from tablegen.thermo.build import species_substance; n2 = species_substance(library().record('N2'))\n")
+
+
+def _python(code: str) -> str:
+    return subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout.strip()
+
+
 def test_thermo_never_imports_the_uncertainty_budget():
     """The budget (calc layer) sits above thermo: thermo gets it through a registered
     hook, so importing thermo and evaluating a substance leaves tablegen.uncertainty out."""
-    code = ("import sys; from tablegen.thermo.build import species_substance; "
-            "from tablegen.data.library import library; species_substance(library().record('N2')).properties([300.0]); "
-            "print('tablegen.uncertainty' in sys.modules, 'tablegen.evidence' in sys.modules)")
-    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
-    assert out.stdout.strip() == "False False"
+    assert _python(_BARE_N2 + "n2.properties([300.0])\n"
+                   "print('tablegen.uncertainty' in sys.modules, 'tablegen.evidence' in sys.modules)") == "False False"
 
 
 def test_properties_with_uncertainty_unregistered_is_one_clear_refusal():
-    code = ("import tablegen.thermo.substance as S; from tablegen.thermo.build import species_substance; "
-            "from tablegen.data.library import library\n"
-            "try:\n    species_substance(library().record('N2')).properties([300.0], uncertainty=True)\n"
-            "except S.InputError as e:\n    print('refused', 'use_uncertainty_columns' in str(e))")
-    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
-    assert out.stdout.strip() == "refused True"
+    assert _python(_BARE_N2 + "try:\n    n2.properties([300.0], uncertainty=True)\n"
+                   "except S.InputError as e:\n    print('refused', 'use_uncertainty_columns' in str(e))") \
+        == "refused True"
 
 
 def test_thermo_does_not_import_document_libraries():
