@@ -27,6 +27,7 @@ from functools import lru_cache
 
 import numpy as np
 
+from .errors import NameLookupError
 from .thermo.substance import T_REF
 
 #: The held-out references and the evaluation each stands for
@@ -89,7 +90,7 @@ def reference_values(reference: str, species: str):
         T = np.linspace(T_LO, min(T_HI, float(PropsSI("Tmax", fluid))), N_POINTS)
         v = coolprop_ideal(fluid, T)
         return T, v["cp"], v["dh"], v["s0"], (0.0, 0.0, 0.0)
-    raise ValueError(f"unknown reference {reference!r}; allowed: {', '.join(REFERENCES)}")
+    raise NameLookupError(f"unknown reference {reference!r}; allowed: {', '.join(REFERENCES)}")
 
 
 def _iapws95_ideal(T: np.ndarray):

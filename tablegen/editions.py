@@ -22,7 +22,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from .errors import SpecError, TablegenError
+from .errors import NameLookupError, SpecError
 
 #: Keys of an [editions.NAME] table.
 EDITION_KEYS = ("label", "suffix", "paper", "orientation", "two_sided", "font_size", "grid_step", "T_range",
@@ -360,10 +360,10 @@ def selected(eds, wanted) -> list:
         return list(eds)
     want = [w.strip() for w in wanted.split(",") if w.strip()] if isinstance(wanted, str) else list(wanted)
     if not want:
-        raise TablegenError(f"--edition {wanted!r}: no edition named; this spec's editions: {_allowed(names)}")
+        raise NameLookupError(f"--edition {wanted!r}: no edition named; this spec's editions: {_allowed(names)}")
     for w in want:
         if w not in names:
             close = difflib.get_close_matches(w, names, n=1, cutoff=0.5)
             hint = f"did you mean {close[0]!r}? " if close else ""
-            raise TablegenError(f"--edition {w!r}: not an edition of this spec; {hint}its editions: {_allowed(names)}")
+            raise NameLookupError(f"--edition {w!r}: not an edition of this spec; {hint}its editions: {_allowed(names)}")
     return [e for e in eds if e.name in want]

@@ -34,7 +34,7 @@ from functools import lru_cache
 import numpy as np
 
 from .agreement import evaluation_of, tier_of
-from .errors import TablegenError
+from .errors import DataError, NameLookupError
 from .thermo.substance import R_MOLAR, T_REF
 
 #: Temperature band edges (K) of reported figures and of computed spreads.
@@ -171,7 +171,7 @@ def _read_agreement(path: str) -> tuple:
     try:
         raw = tomllib.loads(p.read_text(encoding="utf-8"))
     except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError) as e:
-        raise TablegenError(f"{p}: cannot read agreement figures ({e})") from None
+        raise DataError(f"{p}: cannot read agreement figures ({e})") from None
     return tuple(_checked(raw.get("agreement", []), p))
 
 
@@ -181,7 +181,7 @@ def _checked(tables, p) -> list:
         missing = [k for k in ("species", "source", "against", "band_K", "cp_max_rel",
                                "dh_max_J_per_mol", "s0_max_J_per_molK") if k not in r]
         if missing:
-            raise TablegenError(f"{p}: agreement[{i}] lacks {', '.join(missing)}; "
+            raise DataError(f"{p}: agreement[{i}] lacks {', '.join(missing)}; "
                                 f"allowed keys: {', '.join(AGREEMENT_KEYS)}")
         rows.append(dict(r))
     return rows
@@ -216,7 +216,7 @@ def _blocks_by_species(path: str) -> dict:
     try:
         text = p.read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError) as e:
-        raise TablegenError(f"{p}: cannot read agreement figures ({e})") from None
+        raise DataError(f"{p}: cannot read agreement figures ({e})") from None
     starts = [m.start() for m in _BLOCK.finditer(text)]
     out: dict = {}
     for a, b in zip(starts, [*starts[1:], len(text)]):
@@ -235,7 +235,7 @@ def _rows_of(path: str, species: str) -> tuple:
     try:
         raw = tomllib.loads("".join(blocks))
     except tomllib.TOMLDecodeError as e:
-        raise TablegenError(f"{path}: cannot read the agreement figures of {species} ({e})") from None
+        raise DataError(f"{path}: cannot read the agreement figures of {species} ({e})") from None
     return tuple(_checked(raw.get("agreement", []), path))
 
 
@@ -398,7 +398,7 @@ def record_for(comp_id: str, dataset: str):
             r = ds.get(comp_id)
             if r is not None:
                 return r
-    raise TablegenError(f"uncertainty: record {comp_id!r} of data set {dataset!r} is not loaded")
+    raise NameLookupError(f"uncertainty: record {comp_id!r} of data set {dataset!r} is not loaded")
 
 
 def _uses_held_out(row: dict, printed: str, held_out: str | None) -> bool:

@@ -21,6 +21,7 @@ import numpy as np
 
 from .composition import looks_like as looks_like_composition
 from .errors import DataRangeError, SpecError, TablegenError
+from .rounding import round_steps_from_top
 from .texts import bad_character, one_line_rule
 from .units import P_ATM
 
@@ -560,16 +561,6 @@ def _fail_range(where: str, e: TablegenError):
     _fail(where, str(e.offering(EXTRAPOLATE_HOW) if isinstance(e, DataRangeError) else e))
 
 
-def _nice_steps(span: float):
-    """Candidate steps 1, 2, 2.5, 5 x 10^n from large to small."""
-    out = []
-    top = 10 ** math.ceil(math.log10(span))
-    for e in range(0, 9):
-        for m in (1.0, 0.5, 0.25, 0.2):
-            out.append(top * m / 10 ** e)
-    return sorted(set(out), reverse=True)
-
-
 def auto_step(sub, a, b, ua, keys, tol, extrapolate, where):
     """Largest round step (in the grid's unit) for which linear interpolation between
     adjacent rows stays within ``tol`` for every printed column.
@@ -581,7 +572,7 @@ def auto_step(sub, a, b, ua, keys, tol, extrapolate, where):
     """
     from .book.model import column_values_SI
     keys = [k for k in keys if k != "T"] or ["cp"]
-    for step in _nice_steps(b - a):
+    for step in round_steps_from_top(b - a):
         n = int(math.floor((b - a) / step + 1e-9)) + 1
         if n > MAX_ROWS_PER_TABLE:
             break

@@ -41,7 +41,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from .errors import SpecError, TablegenError
+from .errors import InputError, NameLookupError, RangeError, SpecError
+from .rounding import round_steps_down
 # the evidence and real-gas parts live in their own modules; their names stay
 # importable from here (public API: tablegen.uncertainty.budget and friends)
 from .evidence import (BAND_EDGES_K, CLASS_DEFAULTS, CP_FLOOR_REL, SQRT3, SpeciesData,  # noqa: F401
@@ -126,14 +127,14 @@ class Budget:
         parts = self._parts(key)
         if component is not None:
             if component not in parts:
-                raise TablegenError(f"uncertainty component {component!r} is not known; "
+                raise NameLookupError(f"uncertainty component {component!r} is not known; "
                                     f"allowed: {', '.join(parts)}")
             return COVERAGE * parts[component]
         return COVERAGE * np.sqrt(sum(v ** 2 for v in parts.values()))
 
     def _parts(self, key):
         if key not in self.u:
-            raise TablegenError(f"no uncertainty for {key!r} in this budget; "
+            raise NameLookupError(f"no uncertainty for {key!r} in this budget; "
                                 f"allowed: {', '.join(self.keys)}")
         return self.u[key]
 
@@ -218,7 +219,7 @@ class Budget:
 def _check_keys(sub, keys):
     bad = [k for k in keys if k not in UNITS]
     if bad:
-        raise TablegenError(f"no uncertainty model for {', '.join(map(repr, bad))}; "
+        raise NameLookupError(f"no uncertainty model for {', '.join(map(repr, bad))}; "
                             f"allowed: {', '.join(UNITS)}")
 
 
@@ -315,7 +316,7 @@ def _rounding(u: dict, keys, T, printed_step) -> None:
         except (TypeError, ValueError):
             ok = False
         if not ok:
-            raise TablegenError(f"uncertainty: printed step of {k!r} is {v!r}; allowed: a positive number (SI)")
+            raise RangeError(f"uncertainty: printed step of {k!r} is {v!r}; allowed: a positive number (SI)")
     for k in keys:
         # digits follow the data uncertainty (not the composition-dependent part,
         # which differs between users of a table)
@@ -357,16 +358,16 @@ def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: floa
 
     Raises
     ------
-    TablegenError for unknown keys, bad pressures or composition entries;
+    NameLookupError for unknown keys, RangeError for bad pressures, InputError for bad composition entries;
     RangeError for temperatures outside the data range.
     """
     keys = tuple(keys)
     _check_keys(substance, keys)
     T = np.atleast_1d(np.asarray(T_K, float))
     if T.ndim != 1 or T.size == 0:
-        raise TablegenError("uncertainty: T_K must be a non-empty list of temperatures")
+        raise InputError("uncertainty: T_K must be a non-empty list of temperatures")
     if not (isinstance(P_max_Pa, (int, float)) and math.isfinite(P_max_Pa) and P_max_Pa > 0):
-        raise TablegenError(f"uncertainty: P_max {P_max_Pa!r} Pa must be a positive number")
+        raise RangeError(f"uncertainty: P_max {P_max_Pa!r} Pa must be a positive number")
     P = float(P_max_Pa)
     props = substance.properties(T, P)
     values = {k: np.asarray(props[k], float) * np.ones_like(T) for k in keys}
@@ -378,7 +379,7 @@ def budget(substance, T_K, keys=("cp", "h", "s0", "Pr", "vr"), *, P_max_Pa: floa
             u[k]["fit residual"] = fit_u[k]
 
     if composition_u is not None and not isinstance(composition_u, dict):
-        raise TablegenError("uncertainty: composition uncertainties must be a mapping of species to "
+        raise InputError("uncertainty: composition uncertainties must be a mapping of species to "
                             "standard uncertainties of their fractions, e.g. {'H2O': 0.005}")
     if composition_u:
         comp = composition_sensitivity(substance, T, keys, composition_u, composition_basis, P)
@@ -478,7 +479,7 @@ def input_sensitivity(substance, T, keys, dy: dict, P: float = P_STD) -> dict:
     fr = {c.id: c.mole_fraction for c in substance.components}
     bad = [k for k in dy if k not in fr]
     if bad:
-        raise TablegenError(f"uncertainty: {bad[0]!r} is not a component of {substance.id}; "
+        raise NameLookupError(f"uncertainty: {bad[0]!r} is not a component of {substance.id}; "
                             f"allowed: {', '.join(fr)}")
     scale = max((abs(v) / fr[k] for k, v in dy.items() if v), default=0.0)
     if scale == 0.0:
@@ -502,19 +503,19 @@ def composition_sensitivity(substance, T, keys, composition_u: dict, basis: str 
     c_j = (X(+δ) - X(-δ)) / (2δ) and u² = Σ (c_j u_j)², the u_j independent.
     """
     if basis not in ("mole", "mass"):
-        raise TablegenError(f"uncertainty: composition basis {basis!r} is not known; allowed: mole, mass")
+        raise NameLookupError(f"uncertainty: composition basis {basis!r} is not known; allowed: mole, mass")
     fr = {c.id: (c.mole_fraction if basis == "mole" else c.mass_fraction) for c in substance.components}
     out = {k: np.zeros_like(T) for k in keys}
     for sid, uj in composition_u.items():
         if sid not in fr:
-            raise TablegenError(f"uncertainty: {sid!r} is not a component of {substance.id}; "
+            raise NameLookupError(f"uncertainty: {sid!r} is not a component of {substance.id}; "
                                 f"allowed: {', '.join(fr)}")
         try:
             uj = float(uj)
         except (TypeError, ValueError):
-            raise TablegenError(f"uncertainty: the uncertainty of {sid!r} is not a number ({uj!r})") from None
+            raise InputError(f"uncertainty: the uncertainty of {sid!r} is not a number ({uj!r})") from None
         if not (math.isfinite(uj) and 0 <= uj < 1):
-            raise TablegenError(f"uncertainty: the uncertainty of {sid!r} is {uj!r}; allowed: 0 <= u < 1")
+            raise RangeError(f"uncertainty: the uncertainty of {sid!r} is {uj!r}; allowed: 0 <= u < 1")
         if uj == 0:
             continue
         d = min(1e-4, 0.5 * fr[sid]) if fr[sid] > 0 else 1e-4
@@ -541,7 +542,7 @@ def _values(substance, keys, T, P_Pa) -> dict:
     keys = tuple(keys)
     for k in keys:
         if k not in UNITS:
-            raise TablegenError(f"no property {k!r}; allowed: {', '.join(UNITS)}")
+            raise NameLookupError(f"no property {k!r}; allowed: {', '.join(UNITS)}")
     P = P_Pa if any(k in _NEEDS_P for k in keys) else None
     p = substance.properties(T, P, keys=keys)
     return {k: np.asarray(p[k], float) * np.ones_like(T) for k in keys}
@@ -571,7 +572,7 @@ def interpolation_bounds(substance, keys, T_rows, *, P_Pa: float = P_STD, n_fine
     keys = tuple(keys)
     Tr = np.asarray(T_rows, float)
     if Tr.ndim != 1 or Tr.size < 2 or not np.all(np.diff(Tr) > 0):
-        raise TablegenError("interpolation bound: rows must be at least 2 increasing temperatures")
+        raise InputError("interpolation bound: rows must be at least 2 increasing temperatures")
     a, b = Tr[:-1], Tr[1:]
     ends = _values(substance, keys, Tr, P_Pa)
     t = np.linspace(0.0, 1.0, n_fine + 1)
@@ -604,16 +605,6 @@ def interpolation_bounds(substance, keys, T_rows, *, P_Pa: float = P_STD, n_fine
         scale = np.maximum(np.abs(fa), np.abs(fb))
         out[k] = best * (1 + 1e-5) + 8 * np.finfo(float).eps * scale
     return out
-
-
-def _nice_steps(span: float) -> list:
-    out = []
-    for e in range(-2, int(math.floor(math.log10(max(span, 1e-2)))) + 1):
-        for m in (1.0, 2.0, 2.5, 5.0):
-            s = m * 10.0 ** e
-            if s <= span:
-                out.append(s)
-    return sorted(set(out), reverse=True)
 
 
 def auto_step(substance, keys, T_lo: float, T_hi: float, tolerance, *, P_Pa: float = P_STD) -> float:
@@ -651,7 +642,7 @@ def auto_step(substance, keys, T_lo: float, T_hi: float, tolerance, *, P_Pa: flo
         rel = True
     if not all(math.isfinite(v) and v > 0 for v in tol.values()):
         raise SpecError("automatic step: tolerance must be a positive number")
-    for step in _nice_steps(T_hi - T_lo):
+    for step in round_steps_down(T_hi - T_lo):
         rows = np.arange(T_lo, T_hi, step)
         rows = np.append(rows[rows < T_hi - 1e-9 * T_hi], T_hi)
         if rows.size > 200000:

@@ -23,6 +23,7 @@ import tablegen
 from tablegen import uncertainty as un
 from tablegen.data.library import library
 from tablegen.errors import TablegenError
+from tablegen.rounding import round_steps_down
 
 # reference library from the test extra: a missing one fails the run, never skips it
 import CoolProp.CoolProp as CoolProp  # noqa: E402
@@ -193,8 +194,8 @@ def test_auto_step_is_largest_round_step_meeting_tolerance():
     1e-4 relative, and the next larger round step does not."""
     sub = tablegen.substance("air")
     step = un.auto_step(sub, ("cp", "h"), 300.0, 1500.0, 1e-4)
-    assert step in un._nice_steps(1200.0)
-    steps = un._nice_steps(1200.0)
+    assert step in round_steps_down(1200.0)
+    steps = round_steps_down(1200.0)
     bigger = steps[steps.index(step) - 1]
     rows = np.append(np.arange(300.0, 1500.0, bigger), 1500.0)
     mid = 0.5 * (rows[1:] + rows[:-1])
@@ -270,6 +271,28 @@ def test_properties_with_uncertainty_adds_U_keys_of_the_same_shape():
         assert p[f"U_{k}"].shape == T.shape
         assert np.all(p[f"U_{k}"] > 0)
     assert "U_cp" not in sub.properties([300.0])
+
+
+#: A bare N2 built below the public API (no hook registered), for the subprocess checks.
+_BARE_N2 = ("import sys; import tablegen.thermo.substance as S; from tablegen.data.library import library; "
+            "from tablegen.thermo.build import species_substance; n2 = species_substance(library().record('N2'))\n")
+
+
+def _python(code: str) -> str:
+    return subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout.strip()
+
+
+def test_thermo_never_imports_the_uncertainty_budget():
+    """The budget (calc layer) sits above thermo: thermo gets it through a registered
+    hook, so importing thermo and evaluating a substance leaves tablegen.uncertainty out."""
+    assert _python(_BARE_N2 + "n2.properties([300.0])\n"
+                   "print('tablegen.uncertainty' in sys.modules, 'tablegen.evidence' in sys.modules)") == "False False"
+
+
+def test_properties_with_uncertainty_unregistered_is_one_clear_refusal():
+    assert _python(_BARE_N2 + "try:\n    n2.properties([300.0], uncertainty=True)\n"
+                   "except S.InputError as e:\n    print('refused', 'use_uncertainty_columns' in str(e))") \
+        == "refused True"
 
 
 def test_thermo_does_not_import_document_libraries():

@@ -31,6 +31,7 @@ import numpy as np
 
 from ..errors import RangeError, SpecError, TablegenError
 from ..texts import bad_character, one_line_rule
+from ..rounding import round_step_up
 from ..units import P_ATM
 
 # --------------------------------------------------------------------------
@@ -595,12 +596,9 @@ def nice_ticks(lo: float, hi: float, target: float):
     """Major step, minor step and digits for about ``target`` intervals on [lo, hi]."""
     span = hi - lo
     raw = span / max(target, 1.0)
-    mag = 10.0 ** math.floor(math.log10(raw))
-    for m, sub in ((1, 5), (2, 4), (2.5, 5), (5, 5), (10, 5)):
-        if span / (m * mag) <= target * 1.15:
-            break
+    m, mag = round_step_up(raw, lambda step: span / step <= target * 1.15)
     step = m * mag
-    minor = step / sub
+    minor = step / (4 if m == 2 else 5)
     digits = max(0, -int(math.floor(math.log10(step) + 1e-9)))
     if m == 2.5:
         digits = max(0, -int(math.floor(math.log10(minor) + 1e-9)))

@@ -12,6 +12,7 @@ import math
 
 import numpy as np
 
+from ..rounding import round_step_up
 from . import fonts
 from .qa_layout import (BAND, FAIL_INK, GREY, MARGIN, OUT_MARK, RULE, TRACE, WIDTH, draw_text, fmt_num,
                         forget_state, heading, paragraph, set_fill)
@@ -23,11 +24,8 @@ def _nice_step(span: float, n: int = 5) -> float:
     raw = span / max(n, 1)
     if raw <= 0 or not math.isfinite(raw):
         return 1.0
-    mag = 10 ** math.floor(math.log10(raw))
-    for m in (1, 2, 2.5, 5, 10):
-        if raw <= m * mag:
-            return m * mag
-    return 10 * mag
+    m, mag = round_step_up(raw)
+    return m * mag
 
 
 def _ticks(lo: float, hi: float, n: int = 5):

@@ -23,6 +23,26 @@ from ..constants import P_STD, R_MOLAR, T_REF  # noqa: F401  (re-exported)
 from ..errors import DataRangeError, InputError, RangeError, TablegenError
 from .polynomial import Polynomial
 
+#: The function that gives U_<key> columns for ``properties(uncertainty=True)``. The
+#: budget lives in the calc layer, above this one, so thermo never imports it: the
+#: public API registers it (tablegen/__init__.py) through :func:`use_uncertainty_columns`.
+_UNCERTAINTY_COLUMNS: list = []
+
+
+def use_uncertainty_columns(fn) -> None:
+    """Register ``fn(substance, T, P) -> {"U_<key>": array}`` for ``properties(uncertainty=True)``."""
+    _UNCERTAINTY_COLUMNS[:] = [fn]
+
+
+def _uncertainty_columns():
+    if not _UNCERTAINTY_COLUMNS:
+        raise InputError("uncertainty=True needs the uncertainty budget, which is not registered; "
+                         "allowed: use tablegen.substance() or tablegen.mixture(), or call "
+                         "tablegen.thermo.substance.use_uncertainty_columns(tablegen.uncertainty."
+                         "uncertainty_columns) first")
+    return _UNCERTAINTY_COLUMNS[0]
+
+
 #: Relative tolerance of the inverse functions (in T).
 INVERSE_RTOL = 1e-10
 #: Extrapolation reaches at most this factor beyond the data range: from T_min / 2 to
@@ -391,8 +411,7 @@ class Substance:
         if mask is not None:
             out["extrapolated"] = mask
         if uncertainty:
-            from ..uncertainty import uncertainty_columns  # lazy: budgets load more data
-            out.update(uncertainty_columns(self, T, P))
+            out.update(_uncertainty_columns()(self, T, P))
         return out
 
     def _exact_at_datum(self, T: np.ndarray, h, per_kg: float):
