@@ -40,7 +40,7 @@ from decimal import Context, Decimal
 
 import numpy as np
 
-from .errors import FitError, TablegenError
+from .errors import FitError
 from .thermo.polynomial import NCOEF, NINE, SEVEN, Polynomial
 from .thermo.substance import R_MOLAR, T_REF
 
