@@ -18,16 +18,9 @@ _API = {
 }
 
 
-def _uncertainty_columns(substance, T, P=None):
-    from .uncertainty import uncertainty_columns  # calc layer, loaded on first use
-    return uncertainty_columns(substance, T, P)
-
-
 def __getattr__(name):
     if name in _API:
         import importlib
-        from .thermo.substance import use_uncertainty_columns
-        use_uncertainty_columns(_uncertainty_columns)  # thermo never imports the calc layer
         return getattr(importlib.import_module(f"{__name__}.{_API[name]}"), name)
     raise AttributeError(f"module 'tablegen' has no attribute {name!r}")
 

@@ -15,7 +15,17 @@ from . import composition
 from .data.library import library, norm_name
 from .errors import NameLookupError, TablegenError
 from .thermo.build import mixture_substance, species_substance
-from .thermo.substance import Anchor, Datum, Substance
+from .thermo.substance import Anchor, Datum, Substance, use_uncertainty_columns
+
+
+def _uncertainty_columns(substance, T, P=None):
+    from .uncertainty import uncertainty_columns  # the calc layer, loaded on first use
+    return uncertainty_columns(substance, T, P)
+
+
+#: properties(uncertainty=True) takes its U columns from the budget, registered here, where the
+#: public API is assembled (thermo never imports the calc layer above it).
+use_uncertainty_columns(_uncertainty_columns)
 
 __all__ = ["substance", "mixture", "Substance", "Datum", "Anchor", "shipped_mixtures", "RESOLVERS"]
 
