@@ -41,7 +41,7 @@ from decimal import Context, Decimal
 import numpy as np
 
 from .errors import FitError
-from .thermo.polynomial import NCOEF, NINE, SEVEN, Polynomial
+from .thermo.polynomial import NCOEF, NINE, SEVEN, Polynomial, interval_of
 from .thermo.substance import R_MOLAR, T_REF
 
 #: The scaled variable is tau = T / T_SCALE.
@@ -376,7 +376,7 @@ def _solve(prob: _Problem, bounds: np.ndarray) -> tuple[np.ndarray, float]:
     m = n_shape + 2
     inner = bounds[1:-1]
     T = prob.T
-    idx = np.searchsorted(inner, T, side="left")   # a breakpoint is in the lower interval, as in Polynomial
+    idx = interval_of(inner, T)
     for k in range(n_int):
         n_k = int(np.count_nonzero(idx == k))
         if n_k < n_shape:
@@ -395,7 +395,7 @@ def _solve(prob: _Problem, bounds: np.ndarray) -> tuple[np.ndarray, float]:
                 rows[sel, k * m:(k + 1) * m] = _matmul(B[sel], maps[k])
         return rows
 
-    k_ref = int(np.searchsorted(inner, T_REF, side="left"))
+    k_ref = int(interval_of(inner, T_REF))
     ref_ints = np.array([k_ref])
     Tref = np.array([T_REF])
 

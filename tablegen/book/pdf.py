@@ -936,8 +936,3 @@ def _draw_cells(c, fontname: str, size: float, cells):
             out.append(f"({''.join(pieces)}) Tj")
     out.append("ET")
     c.addLiteral(" ".join(out))
-
-
-def page_count(book) -> int:
-    """Pages the book will have (the plan without drawing)."""
-    return len(plan(book)[1])

@@ -49,6 +49,17 @@ def seven_to_nine(c7) -> list[float]:
     return [0.0, 0.0, *c7[:5], c7[5], c7[6]]
 
 
+def interval_of(inner, T) -> np.ndarray:
+    """Index of the interval holding each temperature, given the inner breakpoints.
+
+    The one breakpoint rule of tablegen (evaluation and fitting alike): a breakpoint
+    belongs to the lower interval (common practice: T <= T_mid takes the low-temperature
+    coefficients, as cantera's NASA polynomials do, from memory); beyond the ends, the end
+    intervals. At a breakpoint both intervals agree to the continuity of the record.
+    """
+    return np.searchsorted(inner, T, side="left")
+
+
 @dataclass(frozen=True, slots=True, eq=False)
 class Polynomial:
     """Piecewise NASA polynomial in molar, dimensionless form (cp/R, h/R, s/R).
@@ -110,9 +121,8 @@ class Polynomial:
         return int(self.coeffs.shape[0])
 
     def interval_index(self, T: np.ndarray) -> np.ndarray:
-        """Interval of each temperature (a breakpoint belongs to the lower interval, as in
-        the NASA reports); beyond the ends, the end intervals."""
-        return np.searchsorted(self._inner, T, side="left")
+        """Interval of each temperature (:func:`interval_of`)."""
+        return interval_of(self._inner, T)
 
     # -------------------------------------------------------------- evaluation
     def _tables(self):
@@ -160,7 +170,7 @@ class Polynomial:
         """Few points: the basis rows written once, one gather of each point's (3, 9)
         table and one product, a dozen array operations whatever the number of
         intervals. Each point's value depends on its own T only (no BLAS blocking)."""
-        k = np.searchsorted(self._inner, T, side="left")
+        k = interval_of(self._inner, T)
         V = np.empty((9, T.size))
         np.divide(1.0, T, out=V[1])
         np.multiply(V[1], V[1], out=V[0])
@@ -211,7 +221,7 @@ class Polynomial:
             return
         if T.size < 2 or not np.any(T[1:] < T[:-1]):
             # sorted input (every table grid): each interval is a slice
-            edges = [0, *np.searchsorted(T, self._inner, side="right").tolist(), T.size]
+            edges = [0, *np.searchsorted(T, self._inner, side="right").tolist(), T.size]  # T == breakpoint: lower interval (interval_of)
             for k in range(n):
                 if edges[k] < edges[k + 1]:
                     sl = slice(edges[k], edges[k + 1])
