@@ -269,9 +269,6 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
     for sub in (products, products_dry):
         if sub is not None:
             object.__setattr__(sub, "origin", result)
-    _MADE[products.id] = result
-    if products_dry is not None:
-        _MADE[products_dry.id] = result
     return result
 
 
@@ -503,41 +500,14 @@ def combustion_cautions(f: Fuel, prod: dict, products, T_ad: float | None) -> li
     return out
 
 
-class _Recent(dict):
-    """A dict that keeps only the most recent entries (bounded memory in long runs)."""
-
-    LIMIT = 512
-
-    def __setitem__(self, key, value):
-        if key in self:
-            del self[key]
-        super().__setitem__(key, value)
-        while len(self) > self.LIMIT:
-            del self[next(iter(self))]
-
-
-#: Substance id -> the CombustionResult that made it (so documents can print its cautions).
-_MADE: dict = _Recent()
-
-
 def result_for(substance) -> CombustionResult | None:
-    """The combustion result behind a flue-gas Substance (by id), or None for other substances.
+    """The combustion result behind a flue-gas Substance (its ``origin``), or None for other substances.
 
     Documents that tabulate a substance call this to print the combustion cautions and
     summary with it.
     """
-    from .flue import PREFIX, resolve
     origin = getattr(substance, "origin", None)
-    if isinstance(origin, CombustionResult):
-        return origin
-    r = _MADE.get(getattr(substance, "id", None))
-    if r is None and str(getattr(substance, "id", "")).lower().startswith(PREFIX):
-        try:
-            resolve(substance.id)
-        except TablegenError:
-            return None
-        r = _MADE.get(substance.id)
-    return r
+    return origin if isinstance(origin, CombustionResult) else None
 
 
 def cautions_for(substance) -> list | None:

@@ -13,7 +13,7 @@ from __future__ import annotations
 from dataclasses import replace
 from functools import lru_cache
 
-from .burn import _MADE, CAUTIONS, combustion, measured_o2
+from .burn import CAUTIONS, combustion, measured_o2
 from .composition import colon_form_fix, write as write_composition
 from .errors import NameLookupError, SpecError, TablegenError
 from .fuels import check_texts, fuel_from_table, fuel_from_text
@@ -70,9 +70,7 @@ def _resolve_cached(name: str, data: tuple, source):
     sub = r.products_dry if dry else r.products
     if sub is None:
         raise NameLookupError(f"flue-gas name {name!r}: this flue gas is water only, it has no dry part")
-    out = replace(sub, id=name, _cache={})
-    _MADE[name] = r
-    return out
+    return replace(sub, id=name, _cache={})   # origin (the CombustionResult) travels with it
 
 
 def resolve(name: str, data=(), source=None):
@@ -239,7 +237,6 @@ def substance_from_spec(table: dict, where: str, *, data=(), source=None):
         kw["name"] = str(table["name"])
     if kw:
         sub = replace(sub, _cache={}, **kw)
-        _MADE[sub.id] = r
     return sub
 
 
