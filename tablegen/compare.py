@@ -43,7 +43,7 @@ from .compare_keys import (ALIGNABLE, CHANGE_FLOOR_MOLAR, CHANGE_KEYS, CHANGE_RE
                            KEY_DIMENSIONS, KEY_LABELS, MEAN_KEYS, T_CHANGE_FROM, VOL_KEYS,
                            VOLUME_REFERENCES)
 from .compare_tolerance import Tolerance, default_tolerance, parse_align, parse_tolerance, wide_reason  # noqa: F401
-from .errors import RangeError, TablegenError, UnitError
+from .errors import NameLookupError, RangeError, TablegenError, UnitError
 from .thermo.substance import R_MOLAR
 from .units import Unit, unit as _unit
 
@@ -84,11 +84,12 @@ class Reference:
     header_line: int = 0
 
     def column(self, key: str) -> RefColumn:
-        """The first column of a key."""
+        """The first column of a key (NameLookupError naming the keys the table has)."""
         for c in self.columns:
             if c.key == key:
                 return c
-        raise KeyError(key)
+        raise NameLookupError(f"the reference has no column {key!r}; "
+                              f"allowed: {', '.join(dict.fromkeys(c.key for c in self.columns))}")
 
     def columns_of(self, key: str) -> tuple:
         """Every column of a key (a table may give one property in SI and US units)."""

@@ -787,3 +787,12 @@ def test_datum_plus_one_wrong_cell_is_hinted_as_such(tmp_path, capsys):
     assert rc == 1 and "700" in bad
     # the hint states how many cells --align would leave failing (its fitted mean includes the bad cell)
     assert f"With --align h=offset, {len(bad)} cell" in hint["text"]
+
+
+def test_a_missing_reference_column_is_a_name_error_naming_the_columns(tmp_path):
+    from tablegen.compare import read_reference
+    from tablegen.errors import NameLookupError
+    p = tmp_path / "ref.csv"
+    p.write_text("T [K],cp [kJ/(kg K)]\n300,1.005\n400,1.013\n", encoding="utf-8")
+    with pytest.raises(NameLookupError, match="no column .h.; allowed: cp"):
+        read_reference(p).column("h")

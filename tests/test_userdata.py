@@ -516,3 +516,4 @@ def test_hand_typed_tm4513_card_matches_shipped_argon(capsys, tmp_path):
         assert ra["cp_molar"] == pytest.approx(rb["cp_molar"], rel=1e-15)
         # b2 printed to 8 digits: s° differs by at most 5e-8 x 4.38 x R
         assert abs(ra["s0_molar"] - rb["s0_molar"]) <= 5e-8 * 4.3796749 * scipy.constants.R * (1 + 1e-6)
+

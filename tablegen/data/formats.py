@@ -495,8 +495,10 @@ def write_tm4513(rec: dict, comments=()) -> str:
     out.append(l1 + "1")
     for n in range(3):
         out.append("".join(_e(v, 15) for v in vals[5 * n: 5 * n + 5]) + "    " + str(n + 2))
-    for ln in out[len(comments):]:
-        assert len(ln) == 80, ln
+    for n, ln in enumerate(out[len(comments):], start=1):
+        if len(ln) != 80:   # a number too large for its fixed-width field
+            raise DataError(f"record {sid!r} cannot be written as a TM-4513 card: line {n} would be "
+                            f"{len(ln)} characters; allowed: 80 (a value overflows its field)")
     return "\n".join(out) + "\n"
 
 
