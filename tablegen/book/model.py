@@ -23,27 +23,19 @@ import numpy as np
 
 from ..errors import TablegenError
 from ..thermo.substance import R_MOLAR, T_REF
-from ..units import BTU, FT, LBM
+from ..units import unit as _unit
 from .stated import appendix_sections, auto_digits, uncertainty_notes, worked_example
 
 # ---------------------------------------------------------------- units
-_J_PER_BTU_FT3 = BTU / FT ** 3        # Btu/ft³ -> J/m³ (exact from the 1959 definitions)
-
-#: (key class, system, basis) -> (unit symbol, SI factor: SI value = factor * printed value).
-#: Key classes: "cap" (cp, cv, s°, mean cp), "energy" (h, u, g°).
-_UNITS = {
-    ("cap", "SI", "mass"): ("kJ/(kg K)", 1e3),
-    ("energy", "SI", "mass"): ("kJ/kg", 1e3),
-    ("cap", "SI", "molar"): ("J/(mol K)", 1.0),
-    ("energy", "SI", "molar"): ("kJ/mol", 1e3),
-    ("cap", "SI", "volumetric"): ("kJ/(m³ K)", 1e3),
-    ("energy", "SI", "volumetric"): ("kJ/m³", 1e3),
-    ("cap", "US", "mass"): ("Btu/(lbm °R)", BTU / LBM * 9 / 5),
-    ("energy", "US", "mass"): ("Btu/lbm", BTU / LBM),
-    ("cap", "US", "molar"): ("Btu/(lbmol °R)", BTU / LBM / 1000.0 * 9 / 5),
-    ("energy", "US", "molar"): ("Btu/lbmol", BTU / LBM / 1000.0),
-    ("cap", "US", "volumetric"): ("Btu/(ft³ °R)", _J_PER_BTU_FT3 * 9 / 5),
-    ("energy", "US", "volumetric"): ("Btu/ft³", _J_PER_BTU_FT3),
+#: (key class, system, basis) -> printed unit symbol; its SI factor is tablegen.units' (the one
+#: conversion table). Key classes: "cap" (cp, cv, s°, mean cp), "energy" (h, u, g°).
+_UNIT_SYMBOLS = {
+    ("cap", "SI", "mass"): "kJ/(kg K)", ("energy", "SI", "mass"): "kJ/kg",
+    ("cap", "SI", "molar"): "J/(mol K)", ("energy", "SI", "molar"): "kJ/mol",
+    ("cap", "SI", "volumetric"): "kJ/(m³ K)", ("energy", "SI", "volumetric"): "kJ/m³",
+    ("cap", "US", "mass"): "Btu/(lbm °R)", ("energy", "US", "mass"): "Btu/lbm",
+    ("cap", "US", "molar"): "Btu/(lbmol °R)", ("energy", "US", "molar"): "Btu/lbmol",
+    ("cap", "US", "volumetric"): "Btu/(ft³ °R)", ("energy", "US", "volumetric"): "Btu/ft³",
 }
 _CLASS = {"cp": "cap", "cv": "cap", "s0": "cap", "cp_mean_h": "cap", "cp_mean_s": "cap",
           "h": "energy", "u": "energy", "g0": "energy"}
@@ -67,15 +59,14 @@ def unit_for(key: str, system: str, basis: str) -> str:
         return "-"
     if key == "a":
         return "m/s" if system == "SI" else "ft/s"
-    return _UNITS[(_CLASS[key], system, basis)][0]
+    return _UNIT_SYMBOLS[(_CLASS[key], system, basis)]
 
 
 def unit_factor(key: str, system: str, basis: str) -> float:
+    """SI value of one printed unit of a column (from tablegen.units)."""
     if key in ("k", "Pr", "vr"):
         return 1.0
-    if key == "a":
-        return 1.0 if system == "SI" else FT
-    return _UNITS[(_CLASS[key], system, basis)][1]
+    return _unit(unit_for(key, system, basis)).factor
 
 
 def default_decimals(key: str, system: str, basis: str) -> int:
