@@ -570,7 +570,7 @@ def auto_step(sub, a, b, ua, keys, tol, extrapolate, where):
     through zero (sensible enthalpy) are judged against their range. The midpoint
     of linear interpolation is where the error of a smooth function peaks.
     """
-    from .book.model import column_values_SI
+    from .columns import column_values_SI
     keys = [k for k in keys if k != "T"] or ["cp"]
     for step in round_steps_from_top(b - a):
         n = int(math.floor((b - a) / step + 1e-9)) + 1
@@ -685,7 +685,7 @@ def _temperature_units(raw, where, system):
 
 
 def _columns(raw, where, system, basis, t_units, decimals, significant) -> tuple:
-    from .book.model import default_decimals, unit_for
+    from .columns import default_decimals, unit_for
     cols = _get(raw, "columns", list, where, list(DEFAULT_COLUMNS))
     if not cols:
         _fail(f"{where}.columns", "is empty; give at least one column besides T")

@@ -23,7 +23,7 @@ import numpy as np
 import pytest
 from pypdf import PdfReader
 
-from tablegen import cli, spec
+from tablegen import cli, columns, spec
 from tablegen import uncertainty as unc
 from tablegen.book import model
 from tablegen.commands.demo import spec_paths
@@ -306,7 +306,7 @@ def test_worked_example_equals_the_interpolation_of_the_printed_rows(demo, book)
     T_K = TO_K[tcol["unit"]](T)
     assert tj["basis"] == "mass"          # the demo's first tables are per unit mass
     p = ts.substance.properties(np.array([T_K]))
-    exact = float(p["h"][0]) / model.unit_factor("h", col["system"], tj["basis"])
+    exact = float(p["h"][0]) / columns.unit_factor("h", col["system"], tj["basis"])
     err = abs(u1 + (T - T1) / (T2 - T1) * (u2 - u1) - exact)
     assert err <= float(m["bound"]) * 1.05        # the bound printed to two digits
     assert "printed row" in text and "read, 0.3 of the step past the row above" in text

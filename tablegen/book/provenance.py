@@ -87,7 +87,7 @@ def _in_table_unit(t, key: str, v: float, fig: dict) -> str:
     """An absolute part of U (SI, as the budget holds it) in the unit the table prints that
     column in: every figure about a table is in that table's units (a table in both
     systems speaks SI, as its appendix does)."""
-    from .model import unit_factor, unit_for
+    from ..columns import unit_factor, unit_for
     system = "US" if t.units == "US" else "SI"
     try:
         factor, unit = unit_factor(key, system, t.basis), unit_for(key, system, t.basis)

@@ -33,7 +33,7 @@ def basis_scale(key: str, sub, basis: str, reference) -> float:
 
 
 def _printed_factor(key, col, t, doc, sub) -> float:
-    from .model import unit_factor
+    from ..columns import unit_factor
     return unit_factor(key, col.system, t.basis) / basis_scale(key, sub, t.basis, doc.reference)
 
 
@@ -72,7 +72,7 @@ def auto_digits(t, doc, sub) -> dict:
 
 def _factor(key: str, system: str, t, doc, sub) -> float:
     """SI value on the mass basis of one printed unit of ``key`` in ``system`` on the table's basis."""
-    from .model import unit_factor
+    from ..columns import unit_factor
     return unit_factor(key, system, t.basis) / basis_scale(key, sub, t.basis, doc.reference)
 
 
@@ -95,7 +95,7 @@ class TableWording(Wording):
     def __init__(self, t, doc, sub):
         super().__init__(sub.M * 1e-3)
         from ..units import PSI, unit
-        from .model import unit_for
+        from ..columns import unit_for
         system = "US" if t.units == "US" else "SI"
         self.t_unit = unit(t.temperature_units[0], "temperature")
         self.temperature_symbol = self.t_unit.symbol
@@ -123,7 +123,6 @@ def _in_table_units(t, doc, sub, first, b, inside) -> dict:
     error of linear interpolation per column; ``statements``: the budget's other
     statements (no figures); ``validity``: the range-of-validity sentences.
     """
-    from .. import uncertainty as unc
     from ..realgas import model_statements, virial_mixture
     w = TableWording(t, doc, sub)
     bands, inter = [], {}
