@@ -836,7 +836,7 @@ def _table(raw, where, defaults, doc, subs, source, data) -> TableSpec:
     charts = ()
     if "charts" in raw:
         try:
-            from .book.charts import parse_charts
+            from .chart_spec import parse_charts
         except ImportError:
             _fail(f"{where}.charts", "charts are not available in this build of tablegen")
         charts = tuple(parse_charts(raw["charts"], f"{where}.charts", units=system, barometer_Pa=doc.barometer))

@@ -130,7 +130,7 @@ def _split(text):
 
 
 def charts_from_options(args):
-    from ..book.charts import parse_charts
+    from ..chart_spec import parse_charts
     from ..units import barometer_Pa
     raw = {"kind": args.kind or "both"}
     for key in ("pressures", "volumes", "isotherms"):
@@ -155,7 +155,7 @@ def charts_from_options(args):
 def load_spec(path: str):
     """A chart spec file -> (substance name or None, unit system, date, name, ChartSpecs)."""
 
-    from ..book.charts import parse_charts
+    from ..chart_spec import parse_charts
     from ..spec import read_toml
     from ..units import barometer_Pa
     p = Path(path)
