@@ -18,19 +18,14 @@ import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 import tablegen  # noqa: E402
+from run_all import median_time  # noqa: E402  (benchmarks/run_all.py, beside this file)
 
 FLUE = {"CO2": 0.09, "H2O": 0.18, "N2": 0.71, "O2": 0.02}
 N = 100_000
 
 
 def best(f, repeat=7):
-    f()  # warm-up: first-call caches and fresh memory pages are not what a table run pays for
-    ts = []
-    for _ in range(repeat):
-        t = time.perf_counter()
-        f()
-        ts.append(time.perf_counter() - t)
-    return min(ts)
+    return median_time(f, repeat, reduce=min)
 
 
 def main():

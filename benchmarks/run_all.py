@@ -35,14 +35,16 @@ N = 100_000
 ENV = {**os.environ, "PYTHONPATH": str(ROOT)}
 
 
-def median_time(f, repeat: int) -> float:
-    f()  # warm-up: first-call caches and fresh memory pages are not what a table run pays for
+def median_time(f, repeat: int, reduce=statistics.median) -> float:
+    """Time of ``f`` over ``repeat`` runs after one warm-up (first-call caches and fresh
+    memory pages are not what a table run pays for): the median, or ``reduce`` of them."""
+    f()
     ts = []
     for _ in range(repeat):
         t = time.perf_counter()
         f()
         ts.append(time.perf_counter() - t)
-    return statistics.median(ts)
+    return reduce(ts)
 
 
 def cold(args, repeat: int, cwd=None) -> float:
