@@ -8,11 +8,10 @@
 
 from __future__ import annotations
 
-import tomllib
-from functools import lru_cache
 
 from . import composition
 from .data.library import library, norm_name
+from .data.mixtures import shipped_mixtures
 from .errors import NameLookupError, TablegenError
 from .thermo.build import mixture_substance, species_substance
 from .thermo.substance import Anchor, Datum, Substance, use_uncertainty_columns
@@ -29,22 +28,16 @@ use_uncertainty_columns(_uncertainty_columns)
 
 __all__ = ["substance", "mixture", "Substance", "Datum", "Anchor", "shipped_mixtures", "RESOLVERS"]
 
-#: Extra name resolvers tried before species lookup: callables (name, data, source)
-#: returning a Substance or None (combustion products register here).
+#: Name resolvers of the caller's own, tried after tablegen's name syntaxes and before the
+#: species lookup: callables (name, data, source) returning a Substance or None.
 RESOLVERS: list = []
 
 
-@lru_cache(maxsize=None)
-def shipped_mixtures() -> dict:
-    """Shipped mixtures from gasdata/mixtures.toml: normalised name -> raw entry."""
-    lib = library()
-    raw = tomllib.loads((lib.root / "mixtures.toml").read_text(encoding="utf-8"))
-    out = {}
-    for m in raw.get("mixture", []):
-        for n in (m["id"], m.get("name", ""), *m.get("aliases", [])):
-            if n:
-                out.setdefault(norm_name(n), m)
-    return out
+def _name_syntaxes() -> tuple:
+    """The name syntaxes tablegen itself reads, (prefix, resolver) pairs, named in this one
+    place: nothing registers a syntax by being imported."""
+    from .flue import PREFIX, resolve as flue_gas   # flue@FUEL@AMOUNT[@OXIDANT]: combustion products
+    return ((PREFIX, flue_gas),)
 
 
 def substance(name: str, *, source: str | None = None, data=()) -> Substance:
@@ -66,9 +59,9 @@ def substance(name: str, *, source: str | None = None, data=()) -> Substance:
     if not isinstance(name, str) or not name.strip():
         raise NameLookupError("substance name is empty; give a species id, alias or mixture")
     name = name.strip()
-    if name[:5].lower() == "flue@":
-        from . import flue
-        flue.register()
+    for prefix, resolve in _name_syntaxes():
+        if name[:len(prefix)].lower() == prefix:
+            return resolve(name, data, source)
     for resolve in RESOLVERS:
         s = resolve(name, data, source)
         if s is not None:

@@ -74,7 +74,7 @@ def _resolve_cached(name: str, data: tuple, source):
 
 
 def resolve(name: str, data=(), source=None):
-    """Resolver for tablegen.api.RESOLVERS: a Substance for a flue@ name, else None."""
+    """The resolver of flue@ names (tablegen.api names it): a Substance for a flue@ name, else None."""
     if not isinstance(name, str) or not name.strip().lower().startswith(PREFIX):
         return None
     return _resolve_cached(name.strip(), tuple(data), source)
@@ -238,10 +238,3 @@ def substance_from_spec(table: dict, where: str, *, data=(), source=None):
     if kw:
         sub = replace(sub, _cache={}, **kw)
     return sub
-
-
-def register():
-    """Add the flue-gas name resolver to tablegen.api.RESOLVERS (once)."""
-    from . import api
-    if resolve not in api.RESOLVERS:
-        api.RESOLVERS.append(resolve)
