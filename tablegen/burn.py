@@ -516,15 +516,3 @@ def cautions_for(substance) -> list | None:
         return list(substance.cautions)
     r = result_for(substance)
     return None if r is None else list(r.cautions)
-
-
-#: Names that moved to tablegen.flue (flue-gas names and spec substances), still read from here.
-_MOVED = ("PREFIX", "NAME_AMOUNTS", "NAME_HELP", "parse_name", "resolve", "SPEC_KEYS", "ANALYSIS_SPEC_KEYS",
-          "flue_gas_from_analysis", "substance_from_spec")
-
-
-def __getattr__(name):
-    if name in _MOVED:
-        from . import flue
-        return getattr(flue, name)
-    raise AttributeError(f"module 'tablegen.burn' has no attribute {name!r}")

@@ -16,7 +16,7 @@ from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
 import tablegen
-from tablegen import burn
+from tablegen import burn, flue
 from tablegen.data.library import library
 from tablegen.errors import SpecError, TablegenError
 from tablegen.saturation import T_sat_K, h_vap_J_per_kg, p_sat_Pa
@@ -372,7 +372,7 @@ def test_bad_flue_names_raise(bad):
 def test_substance_from_spec_and_key_paths():
     t = {"fuel": {"composition": {"CH4": 95, "C2H6": 3, "N2": 2}, "basis": "volume-dry", "water_percent": 1.5},
          "excess_air": 20, "oxidant": {"relative_humidity": 50, "temperature": "15C"}, "flue_basis": "dry"}
-    sub = burn.substance_from_spec(t, "tables[0].substance")
+    sub = flue.substance_from_spec(t, "tables[0].substance")
     assert "H2O" not in {c.id for c in sub.components}
     cases = [
         ({**t, "lambda": 1.1}, "tables[0].substance"),
@@ -387,7 +387,7 @@ def test_substance_from_spec_and_key_paths():
     ]
     for table, path in cases:
         with pytest.raises(SpecError) as e:
-            burn.substance_from_spec(table, "tables[0].substance")
+            flue.substance_from_spec(table, "tables[0].substance")
         assert str(e.value).startswith(path), (str(e.value), path)
         assert "\n" not in str(e.value)
 
@@ -468,19 +468,19 @@ def test_cautions_reachable_from_the_substance():
     sub = tablegen.substance("flue@C3H8@lambda=1.25")
     c = burn.cautions_for(sub)
     assert c and any("asphyxiant" in x for x in c)
-    spec = burn.substance_from_spec({"fuel": "CH4", "excess_air": 10, "id": "site flue gas"}, "tables[1].substance")
+    spec = flue.substance_from_spec({"fuel": "CH4", "excess_air": 10, "id": "site flue gas"}, "tables[1].substance")
     assert burn.cautions_for(spec) and burn.result_for(spec).air_ratio == pytest.approx(1.1, rel=1e-15)
     assert burn.cautions_for(tablegen.substance("CO2")) is None
 
 
 def test_measured_flue_gas_analysis_dry_to_wet():
     """Identity: a dry analysis with 12 % water by volume becomes the wet gas y_i = y_dry,i (1 - 0.12)."""
-    sub = burn.substance_from_spec({"flue_analysis": {"CO2": 9.5, "O2": 3.5, "N2": 87.0}, "water_percent": 12},
+    sub = flue.substance_from_spec({"flue_analysis": {"CO2": 9.5, "O2": 3.5, "N2": 87.0}, "water_percent": 12},
                                    "tables[2].substance")
     y = {c.id: c.mole_fraction for c in sub.components}
     assert abs(y["H2O"] - 0.12) <= 1e-14 and abs(y["CO2"] - 0.095 * 0.88) <= 1e-14
     with pytest.raises(SpecError, match=r"^tables\[2\]\.substance\.flue_analysis"):
-        burn.substance_from_spec({"flue_analysis": {"CO2": 9.5, "O2": 3.5, "N2": 80.0}}, "tables[2].substance")
+        flue.substance_from_spec({"flue_analysis": {"CO2": 9.5, "O2": 3.5, "N2": 80.0}}, "tables[2].substance")
 
 
 def test_flame_temperature_beyond_the_data_is_not_given():
