@@ -364,3 +364,17 @@ def temperature_list(text: str, what: str = "--T") -> list[float]:
 
 def _example(dimension: str) -> str:
     return {"temperature": "25C or 1000K", "pressure": "1bar or 101.325kPa"}.get(dimension, "1.0 " + known_symbols(dimension)[0])
+
+
+def kelvin_text(T_K: float) -> str:
+    """A temperature in K for print: up to 3 decimals, no trailing zeros ("298.15 K")."""
+    return f"{T_K:.3f}".rstrip("0").rstrip(".") + " K"
+
+
+def temperature_text(T_K: float, unit_symbol: str) -> str:
+    """A temperature in the unit ``unit_symbol``, with K beside it when that unit is not K."""
+    v = unit(unit_symbol, "temperature").from_si(T_K)
+    s = f"{v:.3f}".rstrip("0").rstrip(".")
+    if s == "-0":
+        s = "0"
+    return f"{s} {unit_symbol}" if unit_symbol == "K" else f"{s} {unit_symbol} ({kelvin_text(T_K)})"

@@ -22,7 +22,8 @@ from pathlib import Path
 import numpy as np
 
 from ..columns import column_values_SI, unit_factor, unit_for
-from .stated import appendix_sections, auto_digits, uncertainty_notes, worked_example
+from ..units import temperature_text as _fmtT
+from .stated import Section, appendix_sections, auto_digits, uncertainty_notes, worked_example  # noqa: F401
 
 # ---------------------------------------------------------------- definitions
 #: key -> (printed symbol, name, formula as printed on the "how to read" page)
@@ -164,16 +165,6 @@ class TableModel:
         return int(self.T_K.size)
 
 
-@dataclass(frozen=True, slots=True)
-class Section:
-    """A front-matter or appendix section: paragraphs and an optional small table."""
-
-    title: str
-    paragraphs: tuple = ()
-    header: tuple = ()
-    rows: tuple = ()
-
-
 @dataclass(frozen=True, slots=True, eq=False)
 class BookModel:
     name: str
@@ -251,20 +242,6 @@ def _substance_info(ref: str, s) -> SubstanceInfo:
                          dew_point_P_Pa=s.dew_point_P_Pa, description=tuple(description),
                          combustion=combustion, figures=tuple(figs),
                          origin_key=None if origin is None else id(origin))
-
-
-def _fmtK(T: float) -> str:
-    return f"{T:.3f}".rstrip("0").rstrip(".") + " K"
-
-
-def _fmtT(T_K: float, unit_symbol: str) -> str:
-    """A temperature in the table's unit, with K beside it when that unit is not K."""
-    from ..units import unit
-    v = unit(unit_symbol, "temperature").from_si(T_K)
-    s = f"{v:.3f}".rstrip("0").rstrip(".")
-    if s == "-0":
-        s = "0"
-    return f"{s} {unit_symbol}" if unit_symbol == "K" else f"{s} {unit_symbol} ({_fmtK(T_K)})"
 
 
 def _datum_text(d, unit_symbol: str = "K", h_unit: tuple = ("kJ/kg", 1e3)) -> str:

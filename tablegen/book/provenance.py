@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .model import _fmtT
+from ..units import temperature_text as _fmtT
 
 
 #: The row mark of a condensing row, and what it means (printed on the how-to-read page).

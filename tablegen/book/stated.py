@@ -10,9 +10,21 @@ appendix sections. Nothing here lays out a page.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import numpy as np
 
 from ..realgas import Wording
+
+
+@dataclass(frozen=True, slots=True)
+class Section:
+    """A front-matter or appendix section of a book: paragraphs and an optional small table."""
+
+    title: str
+    paragraphs: tuple = ()
+    header: tuple = ()
+    rows: tuple = ()
 
 #: Columns the uncertainty budget covers (tablegen.uncertainty); the mean-cp aids are not.
 BUDGET_KEYS = ("cp", "cv", "k", "h", "u", "s0", "g0", "Pr", "vr", "a")
@@ -270,7 +282,6 @@ def _validity_columns(t, doc, sub, cols, b, inside) -> tuple:
 
 
 def _uncertainty_section(tables, doc):
-    from .model import Section
     rows = []
     assumptions, sources, paras_tables = [], [], []
     for t in tables:
@@ -320,7 +331,6 @@ def _uncertainty_section(tables, doc):
 
 
 def _validity_section(tables, doc):
-    from .model import Section
     paras = [
         "The tables give the ideal-gas functions exactly, within the uncertainty of the previous "
         "appendix. A real gas departs from them as the pressure rises and near condensation. The "
@@ -426,6 +436,5 @@ def worked_example(ts, tm, doc):
     rows = ((cells[0][0], cells[0][1], "printed row"),
             (T_text, read, f"read, {EXAMPLE_FRACTION:g} of the step past the row above"),
             (cells[1][0], cells[1][1], "printed row"))
-    from .model import Section
     return Section(title="Reading between rows: a worked example", paragraphs=paras,
                    header=(f"T [{u.symbol}]", f"{sym} [{un}]", ""), rows=rows)
