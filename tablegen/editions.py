@@ -119,7 +119,7 @@ def parse(raw, table_names, papers, choose) -> tuple:
     ``papers`` are the paper names; ``choose(raw, key, choices, where, default)`` is the
     spec's own choice reader, so messages read alike.
     """
-    from . import spec as S
+    from . import spec_values as S
     if not isinstance(raw, dict):
         _fail("editions", f"must be a table of named editions ([editions.desk], [editions.pocket]), "
                           f"not {S._typename(raw)}")
@@ -201,7 +201,7 @@ def _font_size(e, w) -> float | None:
 def _grid_step(v, where) -> tuple:
     """One step, or one per unit family (a kelvin-sized one for K/°C grids, a rankine-sized one
     for °F/°R grids): ((value, Unit), ...)."""
-    from . import spec as S
+    from . import spec_values as S
     items = v if isinstance(v, list) else [v]
     if not 1 <= len(items) <= 2:
         _fail(where, f"has {len(items)} entries; give one step, or two: one for K/°C grids and one for °F/°R "
@@ -223,7 +223,7 @@ def _family(u) -> str:
 
 
 def _T_range(v, where) -> tuple:
-    from . import spec as S
+    from . import spec_values as S
     if not isinstance(v, list) or len(v) != 2:
         _fail(where, "must be two temperatures [low, high], e.g. [\"-40 °C\", \"1200 °C\"]")
     lo = S._temperature(v[0], f"{where}[0]")
@@ -236,7 +236,7 @@ def _T_range(v, where) -> tuple:
 # ---------------------------------------------------------------- one edition's raw spec
 def _step_text(steps, seg_start: str, where: str) -> str:
     """The edition's step written in the unit of a segment's start."""
-    from . import spec as S
+    from . import spec_values as S
     _, u = S._temp_unit(seg_start, where)
     fam = _family(u)
     for val, su in steps:
