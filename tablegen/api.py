@@ -12,7 +12,7 @@ from __future__ import annotations
 from . import composition
 from .data.library import library, norm_name
 from .data.mixtures import shipped_mixtures
-from .errors import NameLookupError, TablegenError
+from .errors import InputError, NameLookupError
 from .thermo.build import mixture_substance, species_substance
 from .thermo.substance import Anchor, Datum, Substance, use_uncertainty_columns
 
@@ -98,7 +98,7 @@ def mixture(components: dict, basis: str = "mole", *, source: str | None = None,
     that do not sum to 1 within 1e-6.
     """
     if not isinstance(components, dict):
-        raise TablegenError("mixture components must be a mapping of species to fractions")
+        raise InputError("mixture components must be a mapping of species to fractions")
     lib = library(tuple(data))
     parts = []
     for k, v in components.items():

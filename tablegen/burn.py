@@ -34,7 +34,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from .errors import RangeError, TablegenError
+from .errors import InputError, RangeError, UnitError
 # the fuels and oxidants of the public API are read from here too (tablegen.burn.make_oxidant, ...)
 from .fuels import (FUEL_KEYS, Fuel, _h_products, _oxygen_need, _products_of_fuel_per_kg,  # noqa: F401
                     condensed_fuel, fuel_from_table, fuel_from_text, gas_fuel, parse_formula)
@@ -93,15 +93,15 @@ def _solve_air_ratio(*, excess_air, air_ratio, phi, o2_dry, o2_wet, o2_need, n_o
     given = {k: v for k, v in (("excess_air", excess_air), ("lambda", air_ratio), ("phi", phi),
                                ("o2_dry", o2_dry), ("o2_wet", o2_wet)) if v is not None}
     if len(given) != 1:
-        raise TablegenError("give exactly one amount of oxidant: excess air (%), lambda, phi, "
-                            f"or flue-gas O2 (dry or wet, %); got {', '.join(given) or 'none'}")
+        raise InputError("give exactly one amount of oxidant: excess air (%), lambda, phi, "
+                         f"or flue-gas O2 (dry or wet, %); got {', '.join(given) or 'none'}")
     (k, v), = given.items()
     if k == "excess_air":
         return 1 + _num(v, "excess air (%)", lo=0.0) / 100
     if k == "lambda":
         if _num(v, "lambda") < 1:
-            raise TablegenError(f"lambda = {float(v):g} is below 1; complete combustion needs lambda >= 1 "
-                                f"(fuel-rich flames make CO and H2, which this model does not)")
+            raise RangeError(f"lambda = {float(v):g} is below 1; complete combustion needs lambda >= 1 "
+                             f"(fuel-rich flames make CO and H2, which this model does not)")
         return float(v)
     if k == "phi":
         return 1 / _num(v, "phi", lo=0.0, hi=1.0, lo_open=True)
@@ -112,9 +112,9 @@ def _solve_air_ratio(*, excess_air, air_ratio, phi, o2_dry, o2_wet, o2_need, n_o
     y_max = ox.y_O2 / c
     y = _num(v, f"flue-gas O2 ({'wet' if k == 'o2_wet' else 'dry'}, %)", lo=0.0) / 100
     if y >= y_max:
-        raise TablegenError(f"flue-gas O2 {y * 100:g} % ({'wet' if k == 'o2_wet' else 'dry'}) is not below "
-                            f"the O2 content of the oxidant on that basis ({y_max * 100:.4g} %); allowed: "
-                            f"0 <= O2 < {y_max * 100:.4g} %")
+        raise RangeError(f"flue-gas O2 {y * 100:g} % ({'wet' if k == 'o2_wet' else 'dry'}) is not below "
+                         f"the O2 content of the oxidant on that basis ({y_max * 100:.4g} %); allowed: "
+                         f"0 <= O2 < {y_max * 100:.4g} %")
     return (o2_need + y * total0) / (o2_need - y * n_ox_st * c)
 
 
@@ -130,8 +130,8 @@ def measured_o2(text, what: str = "flue-gas O2") -> tuple[float, float | None]:
         return _num(t[:-1].strip() if t.endswith("%") else t, f"{what} (%)"), None
     v, _, u = (x.strip() for x in t.partition(sep))
     if not v.endswith("%") or not u.endswith("%"):
-        raise TablegenError(f"{what} {t!r}: a measured O2 with its uncertainty is written with '%' on both; "
-                            f"allowed: e.g. 3.5%±0.2% (the expanded uncertainty, k = 2)")
+        raise UnitError(f"{what} {t!r}: a measured O2 with its uncertainty is written with '%' on both; "
+                        f"allowed: e.g. 3.5%±0.2% (the expanded uncertainty, k = 2)")
     return _num(v[:-1].strip(), f"{what} (%)"), _num(u[:-1].strip(), f"uncertainty of {what} (%)")
 
 
@@ -140,7 +140,7 @@ def _given_amount(excess_air, air_ratio, phi, o2_dry, o2_wet):
                  ("o2-wet", o2_wet)):
         if v is not None:
             return k, float(v)
-    raise TablegenError("give one amount of oxidant")  # pragma: no cover - checked before
+    raise InputError("give one amount of oxidant")  # pragma: no cover - checked before
 
 
 def _products_at(fuel: Fuel, ox: Oxidant, n_ox: float) -> dict:
@@ -220,7 +220,7 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
     """
     if "lambda" in kw:
         if air_ratio is not None:
-            raise TablegenError("give lambda or air_ratio, not both")
+            raise InputError("give lambda or air_ratio, not both")
         air_ratio = kw.pop("lambda")
     if kw:
         raise TypeError(f"combustion() got unknown arguments: {', '.join(kw)}")
@@ -231,14 +231,14 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
                                 ("o2_dry", o2_dry), ("o2_wet", o2_wet)) if v is not None}
     if o2_uncertainty is not None:
         if not (set(amount) & {"o2_dry", "o2_wet"}):
-            raise TablegenError("an O2 uncertainty belongs to a measured flue-gas O2 (o2_dry or o2_wet)")
+            raise InputError("an O2 uncertainty belongs to a measured flue-gas O2 (o2_dry or o2_wet)")
         U = _num(o2_uncertainty, "uncertainty of the flue-gas O2 (%)")
         (k, v), = ((k, v) for k, v in amount.items() if k in ("o2_dry", "o2_wet"))
         if U < 0:
-            raise TablegenError(f"uncertainty of the flue-gas O2 is negative ({U:g} %); allowed: U >= 0")
+            raise RangeError(f"uncertainty of the flue-gas O2 is negative ({U:g} %); allowed: U >= 0")
         if U > _num(v, "flue-gas O2 (%)"):
-            raise TablegenError(f"uncertainty of the flue-gas O2 (±{U:g} %) is larger than the O2 itself "
-                                f"({float(v):g} %); allowed: U <= the measured O2")
+            raise RangeError(f"uncertainty of the flue-gas O2 (±{U:g} %) is larger than the O2 itself "
+                             f"({float(v):g} %); allowed: U <= the measured O2")
     temps = {"T_fuel_K": (T_REF, "the default") if T_fuel_K is None else (T_fuel_K, "as given"),
              "T_oxidant_K": ((ox.T_K, "stated with the oxidant") if ox.T_K is not None else (T_REF, "the default"))
              if T_oxidant_K is None else (T_oxidant_K, "as given")}
@@ -278,8 +278,8 @@ def _burn(f: Fuel, ox: Oxidant, amount: dict, *, T_ref_K, T_meter_K, P_meter_Pa,
     from .thermo.build import mixture_substance
     T_ref = _num(T_ref_K, "combustion reference temperature (K)")
     if not any(abs(T_ref - v) < 0.01 for v in REFERENCE_TEMPERATURES_K.values()):
-        raise TablegenError(f"combustion reference temperature {T_ref:g} K is not one ISO 6976 allows; "
-                            f"allowed: {', '.join(REFERENCE_TEMPERATURES_K)}")
+        raise RangeError(f"combustion reference temperature {T_ref:g} K is not one ISO 6976 allows; "
+                         f"allowed: {', '.join(REFERENCE_TEMPERATURES_K)}")
     for nm, v in (("metering temperature", T_meter_K), ("metering pressure", P_meter_Pa),
                   ("fuel temperature", T_fuel_K), ("oxidant temperature", T_oxidant_K),
                   ("flue-gas pressure", P_flue_Pa)):
@@ -287,7 +287,7 @@ def _burn(f: Fuel, ox: Oxidant, amount: dict, *, T_ref_K, T_meter_K, P_meter_Pa,
 
     o2_need = _oxygen_need(f.elements)
     if o2_need <= 0:
-        raise TablegenError(f"fuel {f.id}: needs no oxygen (no C, H or S beyond its own O): nothing to burn")
+        raise InputError(f"fuel {f.id}: needs no oxygen (no C, H or S beyond its own O): nothing to burn")
     n_st = o2_need / ox.y_O2                          # mol oxidant per kg fuel, stoichiometric
     p0 = _products_at(f, ox, 0.0)
     wet0 = sum(p0.values())
@@ -295,8 +295,8 @@ def _burn(f: Fuel, ox: Oxidant, amount: dict, *, T_ref_K, T_meter_K, P_meter_Pa,
     if "o2_dry" in amount:
         p1 = _products_at(f, ox, n_st)
         if sum(v for k, v in p1.items() if k not in ("H2O", "O2")) <= 1e-12 * sum(p1.values()):
-            raise TablegenError("this dry flue gas would hold nothing but O2, so a dry O2 reading cannot fix "
-                                "the amount of oxidant; give the wet O2, lambda or excess air")
+            raise InputError("this dry flue gas would hold nothing but O2, so a dry O2 reading cannot fix "
+                             "the amount of oxidant; give the wet O2, lambda or excess air")
     lam = _solve_air_ratio(**{k: amount.get(k) for k in AMOUNT_KEYS}, o2_need=o2_need, n_ox_st=n_st,
                            wet0=wet0, dry0=dry0, ox=ox)
     n_ox = lam * n_st
@@ -304,7 +304,7 @@ def _burn(f: Fuel, ox: Oxidant, amount: dict, *, T_ref_K, T_meter_K, P_meter_Pa,
     if abs(prod["O2"]) <= LAMBDA_ROUNDOFF * o2_need:      # λ = 1: round-off of O2 need - supply
         prod["O2"] = 0.0
     elif prod["O2"] < 0:  # pragma: no cover - λ >= 1 is enforced above
-        raise TablegenError("oxidant short of stoichiometric; complete combustion needs lambda >= 1")
+        raise RangeError("oxidant short of stoichiometric; complete combustion needs lambda >= 1")
     prod = {k: prod[k] for k in PRODUCT_ORDER if prod.get(k, 0.0) > 0}
     N_wet = sum(prod.values())
     N_dry = N_wet - prod.get("H2O", 0.0)

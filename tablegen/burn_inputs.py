@@ -26,7 +26,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from .errors import TablegenError
+from .errors import InputError
 
 #: Summary figures whose uncertainty is stated (every scalar a combustion engineer reads off).
 FIGURES = ("lambda", "excess_air_percent", "phi", "afr_mass", "afr_mass_dry_oxidant", "afr_molar", "afr_volume",
@@ -106,7 +106,7 @@ def _moved(fuel, amount: dict, inp: Input, step: float):
         tot = sum(x.values())
         x = {k: v / tot for k, v in x.items()}
         if fuel.remake is None:  # pragma: no cover - only fuels with an analysis carry uncertainties
-            raise TablegenError(f"fuel {fuel.id}: its analysis cannot be varied for the uncertainty")
+            raise InputError(f"fuel {fuel.id}: its analysis cannot be varied for the uncertainty")
         return fuel.remake(x), amount
     a = dict(amount)
     a[inp.key] = float(a[inp.key]) + step

@@ -43,7 +43,7 @@ from .compare_keys import (ALIGNABLE, CHANGE_FLOOR_MOLAR, CHANGE_KEYS, CHANGE_RE
                            KEY_DIMENSIONS, KEY_LABELS, MEAN_KEYS, T_CHANGE_FROM, VOL_KEYS,
                            VOLUME_REFERENCES)
 from .compare_tolerance import Tolerance, default_tolerance, parse_align, parse_tolerance, wide_reason  # noqa: F401
-from .errors import NameLookupError, RangeError, TablegenError, UnitError
+from .errors import DataError, FitError, InputError, NameLookupError, RangeError, UnitError
 from .thermo.substance import R_MOLAR
 from .units import Unit, unit as _unit
 
@@ -150,22 +150,22 @@ def read_reference(path) -> Reference:
     except OSError:
         size = 0                       # the read below says what is wrong
     if size > MAX_REFERENCE_BYTES:
-        raise TablegenError(f"{name}: {size} bytes; a reference table may have at most "
-                            f"{MAX_REFERENCE_BYTES} bytes ({MAX_REFERENCE_BYTES >> 20} MiB) and "
-                            f"{MAX_REFERENCE_ROWS} rows")
+        raise DataError(f"{name}: {size} bytes; a reference table may have at most "
+                        f"{MAX_REFERENCE_BYTES} bytes ({MAX_REFERENCE_BYTES >> 20} MiB) and "
+                        f"{MAX_REFERENCE_ROWS} rows")
     try:
         raw = p.read_bytes()
     except FileNotFoundError:
-        raise TablegenError(f"{name}: reference file not found; give the path of a CSV or text table") from None
+        raise DataError(f"{name}: reference file not found; give the path of a CSV or text table") from None
     except IsADirectoryError:
-        raise TablegenError(f"{name}: is a folder; give the path of a CSV or text table") from None
+        raise DataError(f"{name}: is a folder; give the path of a CSV or text table") from None
     except OSError as e:
-        raise TablegenError(f"{name}: cannot read the reference file ({e.strerror})") from None
+        raise DataError(f"{name}: cannot read the reference file ({e.strerror})") from None
     try:
         text = raw.decode("utf-8-sig")
     except UnicodeDecodeError as e:
         line = raw[:e.start].count(b"\n") + 1
-        raise TablegenError(f"{name}:{line}: not UTF-8 text; save the reference table as UTF-8") from None
+        raise DataError(f"{name}:{line}: not UTF-8 text; save the reference table as UTF-8") from None
     digest = hashlib.sha256(raw).hexdigest()
 
     comments, rows, header, header_line, layout = [], [], None, 0, "csv"
@@ -191,11 +191,11 @@ def read_reference(path) -> Reference:
             cells = s.split()
         rows.append((i, [c.strip() for c in cells]))
         if len(rows) > MAX_REFERENCE_ROWS:
-            raise TablegenError(f"{name}:{i}: more than {MAX_REFERENCE_ROWS} data rows; a reference table "
-                                f"may have at most {MAX_REFERENCE_ROWS} rows (split it and compare each part)")
+            raise DataError(f"{name}:{i}: more than {MAX_REFERENCE_ROWS} data rows; a reference table "
+                            f"may have at most {MAX_REFERENCE_ROWS} rows (split it and compare each part)")
     if header is None:
-        raise TablegenError(f"{name}: no header line; the first line that is not a '#' comment must name "
-                            f"each column as key [unit], e.g. T [K],cp [kJ/(kg K)]")
+        raise DataError(f"{name}: no header line; the first line that is not a '#' comment must name "
+                        f"each column as key [unit], e.g. T [K],cp [kJ/(kg K)]")
 
     keys, units, seen = [], [], set()
     for cell in header:
@@ -205,8 +205,8 @@ def read_reference(path) -> Reference:
             continue
         m = _HEADER_CELL.match(cell)
         if not m:
-            raise TablegenError(f"{name}:{header_line}: header cell {cell.strip()!r} is not in the form "
-                                f"key [unit], e.g. cp [kJ/(kg K)]")
+            raise DataError(f"{name}:{header_line}: header cell {cell.strip()!r} is not in the form "
+                            f"key [unit], e.g. cp [kJ/(kg K)]")
         key, usym = m.group(1), m.group(2).strip()
         if key.startswith(UNCERTAINTY_PREFIX) and key[len(UNCERTAINTY_PREFIX):] in KEY_DIMENSIONS:
             keys.append(MARK_KEY)          # a tablegen CSV's U_<key> column: read, never compared
@@ -214,35 +214,35 @@ def read_reference(path) -> Reference:
             continue
         if key != "T" and key not in KEY_DIMENSIONS:
             if not re.fullmatch(r"[A-Za-z][A-Za-z0-9]*(_mean_[hs])?_vol", key) or key.split("_")[0] not in KEY_DIMENSIONS:
-                raise TablegenError(f"{name}:{header_line}: unknown column key {key!r}; allowed: {_allowed_keys()}")
+                raise DataError(f"{name}:{header_line}: unknown column key {key!r}; allowed: {_allowed_keys()}")
             u = None            # a tablegen key of the volumetric basis: units per m³ are not known here
         else:
             dim = "temperature" if key == "T" else KEY_DIMENSIONS[key]
             try:
                 u = _unit(usym, dim)
             except UnitError as e:
-                raise TablegenError(f"{name}:{header_line}: column {key!r}: {e}") from None
+                raise UnitError(f"{name}:{header_line}: column {key!r}: {e}") from None
         ident = (key, u.symbol if u else usym)
         if ident in seen:
-            raise TablegenError(f"{name}:{header_line}: column {cell.strip()!r} appears twice; give each once")
+            raise DataError(f"{name}:{header_line}: column {cell.strip()!r} appears twice; give each once")
         seen.add(ident)
         keys.append(key)
         units.append(u)
     if "T" not in keys:
-        raise TablegenError(f"{name}:{header_line}: no temperature column; one column must be T [K] "
-                            f"(or T [°C], T [°F], T [°R])")
+        raise DataError(f"{name}:{header_line}: no temperature column; one column must be T [K] "
+                        f"(or T [°C], T [°F], T [°R])")
     if all(k in ("T", MARK_KEY) for k in keys):
-        raise TablegenError(f"{name}:{header_line}: only a temperature column; add property columns, "
-                            f"allowed keys: {', '.join(KEY_DIMENSIONS)}")
+        raise DataError(f"{name}:{header_line}: only a temperature column; add property columns, "
+                        f"allowed keys: {', '.join(KEY_DIMENSIONS)}")
     if not rows:
-        raise TablegenError(f"{name}: header but no data rows; add one row per temperature")
+        raise DataError(f"{name}: header but no data rows; add one row per temperature")
 
     n = len(keys)
     cells_by_col = [[] for _ in range(n)]
     for line, cells in rows:
         if len(cells) != n:
             hint = "; in a whitespace table write '-' for an empty cell" if layout == "whitespace" else ""
-            raise TablegenError(f"{name}:{line}: {len(cells)} cells, but the header names {n} columns{hint}")
+            raise DataError(f"{name}:{line}: {len(cells)} cells, but the header names {n} columns{hint}")
         for j, c in enumerate(cells):
             if keys[j] == MARK_KEY:
                 cells_by_col[j].append(c)
@@ -251,11 +251,11 @@ def read_reference(path) -> Reference:
                 cells_by_col[j].append("")
                 continue
             if not _NUMBER.match(c):
-                raise TablegenError(f"{name}:{line}: cell {c!r} in column {keys[j]!r} is not a number; "
-                                    f"write plain decimal numbers (an empty cell or '-' marks a gap)")
+                raise DataError(f"{name}:{line}: cell {c!r} in column {keys[j]!r} is not a number; "
+                                f"write plain decimal numbers (an empty cell or '-' marks a gap)")
             if not math.isfinite(float(c)):
-                raise TablegenError(f"{name}:{line}: cell {c!r} in column {keys[j]!r} is beyond the range "
-                                    f"of a double (about 1.8e308); write a finite number")
+                raise DataError(f"{name}:{line}: cell {c!r} in column {keys[j]!r} is beyond the range "
+                                f"of a double (about 1.8e308); write a finite number")
             cells_by_col[j].append(c)
 
     lines = tuple(r[0] for r in rows)
@@ -264,7 +264,7 @@ def read_reference(path) -> Reference:
     T_K = units[jT].to_si(np.array([float(c) for c in T_text]))
     for line, T in zip(lines, T_K):
         if not (math.isfinite(T) and T > 0):
-            raise TablegenError(f"{name}:{line}: temperature {T:g} K is not above 0 K")
+            raise DataError(f"{name}:{line}: temperature {T:g} K is not above 0 K")
     columns = []
     for j, key in enumerate(keys):
         if key in ("T", MARK_KEY):   # the first T column is the temperature; others (T in °F ...) are ignored
@@ -284,8 +284,8 @@ def _split_ws_header(s: str, name: str, line: int) -> list[str]:
     rest = _HEADER_WS.sub("", s).strip()
     if rest or not cells:
         bad = rest.split()[0] if rest else s
-        raise TablegenError(f"{name}:{line}: header text {bad!r} is not in the form key [unit]; "
-                            f"separate columns by commas or blanks, e.g. T [K],cp [kJ/(kg K)]")
+        raise DataError(f"{name}:{line}: header text {bad!r} is not in the form key [unit]; "
+                        f"separate columns by commas or blanks, e.g. T [K],cp [kJ/(kg K)]")
     return cells
 
 
@@ -449,18 +449,18 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
     keys = list(columns) if columns else list(ref.keys)
     for k in keys:
         if k not in ref.keys:
-            raise TablegenError(f"--columns: {k!r} is not a column of {ref.path}; "
-                                f"its columns: {', '.join(ref.keys)}")
+            raise NameLookupError(f"--columns: {k!r} is not a column of {ref.path}; "
+                                  f"its columns: {', '.join(ref.keys)}")
         if k not in ref.comparable_keys:
-            raise TablegenError(f"{ref.path}:{ref.header_line}: column {k!r} cannot be evaluated here; "
-                                f"compare the other "
-                                f"columns with --columns {','.join(ref.comparable_keys)}")
+            raise InputError(f"{ref.path}:{ref.header_line}: column {k!r} cannot be evaluated here; "
+                             f"compare the other "
+                             f"columns with --columns {','.join(ref.comparable_keys)}")
     if len(set(keys)) != len(keys):
-        raise TablegenError("--columns: a column is named twice; name each once")
+        raise InputError("--columns: a column is named twice; name each once")
     for k in list(tolerances) + list(align):
         if k not in keys:
-            raise TablegenError(f"column {k!r} has a tolerance or alignment but is not compared; "
-                                f"compared columns: {', '.join(keys)}")
+            raise InputError(f"column {k!r} has a tolerance or alignment but is not compared; "
+                             f"compared columns: {', '.join(keys)}")
 
     # A converted temperature may miss a range end by rounding (-73.15 °C is
     # 199.99999999999997 K): within 1e-9 relative it counts as the end itself.
@@ -534,8 +534,8 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
             text=rc.text, alignment=alignment,
             stats=_stats(dev_u, rel, bound_u, present, within, T, ref)))
     if not any(np.any(r.present) for r in results):
-        raise TablegenError(f"{ref.path}: the compared columns hold no values (every cell is a gap); "
-                            f"there is nothing to judge")
+        raise DataError(f"{ref.path}: the compared columns hold no values (every cell is a gap); "
+                        f"there is nothing to judge")
     wide = _wide(results, allow_wide)
     from . import __version__
     from .compare_hints import comparison_hints
@@ -555,9 +555,9 @@ def _wide(results, allow: bool) -> tuple:
         if why is None:
             continue
         if not allow:
-            raise TablegenError(f"--tolerance {r.key}={r.tolerance.text}: {why}, so it cannot tell a right "
-                                f"table from a wrong one; give a tighter tolerance, or pass --allow-wide "
-                                f"(the report then states it on page 1)")
+            raise RangeError(f"--tolerance {r.key}={r.tolerance.text}: {why}, so it cannot tell a right "
+                             f"table from a wrong one; give a tighter tolerance, or pass --allow-wide "
+                             f"(the report then states it on page 1)")
         out.append({"column": r.key, "tolerance": r.tolerance.text, "reason": why})
     return tuple(out)
 
@@ -565,7 +565,7 @@ def _wide(results, allow: bool) -> tuple:
 def _fit(key, kind, ref_si, calc_si, present, u, ref, sub, rc):
     n = int(np.sum(present))
     if n == 0:
-        raise TablegenError(f"--align {key}={kind}: column {key!r} of {ref.path} has no values to fit")
+        raise FitError(f"--align {key}={kind}: column {key!r} of {ref.path} has no values to fit")
     r, c = ref_si[present], calc_si[present]
     rms_before = float(np.sqrt(np.mean((c - r) ** 2))) / u.factor
     if kind == "offset":
@@ -580,8 +580,8 @@ def _fit(key, kind, ref_si, calc_si, present, u, ref, sub, rc):
     else:
         if np.any(r <= 0):
             i = int(np.flatnonzero(present)[np.argmax(r <= 0)])
-            raise TablegenError(f"{ref.path}:{ref.lines[i]}: {key} value {rc.text[i]} is not "
-                                f"positive; a scale fit needs positive {key} values")
+            raise FitError(f"{ref.path}:{ref.lines[i]}: {key} value {rc.text[i]} is not "
+                           f"positive; a scale fit needs positive {key} values")
         value = float(np.exp(np.mean(np.log(r) - np.log(c))))
         aligned = calc_si * value
         vu = value

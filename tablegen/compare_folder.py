@@ -25,7 +25,7 @@ import json
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from .errors import TablegenError
+from .errors import DataError, InputError, NameLookupError, SpecError
 
 SIDECAR_SCHEMA = "tablegen-book/1"
 METADATA_SUFFIX = "-metadata.json"       # W3C CSVW: NAME.csv -> NAME.csv-metadata.json
@@ -59,12 +59,12 @@ def _read_json(path: Path) -> dict:
     try:
         data = json.loads(path.read_text(encoding="utf-8"))
     except (OSError, UnicodeDecodeError) as e:
-        raise TablegenError(f"{path}: cannot read ({getattr(e, 'strerror', None) or e}); "
-                            f"give a readable UTF-8 JSON file") from None
+        raise DataError(f"{path}: cannot read ({getattr(e, 'strerror', None) or e}); "
+                        f"give a readable UTF-8 JSON file") from None
     except json.JSONDecodeError as e:
-        raise TablegenError(f"{path}:{e.lineno}: not valid JSON ({e.msg}); repair or remove the file") from None
+        raise DataError(f"{path}:{e.lineno}: not valid JSON ({e.msg}); repair or remove the file") from None
     if not isinstance(data, dict):
-        raise TablegenError(f"{path}: not a JSON object; a sidecar or CSVW metadata file holds one object")
+        raise DataError(f"{path}: not a JSON object; a sidecar or CSVW metadata file holds one object")
     return data
 
 
@@ -133,19 +133,19 @@ def read_mapping(path) -> dict:
     try:
         raw = tomllib.loads(p.read_text(encoding="utf-8"))
     except FileNotFoundError:
-        raise TablegenError(f"--map {path}: no such file; give a TOML file with a [tables] table") from None
+        raise InputError(f"--map {path}: no such file; give a TOML file with a [tables] table") from None
     except (OSError, UnicodeDecodeError) as e:
-        raise TablegenError(f"--map {path}: cannot read ({getattr(e, 'strerror', None) or e})") from None
+        raise InputError(f"--map {path}: cannot read ({getattr(e, 'strerror', None) or e})") from None
     except tomllib.TOMLDecodeError as e:
-        raise TablegenError(f"--map {path}: not valid TOML ({e}); write [tables] then name = \"file.csv\"") from None
+        raise SpecError(f"--map {path}: not valid TOML ({e}); write [tables] then name = \"file.csv\"") from None
     tables = raw.get("tables")
     extra = sorted(set(raw) - {"tables"})
     if not isinstance(tables, dict) or extra:
-        raise TablegenError(f"--map {path}: expected one [tables] table of name = \"file\" lines"
-                            + (f", not {', '.join(extra)}" if extra else ""))
+        raise SpecError(f"--map {path}: expected one [tables] table of name = \"file\" lines"
+                        + (f", not {', '.join(extra)}" if extra else ""))
     for k, v in tables.items():
         if not isinstance(v, str) or not v.strip():
-            raise TablegenError(f"--map {path}: tables.{k} must be a file name in quotes")
+            raise SpecError(f"--map {path}: tables.{k} must be a file name in quotes")
     return dict(tables)
 
 
@@ -169,13 +169,13 @@ def read_folder(folder, book_name: str, tables, mapping: dict | None = None,
     """
     root = Path(folder)
     if not root.is_dir():
-        raise TablegenError(f"{folder}: not a folder; give a reference folder or one reference table")
+        raise InputError(f"{folder}: not a folder; give a reference folder or one reference table")
     tables = list(tables)
     mapping = dict(mapping or {})
     unknown = [k for k in mapping if k not in tables]
     if unknown:
-        raise TablegenError(f"--map {mapping_name}: table {unknown[0]!r} is not compared; "
-                            f"compared tables: {', '.join(tables)}")
+        raise NameLookupError(f"--map {mapping_name}: table {unknown[0]!r} is not compared; "
+                              f"compared tables: {', '.join(tables)}")
     side_path, side = _choose_sidecar(_sidecars(root), book_name, tables, edition)
     listed = {}
     if side is not None:
@@ -197,8 +197,8 @@ def read_folder(folder, book_name: str, tables, mapping: dict | None = None,
                 continue
             p, how = hit[0], "file name"
         if not p.is_file():
-            raise TablegenError(f"{p}: named by the {how} for table {name!r} but not found; "
-                                f"restore the file or map the table to another with --map")
+            raise DataError(f"{p}: named by the {how} for table {name!r} but not found; "
+                            f"restore the file or map the table to another with --map")
         ident, ident_from = csvw_identity(p)
         if not ident and book:
             ident, ident_from = {k: book[k] for k in ("number", "revision", "issue_date", "fingerprint")}, \
@@ -206,10 +206,10 @@ def read_folder(folder, book_name: str, tables, mapping: dict | None = None,
         entries.append(FolderEntry(name, str(p), how, ident, ident_from))
     if missing:
         more = f" and {len(missing) - 1} more" if len(missing) > 1 else ""
-        raise TablegenError(f"{folder}: no reference for table {missing[0]!r}{more} (looked for "
-                            f"{missing[0]}.csv, {missing[0]}.txt" + (f" and the sidecar {side_path.name}"
-                                                                    if side_path else "")
-                            + "); name its file in a --map file, or leave it out with --table")
+        raise DataError(f"{folder}: no reference for table {missing[0]!r}{more} (looked for "
+                        f"{missing[0]}.csv, {missing[0]}.txt" + (f" and the sidecar {side_path.name}"
+                                                                if side_path else "")
+                        + "); name its file in a --map file, or leave it out with --table")
     used = {Path(e.path).name for e in entries}
     unmatched = sorted(n for n in set(listed.values()) if n not in used)
     if side is None:

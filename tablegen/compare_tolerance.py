@@ -19,7 +19,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .compare_keys import ALIGNABLE, CHANGE_FLOOR_MOLAR, CHANGE_KEYS, CHANGE_REL, DEFAULT_REL
-from .errors import TablegenError, UnitError
+from .errors import InputError, NameLookupError, RangeError, UnitError
 from .units import unit
 
 #: Largest relative tolerance accepted without ``allow_wide``: 20 % is several times
@@ -97,12 +97,12 @@ def parse_tolerance(text: str, ref_units: dict, flag: str = "--tolerance") -> tu
     fit the column, a negative value or two parts of one kind.
     """
     if "=" not in text:
-        raise TablegenError(f"{flag} {text!r}: write COLUMN=VALUE% or COLUMN=VALUE UNIT, "
-                            f"e.g. cp=0.1% or h=0.5kJ/kg")
+        raise InputError(f"{flag} {text!r}: write COLUMN=VALUE% or COLUMN=VALUE UNIT, "
+                         f"e.g. cp=0.1% or h=0.5kJ/kg")
     key, val = (x.strip() for x in text.split("=", 1))
     if key not in ref_units:
-        raise TablegenError(f"{flag} {text!r}: column {key!r} is not compared; "
-                            f"compared columns: {', '.join(ref_units)}")
+        raise NameLookupError(f"{flag} {text!r}: column {key!r} is not compared; "
+                              f"compared columns: {', '.join(ref_units)}")
     units = ref_units[key] if isinstance(ref_units[key], tuple) else (ref_units[key],)
     rel, abs_si = 0.0, 0.0
     parts = val.split("+") if val else [""]
@@ -116,52 +116,52 @@ def parse_tolerance(text: str, ref_units: dict, flag: str = "--tolerance") -> tu
     for part in merged:
         m = _TOL_PART.match(part)
         if not m or not part.strip():
-            raise TablegenError(f"{flag} {text!r}: {part.strip()!r} is not a number; "
-                                f"write e.g. {key}=0.1% or {key}=0.5{_unit_example(units[0])} "
-                                f"or {key}=0.1%+0.5{_unit_example(units[0])}")
+            raise InputError(f"{flag} {text!r}: {part.strip()!r} is not a number; "
+                             f"write e.g. {key}=0.1% or {key}=0.5{_unit_example(units[0])} "
+                             f"or {key}=0.1%+0.5{_unit_example(units[0])}")
         num, pct, sym = m.group(1), m.group(2), m.group(3)
         v = float(num)
         if not (math.isfinite(v) and v >= 0):
-            raise TablegenError(f"{flag} {text!r}: tolerances must be numbers >= 0")
+            raise RangeError(f"{flag} {text!r}: tolerances must be numbers >= 0")
         if not pct and not sym:
             whole = text.strip() if len(merged) == 1 else f"{text.strip()} ({num!r})"
-            raise TablegenError(f"{flag} {whole}: a bare number could be relative or absolute; "
-                                f"give a unit or %: {num}% or {num}{_unit_example(units[0])}")
+            raise UnitError(f"{flag} {whole}: a bare number could be relative or absolute; "
+                            f"give a unit or %: {num}% or {num}{_unit_example(units[0])}")
         if pct:
             if sym or seen_rel:
-                raise TablegenError(f"{flag} {text!r}: write one relative part, e.g. {key}=0.1%")
+                raise InputError(f"{flag} {text!r}: write one relative part, e.g. {key}=0.1%")
             if v > MAX_RELATIVE_PERCENT:
-                raise TablegenError(f"{flag} {text!r}: a relative tolerance is at most {MAX_RELATIVE_PERCENT:g} %")
+                raise RangeError(f"{flag} {text!r}: a relative tolerance is at most {MAX_RELATIVE_PERCENT:g} %")
             rel, seen_rel = v / 100.0, True
             continue
         if seen_abs:
-            raise TablegenError(f"{flag} {text!r}: write one absolute part, "
-                                f"e.g. {key}=0.1%+0.5{_unit_example(units[0])}")
+            raise InputError(f"{flag} {text!r}: write one absolute part, "
+                             f"e.g. {key}=0.1%+0.5{_unit_example(units[0])}")
         try:
             u = unit(sym, units[0].dimension)
         except UnitError as e:
-            raise TablegenError(f"{flag} {text!r}: {e}") from None
+            raise UnitError(f"{flag} {text!r}: {e}") from None
         abs_si, seen_abs = v * u.factor, True
         if not abs_si <= MAX_ABSOLUTE_SI:
-            raise TablegenError(f"{flag} {text!r}: an absolute tolerance is at most "
-                                f"{MAX_ABSOLUTE_SI / u.factor:.3g} {u.symbol} ({MAX_ABSOLUTE_SI:g} in SI units)")
+            raise RangeError(f"{flag} {text!r}: an absolute tolerance is at most "
+                             f"{MAX_ABSOLUTE_SI / u.factor:.3g} {u.symbol} ({MAX_ABSOLUTE_SI:g} in SI units)")
     return key, Tolerance(rel, abs_si, val, "--tolerance")
 
 
 def parse_align(text: str, keys) -> tuple[str, str]:
     """'h=offset', 'Pr=scale' -> (key, kind); checked against the compared keys."""
     if "=" not in text:
-        raise TablegenError(f"--align {text!r}: write COLUMN=offset or COLUMN=scale, e.g. h=offset or Pr=scale")
+        raise InputError(f"--align {text!r}: write COLUMN=offset or COLUMN=scale, e.g. h=offset or Pr=scale")
     key, kind = (x.strip() for x in text.split("=", 1))
     if key not in keys:
-        raise TablegenError(f"--align {text!r}: column {key!r} is not compared; compared columns: {', '.join(keys)}")
+        raise NameLookupError(f"--align {text!r}: column {key!r} is not compared; compared columns: {', '.join(keys)}")
     if key not in ALIGNABLE:
         allowed = ", ".join(f"{k}={v}" for k, v in ALIGNABLE.items())
-        raise TablegenError(f"--align {text!r}: {key} cannot be aligned (a datum does not shift it by a constant); "
-                            f"allowed: {allowed}")
+        raise InputError(f"--align {text!r}: {key} cannot be aligned (a datum does not shift it by a constant); "
+                         f"allowed: {allowed}")
     if kind != ALIGNABLE[key]:
-        raise TablegenError(f"--align {text!r}: {key} aligns by {ALIGNABLE[key]}, not {kind!r}; "
-                            f"write {key}={ALIGNABLE[key]}")
+        raise InputError(f"--align {text!r}: {key} aligns by {ALIGNABLE[key]}, not {kind!r}; "
+                         f"write {key}={ALIGNABLE[key]}")
     return key, kind
 
 

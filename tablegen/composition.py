@@ -33,7 +33,7 @@ import re
 from dataclasses import dataclass
 from decimal import Decimal, InvalidOperation
 
-from .errors import TablegenError
+from .errors import InputError, NameLookupError, RangeError
 
 #: Fractions (or percentages / 100) that sum to 1 within this are accepted and
 #: normalised; others are refused. Also used by tablegen.thermo.build.
@@ -103,39 +103,39 @@ def parse(text: str, what: str = "composition", *, uncertainty: bool = False) ->
     """
     t = str(text).strip()
     if not t:
-        raise TablegenError(f"{what} is empty; give NAME=fraction pairs, e.g. CH4=0.9,N2=0.1")
+        raise InputError(f"{what} is empty; give NAME=fraction pairs, e.g. CH4=0.9,N2=0.1")
     fix = colon_form_fix(t)
     if fix is not None:
-        raise TablegenError(f"{what} {t!r} uses ':' between name and fraction; write {fix}")
+        raise InputError(f"{what} {t!r} uses ':' between name and fraction; write {fix}")
     head, colon, rest = t.partition(":")
     if colon and head.strip().lower() in BASES and "=" in rest:
-        raise TablegenError(f"{what} {t!r}: the basis is written {BASIS_KEY}={head.strip().lower()} as the "
-                            f"first part; write {BASIS_KEY}={head.strip().lower()},{rest.strip()}")
+        raise InputError(f"{what} {t!r}: the basis is written {BASIS_KEY}={head.strip().lower()} as the "
+                         f"first part; write {BASIS_KEY}={head.strip().lower()},{rest.strip()}")
     if colon:
-        raise TablegenError(f"{what} {t!r}: ':' has no place in a composition; write NAME=fraction pairs "
-                            f"separated by commas, e.g. CH4=0.9,N2=0.1 (mass fractions: basis=mass,CH4=0.8,N2=0.2)")
+        raise InputError(f"{what} {t!r}: ':' has no place in a composition; write NAME=fraction pairs "
+                         f"separated by commas, e.g. CH4=0.9,N2=0.1 (mass fractions: basis=mass,CH4=0.8,N2=0.2)")
     pairs = split_pairs(t, what)
     basis = "mole"
     if pairs and pairs[0][0].lower() == BASIS_KEY:
         basis = pairs[0][1].strip().lower()
         if basis not in BASES:
-            raise TablegenError(f"{what} {t!r}: basis {pairs[0][1]!r} is not known; allowed: basis=mole, basis=mass")
+            raise NameLookupError(f"{what} {t!r}: basis {pairs[0][1]!r} is not known; allowed: basis=mole, basis=mass")
         pairs = pairs[1:]
     if not pairs:
-        raise TablegenError(f"{what} {t!r}: no components; give NAME=fraction pairs, e.g. CH4=0.9,N2=0.1")
+        raise InputError(f"{what} {t!r}: no components; give NAME=fraction pairs, e.g. CH4=0.9,N2=0.1")
     for k, _ in pairs:
         if k.lower() == BASIS_KEY:
-            raise TablegenError(f"{what} {t!r}: the basis comes first, e.g. basis=mass,CH4=0.8,N2=0.2")
+            raise InputError(f"{what} {t!r}: the basis comes first, e.g. basis=mass,CH4=0.8,N2=0.2")
     pairs, unc_text = _split_uncertainty(pairs, t, what, uncertainty)
     with_pct = [v.endswith("%") for _, v in pairs]
     if any(with_pct) and not all(with_pct):
         bare = next(k for (k, _), p in zip(pairs, with_pct) if not p)
-        raise TablegenError(f"{what} {t!r}: give every part in % or none; {bare} has no '%'")
+        raise InputError(f"{what} {t!r}: give every part in % or none; {bare} has no '%'")
     percent = all(with_pct)
     fr: dict = {}
     for k, v in pairs:
         if k in fr:
-            raise TablegenError(f"{what} {t!r}: {k!r} is given twice")
+            raise InputError(f"{what} {t!r}: {k!r} is given twice")
         fr[k] = _amount(v[:-1] if percent else v, percent, k, t, what)
     unc = {}
     for k, u in unc_text.items():
@@ -148,20 +148,20 @@ def parse(text: str, what: str = "composition", *, uncertainty: bool = False) ->
                     form = f"{k}={a}±{float(u[:-1]) / 100:g}"
                 except ValueError:
                     form = f"{k}={a}±0.005"
-            raise TablegenError(f"{what} {t!r}: the uncertainty of {k} is written as its amount is "
-                                f"({'with' if percent else 'without'} '%'); write {form}")
+            raise InputError(f"{what} {t!r}: the uncertainty of {k} is written as its amount is "
+                             f"({'with' if percent else 'without'} '%'); write {form}")
         unc[k] = _amount(u[:-1] if percent else u, percent, f"the uncertainty of {k}", t, what)
     total = sum(fr.values())
     as_percent = ",".join(f"{k}={v}%" for k, v in pairs)
     if not percent and abs(total - 100.0) <= 100.0 * SUM_TOLERANCE:
-        raise TablegenError(f"{what} {t!r}: the fractions sum to 100; a percentage carries its sign: "
-                            f"write {as_percent}")
+        raise InputError(f"{what} {t!r}: the fractions sum to 100; a percentage carries its sign: "
+                         f"write {as_percent}")
     if abs(total - 1.0) > SUM_TOLERANCE:
         given = f"{total * 100:.9g} %" if percent else f"{total:.9g}"
         want = "100 %" if percent else "1"
         hint = f" (percentages carry the sign: {as_percent})" if not percent and total > 1.5 else ""
-        raise TablegenError(f"{what} {t!r}: the parts sum to {given}; they must sum to {want} "
-                            f"within {SUM_TOLERANCE:g} (relative){hint}")
+        raise InputError(f"{what} {t!r}: the parts sum to {given}; they must sum to {want} "
+                         f"within {SUM_TOLERANCE:g} (relative){hint}")
     return Composition(fractions=fr, basis=basis, percent=percent, text=t, uncertainty=unc)
 
 
@@ -174,13 +174,13 @@ def _split_uncertainty(pairs, t: str, what: str, allowed: bool):
             out.append((k, v))
             continue
         if not allowed:
-            raise TablegenError(f"{what} {t!r}: '±' (an uncertainty) is read only in fuel analyses "
-                                f"(combust --fuel, a spec's fuel, flue@ names); remove ±{v.split(sep, 1)[1].strip()} "
-                                f"from {k} (a mixture in a spec states it as fraction_uncertainty)")
+            raise InputError(f"{what} {t!r}: '±' (an uncertainty) is read only in fuel analyses "
+                             f"(combust --fuel, a spec's fuel, flue@ names); remove ±{v.split(sep, 1)[1].strip()} "
+                             f"from {k} (a mixture in a spec states it as fraction_uncertainty)")
         a, _, u = (x.strip() for x in v.partition(sep))
         if not a or not u or any(m in u for m in PLUS_MINUS):
-            raise TablegenError(f"{what} {t!r}: {k}={v} is not NAME=amount±uncertainty; write e.g. "
-                                f"CH4=87%±0.5% or CH4=0.87±0.005")
+            raise InputError(f"{what} {t!r}: {k}={v} is not NAME=amount±uncertainty; write e.g. "
+                             f"CH4=87%±0.5% or CH4=0.87±0.005")
         out.append((k, a))
         unc[k] = u
     return out, unc
@@ -194,27 +194,27 @@ def split_pairs(text: str, what: str = "composition") -> list[tuple[str, str]]:
     """
     pieces = text.split("=")
     if len(pieces) < 2:
-        raise TablegenError(f"{what} {text!r}: each part is NAME=fraction, e.g. CH4=0.9,N2=0.1")
+        raise InputError(f"{what} {text!r}: each part is NAME=fraction, e.g. CH4=0.9,N2=0.1")
     names, values = [pieces[0]], []
     for mid in pieces[1:-1]:
         value, sep, name = mid.partition(",")
         if not sep:
-            raise TablegenError(f"{what} {text!r}: parts are separated by commas, e.g. CH4=0.9,N2=0.1")
+            raise InputError(f"{what} {text!r}: parts are separated by commas, e.g. CH4=0.9,N2=0.1")
         values.append(value)
         names.append(name)
     last = pieces[-1]
     if "," in last:
         value, _, rest = last.partition(",")
-        raise TablegenError(f"{what} {text!r}: {rest.strip()!r} has no '=' and no value; "
-                            f"each part is NAME=fraction, e.g. CH4=0.9,N2=0.1")
+        raise InputError(f"{what} {text!r}: {rest.strip()!r} has no '=' and no value; "
+                         f"each part is NAME=fraction, e.g. CH4=0.9,N2=0.1")
     values.append(last)
     out = []
     for n, v in zip(names, values):
         n, v = n.strip(), v.strip()
         if not n:
-            raise TablegenError(f"{what} {text!r}: a part has no name before '='; write NAME=fraction")
+            raise InputError(f"{what} {text!r}: a part has no name before '='; write NAME=fraction")
         if not v:
-            raise TablegenError(f"{what} {text!r}: {n!r} has no value after '='; write {n}=fraction")
+            raise InputError(f"{what} {text!r}: {n!r} has no value after '='; write {n}=fraction")
         out.append((n, v))
     return out
 
@@ -222,16 +222,16 @@ def split_pairs(text: str, what: str = "composition") -> list[tuple[str, str]]:
 def _amount(v: str, percent: bool, name: str, text: str, what: str) -> float:
     s = v.strip()
     if not _NUMBER.match(s):
-        raise TablegenError(f"{what} {text!r}: the amount of {name}, {v!r}, is not a number; "
-                            f"write e.g. {name}=0.9 or {name}=90%")
+        raise InputError(f"{what} {text!r}: the amount of {name}, {v!r}, is not a number; "
+                         f"write e.g. {name}=0.9 or {name}=90%")
     try:
         d = Decimal(s)
     except InvalidOperation:                       # pragma: no cover (the pattern above is stricter)
-        raise TablegenError(f"{what} {text!r}: the amount of {name}, {v!r}, is not a number") from None
+        raise InputError(f"{what} {text!r}: the amount of {name}, {v!r}, is not a number") from None
     x = float(d.scaleb(-2)) if percent else float(d)   # moving the point is exact
     if not math.isfinite(x) or x < 0:
-        raise TablegenError(f"{what} {text!r}: the amount of {name} is {v}{'%' if percent else ''}; "
-                            f"amounts must be finite and >= 0")
+        raise RangeError(f"{what} {text!r}: the amount of {name} is {v}{'%' if percent else ''}; "
+                         f"amounts must be finite and >= 0")
     return x
 
 

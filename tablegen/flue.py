@@ -15,7 +15,7 @@ from functools import lru_cache
 
 from .burn import CAUTIONS, combustion, measured_o2
 from .composition import colon_form_fix, write as write_composition
-from .errors import NameLookupError, SpecError, TablegenError
+from .errors import InputError, NameLookupError, RangeError, SpecError, TablegenError
 from .fuels import check_texts, fuel_from_table, fuel_from_text
 from .oxidants import oxidant_colon_fix, oxidant_from_table
 from .reactants import P_NORMAL, _fractions, _num, _record, read_quantities
@@ -98,13 +98,13 @@ def _conditions(table: dict, where: str) -> dict:
         if "reference_temperature" in table:
             ref = str(table["reference_temperature"]).replace(" ", "").replace("°", "")
             if ref not in REFERENCE_CHOICES:
-                raise TablegenError(f"{where}.reference_temperature {table['reference_temperature']!r} is not "
-                                    f"allowed; allowed: 25C, 20C, 15.55C (60F), 15C, 0C (ISO 6976)")
+                raise RangeError(f"{where}.reference_temperature {table['reference_temperature']!r} is not "
+                                 f"allowed; allowed: 25C, 20C, 15.55C (60F), 15C, 0C (ISO 6976)")
             out["T_ref_K"] = REFERENCE_CHOICES[ref]
         if "metering" in table:
             parts = str(table["metering"]).split(",")
             if len(parts) != 2:
-                raise TablegenError(f"{where}.metering {table['metering']!r}: give T,P, e.g. \"15C,101.325kPa\"")
+                raise InputError(f"{where}.metering {table['metering']!r}: give T,P, e.g. \"15C,101.325kPa\"")
             out["T_meter_K"] = temperature_K(parts[0], f"{where}.metering temperature")
             out["P_meter_Pa"] = pressure_Pa(parts[1], f"{where}.metering pressure")
     except SpecError:
@@ -131,15 +131,15 @@ def flue_gas_from_analysis(composition: dict, basis: str = "volume-dry", *, wate
     """
     from .thermo.build import mixture_substance
     if basis not in ("volume-dry", "volume-wet"):
-        raise TablegenError(f"{what}: basis {basis!r} is not known; allowed: volume-dry, volume-wet")
+        raise NameLookupError(f"{what}: basis {basis!r} is not known; allowed: volume-dry, volume-wet")
     y, _ = _fractions(composition, what, normalise_loose=normalise)
     wp = _num(water_percent, f"{what}: water_percent", lo=0.0, hi=100.0)
     if wp and basis != "volume-dry":
-        raise TablegenError(f"{what}: water_percent is only for basis = \"volume-dry\"")
+        raise InputError(f"{what}: water_percent is only for basis = \"volume-dry\"")
     recs = [(_record(k, data, source, what=f"{what}.{k}"), v) for k, v in y.items()]
     if basis == "volume-dry":
         if any(r.id == "H2O" for r, _ in recs):
-            raise TablegenError(f"{what}: a dry analysis cannot list H2O; give it as water_percent")
+            raise InputError(f"{what}: a dry analysis cannot list H2O; give it as water_percent")
         recs = [(r, v * (1 - wp / 100)) for r, v in recs]
         if wp:
             recs.append((_record("H2O", data, source), wp / 100))

@@ -13,7 +13,7 @@ from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 from .composition import looks_like as is_composition, parse as parse_composition, write as write_composition
-from .errors import SpecError, TablegenError
+from .errors import InputError, NameLookupError, RangeError, SpecError, TablegenError, UnitError
 from .reactants import BURNING, NOBLE, _M_H2O, _fractions, _h_molar, _num, _qty, _record, _weights, check_table
 from .thermo.substance import T_REF
 
@@ -92,26 +92,26 @@ def check_uncertainty(unc, fractions: dict, what: str, *, percent: bool = False)
     out = {}
     for k, u in (unc or {}).items():
         if k not in fractions:
-            raise TablegenError(f"{what}: uncertainty of {k!r}, which is not a part of the analysis; allowed: "
-                                f"{', '.join(fractions)}")
+            raise NameLookupError(f"{what}: uncertainty of {k!r}, which is not a part of the analysis; allowed: "
+                                  f"{', '.join(fractions)}")
         if isinstance(u, str):
             t = u.strip()
             if not t.endswith("%"):
-                raise TablegenError(f"{what}: uncertainty of {k} {u!r} needs its '%' (e.g. \"0.5%\") or is "
-                                    f"a number (a fraction)")
+                raise UnitError(f"{what}: uncertainty of {k} {u!r} needs its '%' (e.g. \"0.5%\") or is "
+                                f"a number (a fraction)")
             x = _num(t[:-1], f"{what}: uncertainty of {k} (%)") / 100.0
         else:
             if percent:
-                raise TablegenError(f"{what}: the analysis is in percent, so the uncertainty of {k} is too; "
-                                    f"write \"{_num(u, 'U'):g}%\"")
+                raise UnitError(f"{what}: the analysis is in percent, so the uncertainty of {k} is too; "
+                                f"write \"{_num(u, 'U'):g}%\"")
             x = _num(u, f"{what}: uncertainty of {k}")
         if x < 0:
-            raise TablegenError(f"{what}: uncertainty of {k} is negative ({x:g}); allowed: U >= 0")
+            raise RangeError(f"{what}: uncertainty of {k} is negative ({x:g}); allowed: U >= 0")
         if x > fractions[k] * (1 + 1e-12):
             f = fractions[k]
-            raise TablegenError(f"{what}: the uncertainty of {k} (±{x * 100:g} %) makes its fraction negative "
-                                f"({f * 100:g} % - {x * 100:g} % < 0); allowed: U <= the fraction "
-                                f"({f * 100:g} %)")
+            raise RangeError(f"{what}: the uncertainty of {k} (±{x * 100:g} %) makes its fraction negative "
+                             f"({f * 100:g} % - {x * 100:g} % < 0); allowed: U <= the fraction "
+                             f"({f * 100:g} %)")
         if x > 0:
             out[k] = x
     return out
@@ -138,7 +138,7 @@ def gas_fuel(composition: dict, basis: str = "mole", *, water_percent: float = 0
     """
     bases = ("mole", "mass", "volume-dry", "volume-wet")
     if basis not in bases:
-        raise TablegenError(f"{what}.basis {basis!r} is not known; allowed: {', '.join(bases)}")
+        raise NameLookupError(f"{what}.basis {basis!r} is not known; allowed: {', '.join(bases)}")
     fr, pct = _fractions(composition, f"{what}.composition", normalise_loose=normalise)
     unc = check_uncertainty(uncertainty, fr, f"{what}")
     given = _given(composition, fr, basis, pct, normalise, water_percent=float(water_percent or 0.0))
@@ -148,11 +148,11 @@ def gas_fuel(composition: dict, basis: str = "mole", *, water_percent: float = 0
     for k in fr:
         rec = _record(k, data, source, what=f"{what}.composition.{k}")
         if rec.id in recs:
-            raise TablegenError(f"{what}.composition: species {rec.id!r} is given twice")
+            raise InputError(f"{what}.composition: species {rec.id!r} is given twice")
         bad = [e for e in rec.elements if e not in BURNING + NOBLE]
         if bad:
-            raise TablegenError(f"{what}.composition.{k}: element {bad[0]} is not handled; fuel "
-                                f"species may contain only {', '.join(BURNING + NOBLE)}")
+            raise InputError(f"{what}.composition.{k}: element {bad[0]} is not handled; fuel "
+                             f"species may contain only {', '.join(BURNING + NOBLE)}")
         recs[rec.id] = (rec, fr[k])
     if basis == "mass":
         n = {sid: w / r.M for sid, (r, w) in recs.items()}
@@ -164,10 +164,10 @@ def gas_fuel(composition: dict, basis: str = "mole", *, water_percent: float = 0
     wp = _num(water_percent, f"{what}.water_percent", lo=0.0, hi=100.0)
     if wp > 0:
         if basis != "volume-dry":
-            raise TablegenError(f"{what}.water_percent is only for basis = \"volume-dry\"; "
-                                f"with other bases list H2O in the composition")
+            raise InputError(f"{what}.water_percent is only for basis = \"volume-dry\"; "
+                             f"with other bases list H2O in the composition")
         if "H2O" in y:
-            raise TablegenError(f"{what}: a dry analysis cannot list H2O; give the water as water_percent")
+            raise InputError(f"{what}: a dry analysis cannot list H2O; give the water as water_percent")
         yw = wp / 100.0
         y = {k: v * (1 - yw) for k, v in y.items()}
         y["H2O"] = yw
@@ -175,7 +175,7 @@ def gas_fuel(composition: dict, basis: str = "mole", *, water_percent: float = 0
         notes.append(f"dry analysis converted to wet gas with {wp:g} % by volume H2O")
     y = {k: v for k, v in y.items() if v > 0}
     if not y:
-        raise TablegenError(f"{what}: every fraction is zero")
+        raise InputError(f"{what}: every fraction is zero")
     M = sum(v * recs[k][0].M for k, v in y.items())
     el: dict = {}
     for sid, v in y.items():
@@ -204,13 +204,13 @@ def parse_formula(text: str, what: str = "formula") -> dict:
     """'C12H23' or 'CH1.8O0.5N0.01' -> {element: count}; only C, H, O, N, S."""
     t = str(text).strip()
     if not t or "".join(m.group(0) for m in _FORMULA.finditer(t)) != t:
-        raise TablegenError(f"{what} {text!r} is not a formula; write e.g. C12H23 or CH1.8O0.5 "
-                            f"(elements {', '.join(BURNING)})")
+        raise InputError(f"{what} {text!r} is not a formula; write e.g. C12H23 or CH1.8O0.5 "
+                         f"(elements {', '.join(BURNING)})")
     out: dict = {}
     for m in _FORMULA.finditer(t):
         e, n = m.group(1), float(m.group(2)) if m.group(2) else 1.0
         if e not in BURNING:
-            raise TablegenError(f"{what} {text!r}: element {e} is not handled; allowed: {', '.join(BURNING)}")
+            raise InputError(f"{what} {text!r}: element {e} is not handled; allowed: {', '.join(BURNING)}")
         out[e] = out.get(e, 0.0) + n
     return out
 
@@ -225,21 +225,21 @@ def _convert_analysis(an: dict, basis: str, moisture, ash, what: str) -> dict:
     an = {k: _num(v, f"{what}.analysis.{k}", lo=0.0, hi=1.0) for k, v in an.items()}
     for k in an:
         if k not in ANALYSIS_KEYS:
-            raise TablegenError(f"{what}.analysis.{k} is not known; allowed: {', '.join(ANALYSIS_KEYS)} "
-                                f"(mass fractions)")
+            raise NameLookupError(f"{what}.analysis.{k} is not known; allowed: {', '.join(ANALYSIS_KEYS)} "
+                                  f"(mass fractions)")
     organic = {k: an.get(k, 0.0) for k in BURNING}
     if basis == "as-received":
         if moisture is not None or ash is not None:
-            raise TablegenError(f"{what}: on the as-received basis give moisture and ash inside the analysis")
+            raise InputError(f"{what}: on the as-received basis give moisture and ash inside the analysis")
         M, A = an.get("moisture", 0.0), an.get("ash", 0.0)
         total = sum(organic.values()) + M + A
         ar = {**organic, "moisture": M, "ash": A}
     elif basis == "dry":
         if "moisture" in an:
-            raise TablegenError(f"{what}: a dry analysis has no moisture; give the as-received moisture "
-                                f"as {what}.moisture")
+            raise InputError(f"{what}: a dry analysis has no moisture; give the as-received moisture "
+                             f"as {what}.moisture")
         if ash is not None:
-            raise TablegenError(f"{what}: on the dry basis give ash inside the analysis")
+            raise InputError(f"{what}: on the dry basis give ash inside the analysis")
         A_d = an.get("ash", 0.0)
         total = sum(organic.values()) + A_d
         M = _num(moisture or 0.0, f"{what}.moisture", lo=0.0, hi=0.99)
@@ -247,8 +247,8 @@ def _convert_analysis(an: dict, basis: str, moisture, ash, what: str) -> dict:
         ar.update(moisture=M, ash=A_d * (1 - M))
     else:
         if "moisture" in an or "ash" in an:
-            raise TablegenError(f"{what}: a daf analysis has no moisture or ash; give the as-received "
-                                f"moisture as {what}.moisture and the dry-basis ash as {what}.ash")
+            raise InputError(f"{what}: a daf analysis has no moisture or ash; give the as-received "
+                             f"moisture as {what}.moisture and the dry-basis ash as {what}.ash")
         total = sum(organic.values())
         M = _num(moisture or 0.0, f"{what}.moisture", lo=0.0, hi=0.99)
         A_d = _num(ash or 0.0, f"{what}.ash", lo=0.0, hi=0.99)
@@ -256,14 +256,14 @@ def _convert_analysis(an: dict, basis: str, moisture, ash, what: str) -> dict:
         ar = {k: v * f for k, v in organic.items()}
         ar.update(moisture=M, ash=A_d * (1 - M))
     if abs(total - 1.0) > 1e-3:
-        raise TablegenError(f"{what}.analysis ({basis}) sums to {total:.6g}; mass fractions on that "
-                            f"basis must sum to 1 within 0.001")
+        raise InputError(f"{what}.analysis ({basis}) sums to {total:.6g}; mass fractions on that "
+                         f"basis must sum to 1 within 0.001")
     s = sum(ar.values())
     ar = {k: v / s for k, v in ar.items()}
     dry = {k: v / (1 - ar["moisture"]) for k, v in ar.items() if k != "moisture"}
     daf_tot = sum(ar[k] for k in BURNING)
     if daf_tot <= 0:
-        raise TablegenError(f"{what}.analysis has no C, H, O, N or S: nothing to burn")
+        raise InputError(f"{what}.analysis has no C, H, O, N or S: nothing to burn")
     daf = {k: ar[k] / daf_tot for k in BURNING}
     return {"as-received": ar, "dry": dry, "daf": daf}
 
@@ -316,37 +316,37 @@ def condensed_fuel(*, formula=None, basis="as-received", analysis=None,
     M_formula = None
     if formula is not None:
         if analysis is not None:
-            raise TablegenError(f"{what}: give a formula or an analysis, not both")
+            raise InputError(f"{what}: give a formula or an analysis, not both")
         counts = parse_formula(formula, f"{what}.formula")
         M_formula = sum(W[e] * n for e, n in counts.items())
         mass = {e: W[e] * n / M_formula for e, n in counts.items()}
         if moisture or ash:
-            raise TablegenError(f"{what}: a formula fuel has no moisture or ash; use an analysis for those")
+            raise InputError(f"{what}: a formula fuel has no moisture or ash; use an analysis for those")
         bases = {"as-received": {**{k: mass.get(k, 0.0) for k in BURNING}, "moisture": 0.0, "ash": 0.0}}
         basis = "as-received"
         kind = "formula"
     else:
         if not isinstance(analysis, dict):
-            raise TablegenError(f"{what}: give composition (gas species), analysis (mass fractions of "
-                                f"C, H, O, N, S, moisture, ash) or formula")
+            raise InputError(f"{what}: give composition (gas species), analysis (mass fractions of "
+                             f"C, H, O, N, S, moisture, ash) or formula")
         if basis not in ANALYSIS_BASES:
-            raise TablegenError(f"{what}.basis {basis!r} is not known for an analysis; allowed: "
-                                f"{', '.join(ANALYSIS_BASES)}")
+            raise NameLookupError(f"{what}.basis {basis!r} is not known for an analysis; allowed: "
+                                  f"{', '.join(ANALYSIS_BASES)}")
         bases = _convert_analysis(analysis, basis, moisture, ash, what)
         kind = "analysis"
     ar = bases["as-received"]
     el = {e: ar.get(e, 0.0) / (W[e] * 1e-3) for e in BURNING if ar.get(e, 0.0) > 0}
     mw = ar["moisture"] / (_M_H2O() * 1e-3)
     if _oxygen_need(el) <= 0:
-        raise TablegenError(f"{what}: the fuel needs no oxygen (it holds as much O as its C, H and S "
-                            f"can take): nothing to burn")
+        raise InputError(f"{what}: the fuel needs no oxygen (it holds as much O as its C, H and S "
+                         f"can take): nothing to burn")
     # mass of the basis-b material per kg as fired, and its water per kg of basis material
     per_kg_ar = {"as-received": 1.0, "dry": 1 - ar["moisture"], "daf": sum(ar[k] for k in BURNING)}[basis]
     given = [k for k, v in (("hhv", hhv), ("lhv", lhv), ("h_formation", h_formation)) if v is not None]
     if len(given) != 1:
-        raise TablegenError(f"{what}: a fuel given by {'formula' if formula else 'analysis'} needs exactly one "
-                            f"of hhv, lhv or h_formation (its enthalpy is not in the data); got "
-                            f"{', '.join(given) or 'none'}")
+        raise InputError(f"{what}: a fuel given by {'formula' if formula else 'analysis'} needs exactly one "
+                         f"of hhv, lhv or h_formation (its enthalpy is not in the data); got "
+                         f"{', '.join(given) or 'none'}")
     T_hv = float(hv_T_ref)
     prod = _products_of_fuel_per_kg(el, mw)
     o2 = _oxygen_need(el)
@@ -368,7 +368,7 @@ def condensed_fuel(*, formula=None, basis="as-received", analysis=None,
             hhv_b = float(lhv) + dh_vap * water_b * _M_H2O() * 1e-3
             hhv_ar = hhv_b * per_kg_ar
         if hhv_ar <= 0:
-            raise TablegenError(f"{what}: the heating value must be positive")
+            raise RangeError(f"{what}: the heating value must be positive")
         h_ref = hhv_ar + hp_liq - o2 * h_o2          # HHV = h_fuel + n_O2 h_O2 - Σ n h(products, liquid water)
         notes.append(f"fuel enthalpy derived from the given {given[0].upper()} "
                      f"(per kg{'' if kind == 'formula' else ' ' + basis}) at {T_hv:g} K")
@@ -412,8 +412,8 @@ def _table_uncertainty(t: dict, part: str, where: str):
         return None
     unc = t["uncertainty"]
     if not isinstance(unc, dict) or not unc:
-        raise TablegenError(f"{where}.uncertainty must be a table of parts and their expanded uncertainty "
-                            f"(k = 2), e.g. {{CH4 = \"0.5%\"}}")
+        raise InputError(f"{where}.uncertainty must be a table of parts and their expanded uncertainty "
+                         f"(k = 2), e.g. {{CH4 = \"0.5%\"}}")
     raw = t.get(part) or {}
     try:
         total = sum(float(v) for v in raw.values())
@@ -422,8 +422,8 @@ def _table_uncertainty(t: dict, part: str, where: str):
     if abs(total - 100.0) <= 1.0:
         for k, u in unc.items():
             if not isinstance(u, str):
-                raise TablegenError(f"{where}.uncertainty.{k}: the {part} is in percent, so is its "
-                                    f"uncertainty; write \"{u}%\"")
+                raise UnitError(f"{where}.uncertainty.{k}: the {part} is in percent, so is its "
+                                f"uncertainty; write \"{u}%\"")
     return unc
 
 
@@ -449,14 +449,14 @@ def fuel_from_table(t: dict, where: str = "fuel", *, data=(), source=None) -> Fu
         if "composition" in t:
             for k in ("analysis", "formula", "hhv", "lhv", "h_formation", "cp"):
                 if k in t:
-                    raise TablegenError(f"{where}.{k}: a gas fuel by composition takes its enthalpy "
-                                        f"from the species data; remove {k}")
+                    raise InputError(f"{where}.{k}: a gas fuel by composition takes its enthalpy "
+                                     f"from the species data; remove {k}")
             return gas_fuel(t["composition"], t.get("basis", "mole"), water_percent=t.get("water_percent", 0.0),
                             name=t.get("name"), id=t.get("id"), data=data, source=source, what=where,
                             normalise=bool(t.get("normalise", False)),
                             uncertainty=_table_uncertainty(t, "composition", where))
         if "water_percent" in t or "normalise" in t:
-            raise TablegenError(f"{where}: water_percent and normalise belong to gas fuels (composition)")
+            raise InputError(f"{where}: water_percent and normalise belong to gas fuels (composition)")
         T_hv = temperature_K(str(t.get("hv_reference_temperature", "25C")),
                              f"{where}.hv_reference_temperature")
         mol = "formula" in t
@@ -471,9 +471,9 @@ def fuel_from_table(t: dict, where: str = "fuel", *, data=(), source=None) -> Fu
             kw["cp"] = _qty(t["cp"], "specific_entropy", f"{where}.cp", "kJ/(kg K)")
         phase = t.get("phase", "liquid")
         if phase not in ("liquid", "solid"):
-            raise TablegenError(f"{where}.phase {phase!r} is not known; allowed: liquid, solid")
+            raise NameLookupError(f"{where}.phase {phase!r} is not known; allowed: liquid, solid")
         if "formula" in t and "uncertainty" in t:
-            raise TablegenError(f"{where}.uncertainty: a formula has no analysis uncertainty; give an analysis")
+            raise InputError(f"{where}.uncertainty: a formula has no analysis uncertainty; give an analysis")
         return condensed_fuel(formula=t.get("formula"), analysis=t.get("analysis"),
                               basis=t.get("basis", "as-received"), moisture=t.get("moisture"),
                               ash=t.get("ash"), hv_T_ref=T_hv, phase=phase, name=t.get("name"),
@@ -490,18 +490,18 @@ def fuel_from_text(text: str, *, data=(), source=None) -> Fuel:
     tablegen.composition), a species name, or a TOML file."""
     t = str(text).strip()
     if not t:
-        raise TablegenError("fuel is empty; give a composition (CH4=0.9,N2=0.1), a species or a TOML file")
+        raise InputError("fuel is empty; give a composition (CH4=0.9,N2=0.1), a species or a TOML file")
     p = Path(t)
     if t.lower().endswith(".toml") or (p.is_file() and not is_composition(t)):
         if not p.is_file():
-            raise TablegenError(f"fuel file {t!r} does not exist")
+            raise InputError(f"fuel file {t!r} does not exist")
         from . import tomlread
         raw = tomlread.read(p, f"fuel file {t}", SpecError)
         table = raw.get("fuel", raw) if isinstance(raw.get("fuel"), dict) else raw
         f = fuel_from_table(table, f"{p.name}:fuel" if "fuel" in raw else p.name, data=data, source=source)
         return replace(f, spec=t if "@" not in t else None)
     if "@" in t:
-        raise TablegenError(f"fuel {t!r}: '@' is not allowed in a fuel text (it separates the parts of flue-gas names)")
+        raise InputError(f"fuel {t!r}: '@' is not allowed in a fuel text (it separates the parts of flue-gas names)")
     if is_composition(t):
         c = parse_composition(t, "fuel", uncertainty=True)
         f = gas_fuel(c.fractions, c.basis, id=t, data=data, source=source, uncertainty=c.uncertainty,

@@ -15,7 +15,7 @@ import re
 from dataclasses import dataclass, replace
 
 from .composition import looks_like as is_composition, parse as parse_composition, write as write_composition
-from .errors import SpecError, TablegenError
+from .errors import InputError, NameLookupError, RangeError, SpecError, TablegenError, UnitError
 from .reactants import OXIDANT_SPECIES, P_NORMAL, _M_H2O, _fractions, _g, _h_molar, _num, _record, check_table, read_quantities
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -121,7 +121,7 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
         else:
             m = shipped_mixtures().get(b)
             if m is None or m["id"] != "air":
-                raise TablegenError(f"{what}.base {base!r} is not known; allowed: air, oxygen (or give a composition)")
+                raise NameLookupError(f"{what}.base {base!r} is not known; allowed: air, oxygen (or give a composition)")
             dry, label, kind = dict(m["components"]), "air", "air"
             tot = sum(dry.values())
             dry = {k: v / tot for k, v in dry.items()}
@@ -131,19 +131,19 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
     for k in list(dry):
         rec = _record(k, data, source, what=f"{what}.composition.{k}")
         if rec.id not in OXIDANT_SPECIES or rec.id == "H2O":
-            raise TablegenError(f"{what}.composition.{k}: not an oxidant species; allowed: "
-                                f"{', '.join(s for s in OXIDANT_SPECIES if s != 'H2O')} "
-                                f"(give water as relative_humidity, humidity_ratio or dew_point)")
+            raise InputError(f"{what}.composition.{k}: not an oxidant species; allowed: "
+                             f"{', '.join(s for s in OXIDANT_SPECIES if s != 'H2O')} "
+                             f"(give water as relative_humidity, humidity_ratio or dew_point)")
         if rec.id in recs:
-            raise TablegenError(f"{what}.composition: species {rec.id!r} is given twice")
+            raise InputError(f"{what}.composition: species {rec.id!r} is given twice")
         recs[rec.id] = rec
         dry[rec.id] = dry.pop(k)
     if o2_percent is not None:
         z = _num(o2_percent, f"{what}.o2_percent", lo=0.0, hi=100.0) / 100.0
         y0 = dry.get("O2", 0.0)
         if z < y0 - 1e-12:
-            raise TablegenError(f"{what}.o2_percent = {z * 100:g} is below the O2 content of the base "
-                                f"({y0 * 100:.4g} %); enrichment adds O2: allowed {y0 * 100:.4g} to 100")
+            raise RangeError(f"{what}.o2_percent = {z * 100:g} is below the O2 content of the base "
+                             f"({y0 * 100:.4g} %); enrichment adds O2: allowed {y0 * 100:.4g} to 100")
         a = (1 - z) / (1 - y0) if y0 < 1 else 1.0   # share of base gas, rest pure O2
         dry = {k: v * a for k, v in dry.items()}
         dry["O2"] = dry.get("O2", 0.0) + (1 - a)
@@ -153,7 +153,7 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
             label = f"O2-enriched {label} ({z * 100:g} % O2, dry basis)"
         notes.append(f"enriched with pure O2 to {z * 100:g} % O2 by volume (dry)")
     if dry.get("O2", 0.0) <= 0:
-        raise TablegenError(f"{what}: contains no O2; an oxidant needs oxygen")
+        raise InputError(f"{what}: contains no O2; an oxidant needs oxygen")
     M_dry = sum(v * recs[k].M for k, v in dry.items())
     M_w = _M_H2O()
     T = None if temperature_K is None else _num(temperature_K, f"{what}.temperature (K)", lo=0.0, lo_open=True)
@@ -161,8 +161,8 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
     given = [k for k, v in (("relative_humidity", relative_humidity), ("humidity_ratio", humidity_ratio),
                             ("dew_point", dew_point_K)) if v is not None]
     if len(given) > 1:
-        raise TablegenError(f"{what}: {' and '.join(k.replace('_', ' ') for k in given)} are both given; "
-                            f"allowed: one of relative humidity (rh), humidity ratio (w) or dew point (dew)")
+        raise InputError(f"{what}: {' and '.join(k.replace('_', ' ') for k in given)} are both given; "
+                         f"allowed: one of relative humidity (rh), humidity ratio (w) or dew point (dew)")
     how = given[0] if given else "dry"
     yw, rh = 0.0, None
 
@@ -172,42 +172,42 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
     if how == "relative_humidity":
         rh = _num(relative_humidity, f"{what}: relative humidity (%)")
         if not 0.0 <= rh <= 100.0:
-            raise TablegenError(f"{at('relative_humidity', 'relative humidity')} {rh:g} % is outside 0 to 100 %; "
-                                f"allowed: 0 <= rh <= 100 %")
+            raise RangeError(f"{at('relative_humidity', 'relative humidity')} {rh:g} % is outside 0 to 100 %; "
+                             f"allowed: 0 <= rh <= 100 %")
         if T is None:
-            raise TablegenError(f"{what}: a relative humidity needs the air temperature it is stated at; "
-                                f"write e.g. air,rh={rh:g}%,T=25C")
+            raise InputError(f"{what}: a relative humidity needs the air temperature it is stated at; "
+                             f"write e.g. air,rh={rh:g}%,T=25C")
         if not T_LOW_IF97 <= T <= T_CRIT:
-            raise TablegenError(f"{what}: relative humidity is taken over liquid water between 0 °C and "
-                                f"373.946 °C; T = {_celsius(T)} is outside; give a humidity ratio (w=...) instead")
+            raise RangeError(f"{what}: relative humidity is taken over liquid water between 0 °C and "
+                             f"373.946 °C; T = {_celsius(T)} is outside; give a humidity ratio (w=...) instead")
         pw = rh / 100.0 * float(p_sat_Pa(T))
         if pw >= P:
-            raise TablegenError(f"{what}: water vapour pressure {pw:g} Pa reaches the total pressure {P:g} Pa; "
-                                f"allowed: a relative humidity whose vapour pressure stays below the pressure")
+            raise RangeError(f"{what}: water vapour pressure {pw:g} Pa reaches the total pressure {P:g} Pa; "
+                             f"allowed: a relative humidity whose vapour pressure stays below the pressure")
         yw = pw / P
     elif how == "humidity_ratio":
         w = _num(humidity_ratio, f"{what}: humidity ratio (kg/kg)")
         if w < 0:
-            raise TablegenError(f"{at('humidity_ratio', 'humidity ratio')} {w:g} kg/kg is negative; allowed: w >= 0 "
-                                f"(e.g. w=8g/kg)")
+            raise RangeError(f"{at('humidity_ratio', 'humidity ratio')} {w:g} kg/kg is negative; allowed: w >= 0 "
+                             f"(e.g. w=8g/kg)")
         if w > 10:
-            raise TablegenError(f"{at('humidity_ratio', 'humidity ratio')} {w:g} kg/kg is too large; allowed: "
-                                f"0 <= w <= 10 kg/kg")
+            raise RangeError(f"{at('humidity_ratio', 'humidity ratio')} {w:g} kg/kg is too large; allowed: "
+                             f"0 <= w <= 10 kg/kg")
         r = w * M_dry / M_w
         yw = r / (1 + r)
     elif how == "dew_point":
         Td = _num(dew_point_K, f"{what}: dew point (K)", lo=0.0, lo_open=True)
         if Td < T_LOW_IF97:
-            raise TablegenError(f"{at('dew_point', 'dew point')} {_celsius(Td)} is below 0 °C, where water deposits as ice "
-                                f"(a frost point); give the humidity ratio (w=...) instead")
+            raise RangeError(f"{at('dew_point', 'dew point')} {_celsius(Td)} is below 0 °C, where water deposits as ice "
+                             f"(a frost point); give the humidity ratio (w=...) instead")
         if T is not None and Td > T + 1e-9:
-            raise TablegenError(f"{at('dew_point', 'dew point')} {_celsius(Td)} is above the air temperature {_celsius(T)}; "
-                                f"allowed: a dew point at or below the air temperature")
+            raise RangeError(f"{at('dew_point', 'dew point')} {_celsius(Td)} is above the air temperature {_celsius(T)}; "
+                             f"allowed: a dew point at or below the air temperature")
         pw = float(p_sat_Pa(min(Td, T_CRIT)))
         if pw >= P:
-            raise TablegenError(f"{what}: a dew point of {_celsius(Td)} needs a water vapour pressure of {pw:g} Pa, "
-                                f"not below the pressure {P:g} Pa; allowed: a dew point below the boiling point "
-                                f"at that pressure")
+            raise RangeError(f"{what}: a dew point of {_celsius(Td)} needs a water vapour pressure of {pw:g} Pa, "
+                             f"not below the pressure {P:g} Pa; allowed: a dew point below the boiling point "
+                             f"at that pressure")
         yw = pw / P
     w = yw / (1 - yw) * M_w / M_dry
     if how != "dry" and T is not None and T_LOW_IF97 <= T <= T_CRIT:
@@ -216,8 +216,8 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
         if rh_T > 100.0 * (1 + 1e-9):
             y_s = min(ps / P, 1.0)
             w_max = y_s / (1 - y_s) * M_w / M_dry if y_s < 1 else float("inf")
-            raise TablegenError(f"{what}: humidity ratio {w * 1000:.4g} g/kg is above saturation at {_celsius(T)} "
-                                f"and {P / 1000:g} kPa; allowed: w <= {w_max * 1000:.4g} g/kg there")
+            raise RangeError(f"{what}: humidity ratio {w * 1000:.4g} g/kg is above saturation at {_celsius(T)} "
+                             f"and {P / 1000:g} kPa; allowed: w <= {w_max * 1000:.4g} g/kg there")
         rh = rh_T if rh is None else rh
     dew = water_dew_point_K(yw, P) if yw > 0 else None
     comp = {k: v * (1 - yw) for k, v in dry.items()}
@@ -326,16 +326,16 @@ def _oxidant_conditions(t: str, head: str, rest: str) -> dict:
         k, eq, v = (x.strip() for x in item.partition("="))
         key = k if k in OXIDANT_CONDITIONS else keys.get(k.lower())
         if not eq or key is None:
-            raise TablegenError(f"oxidant {t!r}: {item.strip()!r} is not a condition of {head}; allowed: "
-                                f"O2 (O2=30%), rh (rh=60%), w (w=8g/kg), dew (dew=5C), T (T=25C), P (P=1atm)")
+            raise NameLookupError(f"oxidant {t!r}: {item.strip()!r} is not a condition of {head}; allowed: "
+                                  f"O2 (O2=30%), rh (rh=60%), w (w=8g/kg), dew (dew=5C), T (T=25C), P (P=1atm)")
         if key in seen:
-            raise TablegenError(f"oxidant {t!r}: {key} is given twice")
+            raise InputError(f"oxidant {t!r}: {key} is given twice")
         seen.add(key)
         if key == "O2":
             kw["o2_percent"] = _o2_content(t, v)
         elif key == "rh":
             if not v.endswith("%"):
-                raise TablegenError(f"oxidant {t!r}: rh={v} is a relative humidity in %; write rh={v}%")
+                raise UnitError(f"oxidant {t!r}: rh={v} is a relative humidity in %; write rh={v}%")
             kw["relative_humidity"] = _num(v[:-1].strip(), f"oxidant {t!r}: rh (%)")
         elif key == "T":
             kw["temperature_K"] = temperature_K(v, f"oxidant {t!r}: T")
@@ -346,12 +346,12 @@ def _oxidant_conditions(t: str, head: str, rest: str) -> dict:
         else:
             m = _HUMIDITY_RATIO.match(v)
             if not m:
-                raise TablegenError(f"oxidant {t!r}: w={v} is a humidity ratio with its unit; write e.g. "
-                                    f"w=0.008kg/kg or w=8g/kg")
+                raise UnitError(f"oxidant {t!r}: w={v} is a humidity ratio with its unit; write e.g. "
+                                f"w=0.008kg/kg or w=8g/kg")
             kw["humidity_ratio"] = float(m.group(1)) * (1e-3 if m.group(2) == "g/kg" else 1.0)
     if "P" in seen and not seen & {"rh", "w", "dew"}:
-        raise TablegenError(f"oxidant {t!r}: P is the pressure of the humidity; give it with rh, w or dew, "
-                            f"e.g. {head},rh=60%,T=25C,P=1atm")
+        raise InputError(f"oxidant {t!r}: P is the pressure of the humidity; give it with rh, w or dew, "
+                         f"e.g. {head},rh=60%,T=25C,P=1atm")
     return kw
 
 
@@ -361,8 +361,8 @@ def _o2_content(t: str, v: str) -> float:
     x = _num(s, f"oxidant {t!r}: O2")
     if not v.endswith("%"):
         if x > 1:
-            raise TablegenError(f"oxidant {t!r}: O2={v} is above 1; give the O2 content as a fraction "
-                                f"(O2={x / 100:g}) or with its sign (O2={v}%)")
+            raise RangeError(f"oxidant {t!r}: O2={v} is above 1; give the O2 content as a fraction "
+                             f"(O2={x / 100:g}) or with its sign (O2={v}%)")
         x *= 100.0
     return x
 
@@ -375,23 +375,23 @@ def oxidant_from_text(text: str, *, data=(), source=None, what: str = "oxidant")
     """
     t = str(text).strip()
     if not t:
-        raise TablegenError(f"oxidant is empty; allowed: {OXIDANT_FORMS}")
+        raise InputError(f"oxidant is empty; allowed: {OXIDANT_FORMS}")
     if "@" in t:
-        raise TablegenError(f"oxidant {t!r}: '@' is not allowed (it separates the parts of flue-gas names)")
+        raise InputError(f"oxidant {t!r}: '@' is not allowed (it separates the parts of flue-gas names)")
     fix = oxidant_colon_fix(t)
     if fix is not None:
-        raise TablegenError(f"oxidant {t!r} uses ':' after {t.partition(':')[0].strip()}; write {fix}")
+        raise InputError(f"oxidant {t!r} uses ':' after {t.partition(':')[0].strip()}; write {fix}")
     head, sep, rest = t.partition(",")
     if "=" not in head and is_oxidant_base(head):
         kw = _oxidant_conditions(t, head.strip(), rest) if sep else {}
         return replace(make_oxidant(base=head.strip(), data=data, source=source, what=f"{what} {t!r}", **kw),
                        spec=t)
     if not is_composition(t):
-        raise TablegenError(f"oxidant {t!r} is not known; allowed: {OXIDANT_FORMS}")
+        raise NameLookupError(f"oxidant {t!r} is not known; allowed: {OXIDANT_FORMS}")
     c = parse_composition(t, "oxidant")
     if c.basis != "mole":
-        raise TablegenError(f"oxidant {t!r}: an oxidant composition is by mole (= by volume); "
-                            f"remove basis={c.basis}")
+        raise InputError(f"oxidant {t!r}: an oxidant composition is by mole (= by volume); "
+                         f"remove basis={c.basis}")
     return replace(make_oxidant(composition=c.fractions, data=data, source=source, what=f"{what} {t!r}"),
                    spec=t)
 
@@ -409,14 +409,14 @@ def oxidant_from_table(t, where="oxidant", *, data=(), source=None) -> Oxidant:
         rh = kw.get("relative_humidity")
         if isinstance(rh, str):
             if not rh.strip().endswith("%"):
-                raise TablegenError(f"{where}.relative_humidity {rh!r} is a percentage; write e.g. \"60%\"")
+                raise UnitError(f"{where}.relative_humidity {rh!r} is a percentage; write e.g. \"60%\"")
             kw["relative_humidity"] = _num(rh.strip()[:-1], f"{where}.relative_humidity (%)")
         w = kw.get("humidity_ratio")
         if isinstance(w, str):
             m = _HUMIDITY_RATIO.match(w.strip())
             if not m:
-                raise TablegenError(f"{where}.humidity_ratio {w!r} is a humidity ratio with its unit; write "
-                                    f"e.g. \"8g/kg\" or \"0.008kg/kg\"")
+                raise UnitError(f"{where}.humidity_ratio {w!r} is a humidity ratio with its unit; write "
+                                f"e.g. \"8g/kg\" or \"0.008kg/kg\"")
             kw["humidity_ratio"] = float(m.group(1)) * (1e-3 if m.group(2) == "g/kg" else 1.0)
         kw.update(read_quantities(t, where, {"dew_point": ("dew_point_K", "temperature"),
                                              "temperature": ("temperature_K", "temperature"),

@@ -12,7 +12,7 @@ from functools import lru_cache
 
 import numpy as np
 
-from .errors import NameLookupError, RangeError, TablegenError
+from .errors import InputError, NameLookupError, RangeError, TablegenError, UnitError
 
 #: Elements a fuel may contain; noble gases pass through as themselves.
 BURNING = ("C", "H", "O", "N", "S")
@@ -65,18 +65,18 @@ def _weights(data=()):
 
 def _num(v, what: str, *, lo=None, hi=None, lo_open=False) -> float:
     if isinstance(v, bool):
-        raise TablegenError(f"{what} must be a number, got {v!r}")
+        raise InputError(f"{what} must be a number, got {v!r}")
     try:
         x = float(v)
     except (TypeError, ValueError):
-        raise TablegenError(f"{what} must be a number, got {v!r}") from None
+        raise InputError(f"{what} must be a number, got {v!r}") from None
     if not math.isfinite(x):
-        raise TablegenError(f"{what} must be finite, got {v!r}")
+        raise RangeError(f"{what} must be finite, got {v!r}")
     if lo is not None and (x < lo or (lo_open and x <= lo)):
-        raise TablegenError(f"{what} = {x:g} is too small; allowed: {'>' if lo_open else '>='} {lo:g}"
-                            + (f" and <= {hi:g}" if hi is not None else ""))
+        raise RangeError(f"{what} = {x:g} is too small; allowed: {'>' if lo_open else '>='} {lo:g}"
+                         + (f" and <= {hi:g}" if hi is not None else ""))
     if hi is not None and x > hi:
-        raise TablegenError(f"{what} = {x:g} is too large; allowed: <= {hi:g}")
+        raise RangeError(f"{what} = {x:g} is too large; allowed: <= {hi:g}")
     return x
 
 
@@ -90,8 +90,8 @@ def _qty(v, dimension: str, what: str, default_unit: str) -> float:
             try:
                 return unit(default_unit, dimension).to_si(float(v))
             except ValueError:
-                raise TablegenError(f"{what} {v!r} is not a number with a unit; write e.g. "
-                                    f"\"42.5 {default_unit}\" (a plain number is {default_unit})") from None
+                raise UnitError(f"{what} {v!r} is not a number with a unit; write e.g. "
+                                f"\"42.5 {default_unit}\" (a plain number is {default_unit})") from None
     return unit(default_unit, dimension).to_si(_num(v, what))
 
 
@@ -102,7 +102,7 @@ def _fractions(raw, what: str, *, normalise_loose: bool = False) -> tuple[dict, 
     sums within 1 % of 1 or 100 are normalised (an analysis rounded by the lab).
     """
     if not isinstance(raw, dict) or not raw:
-        raise TablegenError(f"{what}: give a table of species and fractions, e.g. {{CH4 = 0.9, N2 = 0.1}}")
+        raise InputError(f"{what}: give a table of species and fractions, e.g. {{CH4 = 0.9, N2 = 0.1}}")
     out = {}
     for k, v in raw.items():
         out[str(k)] = _num(v, f"{what}.{k}", lo=0.0)
@@ -112,8 +112,8 @@ def _fractions(raw, what: str, *, normalise_loose: bool = False) -> tuple[dict, 
         if abs(total - scale) <= tol * scale:
             return {k: v / total for k, v in out.items()}, scale == 100.0
     loose = "" if normalise_loose else " (set normalise = true to accept sums within 1 %)"
-    raise TablegenError(f"{what}: fractions sum to {total:.9g}; they must sum to 1, or to 100 "
-                        f"for percentages{loose}")
+    raise InputError(f"{what}: fractions sum to {total:.9g}; they must sum to 1, or to 100 "
+                     f"for percentages{loose}")
 
 
 @lru_cache(maxsize=None)

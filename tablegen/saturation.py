@@ -25,7 +25,7 @@ from dataclasses import replace
 
 import numpy as np
 
-from .errors import RangeError, TablegenError
+from .errors import RangeError
 
 #: Critical point of water (IAPWS R7-97 and Wagner & Pruss 1993): K, Pa, kg/m³.
 T_CRIT = 647.096
@@ -188,7 +188,7 @@ def with_dew_point(substance, P_Pa: float = P_DEW_DEFAULT):
     """
     P = float(P_Pa)
     if not (P > 0 and np.isfinite(P)):
-        raise TablegenError(f"pressure of the dew point {P_Pa!r} Pa must be a positive number")
+        raise RangeError(f"pressure of the dew point {P_Pa!r} Pa must be a positive number")
     y = next((c.mole_fraction for c in substance.components if c.id == "H2O"), 0.0)
     if substance.kind != "mixture" or not 0.0 < y < 1.0:
         return substance

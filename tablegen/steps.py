@@ -59,7 +59,7 @@ from types import MappingProxyType
 
 import numpy as np
 
-from .errors import RangeError, TablegenError
+from .errors import DataError, InputError, NameLookupError, RangeError
 from .thermo.substance import T_REF, Substance
 
 __all__ = ["process", "ProcessResult", "Estimate", "Incompressible", "incompressible",
@@ -190,16 +190,16 @@ class Incompressible:
     def __post_init__(self):
         c = tuple(float(x) for x in self.c_J_per_kgK)
         if not c or not all(math.isfinite(x) for x in c):
-            raise TablegenError(f"{self.id}: specific heat c needs one or more finite coefficients")
+            raise InputError(f"{self.id}: specific heat c needs one or more finite coefficients")
         object.__setattr__(self, "c_J_per_kgK", c)
         if not (math.isfinite(self.rho_kg_per_m3) and self.rho_kg_per_m3 > 0):
-            raise TablegenError(f"{self.id}: density must be a positive number of kg/m³, "
-                                f"got {self.rho_kg_per_m3}")
+            raise RangeError(f"{self.id}: density must be a positive number of kg/m³, "
+                             f"got {self.rho_kg_per_m3}")
         if not (self.T_min >= 0 and self.T_max > self.T_min):
-            raise TablegenError(f"{self.id}: temperature range {self.T_min:g}-{self.T_max:g} K "
-                                f"is empty; give lo < hi, both above 0 K")
+            raise RangeError(f"{self.id}: temperature range {self.T_min:g}-{self.T_max:g} K "
+                             f"is empty; give lo < hi, both above 0 K")
         if not (math.isfinite(self.T_ref_K) and self.T_ref_K > 0):
-            raise TablegenError(f"{self.id}: datum temperature must be above 0 K")
+            raise RangeError(f"{self.id}: datum temperature must be above 0 K")
 
     @property
     def v(self) -> float:
@@ -315,12 +315,12 @@ def _read_entries(path) -> dict:
                                  T_ref_K=float(e.get("T_ref_K", T_REF)),
                                  source=str(e.get("source", "")), source_note=str(e.get("source_note", "")))
         except (KeyError, TypeError, ValueError) as x:
-            raise TablegenError(f"{where}: needs id, T_range_K = [lo, hi], c_J_per_kgK = [...] and "
-                                f"density_kg_per_m3 ({x})") from None
+            raise DataError(f"{where}: needs id, T_range_K = [lo, hi], c_J_per_kgK = [...] and "
+                            f"density_kg_per_m3 ({x})") from None
         for n in (ent.id, ent.name, *e.get("aliases", [])):
             out.setdefault(_norm(n), ent)
     if not out:
-        raise TablegenError(f"{path}: no [[incompressible]] entries found")
+        raise DataError(f"{path}: no [[incompressible]] entries found")
     return out
 
 
@@ -334,33 +334,33 @@ def parse_incompressible(text: str) -> Incompressible:
     vals = {}
     for part in text.split(","):
         if "=" not in part:
-            raise TablegenError(f"incompressible {text!r}: write c=4.18,rho=998 "
-                                f"(c in kJ/(kg K), rho in kg/m³), optionally T=LO:HI")
+            raise InputError(f"incompressible {text!r}: write c=4.18,rho=998 "
+                             f"(c in kJ/(kg K), rho in kg/m³), optionally T=LO:HI")
         k, v = (x.strip() for x in part.split("=", 1))
         if k in vals:
-            raise TablegenError(f"incompressible {text!r}: {k} given twice")
+            raise InputError(f"incompressible {text!r}: {k} given twice")
         vals[k] = v
     unknown = set(vals) - {"c", "rho", "T"}
     if unknown:
-        raise TablegenError(f"incompressible {text!r}: unknown key {sorted(unknown)[0]!r}; allowed: c, rho, T")
+        raise NameLookupError(f"incompressible {text!r}: unknown key {sorted(unknown)[0]!r}; allowed: c, rho, T")
     if "c" not in vals or "rho" not in vals:
-        raise TablegenError(f"incompressible {text!r}: give both c (kJ/(kg K)) and rho (kg/m³)")
+        raise InputError(f"incompressible {text!r}: give both c (kJ/(kg K)) and rho (kg/m³)")
     try:
         c = tuple(float(x) * 1000.0 for x in vals["c"].split(":"))
         rho = float(vals["rho"])
     except ValueError:
-        raise TablegenError(f"incompressible {text!r}: c and rho must be numbers "
-                            f"(c a0[:a1:a2...] in kJ/(kg K) with T in K)") from None
+        raise InputError(f"incompressible {text!r}: c and rho must be numbers "
+                         f"(c a0[:a1:a2...] in kJ/(kg K) with T in K)") from None
     lo, hi = 0.0, math.inf
     if "T" in vals:
         ends = vals["T"].split(":")
         if len(ends) != 2:
-            raise TablegenError(f"incompressible {text!r}: range T=LO:HI, e.g. T=278K:323K")
+            raise InputError(f"incompressible {text!r}: range T=LO:HI, e.g. T=278K:323K")
         lo, hi = (temperature_K(x, "incompressible range") for x in ends)
     ent = Incompressible(id="incompressible", name="user incompressible substance", c_J_per_kgK=c,
                          rho_kg_per_m3=rho, T_min=lo, T_max=hi, source="user input")
     if math.isinf(hi) and len(c) == 1 and not c[0] > 0:
-        raise TablegenError(f"incompressible {text!r}: c must be positive")
+        raise RangeError(f"incompressible {text!r}: c must be positive")
     return ent
 
 
@@ -370,17 +370,17 @@ def _from_file(text: str) -> Incompressible:
     path, _, name = text.partition(".toml:")
     path = Path(path if text.endswith(".toml") and not name else path + ".toml")
     if not path.is_file():
-        raise TablegenError(f"incompressible file {str(path)!r} does not exist")
+        raise InputError(f"incompressible file {str(path)!r} does not exist")
     entries = _read_entries(path)
     ids = sorted({e.id for e in entries.values()})
     if not name:
         if len(ids) != 1:
-            raise TablegenError(f"{path} holds {len(ids)} entries; name one as {path}:NAME; "
-                                f"allowed: {', '.join(ids)}")
+            raise InputError(f"{path} holds {len(ids)} entries; name one as {path}:NAME; "
+                             f"allowed: {', '.join(ids)}")
         return next(iter(entries.values()))
     ent = entries.get(_norm(name))
     if ent is None:
-        raise TablegenError(f"{path}: no incompressible entry {name!r}; allowed: {', '.join(ids)}")
+        raise NameLookupError(f"{path}: no incompressible entry {name!r}; allowed: {', '.join(ids)}")
     return ent
 
 
@@ -401,8 +401,8 @@ def incompressible(name_or_spec: str) -> Incompressible:
     ent = table.get(_norm(text))
     if ent is None:
         ids = sorted({e.id for e in table.values()})
-        raise TablegenError(f"incompressible substance {text!r} is not shipped; allowed: "
-                            f"{', '.join(ids)}, or an inline spec c=4.18,rho=998")
+        raise NameLookupError(f"incompressible substance {text!r} is not shipped; allowed: "
+                              f"{', '.join(ids)}, or an inline spec c=4.18,rho=998")
     return ent
 
 
@@ -411,9 +411,9 @@ def _arr(x, what: str) -> np.ndarray:
     try:
         a = np.asarray(x, dtype=float)
     except (TypeError, ValueError):
-        raise TablegenError(f"{what} must be a number or an array of numbers") from None
+        raise InputError(f"{what} must be a number or an array of numbers") from None
     if not np.all(np.isfinite(a)):
-        raise TablegenError(f"{what} must be finite")
+        raise RangeError(f"{what} must be finite")
     return a
 
 
@@ -431,11 +431,11 @@ def _estimate(quantity, method, label, unit, value, exact, floor, parameter=None
 
 def _check_params(step: str, params: dict) -> None:
     if step not in STEPS:
-        raise TablegenError(f"unknown process step {step!r}; allowed: {', '.join(STEPS)}")
+        raise NameLookupError(f"unknown process step {step!r}; allowed: {', '.join(STEPS)}")
     allowed = STEPS[step][0]
     extra = sorted(set(params) - set(allowed))
     if extra:
-        raise TablegenError(f"step {step!r} takes no parameter {extra[0]!r}; allowed: {', '.join(allowed)}")
+        raise NameLookupError(f"step {step!r} takes no parameter {extra[0]!r}; allowed: {', '.join(allowed)}")
     given = {k for k, v in params.items() if v is not None}
     pairs = {"compress": ("P2_Pa", "ratio"), "expand": ("P2_Pa", "ratio"),
              "heat_p": ("T2_K", "q_J_per_kg"), "heat_v": ("T2_K", "q_J_per_kg"), "throttle": ("P2_Pa",)}
@@ -443,15 +443,15 @@ def _check_params(step: str, params: dict) -> None:
     n = sum(1 for k in need if k in given)
     if n != 1:
         which = " or ".join(need)
-        raise TablegenError(f"step {step!r} needs {'exactly one of ' if len(need) > 1 else ''}{which}"
-                            f"{'; got both' if n > 1 else ''}")
+        raise InputError(f"step {step!r} needs {'exactly one of ' if len(need) > 1 else ''}{which}"
+                         f"{'; got both' if n > 1 else ''}")
 
 
 def _eta(params) -> np.ndarray:
     eta = _arr(1.0 if params.get("eta") is None else params["eta"], "isentropic efficiency eta")
     if np.any(eta <= 0) or np.any(eta > 1):
         bad = float(eta[(eta <= 0) | (eta > 1)].flat[0])
-        raise TablegenError(f"isentropic efficiency eta = {bad:g} is not allowed; allowed: 0 < eta <= 1")
+        raise RangeError(f"isentropic efficiency eta = {bad:g} is not allowed; allowed: 0 < eta <= 1")
     return eta
 
 
@@ -459,22 +459,22 @@ def _end_pressure(step, P1, params) -> np.ndarray:
     if params.get("ratio") is not None:
         r = _arr(params["ratio"], "pressure ratio")
         if np.any(r <= 0):
-            raise TablegenError(f"pressure ratio {float(r[r <= 0].flat[0]):g} is not allowed; "
-                                f"allowed: a ratio above 0 (compress: P2/P1 >= 1, expand: P1/P2 >= 1)")
+            raise RangeError(f"pressure ratio {float(r[r <= 0].flat[0]):g} is not allowed; "
+                             f"allowed: a ratio above 0 (compress: P2/P1 >= 1, expand: P1/P2 >= 1)")
         P2 = P1 * r if step == "compress" else P1 / r
     else:
         P2 = _arr(params["P2_Pa"], "end pressure P2")
         if np.any(P2 <= 0):
-            raise TablegenError("end pressure must be above 0 Pa (absolute pressure)")
+            raise RangeError("end pressure must be above 0 Pa (absolute pressure)")
     P2 = np.broadcast_to(P2, np.broadcast_shapes(np.shape(P1), np.shape(P2)))
     if step == "compress" and np.any(P2 < P1 * (1 - 1e-15)):
-        raise TablegenError("compress: the end pressure is below the start pressure; allowed: P2 >= P1 "
-                            "(ratio >= 1); use expand for a pressure drop through a machine")
+        raise RangeError("compress: the end pressure is below the start pressure; allowed: P2 >= P1 "
+                         "(ratio >= 1); use expand for a pressure drop through a machine")
     if step == "expand" and np.any(P2 > P1 * (1 + 1e-15)):
-        raise TablegenError("expand: the end pressure is above the start pressure; allowed: P2 <= P1 "
-                            "(ratio >= 1, the ratio being P1/P2); use compress to raise the pressure")
+        raise RangeError("expand: the end pressure is above the start pressure; allowed: P2 <= P1 "
+                         "(ratio >= 1, the ratio being P1/P2); use compress to raise the pressure")
     if step == "throttle" and np.any(P2 > P1 * (1 + 1e-15)):
-        raise TablegenError("throttle: the end pressure is above the start pressure; allowed: P2 <= P1")
+        raise RangeError("throttle: the end pressure is above the start pressure; allowed: P2 <= P1")
     return np.array(P2, dtype=float)
 
 
@@ -487,15 +487,15 @@ def _s_gen(step, ds, q, params, T1, T2):
                                    "substance's own temperature (give a boundary temperature for s_gen)")
     Tb = _arr(Tb, "boundary temperature")
     if np.any(Tb <= 0):
-        raise TablegenError("boundary temperature must be above 0 K")
+        raise RangeError("boundary temperature must be above 0 K")
     sg = ds - q / Tb
     # A source colder than the end state cannot heat to it (nor a warmer sink cool to it).
     impossible = (q > 0) & (Tb < np.maximum(T1, T2) * (1 - 1e-12)) | \
                  (q < 0) & (Tb > np.minimum(T1, T2) * (1 + 1e-12))
     if np.any(impossible):
-        raise TablegenError("boundary temperature: heat cannot flow from a source colder than the "
-                            "substance (or into a sink warmer than it); allowed: a heat source at or "
-                            "above the hottest state, a sink at or below the coldest state")
+        raise RangeError("boundary temperature: heat cannot flow from a source colder than the "
+                         "substance (or into a sink warmer than it); allowed: a heat source at or "
+                         "above the hottest state, a sink at or below the coldest state")
     return sg, "heat crosses the boundary at T_boundary: s_gen = s2 - s1 - q/T_boundary"
 
 
@@ -700,9 +700,9 @@ def _liquid(sub: Incompressible, step, T1, P1, params):
     T2s = h2s = eta = None
     notes = []
     if step == "heat_v":
-        raise TablegenError("heat_v: an incompressible substance cannot be heated at constant volume "
-                            "without unbounded pressure; allowed for incompressible: compress, expand, "
-                            "heat_p, throttle")
+        raise InputError("heat_v: an incompressible substance cannot be heated at constant volume "
+                         "without unbounded pressure; allowed for incompressible: compress, expand, "
+                         "heat_p, throttle")
     if step in ("compress", "expand"):
         eta = _eta(params)
         P2 = _end_pressure(step, P1, params)
@@ -797,7 +797,7 @@ def process(substance, T1_K, P1_Pa, step: str, **params) -> ProcessResult:
     T1 = _arr(T1_K, "start temperature T1")
     P1 = _arr(P1_Pa, "start pressure P1")
     if np.any(P1 <= 0):
-        raise TablegenError("start pressure must be above 0 Pa (absolute pressure)")
+        raise RangeError("start pressure must be above 0 Pa (absolute pressure)")
     if np.any(T1 <= 0):
         raise RangeError("start temperature must be above 0 K")
     T1, P1 = (np.array(a, dtype=float) for a in np.broadcast_arrays(T1, P1))
@@ -806,7 +806,7 @@ def process(substance, T1_K, P1_Pa, step: str, **params) -> ProcessResult:
     elif isinstance(substance, Substance):
         parts = _gas(substance, step, T1, P1, params)
     else:
-        raise TablegenError("process: substance must be a gas (tablegen.substance) or an "
-                            "Incompressible entry")
+        raise InputError("process: substance must be a gas (tablegen.substance) or an "
+                         "Incompressible entry")
     return ProcessResult(substance_id=substance.id, substance_name=substance.name, step=step,
                          T1_K=T1, P1_Pa=P1, **parts)

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from ..errors import TablegenError
+from ..errors import InputError, NameLookupError
 from .common import data_notices, published
 
 IMPOSITIONS = ("booklet",)
@@ -66,7 +66,7 @@ def run(args) -> int:
     from .. import spec as specmod
     from ..book.build import all_names, file_names, issue_text, merge, pdf_pages, progress_for, render_files
     if args.impose is not None and args.impose not in IMPOSITIONS:
-        raise TablegenError(f"--impose {args.impose!r}: not a layout; allowed: {', '.join(IMPOSITIONS)}")
+        raise NameLookupError(f"--impose {args.impose!r}: not a layout; allowed: {', '.join(IMPOSITIONS)}")
     editions = specmod.load_editions(args.spec, source=args.source, data=args.data, editions=args.edition,
                                      paper=args.paper, extrapolate=args.extrapolate)
     first = editions[0]
@@ -74,8 +74,8 @@ def run(args) -> int:
     if impose and not any(_booklet(e) for e in editions):
         what = ", ".join(f"{e.edition.name or first.name} is {e.document.paper} {e.document.orientation}"
                          for e in editions)
-        raise TablegenError(f"--impose booklet: {what}; a booklet is made of A5 portrait pages, 2 up on "
-                            f"A4 (choose an A5 edition with --edition, or --paper A5)")
+        raise InputError(f"--impose booklet: {what}; a booklet is made of A5 portrait pages, 2 up on "
+                         f"A4 (choose an A5 edition with --edition, or --paper A5)")
     data_notices(SimpleNamespace(data=first.data_paths, quiet=args.quiet))
     out = Path(args.out) if args.out else Path("output") / first.name
     outfiles.check_folder(out, [n for e in editions for n in all_names(e, impose and _booklet(e))],

@@ -7,7 +7,7 @@ import shlex
 import sys
 from pathlib import Path
 
-from ..errors import SpecError, TablegenError
+from ..errors import InputError, RangeError, SpecError, TablegenError
 from .common import H_DATUM_REFERENCE_HELP, add_datum_options, notice, substance_with_options
 
 EXAMPLE = """example:
@@ -189,9 +189,9 @@ def run(args) -> int:
     from .. import __version__
 
     if args.extrapolate:
-        raise TablegenError("--extrapolate: charts are drawn inside the data range only; allowed: leave it out")
+        raise InputError("--extrapolate: charts are drawn inside the data range only; allowed: leave it out")
     if not (72 <= args.dpi <= 600):
-        raise TablegenError(f"--dpi {args.dpi} is outside the allowed range 72 to 600")
+        raise RangeError(f"--dpi {args.dpi} is outside the allowed range 72 to 600")
     date = args.date
     name = None
     if args.spec:
@@ -202,21 +202,21 @@ def run(args) -> int:
                                 ("--title", args.title), ("--units", args.units),
                                 ("--barometer", args.barometer)) if v is not None]
         if clash:
-            raise TablegenError(f"{clash[0]} cannot be combined with --spec; put it in the spec's "
-                                f"[[charts]] table instead")
+            raise InputError(f"{clash[0]} cannot be combined with --spec; put it in the spec's "
+                             f"[[charts]] table instead")
         sub_name, units, spec_date, name, specs = load_spec(args.spec)
         date = date or spec_date
         sub_name = args.substance or sub_name
         if not sub_name:
-            raise TablegenError("no substance: give it on the command line or as substance = \"...\" in the spec")
+            raise InputError("no substance: give it on the command line or as substance = \"...\" in the spec")
     else:
         if not args.substance:
-            raise TablegenError("no substance given; e.g. 'tablegen chart air' (or use --spec FILE)")
+            raise InputError("no substance given; e.g. 'tablegen chart air' (or use --spec FILE)")
         sub_name = args.substance
         specs = charts_from_options(args)
     from ..texts import bad_character, one_line_rule
     if date is not None and (len(date) > 100 or bad_character(date)):
-        raise TablegenError(f"--date: {one_line_rule()}, at most 100 characters")
+        raise InputError(f"--date: {one_line_rule()}, at most 100 characters")
     sub = substance_with_options(args, sub_name, by_rule=True, reacting=None)
     footer = f"tablegen {__version__} · " + (sub.name if sub.name == sub.id else f"{sub.name} ({sub.id})")
     try:

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import sys
 
-from ..errors import TablegenError
+from ..errors import InputError, RangeError
 from .common import add_unit_options, dumps
 
 EXAMPLE = """--flow gives the heat input (LHV and HHV, kW and MMBtu/h) and the flue-gas and air flows
@@ -107,7 +107,7 @@ def _percent(text, what):
     try:
         return float(t)
     except ValueError:
-        raise TablegenError(f"{what} {text!r} is not a number; give e.g. 15 or 15%") from None
+        raise InputError(f"{what} {text!r} is not a number; give e.g. 15 or 15%") from None
 
 
 def measured_o2(text, what) -> tuple[float, float | None]:
@@ -143,12 +143,12 @@ def compute(args):
     ref_text = _given(args, "ref_temperature")
     ref = str(ref_text).replace(" ", "").replace("°", "")
     if ref not in REF_CHOICES:
-        raise TablegenError(f"--ref-temperature {ref_text!r} is not allowed; allowed: "
-                            f"25C, 20C, 15.55C (60F), 15C, 0C (ISO 6976)")
+        raise RangeError(f"--ref-temperature {ref_text!r} is not allowed; allowed: "
+                         f"25C, 20C, 15.55C (60F), 15C, 0C (ISO 6976)")
     metering = _given(args, "metering")
     parts = str(metering).split(",")
     if len(parts) != 2:
-        raise TablegenError(f"--metering {metering!r}: give T,P, e.g. 15C,101.325kPa")
+        raise InputError(f"--metering {metering!r}: give T,P, e.g. 15C,101.325kPa")
     amount = {}
     if args.excess_air is not None:
         amount["excess_air"] = _percent(args.excess_air, "--excess-air")

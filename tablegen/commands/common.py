@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import sys
 
-from ..errors import TablegenError
+from ..errors import InputError, NameLookupError
 from ..jsonout import clean, dumps  # noqa: F401  (the commands import them from here)
 
 
@@ -80,7 +80,7 @@ def datum_from_text(text: str | None, substance=None, *, by_rule: bool = False,
             (SENSIBLE_DATUM_T_K if by_rule else T_REF)
         h = quantity(parts[1], "specific_energy", "--h-datum enthalpy") if len(parts) > 1 else 0.0
         return Datum("sensible", T, h)
-    raise TablegenError(f"--h-datum {text!r} is not known; allowed: formation, sensible, sensible:T, sensible:T:h")
+    raise NameLookupError(f"--h-datum {text!r} is not known; allowed: formation, sensible, sensible:T, sensible:T:h")
 
 
 def anchor_from_text(text: str | None):
@@ -91,17 +91,17 @@ def anchor_from_text(text: str | None):
     vals = {}
     for part in text.split(","):
         if "=" not in part:
-            raise TablegenError(f"--anchor {text!r}: write T=298.15K,Pr=1,vr=1")
+            raise InputError(f"--anchor {text!r}: write T=298.15K,Pr=1,vr=1")
         k, v = (x.strip() for x in part.split("=", 1))
         if k not in ("T", "Pr", "vr"):
-            raise TablegenError(f"--anchor: unknown key {k!r}; allowed: T, Pr, vr")
+            raise NameLookupError(f"--anchor: unknown key {k!r}; allowed: T, Pr, vr")
         if k == "T":
             vals["T_K"] = temperature_K(v, "--anchor T")
         else:
             try:
                 vals[k] = float(v)
             except ValueError:
-                raise TablegenError(f"--anchor {k}={v!r} is not a number") from None
+                raise InputError(f"--anchor {k}={v!r} is not a number") from None
     return Anchor(**vals)
 
 

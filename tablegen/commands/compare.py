@@ -11,7 +11,7 @@ import re
 import sys
 from pathlib import Path
 
-from ..errors import TablegenError
+from ..errors import InputError, NameLookupError, TablegenError
 from .common import add_datum_options, dumps, notice, substance_with_options
 
 EXAMPLE = """REFERENCE: CSV or whitespace-separated text; header cells 'key [unit]' (keys of the
@@ -104,8 +104,8 @@ def _refuse_datum_options(args, target):
                             ("--anchor", args.anchor), ("--mean-from", args.mean_from),
                             ("--vol-ref", args.vol_ref)) if v is not None]
     if given:
-        raise TablegenError(f"{given[0]} applies to a substance name; a spec table carries its own "
-                            f"datum, P° and anchor (set them in the spec)")
+        raise InputError(f"{given[0]} applies to a substance name; a spec table carries its own "
+                         f"datum, P° and anchor (set them in the spec)")
 
 
 def load_spec(args):
@@ -126,21 +126,21 @@ def resolve(args):
         if args.table is not None:
             hit = [t for t in tables if t.name == args.table]
             if not hit:
-                raise TablegenError(f"--table {args.table!r} is not in {target}; its tables: "
-                                    f"{', '.join(t.name for t in tables)}")
+                raise NameLookupError(f"--table {args.table!r} is not in {target}; its tables: "
+                                      f"{', '.join(t.name for t in tables)}")
             table = hit[0]
         elif len(tables) == 1:
             table = tables[0]
         else:
-            raise TablegenError(f"{target} holds {len(tables)} tables; choose one with --table NAME "
-                                f"({', '.join(t.name for t in tables)}), or give a reference folder")
+            raise InputError(f"{target} holds {len(tables)} tables; choose one with --table NAME "
+                             f"({', '.join(t.name for t in tables)}), or give a reference folder")
         r = book.document.reference
         if getattr(table, "extrapolate", False):
             args.extrapolate = True          # the table itself was built with extrapolation (marked)
         return (table.substance, table.name, f"{target} [{table.name}]", float(table.T_mean_ref_K),
                 (float(r.T_K), float(r.P_Pa), r.text), True)
     if args.table is not None:
-        raise TablegenError("--table applies to a spec file (*.toml), not to a substance name")
+        raise InputError("--table applies to a spec file (*.toml), not to a substance name")
     sub = substance_with_options(args, target)
     T_m = None
     if args.mean_from is not None:
@@ -160,7 +160,7 @@ def volume_reference(text):
         return VOLUME_REFERENCES[t]
     parts = t.split(",")
     if len(parts) != 2:
-        raise TablegenError(f"--vol-ref {text!r}: give {', '.join(VOLUME_REFERENCES)}, or T,P such as 20C,1atm")
+        raise InputError(f"--vol-ref {text!r}: give {', '.join(VOLUME_REFERENCES)}, or T,P such as 20C,1atm")
     T = temperature_K(parts[0], "--vol-ref temperature")
     P = pressure_Pa(parts[1], "--vol-ref pressure")
     return (T, P, f"{T:g} K and {P / 1000:g} kPa")
@@ -197,11 +197,11 @@ def _keys(args, ref, notes: list) -> list:
     if args.columns is not None:
         keys = [k.strip() for k in args.columns.split(",")]
         if not all(keys):
-            raise TablegenError(f"--columns {args.columns!r}: give comma-separated keys, e.g. cp,h,s0")
+            raise InputError(f"--columns {args.columns!r}: give comma-separated keys, e.g. cp,h,s0")
         for k in keys:
             if k not in ref.keys:
-                raise TablegenError(f"--columns: {k!r} is not a column of {ref.path}; "
-                                    f"its columns: {', '.join(ref.keys)}")
+                raise NameLookupError(f"--columns: {k!r} is not a column of {ref.path}; "
+                                      f"its columns: {', '.join(ref.keys)}")
         return keys
     keys = list(ref.keys)
     skipped = [k for k in keys if k not in ref.comparable_keys]
@@ -219,12 +219,12 @@ def parse_column_options(args, units: dict):
     for t in args.tolerance:
         k, tol = parse_tolerance(t, units)
         if k in tolerances:
-            raise TablegenError(f"--tolerance: column {k!r} is given twice; give one tolerance a column")
+            raise InputError(f"--tolerance: column {k!r} is given twice; give one tolerance a column")
         tolerances[k] = tol
     for a in args.align:
         k, kind = parse_align(a, list(units))
         if k in align:
-            raise TablegenError(f"--align: column {k!r} is given twice")
+            raise InputError(f"--align: column {k!r} is given twice")
         align[k] = kind
     return tolerances, align
 
@@ -344,8 +344,8 @@ def run(args) -> int:
         from .compare_book import run_book
         return run_book(args)
     if getattr(args, "edition", None) is not None:
-        raise TablegenError(f"--edition {args.edition}: an edition is chosen only for a book spec compared "
-                            f"with a reference folder; leave --edition out for one reference table")
+        raise InputError(f"--edition {args.edition}: an edition is chosen only for a book spec compared "
+                         f"with a reference folder; leave --edition out for one reference table")
     from ..compare_hints import suggested_options
     from ..compare_output import summary
     cmp, files, notes = compute(args)

@@ -10,7 +10,7 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
-from ..errors import TablegenError
+from ..errors import InputError, NameLookupError
 from .common import dumps, notice
 from .compare import (FILES, _is_spec, _keys, _refuse_datum_options, data_files, default_out, hint_lines,
                       load_spec, write_outputs)
@@ -27,8 +27,8 @@ def _split_scoped(values, flag: str, tables) -> dict:
         if "/" in head:
             table, rest = v.split("/", 1)
             if table not in out:
-                raise TablegenError(f"{flag} {v!r}: table {table!r} is not compared; "
-                                    f"compared tables: {', '.join(names)}")
+                raise NameLookupError(f"{flag} {v!r}: table {table!r} is not compared; "
+                                      f"compared tables: {', '.join(names)}")
             out[table].append(rest)
         else:
             unscoped.append(v)
@@ -56,8 +56,8 @@ def _table_options(args, specs, refs):
                 continue
             k, tol = parse_tolerance(text, units)
             if k in tolerances:
-                raise TablegenError(f"--tolerance: column {k!r} of table {t.name} is given twice; "
-                                    f"give one tolerance a column")
+                raise InputError(f"--tolerance: column {k!r} of table {t.name} is given twice; "
+                                 f"give one tolerance a column")
             tolerances[k] = tol
             used_tol.add(text)
         for text in al_all + al_scoped[t.name]:
@@ -68,14 +68,14 @@ def _table_options(args, specs, refs):
             align[k] = kind
             used_al.add(text)
         if not keys:
-            raise TablegenError(f"--columns {args.columns!r}: table {t.name} has none of these columns; "
-                                f"its columns: {', '.join(ref.comparable_keys)}")
+            raise InputError(f"--columns {args.columns!r}: table {t.name} has none of these columns; "
+                             f"its columns: {', '.join(ref.comparable_keys)}")
         per[t.name] = (keys, tolerances, align)
     for flag, given, used in (("--tolerance", tol_all, used_tol), ("--align", al_all, used_al)):
         for v in given:
             if v not in used:
-                raise TablegenError(f"{flag} {v!r}: no compared table has column {v.split('=', 1)[0]!r}; "
-                                    f"write TABLE/COL=... for one table")
+                raise NameLookupError(f"{flag} {v!r}: no compared table has column {v.split('=', 1)[0]!r}; "
+                                      f"write TABLE/COL=... for one table")
     return per, notes
 
 
@@ -94,8 +94,8 @@ def compute_book(args):
     from ..compare_output import book_deviations_csv, book_summary
 
     if not _is_spec(args.substance):
-        raise TablegenError(f"{args.reference} is a folder; a reference folder is compared with a book "
-                            f"spec (*.toml), a substance with one reference table")
+        raise InputError(f"{args.reference} is a folder; a reference folder is compared with a book "
+                         f"spec (*.toml), a substance with one reference table")
     _refuse_datum_options(args, args.substance)
     spec = load_spec(args)
     specs = list(spec.tables)
@@ -104,8 +104,8 @@ def compute_book(args):
         names = {t.name for t in specs}
         bad = [n for n in wanted if n not in names]
         if bad or not wanted:
-            raise TablegenError(f"--table {args.table!r}: {bad[0] if bad else 'no name'!r} is not in "
-                                f"{args.substance}; its tables: {', '.join(t.name for t in specs)}")
+            raise NameLookupError(f"--table {args.table!r}: {bad[0] if bad else 'no name'!r} is not in "
+                                  f"{args.substance}; its tables: {', '.join(t.name for t in specs)}")
         specs = [t for t in specs if t.name in wanted]
     mapping = read_mapping(args.map) if args.map else None
     folder = read_folder(args.reference, spec.name, [t.name for t in specs], mapping, args.map or "",

@@ -18,7 +18,7 @@ import sys
 import numpy as np
 
 from ..data.formats import TM4513, TP2002
-from ..errors import TablegenError
+from ..errors import InputError, TablegenError
 from ..thermo.polynomial import NINE, SEVEN
 from .common import data_notices, notice
 
@@ -117,34 +117,34 @@ def to_tm4513(r: dict) -> str:
     b = r["T_bounds_K"]
     c = r["coeffs9"]
     if not r["a7_form"]:
-        raise TablegenError(f"{r['id']}: the polynomial has T^-2 and T^-1 terms (9-coefficient form), which "
-                            f"the 7-coefficient {TM4513} format cannot hold; use --format {TP2002} or toml")
+        raise InputError(f"{r['id']}: the polynomial has T^-2 and T^-1 terms (9-coefficient form), which "
+                         f"the 7-coefficient {TM4513} format cannot hold; use --format {TP2002} or toml")
     inner = b[1:-1]
     T0 = formats.TM4513_COMMON_T
     if not (b[0] < T0 < b[-1]) or any(abs(t - T0) > 1e-9 for t in inner):
-        raise TablegenError(f"{r['id']}: the {TM4513} format holds two intervals that meet at "
-                            f"{T0:g} K; this polynomial covers {b[0]:g}-{b[-1]:g} K with breakpoints at "
-                            f"{[float(t) for t in inner] or 'none'} K; use --format {TP2002} or toml")
+        raise InputError(f"{r['id']}: the {TM4513} format holds two intervals that meet at "
+                         f"{T0:g} K; this polynomial covers {b[0]:g}-{b[-1]:g} K with breakpoints at "
+                         f"{[float(t) for t in inner] or 'none'} K; use --format {TP2002} or toml")
     if len(inner) == 0:
         lower = upper = c[0]
     else:
         lower, upper = c[0], c[1]
     if len(r["elements"]) > 4:
-        raise TablegenError(f"{r['id']}: the TM-4513 formula field holds 4 elements, this record has "
-                            f"{len(r['elements'])} ({', '.join(r['elements'])}); use --format {TP2002} or toml")
+        raise InputError(f"{r['id']}: the TM-4513 formula field holds 4 elements, this record has "
+                         f"{len(r['elements'])} ({', '.join(r['elements'])}); use --format {TP2002} or toml")
     rec = {"id": r["id"], "elements": r["elements"], "M": r["M"], "T_bounds_K": [b[0], T0, b[-1]],
            "coefficients": [lower[2:], upper[2:]], "date": r.get("date", "export"), "h298_over_R_K": r["h298_over_R_K"]}
     try:
         return formats.write_tm4513(rec, comments=[f"citation: {citation(r)}", *r["comments"]])
     except TablegenError as e:
-        raise TablegenError(f"{r['id']}: {e}; use --format {TP2002} or toml") from None
+        raise InputError(f"{r['id']}: {e}; use --format {TP2002} or toml") from None
 
 
 def to_tp2002(r: dict) -> str:
     from ..data import formats
     if len(r["elements"]) > 5:
-        raise TablegenError(f"{r['id']}: the NASA/TP-2002-211556 formula field holds 5 elements, this record "
-                            f"has {len(r['elements'])} ({', '.join(r['elements'])}); use --format toml")
+        raise InputError(f"{r['id']}: the NASA/TP-2002-211556 formula field holds 5 elements, this record "
+                         f"has {len(r['elements'])} ({', '.join(r['elements'])}); use --format toml")
     rec = {"id": r["id"], "comment": r.get("card_comment", f"tablegen export of {r['name']}")[:62],
            "refcode": r.get("date", "export"),
            "elements": r["elements"], "M": r["M"], "h_formation_J_per_mol": r["h_formation_J_per_mol"],
@@ -152,7 +152,7 @@ def to_tp2002(r: dict) -> str:
     try:
         return formats.write_tp2002(rec, comments=[f"citation: {citation(r)}", *r["comments"]])
     except TablegenError as e:
-        raise TablegenError(f"{r['id']}: {e}; use --format toml") from None
+        raise InputError(f"{r['id']}: {e}; use --format toml") from None
 
 
 def to_toml(r: dict) -> str:
@@ -189,15 +189,15 @@ def write_record(r: dict, fmt: str) -> str:
     """A record dict (see record_of, with_poly) in one of FORMATS."""
     rid = r["id"]
     if fmt in (TM4513, TP2002) and (len(rid) > NAME_WIDTH or " " in rid):
-        raise TablegenError(f"record id {rid!r} does not fit the {NAME_WIDTH}-column name field of the "
-                            f"{fmt} format (no spaces); give a shorter --id or use --format toml")
+        raise InputError(f"record id {rid!r} does not fit the {NAME_WIDTH}-column name field of the "
+                         f"{fmt} format (no spaces); give a shorter --id or use --format toml")
     return {TM4513: to_tm4513, TP2002: to_tp2002, "toml": to_toml}[fmt](r)
 
 
 def check_id(rid: str) -> str:
     if not rid or not _CLEAN_ID.match(rid) or ":" in rid:
-        raise TablegenError(f"--id {rid!r} is not a usable species id; allowed: letters, digits and _ ( ) + - . "
-                            f"(no spaces, no ':')")
+        raise InputError(f"--id {rid!r} is not a usable species id; allowed: letters, digits and _ ( ) + - . "
+                         f"(no spaces, no ':')")
     return rid
 
 

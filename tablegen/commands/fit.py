@@ -22,7 +22,7 @@ from pathlib import Path
 import numpy as np
 
 from ..data.formats import TM4513, TP2002
-from ..errors import TablegenError
+from ..errors import DataError, FitError, InputError, RangeError, TablegenError, UnitError
 from ..thermo.polynomial import FORMS, NINE, SEVEN
 
 #: Output formats of the fitted record, and the card format written by default for each form.
@@ -84,14 +84,14 @@ def parse_formula(text: str) -> dict:
         el, n = m.group(1), m.group(2)
         x = float(n) if n else 1.0
         if el in out:
-            raise TablegenError(f"--formula {text!r}: element {el} is given twice")
+            raise InputError(f"--formula {text!r}: element {el} is given twice")
         if x <= 0:
-            raise TablegenError(f"--formula {text!r}: count of {el} must be positive")
+            raise RangeError(f"--formula {text!r}: count of {el} must be positive")
         out[el] = int(x) if x == int(x) else x
         pos = m.end()
     if pos != len(t) or not out:
-        raise TablegenError(f"--formula {text!r} is not a formula; write element symbols with counts, "
-                            f"e.g. CO2, C3H8 or C1.02H3.9O0.1")
+        raise InputError(f"--formula {text!r} is not a formula; write element symbols with counts, "
+                         f"e.g. CO2, C3H8 or C1.02H3.9O0.1")
     return out
 
 
@@ -102,9 +102,9 @@ def read_table(path: str, M_g_per_mol: float) -> dict:
     try:
         text = p.read_text(encoding="utf-8-sig")
     except FileNotFoundError:
-        raise TablegenError(f"{path}: no such file; give a CSV table of cp(T)") from None
+        raise DataError(f"{path}: no such file; give a CSV table of cp(T)") from None
     except (OSError, UnicodeDecodeError) as e:
-        raise TablegenError(f"{path}: cannot read ({e}); the table must be UTF-8 CSV") from None
+        raise DataError(f"{path}: cannot read ({e}); the table must be UTF-8 CSV") from None
     lines = text.splitlines()
     cites, body = [], []
     for n, ln in enumerate(lines, 1):
@@ -116,7 +116,7 @@ def read_table(path: str, M_g_per_mol: float) -> dict:
         if ln.strip():
             body.append((n, ln))
     if not body:
-        raise TablegenError(f"{path}: the table is empty; it needs a header line and rows")
+        raise DataError(f"{path}: the table is empty; it needs a header line and rows")
     rows = list(csv.reader(io.StringIO("\n".join(ln for _, ln in body))))
     head_line, head = body[0][0], rows[0]
     cols = {}
@@ -125,37 +125,37 @@ def read_table(path: str, M_g_per_mol: float) -> dict:
             continue
         m = _HEAD.match(cell)
         if not m:
-            raise TablegenError(f"{path}:{head_line}: header cell {cell!r} is not 'key [unit]', e.g. 'T [K]' "
-                                f"or 'cp_molar [J/(mol K)]'")
+            raise DataError(f"{path}:{head_line}: header cell {cell!r} is not 'key [unit]', e.g. 'T [K]' "
+                            f"or 'cp_molar [J/(mol K)]'")
         key, u = m.group(1), m.group(2).strip()
         if key in COLUMNS:
             if key in cols:
-                raise TablegenError(f"{path}:{head_line}: column {key!r} appears twice")
+                raise DataError(f"{path}:{head_line}: column {key!r} appears twice")
             try:
                 cols[key] = (j, unit(u, COLUMNS[key]))
             except TablegenError as e:
-                raise TablegenError(f"{path}:{head_line}: column {cell!r}: {e}") from None
+                raise UnitError(f"{path}:{head_line}: column {cell!r}: {e}") from None
     if "T" not in cols:
-        raise TablegenError(f"{path}:{head_line}: no 'T [unit]' column; the table needs T and cp_molar (or cp)")
+        raise DataError(f"{path}:{head_line}: no 'T [unit]' column; the table needs T and cp_molar (or cp)")
     if "cp_molar" not in cols and "cp" not in cols:
-        raise TablegenError(f"{path}:{head_line}: no cp column; give 'cp_molar [J/(mol K)]' or 'cp [kJ/(kg K)]'")
+        raise DataError(f"{path}:{head_line}: no cp column; give 'cp_molar [J/(mol K)]' or 'cp [kJ/(kg K)]'")
     for a, b in (("cp_molar", "cp"), ("s0_molar", "s0")):
         if a in cols and b in cols:
-            raise TablegenError(f"{path}:{head_line}: give {a} or {b}, not both")
+            raise DataError(f"{path}:{head_line}: give {a} or {b}, not both")
     data = {k: [] for k in cols}
     for (n, _), r in zip(body[1:], rows[1:]):
         if len(r) != len(head):
-            raise TablegenError(f"{path}:{n}: the row has {len(r)} cells but the header has {len(head)}")
+            raise DataError(f"{path}:{n}: the row has {len(r)} cells but the header has {len(head)}")
         for k, (j, u) in cols.items():
             try:
                 v = float(r[j])
             except ValueError:
-                raise TablegenError(f"{path}:{n}: column {head[j]!r}: {r[j]!r} is not a number") from None
+                raise DataError(f"{path}:{n}: column {head[j]!r}: {r[j]!r} is not a number") from None
             if not np.isfinite(v):
-                raise TablegenError(f"{path}:{n}: column {head[j]!r}: {r[j]!r} is not a finite number")
+                raise DataError(f"{path}:{n}: column {head[j]!r}: {r[j]!r} is not a finite number")
             data[k].append(u.to_si(v))
     if len(data["T"]) < 2:
-        raise TablegenError(f"{path}: the table has {len(data['T'])} rows; a fit needs many more")
+        raise FitError(f"{path}: the table has {len(data['T'])} rows; a fit needs many more")
     Mk = M_g_per_mol * 1e-3
     out = {"T_K": np.array(data["T"])}
     out["cp"] = np.array(data["cp_molar"]) if "cp_molar" in data else np.array(data["cp"]) * Mk
@@ -165,7 +165,7 @@ def read_table(path: str, M_g_per_mol: float) -> dict:
         out["s"] = np.array(data["s0_molar"]) if "s0_molar" in data else np.array(data["s0"]) * Mk
     order = np.argsort(out["T_K"], kind="stable")
     if np.any(np.diff(out["T_K"][order]) <= 0):
-        raise TablegenError(f"{path}: temperatures repeat; give each temperature once")
+        raise DataError(f"{path}: temperatures repeat; give each temperature once")
     out = {k: v[order] for k, v in out.items()}
     out["cites"] = cites
     return out
@@ -197,8 +197,8 @@ def run(args) -> int:
     from .export import check_id, with_poly, write_record
     fmt = args.format or CARD_OF_FORM[args.form]
     if fmt == TM4513 and args.form != SEVEN:
-        raise TablegenError(f"--format {TM4513} holds only the 7-coefficient form; use --form {SEVEN}, or "
-                            f"--format {TP2002} or toml")
+        raise InputError(f"--format {TM4513} holds only the 7-coefficient form; use --form {SEVEN}, or "
+                         f"--format {TP2002} or toml")
     if args.out:
         check_files([args.out], args.force)
     lib = data_notices(args)
@@ -213,15 +213,15 @@ def run(args) -> int:
         if bps is None:
             bps = [1000.0]
         if len(bps) != 1 or abs(bps[0] - 1000.0) > 1e-9:
-            raise TablegenError(f"the {TM4513} card format has one breakpoint, at 1000 K; give "
-                                f"--breakpoint 1000K or choose --format toml")
+            raise InputError(f"the {TM4513} card format has one breakpoint, at 1000 K; give "
+                             f"--breakpoint 1000K or choose --format toml")
         if not tab["T_K"][0] < 1000.0 < tab["T_K"][-1]:
-            raise TablegenError(f"the {TM4513} card format needs a table that spans 1000 K; "
-                                f"choose --format toml")
+            raise InputError(f"the {TM4513} card format needs a table that spans 1000 K; "
+                             f"choose --format toml")
     h298 = quantity(args.h298, "molar_energy", "--h298") if args.h298 is not None else None
     s298 = quantity(args.s298, "molar_entropy", "--s298") if args.s298 is not None else None
     if not 0 < args.target_cp < 1:
-        raise TablegenError(f"--target-cp {args.target_cp!r} must lie between 0 and 1 (a relative error)")
+        raise RangeError(f"--target-cp {args.target_cp!r} must lie between 0 and 1 (a relative error)")
     from ..fitting import FitError
     if h298 is None:
         notice(args, "note: h(298.15 K) taken as 0 (a sensible-enthalpy record); give --h298 for the "
@@ -236,7 +236,7 @@ def run(args) -> int:
         raise FitError(f"fit of {args.table} refused: {e}{hint}") from None
     errors = [f for f in check_polynomial(fit.poly, user=True) if f.severity == "error"]
     if errors:
-        raise TablegenError(f"the fit is refused: {errors[0].text}")
+        raise FitError(f"the fit is refused: {errors[0].text}")
     lines = report(fit, tab, args.table)
     for ln in lines:
         notice(args, ln)

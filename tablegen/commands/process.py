@@ -13,7 +13,7 @@ from __future__ import annotations
 import math
 import sys
 
-from ..errors import TablegenError
+from ..errors import InputError, NameLookupError, RangeError
 from .common import add_unit_options, anchor_from_text, datum_from_text, dumps
 
 EXAMPLE = """Gauge pressures (barg, mbarg, kPag, psig) are read against --barometer (default 1.01325 bar).
@@ -118,15 +118,15 @@ def parse_start(text: str, barometer_Pa: float | None = None):
     vals = {}
     for part in str(text).split(","):
         if "=" not in part:
-            raise TablegenError(f"--from {text!r}: write T=300K,P=1bar (temperature and pressure)")
+            raise InputError(f"--from {text!r}: write T=300K,P=1bar (temperature and pressure)")
         k, v = (x.strip() for x in part.split("=", 1))
         if k not in ("T", "P"):
-            raise TablegenError(f"--from: unknown key {k!r}; allowed: T, P")
+            raise NameLookupError(f"--from: unknown key {k!r}; allowed: T, P")
         if k in vals:
-            raise TablegenError(f"--from: {k} given twice")
+            raise InputError(f"--from: {k} given twice")
         vals[k] = v
     if set(vals) != {"T", "P"}:
-        raise TablegenError(f"--from {text!r}: give both T and P, e.g. T=300K,P=1bar")
+        raise InputError(f"--from {text!r}: give both T and P, e.g. T=300K,P=1bar")
     return (temperature_K(vals["T"], "--from T"),
             parse_pressure(vals["P"], "--from P", barometer_Pa=barometer_Pa), vals)
 
@@ -139,9 +139,9 @@ def _number(text: str, what: str, allow_percent: bool = False) -> float:
     try:
         v = float(t) * scale
     except ValueError:
-        raise TablegenError(f"{what} {text!r} is not a number") from None
+        raise InputError(f"{what} {text!r} is not a number") from None
     if not math.isfinite(v):
-        raise TablegenError(f"{what} {text!r} must be finite")
+        raise RangeError(f"{what} {text!r} must be finite")
     return v
 
 
@@ -152,10 +152,10 @@ def step_from_args(args, barometer_Pa: float | None = None) -> tuple[str, dict, 
     if len(chosen) != 1:
         names = ", ".join("--" + d.replace("_", "-") for d in STEP_OPTIONS)
         if not chosen:
-            raise TablegenError(f"no step given; give exactly one of {names}")
-        raise TablegenError(f"{len(chosen)} steps given (" +
-                            ", ".join("--" + d.replace("_", "-") for d, _ in chosen) +
-                            "); give exactly one step per run")
+            raise InputError(f"no step given; give exactly one of {names}")
+        raise InputError(f"{len(chosen)} steps given (" +
+                         ", ".join("--" + d.replace("_", "-") for d, _ in chosen) +
+                         "); give exactly one step per run")
     dest, text = chosen[0]
     step, param, kind = STEP_OPTIONS[dest]
     opt = "--" + dest.replace("_", "-")
@@ -167,24 +167,24 @@ def step_from_args(args, barometer_Pa: float | None = None) -> tuple[str, dict, 
     elif kind == "ratio":
         value = _number(text, opt)
         if value <= 0:
-            raise TablegenError(f"{opt} {text}: a pressure ratio must be above 0 (and >= 1 for this step)")
+            raise RangeError(f"{opt} {text}: a pressure ratio must be above 0 (and >= 1 for this step)")
     elif kind == "temperature":
         value = temperature_K(text, opt)
     else:
         value = quantity(text, "specific_energy", opt)
         if kind == "cooling":
             if value < 0:
-                raise TablegenError(f"{opt} {text}: give the heat removed as a positive amount, "
-                                    f"or use --heat-by for heat added")
+                raise RangeError(f"{opt} {text}: give the heat removed as a positive amount, "
+                                 f"or use --heat-by for heat added")
             value = -value
     params = {param: value}
     if args.eta is not None:
         if step not in ("compress", "expand"):
-            raise TablegenError(f"--eta applies to compression and expansion only, not to {opt}")
+            raise InputError(f"--eta applies to compression and expansion only, not to {opt}")
         params["eta"] = _number(args.eta, "--eta", allow_percent=True)
     if args.boundary_T is not None:
         if step not in ("heat_p", "heat_v"):
-            raise TablegenError(f"--boundary-T applies to heating and cooling steps only, not to {opt}")
+            raise InputError(f"--boundary-T applies to heating and cooling steps only, not to {opt}")
         params["T_boundary_K"] = temperature_K(args.boundary_T, "--boundary-T")
     return step, params, typed
 
@@ -195,13 +195,13 @@ def resolve_substance(args):
     from ..units import pressure_Pa
     if args.incompressible is not None:
         if args.substance is not None:
-            raise TablegenError("give either a gas SUBSTANCE or --incompressible, not both")
+            raise InputError("give either a gas SUBSTANCE or --incompressible, not both")
         if args.h_datum is not None or args.anchor is not None or args.p_ref != "1bar":
-            raise TablegenError("--h-datum, --p-ref and --anchor apply to gases only; an incompressible "
-                                "substance has u = 0 and s = 0 at its datum temperature")
+            raise InputError("--h-datum, --p-ref and --anchor apply to gases only; an incompressible "
+                             "substance has u = 0 and s = 0 at its datum temperature")
         return incompressible(args.incompressible)
     if args.substance is None:
-        raise TablegenError("no substance given; name a gas (e.g. air, N2) or use --incompressible")
+        raise InputError("no substance given; name a gas (e.g. air, N2) or use --incompressible")
     sub = api.substance(args.substance, source=args.source, data=args.data)
     return sub.with_options(datum=datum_from_text(args.h_datum, sub, by_rule=True),
                             P_ref_Pa=pressure_Pa(args.p_ref or "1bar", "--p-ref"),
@@ -362,8 +362,8 @@ def run(args) -> int:
     step, params, typed_step = step_from_args(args, baro)
     flow = parse_flow(args.flow) if args.flow is not None else None
     if flow is not None and step == "heat_v":
-        raise TablegenError(f"--flow applies to steady-flow steps (machines, heaters, valves), not to "
-                            f"{typed_step['option']}, a closed rigid vessel")
+        raise InputError(f"--flow applies to steady-flow steps (machines, heaters, valves), not to "
+                         f"{typed_step['option']}, a closed rigid vessel")
     kind = typed_step["kind"]
     typed_T = [start_typed["T"]] + ([typed_step["text"]] if kind == "temperature" else [])
     typed_P = [start_typed["P"]] + ([typed_step["text"]] if kind == "pressure" else [])

@@ -5,7 +5,7 @@ from __future__ import annotations
 import math
 
 from ..composition import SUM_TOLERANCE, write
-from ..errors import TablegenError
+from ..errors import DataError, InputError, NameLookupError, RangeError, TablegenError
 from .polynomial import combine
 from .substance import Component, Substance
 
@@ -21,19 +21,19 @@ def species_substance(rec) -> Substance:
 def normalise(fractions: dict, what: str = "composition") -> dict:
     """Check and normalise fractions: finite, >= 0, summing to 1 within 1e-6."""
     if not fractions:
-        raise TablegenError(f"{what}: no components given; give at least one species with its fraction")
+        raise InputError(f"{what}: no components given; give at least one species with its fraction")
     out = {}
     for k, v in fractions.items():
         try:
             x = float(v)
         except (TypeError, ValueError):
-            raise TablegenError(f"{what}: fraction of {k!r} is not a number ({v!r})") from None
+            raise InputError(f"{what}: fraction of {k!r} is not a number ({v!r})") from None
         if not math.isfinite(x) or x < 0:
-            raise TablegenError(f"{what}: fraction of {k!r} is {v!r}; fractions must be finite and >= 0")
+            raise RangeError(f"{what}: fraction of {k!r} is {v!r}; fractions must be finite and >= 0")
         out[k] = x
     total = sum(out.values())
     if abs(total - 1.0) > SUM_TOLERANCE:
-        raise TablegenError(f"{what}: fractions sum to {total:.9g}; they must sum to 1 within {SUM_TOLERANCE:g}")
+        raise InputError(f"{what}: fractions sum to {total:.9g}; they must sum to 1 within {SUM_TOLERANCE:g}")
     return {k: v / total for k, v in out.items()}
 
 
@@ -47,16 +47,16 @@ def mixture_substance(records_fractions, basis: str = "mole", *, id: str | None 
     basis : "mole" or "mass"
     """
     if basis not in ("mole", "mass"):
-        raise TablegenError(f"{what}: basis {basis!r} is not known; allowed: mole, mass")
+        raise NameLookupError(f"{what}: basis {basis!r} is not known; allowed: mole, mass")
     seen = {}
     for rec, _ in records_fractions:
         if rec.id in seen:
-            raise TablegenError(f"{what}: species {rec.id!r} is given twice")
+            raise InputError(f"{what}: species {rec.id!r} is given twice")
         seen[rec.id] = rec
     fr = normalise({rec.id: x for rec, x in records_fractions}, what)
     recs = [(seen[k], x) for k, x in fr.items() if x > 0]
     if not recs:
-        raise TablegenError(f"{what}: every fraction is zero")
+        raise InputError(f"{what}: every fraction is zero")
     if basis == "mass":
         n = {r.id: w / r.M for r, w in recs}
         tot = sum(n.values())
@@ -68,7 +68,7 @@ def mixture_substance(records_fractions, basis: str = "mole", *, id: str | None 
     try:
         poly = combine([r.poly for r, _ in recs], [y[r.id] for r, _ in recs], extra_s=mix_s)
     except TablegenError as e:
-        raise TablegenError(f"{what}: {e}") from None
+        raise DataError(f"{what}: {e}") from None
     comps = tuple(Component(r.id, y[r.id], y[r.id] * r.M / M, r.M, r.dataset) for r, _ in recs)
     if id is None:
         id = write({c.id: c.mole_fraction for c in comps})

@@ -20,7 +20,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from ..constants import P_STD, R_MOLAR, T_REF  # noqa: F401  (re-exported)
-from ..errors import DataRangeError, InputError, RangeError, TablegenError
+from ..errors import DataRangeError, InputError, NameLookupError, RangeError
 from .polynomial import Polynomial
 
 #: The function that gives U_<key> columns for ``properties(uncertainty=True)``. The
@@ -76,9 +76,9 @@ class Datum:
 
     def __post_init__(self):
         if self.kind not in ("formation", "sensible"):
-            raise TablegenError(f"enthalpy datum {self.kind!r} is not known; allowed: formation, sensible")
+            raise NameLookupError(f"enthalpy datum {self.kind!r} is not known; allowed: formation, sensible")
         if not (math.isfinite(self.T_ref_K) and self.T_ref_K > 0):
-            raise TablegenError(f"enthalpy datum temperature {self.T_ref_K} K must be above 0 K")
+            raise RangeError(f"enthalpy datum temperature {self.T_ref_K} K must be above 0 K")
 
     def describe(self) -> str:
         if self.kind == "formation":
@@ -151,7 +151,7 @@ class Anchor:
     def __post_init__(self):
         for name, v in (("temperature", self.T_K), ("Pr", self.Pr), ("vr", self.vr)):
             if not (math.isfinite(v) and v > 0):
-                raise TablegenError(f"Pr/vr anchor {name} must be a positive number, got {v}")
+                raise RangeError(f"Pr/vr anchor {name} must be a positive number, got {v}")
 
 
 @dataclass(frozen=True, slots=True)
@@ -197,7 +197,7 @@ class Substance:
                      anchor: Anchor | None = None) -> Substance:
         """The same substance with another datum, reference pressure or anchor."""
         if P_ref_Pa is not None and not (math.isfinite(P_ref_Pa) and P_ref_Pa > 0):
-            raise TablegenError(f"reference pressure {P_ref_Pa} Pa must be positive")
+            raise RangeError(f"reference pressure {P_ref_Pa} Pa must be positive")
         return replace(self, datum=datum or self.datum,
                        P_ref_Pa=self.P_ref_Pa if P_ref_Pa is None else float(P_ref_Pa),
                        anchor=anchor or self.anchor, _cache={})
@@ -322,10 +322,10 @@ class Substance:
             want = set(keys)
             unknown = want - set(_PROPERTY_KEYS) - {"s", "s_molar", "v", "rho", "P_Pa", "T_K"}
             if unknown:
-                raise TablegenError(f"unknown property key {sorted(unknown)[0]!r}; allowed: "
-                                    + ", ".join(_PROPERTY_KEYS) + ", s, s_molar, v, rho (with P)")
+                raise NameLookupError(f"unknown property key {sorted(unknown)[0]!r}; allowed: "
+                                      + ", ".join(_PROPERTY_KEYS) + ", s, s_molar, v, rho (with P)")
             if P is None and want & {"s", "s_molar", "v", "rho", "P_Pa"}:
-                raise TablegenError("keys s, s_molar, v, rho need pressures P")
+                raise InputError("keys s, s_molar, v, rho need pressures P")
         funcs = set()
         for key in want:
             funcs.update(_FUNCTIONS.get(key, ""))
@@ -533,7 +533,7 @@ class Substance:
                 return f, cp
             return f - (R_MOLAR / Mk) * T, cp - R_MOLAR / Mk
         if base not in ("s0", "Pr", "vr"):
-            raise TablegenError(f"cannot solve for T from {key!r}; allowed: {', '.join(INVERTIBLE)}")
+            raise NameLookupError(f"cannot solve for T from {key!r}; allowed: {', '.join(INVERTIBLE)}")
         raw = self.poly.evaluate(T, want=("cp", "s"))
         cpR, sR = raw["cp"], raw["s"]
         c = self._constants()
@@ -607,7 +607,7 @@ class Substance:
         iteration does not converge.
         """
         if key not in INVERTIBLE:
-            raise TablegenError(f"cannot solve for T from {key!r}; allowed: {', '.join(INVERTIBLE)}")
+            raise NameLookupError(f"cannot solve for T from {key!r}; allowed: {', '.join(INVERTIBLE)}")
         y = _as_numbers(values, f"{self.id}: values of {key}", "in SI units")
         shape = y.shape
         if key == "Pr":
