@@ -39,6 +39,7 @@ import numpy as np
 
 # The key tables, tolerances and outputs live in companion modules; their public
 # names are re-exported here so that ``tablegen.compare`` stays the one entry point.
+from .compare_keys import NUMBER as _NUMBER, last_place as _quantum
 from .compare_keys import (ALIGNABLE, CHANGE_FLOOR_MOLAR, CHANGE_KEYS, CHANGE_REL, DEFAULT_REL,  # noqa: F401
                            KEY_DIMENSIONS, KEY_LABELS, MEAN_KEYS, T_CHANGE_FROM, VOL_KEYS,
                            VOLUME_REFERENCES)
@@ -112,20 +113,8 @@ UNCERTAINTY_PREFIX = "U_"
 
 _HEADER_CELL = re.compile(r"^\s*([A-Za-z][A-Za-z0-9_]*)\s*\[([^\[\]]*)\]\s*$")
 _HEADER_WS = re.compile(r"([A-Za-z][A-Za-z0-9_]*)\s*\[([^\[\]]*)\]")
-_NUMBER = re.compile(r"^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$")
-
-
 def _allowed_keys() -> str:
     return "T, " + ", ".join(KEY_DIMENSIONS)
-
-
-def _quantum(text: str) -> float:
-    """One unit in the last printed place of a number's text ('29.104' -> 0.001)."""
-    m = _NUMBER.match(text)
-    mant, exp = m.group(1), m.group(2)
-    decimals = len(mant.split(".", 1)[1]) if "." in mant else 0
-    e = int(exp[1:]) if exp else 0
-    return 10.0 ** min(max(e - decimals, -400), 300)     # the cell is finite, so its exponent is too
 
 
 def read_reference(path) -> Reference:

@@ -31,7 +31,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .compare_keys import ALIGNABLE, KEY_LABELS
+from .compare_keys import ALIGNABLE, KEY_LABELS, last_place
 
 #: Reference pressures a handbook may use, Pa: 1 bar (IUPAC since 1982) and 1 atm (older tables).
 P_REF_CANDIDATES = {"1bar": 1e5, "1atm": 101325.0}
@@ -77,8 +77,7 @@ def format_constant(value: float, quantum: float | None = None, sig: int = 6) ->
 
 
 def _quantum(col) -> float | None:
-    from .compare import _quantum as q
-    qs = [q(t) for t, p in zip(col.text, col.present) if p and t]
+    qs = [last_place(t) for t, p in zip(col.text, col.present) if p and t]
     return min(qs) if qs else None
 
 

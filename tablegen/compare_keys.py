@@ -6,7 +6,21 @@ Shared by the reading, judging, hint and output modules of the comparison
 
 from __future__ import annotations
 
+import re
+
 from .units import PSI
+
+#: A number as a reference table prints it (sign, digits, optional point and exponent).
+NUMBER = re.compile(r"^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$")
+
+
+def last_place(text: str) -> float:
+    """One unit in the last printed place of a number's text ('29.104' -> 0.001)."""
+    m = NUMBER.match(text)
+    mant, exp = m.group(1), m.group(2)
+    decimals = len(mant.split(".", 1)[1]) if "." in mant else 0
+    e = int(exp[1:]) if exp else 0
+    return 10.0 ** min(max(e - decimals, -400), 300)     # the cell is finite, so its exponent is too
 
 #: Property key -> unit dimension, for every key a REFERENCE column may carry.
 #: Pressure-dependent keys (s, v, rho) are left out: a reference table of
