@@ -33,3 +33,16 @@ def test_a_wrong_import_breaks_a_contract(tmp_path, monkeypatch):
     for name in [m for m in list(__import__("sys").modules) if m == "tablegen" or m.startswith("tablegen.")]:
         monkeypatch.delitem(__import__("sys").modules, name)
     assert _lint(tmp_path, monkeypatch) != 0
+
+
+def test_no_import_cycles():
+    # grimp (import-linter's import graph) sees every import, lazy ones included
+    import grimp
+    graph = grimp.build_graph("tablegen")
+    cycles = set()
+    for module in graph.modules:
+        for imported in graph.find_modules_directly_imported_by(module):
+            chain = graph.find_shortest_chain(importer=imported, imported=module)
+            if chain:
+                cycles.add(" -> ".join((module, *chain)))
+    assert not cycles, "import cycles:\n" + "\n".join(sorted(cycles))

@@ -12,8 +12,8 @@ from pathlib import Path
 
 from ..errors import InputError, NameLookupError
 from .common import dumps, notice
-from .compare import (FILES, _is_spec, _keys, _refuse_datum_options, data_files, default_out, hint_lines,
-                      load_spec, write_outputs)
+from .compare_table import (FILES, _is_spec, _keys, _refuse_datum_options, data_files, default_out, hint_lines,
+                            load_spec, write_outputs)
 
 
 def _split_scoped(values, flag: str, tables) -> dict:
