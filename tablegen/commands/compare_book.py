@@ -13,7 +13,7 @@ from pathlib import Path
 from ..errors import InputError, NameLookupError
 from .common import dumps, notice
 from .compare_table import (FILES, _is_spec, _keys, _refuse_datum_options, data_files, default_out, hint_lines,
-                            load_spec, write_outputs)
+                            load_spec, publish)
 
 
 def _split_scoped(values, flag: str, tables) -> dict:
@@ -183,11 +183,8 @@ def book_text(bc) -> str:
 def run_book(args) -> int:
     from ..compare_output import book_summary
     bc, files, notes = compute_book(args)
-    notes += write_outputs(files, args.force, [f"issue: comparison of book {bc.spec.get('name', '')} against "
-                                               f"the folder {bc.folder.path}: "
-                                               f"{'PASS' if bc.passed else 'FAIL'}"])
-    for n in notes:
-        notice(args, n)
+    publish(args, files, notes, f"issue: comparison of book {bc.spec.get('name', '')} against "
+                                f"the folder {bc.folder.path}: {'PASS' if bc.passed else 'FAIL'}")
     sys.stdout.write(dumps(book_summary(bc)) if args.json else book_text(bc))
     if args.json:                        # the text summary already states them
         for n in bc.folder.notes:

@@ -266,6 +266,12 @@ def hint_lines(hints, prefix: str = "") -> list[str]:
     return [f"hint: {prefix}{h.text}" for h in hints]
 
 
+def publish(args, files: dict, notes: list, about: str) -> None:
+    """Write the comparison's files as one issue (``about`` its manifest line) and give the notes."""
+    for n in notes + write_outputs(files, args.force, [about]):
+        notice(args, n)
+
+
 def run_table(args) -> int:
     """``tablegen compare`` against one reference table (a folder goes to compare_book.run_book)."""
     if getattr(args, "edition", None) is not None:
@@ -274,11 +280,8 @@ def run_table(args) -> int:
     from ..compare_hints import suggested_options
     from ..compare_output import summary
     cmp, files, notes = compute(args)
-    notes += write_outputs(files, args.force, [f"issue: comparison of {cmp.options.get('target') or cmp.substance['id']} "
-                                               f"against {cmp.reference.path} (sha256 {cmp.reference.sha256}): "
-                                               f"{cmp.verdict}"])
-    for n in notes:
-        notice(args, n)
+    publish(args, files, notes, f"issue: comparison of {cmp.options.get('target') or cmp.substance['id']} "
+                                f"against {cmp.reference.path} (sha256 {cmp.reference.sha256}): {cmp.verdict}")
     if args.json:
         sys.stdout.write(dumps(summary(cmp)))
     else:
