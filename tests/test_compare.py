@@ -264,6 +264,27 @@ def test_report_bytes_are_reproducible(tmp_path, capsys):
     assert f"page 1 of {len(pages)}" in first
 
 
+def test_listing_holds_every_reference_cell_in_row_order(tmp_path, capsys):
+    """The listing pages (drawn in batched text objects) read back, by position, as every
+    row's temperature and reference cells of the NIST-JANAF 4th ed. CO table, in row order."""
+    import pypdf
+    ref = write_janaf_csv(tmp_path / "janaf-CO.csv", "CO")
+    assert run(["compare", "CO", ref, "--out", tmp_path / "a"], capsys)[0] == 0
+    lines = []
+    for page in pypdf.PdfReader(str(tmp_path / "a" / "report.pdf")).pages:
+        if "Side-by-side listing" in page.extract_text():
+            lines += page.extract_text(extraction_mode="layout").splitlines()
+    rows = [r.split(",") for r in ref.read_text(encoding="utf-8").splitlines()[2:]]
+    k = 0
+    for r in rows:
+        while k < len(lines) and not (lines[k].split()[1:2] == [r[0]]):
+            k += 1
+        assert k < len(lines), f"row T = {r[0]} missing from the listing"
+        words = lines[k].split()
+        assert [w.replace("\u2212", "-") for w in words[2::3]] == r[1:], (r, words)
+        k += 1
+
+
 def test_extrapolated_rows_are_marked(tmp_path, capsys):
     """Rows beyond the data range are refused, or with --extrapolate compared and marked."""
     ref = tmp_path / "hot.csv"

@@ -86,6 +86,38 @@ def draw_text(c, x, y, s, font=fonts.SANS, size=8.5, color=INK, align="left"):
         c.drawString(x, y, s)
 
 
+def queue_text(c, x, y, s, font, size, color=INK, align="left"):
+    """Like draw_text, but held back and drawn with the page's other queued cells by
+    flush_text: one text object per font, size and colour (the book pages' batched cell
+    drawing), for listings of many thousand cells. Same glyphs at the same places."""
+    if not s:
+        return
+    if align != "left":
+        from reportlab.pdfbase.pdfmetrics import stringWidth
+        w = stringWidth(s, font, size)
+        x -= w if align == "right" else w / 2
+    q = DRAW_STATE.setdefault(id(c), {}).setdefault("queue", {})
+    q.setdefault((font, size, tuple(color)), []).append((x, y, s))
+
+
+def flush_text(c):
+    """Draw the text queued by queue_text (call before the page ends)."""
+    from .pdf import _draw_cells
+    q = DRAW_STATE.setdefault(id(c), {}).pop("queue", None)
+    for (font, size, color), cells in (q or {}).items():
+        set_fill(c, *color)
+        _draw_cells(c, font, size, cells)
+
+
+def set_stroke(c, rgb, width):
+    """Stroke colour and line width, skipping operators that change nothing (big listings)."""
+    st = DRAW_STATE.setdefault(id(c), {})
+    if st.get("stroke") != (rgb, width):
+        c.setStrokeColorRGB(*rgb)
+        c.setLineWidth(width)
+        st["stroke"] = (rgb, width)
+
+
 def wrap_text(s: str, font: str, size: float, width: float) -> list[str]:
     from reportlab.pdfbase.pdfmetrics import stringWidth
     out, line = [], ""

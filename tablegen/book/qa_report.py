@@ -32,8 +32,9 @@ import numpy as np
 
 from . import fonts
 from .qa_layout import (BOTTOM, DRAW_STATE, EXTRAP_MARK, FAIL_FILL, FAIL_INK, GREY, INK, MARGIN, OUT_MARK,
-                        PAGE_H, PAGE_W, PASS_FILL, PASS_INK, RULE, WIDTH, Flow, draw_text, fit_text,
-                        forget_state, heading, paragraph, ruled_table, set_fill, wrap_text)
+                        PAGE_H, PAGE_W, PASS_FILL, PASS_INK, RULE, WIDTH, Flow, draw_text, fit_text, flush_text,
+                        forget_state, heading, paragraph, queue_text, ruled_table, set_fill, set_stroke,
+                        wrap_text)
 from .qa_plots import plots
 
 MINUS = "−"
@@ -316,11 +317,12 @@ def _listing(flow, cmp, table: str = ""):
                 flow.add(2 * lead, head)
 
             def row(c, y, i=i, group=group):
+                # cells are queued and drawn per page in one text object per colour (flush_text)
                 base = y - lead + 2.6
                 ext = bool(cmp.extrapolated[i])
-                draw_text(c, MARGIN + w_line - 2, base, str(ref.lines[i]), fonts.MONO, size, GREY, "right")
-                draw_text(c, MARGIN + w_line + w_T - 2, base, ref.T_text[i] + (EXTRAP_MARK if ext else " "),
-                      fonts.MONO, size, INK, "right")
+                queue_text(c, MARGIN + w_line - 2, base, str(ref.lines[i]), fonts.MONO, size, GREY, "right")
+                queue_text(c, MARGIN + w_line + w_T - 2, base, ref.T_text[i] + (EXTRAP_MARK if ext else " "),
+                           fonts.MONO, size, INK, "right")
                 x = MARGIN + w_line + w_T
                 for col in group:
                     gw = w_ref + w_tg + w_d + w_m
@@ -336,17 +338,15 @@ def _listing(flow, cmp, table: str = ""):
                         cells = ("—", _pair("", np.nan, col.tablegen[i], w_tg - 3, size)[1], "")
                     for s, ww in zip(cells, (w_ref, w_tg, w_d)):
                         x += ww
-                        draw_text(c, x - 2, base, fit_text(s.replace("-", "−"), fonts.MONO, size, ww - 3), fonts.MONO,
-                              size, ink, "right")
+                        queue_text(c, x - 2, base, fit_text(s.replace("-", "−"), fonts.MONO, size, ww - 3),
+                                   fonts.MONO, size, ink, "right")
                     if bad:
-                        draw_text(c, x + w_m / 2, base, OUT_MARK, fonts.SANS_BOLD, size + 0.6, FAIL_INK, "center")
-                    c.setStrokeColorRGB(*RULE)
-                    c.setLineWidth(0.3)
+                        queue_text(c, x + w_m / 2, base, OUT_MARK, fonts.SANS_BOLD, size + 0.6, FAIL_INK, "center")
+                    set_stroke(c, RULE, 0.3)
                     c.line(x + w_m, y, x + w_m, y - lead)
                     x += w_m
                 if i % 5 == 4:
-                    c.setStrokeColorRGB(*RULE)
-                    c.setLineWidth(0.25)
+                    set_stroke(c, RULE, 0.25)
                     c.line(MARGIN, y - lead, x, y - lead)
             flow.add(lead, row)
         if aligned_any:
@@ -509,6 +509,7 @@ def _render(flow, *, title, subject, version, ok, right, foot) -> bytes:
             _running(c, k, total, ok, right, f"{foot}  tablegen {version}")
             for y, draw in page:
                 draw(c, y)
+            flush_text(c)
             c.showPage()
         c.save()
     finally:
