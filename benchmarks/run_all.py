@@ -163,7 +163,7 @@ def spec_for_pages(d: Path, pages: int) -> Path:
     rows = 200
     for _ in range(3):
         p.write_text(spec_text(rows), encoding="utf-8")
-        out = d / f"probe-{rows}"
+        out = d / f"probe-{pages}-{rows}"
         run(["build", str(p), "--out", str(out)])
         got = pdf_pages(out)
         if abs(got - pages) <= max(2, pages // 50):
@@ -199,7 +199,6 @@ def books(repeat: int) -> None:
     with tempfile.TemporaryDirectory() as d:
         d = Path(d)
         spec = spec_for_pages(d, 100)
-        n = pdf_pages(d / next(x.name for x in d.iterdir() if x.name.startswith("probe-")))
         k = [0]
 
         def build():
@@ -212,7 +211,6 @@ def books(repeat: int) -> None:
             "≤ 0.6 s")
         t_cold = cold(["build", str(spec), "--out", str(d / "cold"), "--quiet", "--force"], max(2, repeat // 2))
         row(f"{pages}-page book, cold `tablegen build`", f"{t_cold:.2f} s", "", "≤ 1.0 s")
-        del n
         spec5 = spec_for_pages(d, 500)
         code = ("import resource, sys; from tablegen import cli; "
                 f"rc = cli.main(['build', {str(spec5)!r}, '--out', {str(d / 'b500')!r}, '--quiet', '--force']); "
