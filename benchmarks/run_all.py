@@ -139,17 +139,7 @@ def engine(repeat: int) -> None:
 
 
 # ------------------------------------------------------------------ books
-SPECIES = ["air", "N2", "O2", "CO2", "H2O"]
-
-
-def spec_text(rows_per_table: int) -> str:
-    lines = ['[document]', 'title = "Benchmark book"', 'number = "BM-100"', 'revision = "A"',
-             'issue_date = 2026-11-30', 'paper = "A4"', '']
-    for s in SPECIES:
-        stop = 200 + (rows_per_table - 1)
-        lines += ['[[tables]]', f'name = "bench-{s}"', f'substance = "{s}"',
-                  f'grid = {{ segments = [ {{ start = "200 K", stop = "{stop} K", step = "1 K" }} ] }}', '']
-    return "\n".join(lines)
+from bench_book import spec_text  # noqa: E402  (the benchmark book of benchmarks/bench_book.py)
 
 
 def pdf_pages(folder: Path) -> int:

@@ -8,7 +8,6 @@
 
 from __future__ import annotations
 
-
 from . import composition
 from .data.library import library, norm_name
 from .data.mixtures import shipped_mixtures

@@ -2,7 +2,8 @@
 
 Core layer: plain arithmetic, no thermodynamics, no numpy. Each caller used to carry its
 own copy; they differed only in which end of the sequence they walk from, so this module
-offers the two walks (down from a span, up to a raw step) over one mantissa table.
+offers the walks (down from a span, up to a raw step, down from the decade above a span)
+over one mantissa table.
 """
 
 from __future__ import annotations

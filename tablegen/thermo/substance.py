@@ -25,7 +25,7 @@ from .polynomial import Polynomial
 
 #: The function that gives U_<key> columns for ``properties(uncertainty=True)``. The
 #: budget lives in the calc layer, above this one, so thermo never imports it: the
-#: public API registers it (tablegen/__init__.py) through :func:`use_uncertainty_columns`.
+#: public API registers it (tablegen/api.py) through :func:`use_uncertainty_columns`.
 _UNCERTAINTY_COLUMNS: list = []
 
 
