@@ -30,7 +30,7 @@ def spec_text(rows_per_table: int) -> str:
 
 
 def main() -> int:
-    from tablegen import spec as specmod
+    from tablegen.spec import book as specmod
     from tablegen.book import csvout, jsonout, model, pdf
     from tablegen.book.fonts import register
     register()

@@ -13,7 +13,7 @@ import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 import tablegen  # noqa: E402
-from tablegen import uncertainty as un  # noqa: E402
+from tablegen.calc import uncertainty as un  # noqa: E402
 
 
 def timed(label, f, repeat=5):

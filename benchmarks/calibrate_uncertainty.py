@@ -3,7 +3,7 @@ python3 benchmarks/calibrate_uncertainty.py).
 
 For each reference R (NIST-JANAF, the IAPWS-95 ideal-gas part, the ideal-gas
 parts of CoolProp's reference equations of state) the data part of the budget is
-rebuilt without R and checked against R (tablegen.calibration): the share of R's
+rebuilt without R and checked against R (tablegen.calc.calibration): the share of R's
 points inside U (k = 2) and the median of U / |deviation|. Printed: the default
 sources of N2, O2, CO, Ar, CO2, H2O, SO2 over 200-3000 K, and, as a check of the
 budget of a less accurate set, NASA TM-4513 (nasa1993) against CoolProp for 20
@@ -17,7 +17,7 @@ from pathlib import Path
 import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
-from tablegen import calibration as cal  # noqa: E402
+from tablegen.calc import calibration as cal  # noqa: E402
 from tablegen.data.library import library  # noqa: E402
 
 NASA1993_FLUIDS = ("N2", "O2", "Ar", "CO2", "H2O", "CH4", "CO", "H2", "C2H6", "C3H8", "NH3", "SO2",

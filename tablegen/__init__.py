@@ -11,10 +11,11 @@ __version__ = "0.1.0"
 
 #: public name -> module that defines it (imported on first use)
 _API = {
-    "substance": "api", "mixture": "api", "Substance": "api", "Datum": "api", "Anchor": "api",
-    "shipped_mixtures": "api",
-    "combustion": "burn",     # fuels, oxidants, combustion products
-    "process": "steps",       # state changes and method comparison
+    "substance": "calc.names", "mixture": "calc.names", "Substance": "calc.names", "Datum": "calc.names",
+    "Anchor": "calc.names",
+    "shipped_mixtures": "calc.names",
+    "combustion": "calc.burn",    # fuels, oxidants, combustion products
+    "process": "calc.steps",      # state changes and method comparison
 }
 
 

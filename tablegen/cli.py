@@ -14,7 +14,7 @@ import importlib.util
 import sys
 
 from . import __version__
-from .errors import DataRangeError, TablegenError, Terminated, UsageError
+from .core.errors import DataRangeError, TablegenError, Terminated, UsageError
 
 #: (command, module, one-line summary) in the order --help lists them.
 COMMANDS = [
@@ -149,7 +149,7 @@ def _restore(saved: dict) -> None:
 
 
 def main(argv=None) -> int:
-    from . import outfiles
+    from .core import outfiles
     from .commands import common
     argv = _join_negative_values(list(sys.argv[1:] if argv is None else argv))
     saved = _catch_termination()

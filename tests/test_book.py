@@ -28,7 +28,8 @@ from tablegen.data.library import library
 from pypdf import PdfReader
 
 import tablegen
-from tablegen import cli, spec
+from tablegen import cli
+from tablegen.spec import book as spec
 from tablegen.book import model
 from tablegen.book.build import Bar
 from tablegen.data.library import gasdata_dir

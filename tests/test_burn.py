@@ -1,4 +1,4 @@
-"""Tests of tablegen.burn (combustion) and tablegen.saturation (water saturation).
+"""Tests of tablegen.calc.burn (combustion) and tablegen.thermo.saturation (water saturation).
 
 Each reference check names its source beside it. Values recalled rather than read
 from the document are marked "from memory".
@@ -16,10 +16,10 @@ from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
 import tablegen
-from tablegen import burn, flue
+from tablegen.calc import burn, flue
 from tablegen.data.library import library
-from tablegen.errors import SpecError, TablegenError
-from tablegen.saturation import T_sat_K, h_vap_J_per_kg, p_sat_Pa
+from tablegen.core.errors import SpecError, TablegenError
+from tablegen.thermo.saturation import T_sat_K, h_vap_J_per_kg, p_sat_Pa
 
 ROOT = Path(__file__).resolve().parent.parent
 LIB = library()

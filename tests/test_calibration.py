@@ -1,4 +1,4 @@
-"""Held-out calibration of the stated data uncertainty (tablegen.calibration).
+"""Held-out calibration of the stated data uncertainty (tablegen.calc.calibration).
 
 References, each left out of the budget it checks: NIST-JANAF Thermochemical
 Tables, 4th ed. (Chase 1998, via the `janaf` package); the IAPWS-95 ideal-gas
@@ -17,7 +17,7 @@ import math
 import numpy as np
 import pytest
 
-from tablegen import calibration as cal
+from tablegen.calc import calibration as cal
 
 COVERAGE_MIN = 0.95
 RATIO_MAX = 5.0
@@ -122,7 +122,7 @@ def test_held_out_budget_drops_the_reference_and_the_refit_residual():
     JANAF) and every figure against the JANAF table; leaving the equations out removes
     the CoolProp and eos-ideal figures."""
     from tablegen.data.library import library
-    from tablegen.evidence import by_species, load_agreement, species_data
+    from tablegen.calc.evidence import by_species, load_agreement, species_data
     rec = library().record("CO2")
     T = np.array([500.0, 1500.0])
     rows = by_species(load_agreement())
@@ -137,7 +137,7 @@ def test_held_out_budget_drops_the_reference_and_the_refit_residual():
 def test_lazy_agreement_index_equals_the_whole_files():
     # the per-species index a book reads gives the rows of a whole parse of every shipped
     # agreement file (and the computed spread), species by species, in the same order
-    from tablegen.evidence import agreement_index, by_species, load_agreement
+    from tablegen.calc.evidence import agreement_index, by_species, load_agreement
     whole = by_species(load_agreement())
     index = agreement_index()
     for sid in sorted(whole):

@@ -13,8 +13,8 @@ import pytest
 import tablegen
 from tablegen.book import charts as C
 from tablegen.cli import main
-from tablegen.errors import SpecError
-from tablegen.units import unit
+from tablegen.core.errors import SpecError
+from tablegen.core.units import unit
 
 #: Pure arithmetic on the same engine values: only floating-point round-off differs.
 RTOL_SAME = 1e-9
@@ -346,7 +346,7 @@ def test_draw_chart_into_a_portrait_book_box(air):
     import pypdf
     text = pypdf.PdfReader(io.BytesIO(buf.getvalue())).pages[0].extract_text()
     assert "page 3 of 9" in text and "GT-2" in text
-    with pytest.raises(tablegen.errors.TablegenError, match="too small"):
+    with pytest.raises(tablegen.core.errors.TablegenError, match="too small"):
         C.layout(200.0, 150.0)
 
 
@@ -384,7 +384,7 @@ def test_overlay_machine_step_identities(T1, ratio, eta, expand):
     try:
         spec, = charts({"kind": "ts", "overlays": [{"start": {"T": f"{T0}K", "P": "2bar"}, "steps": [step]}]})
         m = C.build_chart(air, spec, T_range_K=(250.0, 1500.0))
-    except tablegen.errors.TablegenError as e:
+    except tablegen.core.errors.TablegenError as e:
         # a large expansion ratio from a cold start leaves the 200 K end of the data:
         # refusing it is the documented behaviour, not a broken identity
         assert "leaves the data range" in str(e)

@@ -164,7 +164,7 @@ def test_every_command_names_only_an_extrapolation_option_it_has(capsys):
     assert code == 2 and _options_named(err) == ["--extrapolate"]
     code, out, err = run(capsys, "state", "CO2", "--T", "150K", "--extrapolate")
     assert code == 0 and "150" in out
-    from tablegen.errors import DataRangeError
+    from tablegen.core.errors import DataRangeError
     e = DataRangeError("CO2: T = 150 K is outside the data range 200-6000 K", "200 to 6000 K")
     assert "extrapolate=True" in str(e)                      # the Python API's keyword
     assert str(e.offering(None)) == "CO2: T = 150 K is outside the data range 200-6000 K; allowed: 200 to 6000 K"

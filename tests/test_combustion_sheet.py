@@ -233,7 +233,7 @@ def test_flue_name_and_spec_table_carry_the_o2_uncertainty(capsys, tmp_path):
     name = "flue@CH4=0.9±0.01,N2=0.1@o2-dry=3%±0.2%"
     sub = tablegen.substance(name)
     assert sub.origin.uncertainty is not None and sub.origin.summary["amount_given"]["U_k2"] == 0.2
-    from tablegen import flue
+    from tablegen.calc import flue
     s2 = flue.substance_from_spec({"fuel": {"composition": {"CH4": 90, "N2": 10}, "uncertainty": {"CH4": "1%"}},
                                    "o2_dry": "3%±0.2%"}, "tables[0].substance")
     assert s2.origin.uncertainty.U("lambda") == pytest.approx(sub.origin.uncertainty.U("lambda"), rel=1e-9)

@@ -22,8 +22,8 @@ import pytest
 
 from tablegen import cli
 from tablegen.book.qa_report import OUT_MARK
-from tablegen.compare import compare, parse_tolerance, read_reference
-from tablegen.units import unit
+from tablegen.calc.compare import compare, parse_tolerance, read_reference
+from tablegen.core.units import unit
 
 import janaf  # a test dependency (pyproject [test]): missing, it is a failure, not a skip
 
@@ -763,7 +763,7 @@ def test_default_output_folder_is_named_after_substance_and_reference(tmp_path, 
 def test_deviations_read_as_numbers_with_signs_and_labels_as_words(tmp_path, capsys):
     """Δ to two significant figures with its sign (common practice for reporting deviations); a
     dimensionless unit is not printed (its '-' read as a minus); labels in words."""
-    from tablegen.compare_output import format_dev
+    from tablegen.calc.compare_output import format_dev
     assert [format_dev(v) for v in (-298.3, -0.3614, 0.000123, 1.234e-7, 9.96, 0.0)] == \
         ["-300", "-0.36", "+0.00012", "+1.2e-7", "+10", "0"]
     write_air_from_memory(tmp_path / "air.txt")
@@ -811,8 +811,8 @@ def test_datum_plus_one_wrong_cell_is_hinted_as_such(tmp_path, capsys):
 
 
 def test_a_missing_reference_column_is_a_name_error_naming_the_columns(tmp_path):
-    from tablegen.compare import read_reference
-    from tablegen.errors import NameLookupError
+    from tablegen.calc.compare import read_reference
+    from tablegen.core.errors import NameLookupError
     p = tmp_path / "ref.csv"
     p.write_text("T [K],cp [kJ/(kg K)]\n300,1.005\n400,1.013\n", encoding="utf-8")
     with pytest.raises(NameLookupError, match="no column .h.; allowed: cp"):

@@ -1,4 +1,4 @@
-"""Compositions and oxidants typed as text (tablegen.composition, tablegen.burn).
+"""Compositions and oxidants typed as text (tablegen.core.composition, tablegen.calc.burn).
 
 Identities and refusals: percentages and fractions of the same analysis give the
 same doubles and the same results everywhere a composition is typed; the former
@@ -13,10 +13,10 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 import tablegen
-from tablegen import burn
+from tablegen.calc import burn
 from tablegen.cli import main
-from tablegen.composition import colon_form_fix, parse, write
-from tablegen.errors import TablegenError
+from tablegen.core.composition import colon_form_fix, parse, write
+from tablegen.core.errors import TablegenError
 
 FRACTIONS = "CH4=0.9,C2H6=0.06,N2=0.04"
 PERCENT = "CH4=90%,C2H6=6%,N2=4%"

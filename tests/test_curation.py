@@ -26,7 +26,7 @@ from CoolProp.CoolProp import AbstractState, PropsSI
 from iapws import IAPWS95
 
 import tablegen
-from tablegen import agreement
+from tablegen.calc import agreement
 from tablegen.cli import main as cli
 from tablegen.data.library import library
 from tablegen.thermo.polynomial import Polynomial

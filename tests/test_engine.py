@@ -8,7 +8,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 import tablegen
-from tablegen.errors import NameLookupError, RangeError, TablegenError
+from tablegen.core.errors import NameLookupError, RangeError, TablegenError
 from tablegen.thermo.substance import R_MOLAR, Anchor, Datum
 
 FLUE = {"CO2": 0.09, "H2O": 0.18, "N2": 0.71, "O2": 0.02}

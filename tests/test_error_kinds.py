@@ -1,6 +1,6 @@
 """The kind of each refusal, as a Python caller sees it, and the same refusals at the command line.
 
-The kinds and when each is raised are the table in tablegen/errors.py; every kind is a
+The kinds and when each is raised are the table in tablegen/core/errors.py; every kind is a
 TablegenError, so a caller that catches the family still catches all of them, and the
 command line still prints one line and exits 2.
 """
@@ -9,7 +9,7 @@ import pytest
 
 import tablegen
 from tablegen.cli import main
-from tablegen.errors import (DataRangeError, InputError, NameLookupError, RangeError, TablegenError,
+from tablegen.core.errors import (DataRangeError, InputError, NameLookupError, RangeError, TablegenError,
                              UnitError)
 
 CASES = [

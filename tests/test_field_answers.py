@@ -289,14 +289,14 @@ columns = ["T", "cp"]
 
 
 def _spec(tmp_path, doc):
-    from tablegen import spec as S
+    from tablegen.spec import book as S
     p = tmp_path / "g.toml"
     p.write_text(SPEC.format(doc=doc), encoding="utf-8")
     return S.load(p)
 
 
 def test_spec_gauge_pressures_and_barometer(tmp_path):
-    from tablegen.errors import SpecError
+    from tablegen.core.errors import SpecError
     s = _spec(tmp_path, 'barometer = "0.95 bar"\nmax_pressure = "9 barg"')
     assert s.document.max_pressure_Pa == pytest.approx(9.95e5) and s.normalised["document"]["barometer_Pa"] == 95000.0
     s = _spec(tmp_path, 'max_pressure = "9 barg"')          # default barometer 1.01325 bar

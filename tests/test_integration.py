@@ -60,7 +60,7 @@ def test_book_states_uncertainty_per_column_and_appendix(demo):
 
 
 def test_csv_uncertainty_columns_when_asked(tmp_path):
-    from tablegen import spec as specmod
+    from tablegen.spec import book as specmod
     src = tmp_path / "u.toml"
     src.write_text('''[document]
 title = "U columns"
@@ -80,7 +80,7 @@ grid = { segments = [ { start = "300 K", stop = "1500 K", step = "100 K" } ] }
     lines = [ln for ln in (tmp_path / "out" / "n2.csv").read_text().splitlines() if not ln.startswith("#")]
     head = lines[0].split(",")
     assert "U_cp [kJ/(kg K)]" in head and "U_h [kJ/kg]" in head
-    import tablegen.uncertainty as unc
+    import tablegen.calc.uncertainty as unc
     import numpy as np
     sp = specmod.load(str(src))
     meta = json.loads((tmp_path / "out" / "u.json").read_text())
@@ -100,7 +100,7 @@ def test_csv_validity_columns_give_z_and_departure_bounds_against_coolprop(tmp_p
     estimate, and the real cp - cp0 inside the stated bound; U itself does not grow."""
     import numpy as np
     import CoolProp.CoolProp as CP
-    from tablegen import uncertainty as unc
+    from tablegen.calc import uncertainty as unc
     src = tmp_path / "v.toml"
     src.write_text("""[document]
 title = "Validity columns"
@@ -192,10 +192,10 @@ grid = { segments = [ { start = "300 K", stop = "900 K", step = "100 K" } ] }
 def test_default_decimals_follow_the_uncertainty(tmp_path):
     """No thrown-away precision: where the spec sets no digits, half a unit of the last
     printed digit stays at or below U/4 (U: the data part, as the budget's digit rule) at every
-    row (tablegen.uncertainty.digits_for rule)."""
+    row (tablegen.calc.uncertainty.digits_for rule)."""
     import numpy as np
 
-    import tablegen.uncertainty as unc
+    import tablegen.calc.uncertainty as unc
     src = tmp_path / "d.toml"
     src.write_text(CU_SPEC.replace("fraction_uncertainty = { %s }\n", ""))
     assert main(["build", str(src), "--out", str(tmp_path / "o"), "--quiet"]) == 0
@@ -211,7 +211,7 @@ def test_default_decimals_follow_the_uncertainty(tmp_path):
 def test_fraction_uncertainty_reaches_the_budget(tmp_path):
     import numpy as np
 
-    import tablegen.uncertainty as unc
+    import tablegen.calc.uncertainty as unc
     src = tmp_path / "cu.toml"
     src.write_text(CU_SPEC % "CH4 = 0.01, N2 = 0.01")
     assert main(["build", str(src), "--out", str(tmp_path / "o"), "--quiet"]) == 0

@@ -28,9 +28,11 @@ from pathlib import Path
 import pytest
 from pypdf import PdfReader
 
-from tablegen import cli, outfiles, spec
+from tablegen import cli
+from tablegen.core import outfiles
+from tablegen.spec import book as spec
 from tablegen.book.build import issue_text, render_files
-from tablegen.errors import Interrupted, OutputError, OutputExistsError
+from tablegen.core.errors import Interrupted, OutputError, OutputExistsError
 
 ROOT = Path(__file__).resolve().parents[1]
 
@@ -113,7 +115,7 @@ def leftovers(dest: Path) -> list[str]:
 
 # ---------------------------------------------------------------- fault injection
 class FaultyOs:
-    """The os module as tablegen.outfiles sees it, with one call failing at its k-th use."""
+    """The os module as tablegen.core.outfiles sees it, with one call failing at its k-th use."""
 
     def __init__(self, op: str, k: int, exc: BaseException, hook=None):
         self.op, self.k, self.exc, self.hook, self.calls, self.fired = op, k, exc, hook, 0, False
@@ -269,7 +271,7 @@ def _spec_file(tmp_path: Path, rev: str) -> Path:
 # ---------------------------------------------------------------- SIGKILL at random moments
 PUBLISHER = textwrap.dedent('''
     import pickle, sys
-    from tablegen import outfiles
+    from tablegen.core import outfiles
     sets = pickle.loads(open(sys.argv[1], "rb").read())
     print("ready", flush=True)
     i = 0
@@ -356,7 +358,8 @@ def test_a_second_build_into_a_locked_folder_refuses_in_one_line(tmp_path, capsy
 
 RACER = textwrap.dedent('''
     import sys, time
-    from tablegen import cli, outfiles
+    from tablegen import cli
+    from tablegen.core import outfiles
     real = outfiles._swap
     def slow_swap(*a):          # a slow network drive
         time.sleep(0.5)

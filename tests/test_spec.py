@@ -13,8 +13,9 @@ import textwrap
 import numpy as np
 import pytest
 
-from tablegen import cli, spec
-from tablegen.errors import SpecError
+from tablegen import cli
+from tablegen.spec import book as spec
+from tablegen.core.errors import SpecError
 
 BASE = textwrap.dedent('''
     [document]
@@ -271,7 +272,7 @@ def test_any_value_of_the_wrong_type_is_a_spec_error_never_a_crash():
     import copy
     import tomllib
 
-    from tablegen.errors import TablegenError
+    from tablegen.core.errors import TablegenError
     base = tomllib.loads(RICH)
     spec.parse(base, name="rich")                      # the base is valid
     wrong = [7, -1.5, "x", True, [], ["y", 2], {}, {"z": 1}]

@@ -23,8 +23,9 @@ import numpy as np
 import pytest
 from pypdf import PdfReader
 
-from tablegen import cli, columns, spec
-from tablegen import uncertainty as unc
+from tablegen import cli
+from tablegen.spec import columns, book as spec
+from tablegen.calc import uncertainty as unc
 from tablegen.book import model
 from tablegen.commands.demo import spec_paths
 from test_book import build, parse_table_pages, printed

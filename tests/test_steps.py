@@ -18,8 +18,8 @@ from hypothesis import strategies as st
 import tablegen
 from tablegen.cli import main
 from tablegen.data.library import gasdata_dir
-from tablegen.errors import RangeError, TablegenError
-from tablegen.steps import INVERSE_RTOL, Incompressible, incompressible, process
+from tablegen.core.errors import RangeError, TablegenError
+from tablegen.calc.steps import INVERSE_RTOL, Incompressible, incompressible, process
 from tablegen.thermo.polynomial import Polynomial
 from tablegen.thermo.substance import R_MOLAR, Substance
 

@@ -1,4 +1,4 @@
-"""Checks of the uncertainty budget (tablegen/uncertainty.py) against outside sources.
+"""Checks of the uncertainty budget (tablegen/calc/uncertainty.py) against outside sources.
 
 Sources named beside each check: CoolProp (reference equations of state and
 their ideal-gas parts), the CODATA key values (Cox, Wagman & Medvedev 1989,
@@ -20,10 +20,10 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 import tablegen
-from tablegen import uncertainty as un
+from tablegen.calc import uncertainty as un
 from tablegen.data.library import library
-from tablegen.errors import TablegenError
-from tablegen.rounding import round_steps_down
+from tablegen.core.errors import TablegenError
+from tablegen.core.rounding import round_steps_down
 
 # reference library from the test extra: a missing one fails the run, never skips it
 import CoolProp.CoolProp as CoolProp  # noqa: E402
@@ -284,9 +284,9 @@ def _python(code: str) -> str:
 
 def test_thermo_never_imports_the_uncertainty_budget():
     """The budget (calc layer) sits above thermo: thermo gets it through a registered
-    hook, so importing thermo and evaluating a substance leaves tablegen.uncertainty out."""
+    hook, so importing thermo and evaluating a substance leaves tablegen.calc.uncertainty out."""
     assert _python(_BARE_N2 + "n2.properties([300.0])\n"
-                   "print('tablegen.uncertainty' in sys.modules, 'tablegen.evidence' in sys.modules)") == "False False"
+                   "print('tablegen.calc.uncertainty' in sys.modules, 'tablegen.calc.evidence' in sys.modules)") == "False False"
 
 
 def test_properties_with_uncertainty_unregistered_is_one_clear_refusal():
@@ -343,7 +343,7 @@ def test_bad_input_gives_one_clear_message(kwargs, text):
 
 
 def test_auto_step_bad_tolerance_gives_one_clear_message():
-    from tablegen.errors import SpecError
+    from tablegen.core.errors import SpecError
     sub = tablegen.substance("air")
     for tol in ("abc", -1.0, {"cp": None}, {"h": 1.0}):
         with pytest.raises(SpecError) as e:

@@ -3,8 +3,8 @@ Agreement 1959, International Table Btu, CGPM definitions of bar and atm)."""
 
 import pytest
 
-from tablegen.errors import UnitError
-from tablegen.units import quantity, temperature_K, unit
+from tablegen.core.errors import UnitError
+from tablegen.core.units import quantity, temperature_K, unit
 
 
 @pytest.mark.parametrize("text,factor", [
@@ -36,7 +36,7 @@ def test_customary_factors_match_scipy_constants():
     """scipy.constants (CODATA and the exact definitions of the customary units) as the outside source."""
     from scipy import constants as c
 
-    from tablegen import units as U
+    from tablegen.core import units as U
     assert U.BTU == pytest.approx(c.Btu_IT, rel=1e-15)
     assert U.PSI == pytest.approx(c.psi, rel=1e-15)
     assert U.LBM == pytest.approx(c.lb, rel=1e-15)
@@ -65,7 +65,7 @@ def test_normal_and_standard_volume_flows():
 
 
 def test_gauge_pressure_against_the_barometer():
-    from tablegen.units import barometer_Pa, parse_pressure, pressure_Pa
+    from tablegen.core.units import barometer_Pa, parse_pressure, pressure_Pa
     assert pressure_Pa("9barg", barometer_Pa=0.95e5) == pytest.approx(9.95e5, rel=1e-15)
     p = parse_pressure("120 psig", barometer_Pa=barometer_Pa("14.696psia"))
     assert p.gauge == "psig" and p.unit.symbol == "psia" and p.Pa == pytest.approx(134.696 * 6894.757293168361)
@@ -83,14 +83,14 @@ def test_gauge_pressure_against_the_barometer():
 @pytest.mark.parametrize("text,word", [("0bar", "from 0.3"), ("-1bar", "from 0.3"), ("1.01325", "no unit"),
                                        ("950bar", "from 0.3"), ("1barg", "absolute"), ("abc", "not a number")])
 def test_barometer_refusals(text, word):
-    from tablegen.units import barometer_Pa
+    from tablegen.core.units import barometer_Pa
     with pytest.raises(UnitError) as e:
         barometer_Pa(text)
     assert word in str(e.value)
 
 
 def test_flows():
-    from tablegen.units import parse_flow
+    from tablegen.core.units import parse_flow
     f = parse_flow("2.5kg/s")
     assert f.kg_per_s == 2.5 and f.text == "2.5 kg/s"
     assert parse_flow("9 t/h").mass_kg_per_s(None) == pytest.approx(2.5, rel=1e-15)

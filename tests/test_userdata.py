@@ -385,7 +385,7 @@ from hypothesis import given, settings  # noqa: E402
 from hypothesis import strategies as st  # noqa: E402
 
 from tablegen.data import formats  # noqa: E402
-from tablegen.errors import DataError  # noqa: E402
+from tablegen.core.errors import DataError  # noqa: E402
 
 # exponents of two digits: a field holds one significant digit fewer at |exponent| >= 100
 _coef = st.floats(min_value=-1e12, max_value=1e12, allow_nan=False).filter(lambda x: x == 0 or abs(x) > 1e-90)

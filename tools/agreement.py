@@ -1,6 +1,6 @@
 """Write gasdata/agreement.toml and gasdata/defaults.toml.
 
-The figures and the default rule live in tablegen/agreement.py; this script
+The figures and the default rule live in tablegen/calc/agreement.py; this script
 only runs them over the shipped data and writes the two files (atomically).
 Run from the project root after any change to a shipped data set:
 
@@ -17,8 +17,8 @@ from pathlib import Path
 
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
-from tablegen.agreement import all_figures, defaults_from, render_agreement, render_defaults  # noqa: E402
-from tablegen.outfiles import write_bytes  # noqa: E402
+from tablegen.calc.agreement import all_figures, defaults_from, render_agreement, render_defaults  # noqa: E402
+from tablegen.core.outfiles import write_bytes  # noqa: E402
 
 
 def main() -> int:

@@ -1,4 +1,4 @@
-"""Derive the class-default uncertainties of tablegen/uncertainty.py from JANAF.
+"""Derive the class-default uncertainties of tablegen/calc/uncertainty.py from JANAF.
 
 For each species class, the shipped NASA TM-4513 functions (gasdata/nasa1993.toml)
 are compared with the JANAF Thermochemical Tables, 4th edition (M. W. Chase,
@@ -32,7 +32,7 @@ import numpy as np
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 from tablegen.data.library import library  # noqa: E402
-from tablegen.uncertainty import species_class  # noqa: E402
+from tablegen.calc.uncertainty import species_class  # noqa: E402
 
 from tablegen.thermo.substance import R_MOLAR as R  # noqa: E402
 #: tablegen id -> JANAF table index (janaf package)

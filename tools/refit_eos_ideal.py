@@ -3,7 +3,7 @@
 Reads, at development time, the ideal-gas part (cp0) of the reference equation of
 state of each natural-gas component as the CoolProp package implements it
 (I. H. Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498), fits cp(T) with
-tablegen.fitting (the same processor-independent solver as tools/refit_janaf.py)
+tablegen.calc.fitting (the same processor-independent solver as tools/refit_janaf.py)
 and writes gasdata/eos-ideal.toml. CoolProp is needed only to run this tool; the
 written file is plain data.
 
@@ -47,9 +47,9 @@ sys.path.insert(0, str(ROOT))
 sys.path.insert(0, str(ROOT / "tools"))
 from refit_janaf import (COEFFICIENT_DIGITS, record_head, refit_arguments, round_significant,  # noqa: E402
                          stated_residuals, write_dataset)
-from tablegen.agreement import coolprop_ideal  # noqa: E402
+from tablegen.calc.agreement import coolprop_ideal  # noqa: E402
 from tablegen.data.library import library  # noqa: E402
-from tablegen.fitting import FitError, fit_cp_table, residuals_against  # noqa: E402
+from tablegen.calc.fitting import FitError, fit_cp_table, residuals_against  # noqa: E402
 from tablegen.thermo.polynomial import NINE, Polynomial  # noqa: E402
 from tablegen.thermo.substance import R_MOLAR, T_REF  # noqa: E402
 
@@ -185,7 +185,7 @@ def main(argv=None) -> int:
         "reference_pressure_Pa": 100000.0,
         "gas_constant_of_fit_J_per_mol_K": R_MOLAR,
         "values_from": f"CoolProp {CoolProp.__version__} (PyPI), cp0 of each fluid's equation of state",
-        "fitted_by": ("tools/refit_eos_ideal.py with tablegen.fitting (constrained least squares in a "
+        "fitted_by": ("tools/refit_eos_ideal.py with tablegen.calc.fitting (constrained least squares in a "
                       "Chebyshev basis per interval, processor-independent arithmetic)"),
         "coefficient_digits": COEFFICIENT_DIGITS,
         "note_field": ("equation of state, its range, where the ideal-gas part is extrapolated, and the "

@@ -2,11 +2,11 @@
 
 Reads the NIST-JANAF Thermochemical Tables, 4th edition (M. W. Chase, Jr.,
 J. Phys. Chem. Ref. Data Monograph 9, 1998) as carried by the `janaf` package
-(PyPI), fits cp(T) from 200 to 6000 K with tablegen.fitting (h and s° anchored
+(PyPI), fits cp(T) from 200 to 6000 K with tablegen.calc.fitting (h and s° anchored
 at JANAF's 298.15 K values: h(298.15 K) = ΔfH°(298.15 K), the NASA
 convention, and s°(298.15 K) as tabulated), and writes gasdata/janaf1998.toml.
 
-The fit is solved by tablegen.fitting in a Chebyshev basis with processor-
+The fit is solved by tablegen.calc.fitting in a Chebyshev basis with processor-
 independent arithmetic (no BLAS kernel decides a digit), and the coefficients
 are written rounded to COEFFICIENT_DIGITS significant figures; the residuals
 stated are those of the rounded coefficients. Any machine with the same janaf
@@ -34,8 +34,8 @@ ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 from tablegen.data.library import library  # noqa: E402
 from tablegen.data.tomlout import table  # noqa: E402
-from tablegen.fitting import FitError, fit_cp_table, residuals_against  # noqa: E402
-from tablegen.outfiles import write_bytes  # noqa: E402
+from tablegen.calc.fitting import FitError, fit_cp_table, residuals_against  # noqa: E402
+from tablegen.core.outfiles import write_bytes  # noqa: E402
 from tablegen.thermo.polynomial import NINE, Polynomial  # noqa: E402
 from tablegen.thermo.substance import R_MOLAR  # noqa: E402
 
@@ -208,7 +208,7 @@ def main(argv=None) -> int:
         "reference_pressure_Pa": 100000.0,
         "gas_constant_of_fit_J_per_mol_K": R_MOLAR,
         "values_from": f"janaf {version} (PyPI), the NIST-JANAF tables as published",
-        "fitted_by": ("tools/refit_janaf.py with tablegen.fitting (constrained least squares in a "
+        "fitted_by": ("tools/refit_janaf.py with tablegen.calc.fitting (constrained least squares in a "
                       "Chebyshev basis per interval, processor-independent arithmetic)"),
         "coefficient_digits": COEFFICIENT_DIGITS,
         "note_field": "JANAF table, range fitted and residuals against JANAF at every tabulated temperature",

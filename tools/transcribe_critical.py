@@ -1,7 +1,7 @@
 """Transcribe critical constants and acentric factors into gasdata/critical.toml.
 
 The second-virial estimate of the ideal-gas model uncertainty
-(tablegen/uncertainty.py) needs, per species, the critical temperature Tc,
+(tablegen/calc/uncertainty.py) needs, per species, the critical temperature Tc,
 critical pressure Pc, critical molar volume Vc and acentric factor omega.
 Two open sources are read, without changing any number:
 

@@ -22,7 +22,7 @@ from ruamel.yaml import YAML
 
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
-from tablegen.constants import R_MOLAR  # noqa: E402
+from tablegen.core.constants import R_MOLAR  # noqa: E402
 from tablegen.data.tomlout import table  # noqa: E402
 from tablegen.thermo.polynomial import NINE, SEVEN, Polynomial, seven_to_nine  # noqa: E402
 

@@ -1,7 +1,7 @@
 """Building a book: spec -> model -> PDF, CSV and JSON bytes -> one published set.
 
 Every file is produced in memory first; only then is the set published into its
-folder by :func:`tablegen.outfiles.publish_folder` (staged beside it and swapped in
+folder by :func:`tablegen.core.outfiles.publish_folder` (staged beside it and swapped in
 whole), so a failed or interrupted build leaves the folder's previous issue as it
 was and never touches a user's file.
 """
@@ -17,7 +17,7 @@ def file_names(spec) -> dict:
     Without editions: ``<spec>.pdf``, ``<spec>.json``, ``<table>.csv``. With editions,
     one folder holds one issue of every edition: ``<spec>-<edition>.pdf`` and
     ``<spec>-<edition>.json`` per edition, and the CSV names of
-    :func:`tablegen.editions.csv_names` (``<table>.csv``, or ``<table>-<edition>.csv``
+    :func:`tablegen.spec.editions.csv_names` (``<table>.csv``, or ``<table>-<edition>.csv``
     for an edition that prints the table with other rows or columns). The booklet of
     an edition (``--impose booklet``) is ``<stem>-booklet.pdf`` beside its PDF.
     """
@@ -48,7 +48,7 @@ def render_files(spec, progress=None) -> tuple[dict, object]:
 
     ``progress(done, total, what)`` is called as tables are evaluated and rendered.
     """
-    from ..jsonout import dumps
+    from ..core.jsonout import dumps
     from . import csvout, jsonout, model, pdf
     n = len(spec.tables)
     total = n + 2

@@ -1,4 +1,4 @@
-"""T-s and h-s charts of an ideal gas: chart model and two renderers (the spec: tablegen/chart_spec.py).
+"""T-s and h-s charts of an ideal gas: chart model and two renderers (the spec: tablegen/spec/chart.py).
 
 The flow is one way, as everywhere in tablegen:
 
@@ -29,12 +29,12 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
-from ..errors import RangeError, SpecError, TablegenError
-from ..chart_spec import (  # noqa: F401  (the chart spec, kept importable from here)
+from ..core.errors import RangeError, SpecError, TablegenError
+from ..spec.chart import (  # noqa: F401  (the chart spec, kept importable from here)
     CHART_KEYS, DEFAULT_PRESSURES, DEFAULT_T_RANGE_K, KINDS, OVERLAY_KEYS, PAPERS, START_KEYS, STEP_KEYS,
     STEP_KINDS, T_UNITS, UNIT_SYSTEMS, ChartSpec, OverlaySpec, StepSpec, _fail, _system, parse_chart,
     parse_charts)
-from ..rounding import round_step_up
+from ..core.rounding import round_step_up
 
 # --------------------------------------------------------------------------
 # overlay end states
@@ -47,7 +47,7 @@ class StepEnd:
 
 
 def end_state(substance, T1_K: float, P1_Pa: float, step: StepSpec) -> StepEnd:
-    """End state of one process step, by the process calculator ``tablegen.steps.process``.
+    """End state of one process step, by the process calculator ``tablegen.calc.steps.process``.
 
     compress/expand (ideal gas, isentropic relation through the relative
     pressure): Pr(T2s) = Pr(T1) P2/P1; compression h2 = h1 + (h2s - h1)/eta,
@@ -60,7 +60,7 @@ def end_state(substance, T1_K: float, P1_Pa: float, step: StepSpec) -> StepEnd:
     SpecError naming the step's key path when the step breaks a rule or its
     end state leaves the data range.
     """
-    from ..steps import process
+    from ..calc.steps import process
     params = {}
     if step.kind in ("compress", "expand"):
         params["eta"] = step.eta
@@ -354,7 +354,7 @@ class _Conv:
     """SI -> chart units for one unit system."""
 
     def __init__(self, system: str, T_unit: str):
-        from ..units import unit
+        from ..core.units import unit
         u = UNIT_SYSTEMS[system]
         self.sym = dict(u, T=T_unit)
         self.T = unit(T_unit, "temperature")
@@ -756,7 +756,7 @@ def _panel(substance, spec, cv, ov_states, ov_steps, points, system, notes, fs, 
     ids = {c.id for c in substance.components} | {substance.id}
     sulfur = "SO2" in ids or any("sulfur" in c for c in getattr(substance, "cautions", ()))
     if getattr(substance, "dew_point_P_Pa", None) is not None:
-        from ..saturation import dew_point_text
+        from ..thermo.saturation import dew_point_text
         text.append(f"Water dew point {dew_point_text(substance.dew_point_K, substance.dew_point_P_Pa)}"
                     f" (IAPWS-IF97): below it water condenses and the lines do not describe the gas"
                     + ("; condensing acid attacks metal surfaces." if sulfur else "."))

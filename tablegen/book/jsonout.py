@@ -86,5 +86,5 @@ def edition(book) -> dict:
 
 def render(book, files: dict) -> str:
     """The sidecar text: sorted keys, two-space indent, UTF-8 characters kept."""
-    from ..jsonout import dumps
+    from ..core.jsonout import dumps
     return dumps(sidecar(book, files))

@@ -21,8 +21,8 @@ from pathlib import Path
 
 import numpy as np
 
-from ..columns import column_values_SI, unit_factor, unit_for
-from ..units import temperature_text as _fmtT
+from ..spec.columns import column_values_SI, unit_factor, unit_for
+from ..core.units import temperature_text as _fmtT
 from .stated import Section, appendix_sections, auto_digits, uncertainty_notes, worked_example  # noqa: F401
 
 # ---------------------------------------------------------------- definitions
@@ -150,7 +150,7 @@ class TableModel:
     head_lines: tuple = ()  # lines printed under the title on every page of the table
     notes: list = field(default_factory=list)     # strings printed under the table
     charts: tuple = ()      # chart models (tablegen.book.charts), drawn after the table
-    uncertainty: dict | None = None   # the budget's figures (tablegen.uncertainty), for the JSON
+    uncertainty: dict | None = None   # the budget's figures (tablegen.calc.uncertainty), for the JSON
     U_columns: tuple = ()   # (csv header, values) of U_<key> columns, when the spec asks for them
     #: (csv header, values, description) of the Z and real-gas departure columns
     #: (document.validity_columns): where the ideal-gas values apply, not their uncertainty
@@ -184,7 +184,7 @@ class BookModel:
     caution_refs: dict = field(default_factory=dict)   # substance id -> ids of the cautions that concern it
     extrapolation: str = ""  # which tables may extrapolate, and who asked (document control block)
     worked_example: Section | None = None   # reading between two rows of the first table (how-to-read page)
-    edition: object = None  # tablegen.editions.Edition: paper, sides, figure size, printed number
+    edition: object = None  # tablegen.spec.editions.Edition: paper, sides, figure size, printed number
 
 
 # ---------------------------------------------------------------- evaluation
@@ -267,7 +267,7 @@ def _range_text(sub, unit_symbol: str) -> str:
     """The data range in the table's temperature unit, in K beside it."""
     if unit_symbol == "K":
         return f"{sub.T_min:g}-{sub.T_max:g} K"
-    from ..units import unit
+    from ..core.units import unit
     u = unit(unit_symbol, "temperature")
     return (f"{u.from_si(sub.T_min):.6g} to {u.from_si(sub.T_max):.6g} {unit_symbol} "
             f"({sub.T_min:g}-{sub.T_max:g} K)")
@@ -275,7 +275,7 @@ def _range_text(sub, unit_symbol: str) -> str:
 
 def _P0_text(t, sub) -> str:
     """P° as a table prints it: in psia for a US table, with bar beside it."""
-    from ..units import PSI
+    from ..core.units import PSI
     P0 = pressure_text(sub.P_ref_Pa)
     return f"{sub.P_ref_Pa / PSI:.5g} psia ({P0.split(' (')[0]})" if t.units == "US" else P0
 
@@ -306,7 +306,7 @@ def pressure_text(P: float) -> str:
 def _grid_text(g: dict) -> str:
     text = _grid_text_of(g)
     if "T_range_K" in g:      # an edition that prints part of the grid
-        from ..units import unit
+        from ..core.units import unit
         u = unit(g["segments"][0]["unit"] if g["kind"] == "segments" else g.get("unit", "K"), "temperature")
         lo, hi = (f"{u.from_si(T):.6g}".replace("-", "−") for T in g["T_range_K"])
         text += f"; this edition prints the rows from {lo} to {hi} {u.symbol}"
@@ -316,7 +316,7 @@ def _grid_text(g: dict) -> str:
 def _grid_text_of(g: dict) -> str:
     if g["kind"] == "segments":
         parts = []
-        from ..units import unit
+        from ..core.units import unit
         for s in g["segments"]:
             u = unit(s["unit"], "temperature")
             step = s["step_K"] / u.factor
@@ -325,7 +325,7 @@ def _grid_text_of(g: dict) -> str:
         return "; ".join(parts)
     if g["kind"] == "list":
         return f"{len(g['T_K'])} listed temperatures"
-    from ..units import unit
+    from ..core.units import unit
     u = unit(g["unit"], "temperature")
     return (f"{u.from_si(g['start_K']):g} to {u.from_si(g['stop_K']):g} {u.symbol}, step {g['step']:g} "
             f"{u.symbol} chosen so that linear interpolation between rows stays within "
@@ -335,7 +335,7 @@ def _grid_text_of(g: dict) -> str:
 
 def build_table(t, doc) -> TableModel:
     """Evaluate and format one table spec."""
-    from ..units import unit
+    from ..core.units import unit
     sub = t.substance
     keys = list(dict.fromkeys(c.key for c in t.columns))
     vals = column_values_SI(sub, t.T_K, keys, extrapolate=t.extrapolate, basis=t.basis,

@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..units import temperature_text as _fmtT
+from ..core.units import temperature_text as _fmtT
 
 
 #: The row mark of a condensing row, and what it means (printed on the how-to-read page).
@@ -36,7 +36,7 @@ def dew_point_note(sub, unit_symbol: str, n_rows: int) -> str:
     if sub.dew_point_K is not None and unit_symbol not in ("K", "°C"):
         # a US table: the figure in its units first, SI in brackets (every figure about a
         # table in that table's units)
-        from ..units import PSI
+        from ..core.units import PSI
         T_us = _fmtT(sub.dew_point_K, unit_symbol).split(" = ")[0].split(" (")[0]
         dp = f"{T_us} at {sub.dew_point_P_Pa / PSI:.4g} psia ({dp})"
     rows = (f"{n_rows} row{'s' if n_rows != 1 else ''} at or below it marked c: {CONDENSING_TEXT}"
@@ -47,8 +47,8 @@ def dew_point_note(sub, unit_symbol: str, n_rows: int) -> str:
 def made_from(s) -> tuple[list, dict | None, list]:
     """What the front matter, the JSON and the CSVW say a substance was made from:
     (description sentences, combustion JSON or None, figures at full precision)."""
-    from ..burn import CombustionResult
-    from ..oxidants import Oxidant
+    from ..calc.burn import CombustionResult
+    from ..calc.oxidants import Oxidant
     from . import sheet
     origin = getattr(s, "origin", None)
     description, combustion, figs = [], None, []
@@ -87,7 +87,7 @@ def _in_table_unit(t, key: str, v: float, fig: dict) -> str:
     """An absolute part of U (SI, as the budget holds it) in the unit the table prints that
     column in: every figure about a table is in that table's units (a table in both
     systems speaks SI, as its appendix does)."""
-    from ..columns import unit_factor, unit_for
+    from ..spec.columns import unit_factor, unit_for
     system = "US" if t.units == "US" else "SI"
     try:
         factor, unit = unit_factor(key, system, t.basis), unit_for(key, system, t.basis)
@@ -180,7 +180,7 @@ def _ref_list(ids) -> str:
 
 def sheets_of(spec, tables, refs, cautions) -> tuple:
     """One combustion sheet per combustion that defines a substance of the book."""
-    from ..burn import CombustionResult
+    from ..calc.burn import CombustionResult
     from . import sheet
     titles = {c.split(". ", 1)[0]: caution_title(c) for c in cautions}
     order, names = [], {}

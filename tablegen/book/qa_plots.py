@@ -12,7 +12,7 @@ import math
 
 import numpy as np
 
-from ..rounding import round_step_up
+from ..core.rounding import round_step_up
 from . import fonts
 from .qa_layout import (BAND, FAIL_INK, GREY, MARGIN, OUT_MARK, RULE, TRACE, WIDTH, draw_text, fmt_num,
                         forget_state, heading, paragraph, set_fill)
@@ -93,7 +93,7 @@ def _polyline(c, points, ylo, yhi, X, Y):
 
 def draw_deviation_plot(c, col, T_disp, T_unit, x, y, w, h):
     """Δ against T with the ±tolerance band; out-of-tolerance points marked ✗ (vector)."""
-    from ..compare_keys import column_label
+    from ..calc.compare_keys import column_label
     draw_text(c, x, y + h + 8, f"{column_label(col.key)}, Δ in {col.unit.symbol}", fonts.SANS_BOLD, 7.8)
     px0, py0, pw, ph = x + 42, y + 22, w - 50, h - 30
     m = col.present
@@ -177,8 +177,8 @@ def identical_to_round_off(col) -> bool:
 def plots(flow, cmp, title: str = "Deviation against temperature"):
     """The plots of a comparison on a new page; columns identical to round-off get one line instead
     (a plot scaled to ±1e-13 shows only the noise of float64)."""
-    from ..compare_keys import column_label
-    from ..compare_output import format_size, unit_suffix
+    from ..calc.compare_keys import column_label
+    from ..calc.compare_output import format_size, unit_suffix
     ref = cmp.reference
     T_disp = ref.T_unit.from_si(cmp.T_K)
     flow.new_page()

@@ -1,7 +1,7 @@
 """PDF report of a QA comparison: verdict first, then the evidence.
 
-Lays out a finished :class:`tablegen.compare.Comparison` (one reference table)
-or :class:`tablegen.compare_folder.BookComparison` (a whole book against a
+Lays out a finished :class:`tablegen.calc.compare.Comparison` (one reference table)
+or :class:`tablegen.calc.compare_folder.BookComparison` (a whole book against a
 reference folder) and evaluates nothing.
 
 One table: page 1 holds the verdict, the hints and any wide tolerance, document
@@ -41,12 +41,12 @@ MINUS = "−"
 
 
 def _dev(x) -> str:
-    from ..compare_output import format_dev
+    from ..calc.compare_output import format_dev
     return format_dev(x, MINUS)
 
 
 def _size(x) -> str:
-    from ..compare_output import format_size
+    from ..calc.compare_output import format_size
     return format_size(x).replace("-", MINUS)
 
 
@@ -106,7 +106,7 @@ def _bullets(flow, title: str, items, note: str = ""):
 
 
 def _hints_and_wide(flow, hints, wide, prefix=lambda h: ""):
-    from ..compare_hints import suggested_options
+    from ..calc.compare_hints import suggested_options
     items = [prefix(h) + h.text for h in hints]
     if hints:
         items.append("Together: " + " ".join(suggested_options(hints)))
@@ -173,8 +173,8 @@ def _control(flow, cmp):
 
 
 def _alignments(flow, cmp):
-    from ..compare_hints import _quantum, format_constant
-    from ..compare_keys import column_label
+    from ..calc.compare_hints import _quantum, format_constant
+    from ..calc.compare_keys import column_label
     al = [c for c in cmp.columns if c.alignment is not None]
     heading(flow, "Alignment constants (fitted before the deviations are judged)")
     if not al:
@@ -196,7 +196,7 @@ def _alignments(flow, cmp):
 
 
 def _tolerances(flow, cmp):
-    from ..compare_keys import KEY_LABELS
+    from ..calc.compare_keys import KEY_LABELS
     heading(flow, "Tolerances (allowed |Δ| per cell, plus half the last printed digit)")
     paragraph(flow, "Defaults and their grounds: docs/compare.md.", 7.2, color=GREY, gap=2)
     rows = []
@@ -236,7 +236,7 @@ def _statistics(flow, cmp):
 
 
 def _rules(flow, cmp):
-    from ..compare_output import RULES
+    from ..calc.compare_output import RULES
     heading(flow, "How the cells are judged")
     paragraph(flow, RULES[0].upper() + RULES[1:] + ". In the listing, tablegen values are printed to the "
                "decimal places of the reference cell and deviations to two significant figures; "
@@ -244,7 +244,7 @@ def _rules(flow, cmp):
 
 
 def _caution_and_signoff(flow, cmp):
-    from ..compare_output import CAUTION
+    from ..calc.compare_output import CAUTION
     paragraph(flow, "Caution: " + CAUTION, 8.2, fonts.SANS_BOLD, FAIL_INK, gap=8)
 
     def draw(c, y):
@@ -266,7 +266,7 @@ def _caution_and_signoff(flow, cmp):
 
 # ----------------------------------------------------------------- listing
 def _listing(flow, cmp, table: str = ""):
-    from ..compare_output import format_dev
+    from ..calc.compare_output import format_dev
     ref = cmp.reference
     cols = list(cmp.columns)
     per = 3
@@ -358,7 +358,7 @@ def _pair(text, ref_value, tg_value, width, size):
     figures when the printed text is too wide for the column (deviations.csv keeps everything)."""
     from reportlab.pdfbase.pdfmetrics import stringWidth
 
-    from ..compare_output import format_like
+    from ..calc.compare_output import format_like
     if text:
         r_s, t_s = text, format_like(tg_value, text)
         if max(stringWidth(r_s, fonts.MONO, size), stringWidth(t_s, fonts.MONO, size)) <= width:
@@ -415,7 +415,7 @@ def _identity_rows(bc):
 
 
 def _book_page_one(flow, bc):
-    from ..compare_output import unit_suffix, worst_cell
+    from ..calc.compare_output import unit_suffix, worst_cell
     s, f = bc.spec, bc.folder
     _title(flow, f"QA comparison: {s.get('title') or s['name']} against the reference folder {f.path}")
     n = len(bc.tables)

@@ -9,7 +9,7 @@ uncertainties and what they give, and references to the cautions that apply.
 
 :func:`figures` lists the same numbers at full precision, with their units, for
 the JSON sidecar and the CSVW metadata of every table of the gas. The sheet is
-built from the finished result (tablegen.burn.CombustionResult); nothing here
+built from the finished result (tablegen.calc.burn.CombustionResult); nothing here
 evaluates a polynomial.
 """
 
@@ -251,7 +251,7 @@ def _hv_rows(s, prop) -> tuple:
 
 def dew_point_sentence(T_K, P_Pa) -> str:
     """The water dew point as every document of the book prints it."""
-    from ..saturation import dew_point_text
+    from ..thermo.saturation import dew_point_text
     return dew_point_text(T_K, P_Pa)
 
 

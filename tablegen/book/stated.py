@@ -14,7 +14,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..realgas import Wording
+from ..calc.realgas import Wording
 
 
 @dataclass(frozen=True, slots=True)
@@ -26,7 +26,7 @@ class Section:
     header: tuple = ()
     rows: tuple = ()
 
-#: Columns the uncertainty budget covers (tablegen.uncertainty); the mean-cp aids are not.
+#: Columns the uncertainty budget covers (tablegen.calc.uncertainty); the mean-cp aids are not.
 BUDGET_KEYS = ("cp", "cv", "k", "h", "u", "s0", "g0", "Pr", "vr", "a")
 
 #: Columns whose U is printed in their unit (energies with an arbitrary datum), not in %.
@@ -45,7 +45,7 @@ def basis_scale(key: str, sub, basis: str, reference) -> float:
 
 
 def _printed_factor(key, col, t, doc, sub) -> float:
-    from ..columns import unit_factor
+    from ..spec.columns import unit_factor
     return unit_factor(key, col.system, t.basis) / basis_scale(key, sub, t.basis, doc.reference)
 
 
@@ -53,8 +53,8 @@ def auto_digits(t, doc, sub) -> dict:
     """Digits of the columns whose digits the spec leaves open, from their uncertainty.
 
     (key, system) -> {"decimals": n} for a column printed to decimals
-    (tablegen.uncertainty.digits_for) or {"significant": n} for one printed to
-    significant digits, Pr and vr (tablegen.uncertainty.significant_for), at the row
+    (tablegen.calc.uncertainty.digits_for) or {"significant": n} for one printed to
+    significant digits, Pr and vr (tablegen.calc.uncertainty.significant_for), at the row
     where the data part of U (with a refit's residual), absolute or relative, is
     smallest. The composition part differs between users of one table and the
     rounding part depends on this very choice, so neither enters.
@@ -63,7 +63,7 @@ def auto_digits(t, doc, sub) -> dict:
     inside = (t.T_K >= sub.T_min) & (t.T_K <= sub.T_max)
     if not want or not inside.any():
         return {}
-    from .. import uncertainty as unc
+    from ..calc import uncertainty as unc
     keys = list(dict.fromkeys(c.key for c in want))
     # one row for T_rows: the interpolation part is not needed for this choice
     b = unc.budget(sub, t.T_K[inside], keys, P_max_Pa=doc.max_pressure_Pa, T_rows=t.T_K[inside][:1])
@@ -84,7 +84,7 @@ def auto_digits(t, doc, sub) -> dict:
 
 def _factor(key: str, system: str, t, doc, sub) -> float:
     """SI value on the mass basis of one printed unit of ``key`` in ``system`` on the table's basis."""
-    from ..columns import unit_factor
+    from ..spec.columns import unit_factor
     return unit_factor(key, system, t.basis) / basis_scale(key, sub, t.basis, doc.reference)
 
 
@@ -106,8 +106,8 @@ class TableWording(Wording):
 
     def __init__(self, t, doc, sub):
         super().__init__(sub.M * 1e-3)
-        from ..units import PSI, unit
-        from ..columns import unit_for
+        from ..core.units import PSI, unit
+        from ..spec.columns import unit_for
         system = "US" if t.units == "US" else "SI"
         self.t_unit = unit(t.temperature_units[0], "temperature")
         self.temperature_symbol = self.t_unit.symbol
@@ -135,7 +135,7 @@ def _in_table_units(t, doc, sub, first, b, inside) -> dict:
     error of linear interpolation per column; ``statements``: the budget's other
     statements (no figures); ``validity``: the range-of-validity sentences.
     """
-    from ..realgas import model_statements, virial_mixture
+    from ..calc.realgas import model_statements, virial_mixture
     w = TableWording(t, doc, sub)
     bands, inter = [], {}
     for k in b.keys:
@@ -175,10 +175,10 @@ def uncertainty_notes(t, doc, sub, cols, notes):
     Under the table: the expanded uncertainty U (k = 2) of each column, largest over
     the table, and, as a separate statement, how far the real gas departs from the
     ideal-gas values at the book's max_pressure. The printed digits are checked
-    against U (tablegen.uncertainty.digits_for). Values outside the data range
+    against U (tablegen.calc.uncertainty.digits_for). Values outside the data range
     (extrapolated) carry no stated uncertainty.
     """
-    from .. import uncertainty as unc
+    from ..calc import uncertainty as unc
     keys = [k for k in dict.fromkeys(c.key for c in cols) if k in BUDGET_KEYS]
     inside = (t.T_K >= sub.T_min) & (t.T_K <= sub.T_max)
     if not keys or not inside.any():
@@ -188,7 +188,7 @@ def uncertainty_notes(t, doc, sub, cols, notes):
         first.setdefault(c.key, c)
     steps = {k: 10.0 ** (-first[k].decimals) * _printed_factor(k, first[k], t, doc, sub)
              for k in keys if first[k].decimals is not None}
-    from ..burn_inputs import composition_inputs
+    from ..calc.burn_inputs import composition_inputs
     cu = getattr(t, "composition_u", None)
     b = unc.budget(sub, t.T_K[inside], keys, P_max_Pa=doc.max_pressure_Pa, printed_step=steps,
                    composition_u=None if cu is None else cu[1],
@@ -257,7 +257,7 @@ def uncertainty_notes(t, doc, sub, cols, notes):
 def _validity_columns(t, doc, sub, cols, b, inside) -> tuple:
     """Z at max_pressure and the departure bound of every column it applies to, on the
     table's rows (NaN outside the data range), as (csv header, values, description)."""
-    from ..realgas import virial_mixture
+    from ..calc.realgas import virial_mixture
     P_bar = doc.max_pressure_Pa / 1e5
     out = []
     T = t.T_K[inside]
@@ -347,7 +347,7 @@ def _validity_section(tables, doc):
 
 def _max_pressure_text(tables, doc) -> str:
     """The book's max_pressure in bar, and in psia beside it where a table is in US units."""
-    from ..units import PSI
+    from ..core.units import PSI
     P = doc.max_pressure_Pa
     text = f"{P / 1e5:g} bar"
     if any(t.units == "US" for t in tables):
@@ -387,8 +387,8 @@ def worked_example(ts, tm, doc):
     bound of these two rows and the table's largest (printed under the table),
     and U at the two rows. ``ts`` is the table spec, ``tm`` its model.
     """
-    from .. import uncertainty as unc
-    from ..units import unit
+    from ..calc import uncertainty as unc
+    from ..core.units import unit
     sub = ts.substance
     c = _example_column(tm)
     tcol = tm.columns[0]

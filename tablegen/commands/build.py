@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from ..errors import InputError, NameLookupError
+from ..core.errors import InputError, NameLookupError
 from .common import data_notices, published
 
 IMPOSITIONS = ("booklet",)
@@ -62,8 +62,8 @@ def _booklet(spec) -> bool:
 def run(args) -> int:
     from types import SimpleNamespace
 
-    from .. import outfiles
-    from .. import spec as specmod
+    from ..core import outfiles
+    from ..spec import book as specmod
     from ..book.build import all_names, file_names, issue_text, merge, pdf_pages, progress_for, render_files
     if args.impose is not None and args.impose not in IMPOSITIONS:
         raise NameLookupError(f"--impose {args.impose!r}: not a layout; allowed: {', '.join(IMPOSITIONS)}")
@@ -117,7 +117,7 @@ def run(args) -> int:
 
 def _editions_left_out(out: Path, spec, built: list) -> list:
     """Editions of the spec whose PDF the folder's earlier issue held and this build does not."""
-    from .. import outfiles
+    from ..core import outfiles
     if not spec.editions or not out.is_dir():
         return []
     found = outfiles.read_manifest(out)

@@ -7,7 +7,7 @@ import shlex
 import sys
 from pathlib import Path
 
-from ..errors import InputError, RangeError, SpecError, TablegenError
+from ..core.errors import InputError, RangeError, SpecError, TablegenError
 from .common import H_DATUM_REFERENCE_HELP, add_datum_options, notice, substance_with_options
 
 EXAMPLE = """example:
@@ -130,8 +130,8 @@ def _split(text):
 
 
 def charts_from_options(args):
-    from ..chart_spec import parse_charts
-    from ..units import barometer_Pa
+    from ..spec.chart import parse_charts
+    from ..core.units import barometer_Pa
     raw = {"kind": args.kind or "both"}
     for key in ("pressures", "volumes", "isotherms"):
         v = getattr(args, key)
@@ -155,9 +155,9 @@ def charts_from_options(args):
 def load_spec(path: str):
     """A chart spec file -> (substance name or None, unit system, date, name, ChartSpecs)."""
 
-    from ..chart_spec import parse_charts
-    from ..spec import read_toml
-    from ..units import barometer_Pa
+    from ..spec.chart import parse_charts
+    from ..spec.book import read_toml
+    from ..core.units import barometer_Pa
     p = Path(path)
     raw = read_toml(p, "--spec")
     for k in raw:
@@ -214,7 +214,7 @@ def run(args) -> int:
             raise InputError("no substance given; e.g. 'tablegen chart air' (or use --spec FILE)")
         sub_name = args.substance
         specs = charts_from_options(args)
-    from ..texts import bad_character, one_line_rule
+    from ..core.texts import bad_character, one_line_rule
     if date is not None and (len(date) > 100 or bad_character(date)):
         raise InputError(f"--date: {one_line_rule()}, at most 100 characters")
     sub = substance_with_options(args, sub_name, by_rule=True, reacting=None)
@@ -226,7 +226,7 @@ def run(args) -> int:
 
     stem = _stem(args.name or name or sub.id)
     out = Path(args.out)
-    from ..outfiles import check_files, write_files
+    from ..core.outfiles import check_files, write_files
     jobs = {}
     if args.format in ("pdf", "both"):
         jobs[out / f"{stem}-charts.pdf"] = lambda: C.chart_pdf(models, title=f"{sub.name}: T-s and h-s charts",

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import sys
 
-from ..errors import InputError, RangeError
+from ..core.errors import InputError, RangeError
 from .common import add_unit_options, dumps
 
 EXAMPLE = """--flow gives the heat input (LHV and HHV, kW and MMBtu/h) and the flue-gas and air flows
@@ -112,7 +112,7 @@ def _percent(text, what):
 
 def measured_o2(text, what) -> tuple[float, float | None]:
     """'3.5' or '3.5%' -> (3.5, None); '3.5%±0.2%' -> (3.5, 0.2): the O2 and its expanded uncertainty, %."""
-    from ..burn import measured_o2 as read
+    from ..calc.burn import measured_o2 as read
     return read(text, what)
 
 
@@ -138,8 +138,8 @@ def typed_values(args) -> tuple[list[str], list[str]]:
 
 
 def compute(args):
-    from ..burn import combustion
-    from ..units import barometer_Pa, pressure_Pa, temperature_K
+    from ..calc.burn import combustion
+    from ..core.units import barometer_Pa, pressure_Pa, temperature_K
     ref_text = _given(args, "ref_temperature")
     ref = str(ref_text).replace(" ", "").replace("°", "")
     if ref not in REF_CHOICES:
@@ -187,8 +187,8 @@ def flow_figures(r, flow) -> dict:
 
 def render_flow(f: dict, flow, sh, norm: str) -> list[str]:
     """The flow block: heat input in kW and MMBtu/h, gas flows in normal m³/h and kg/s."""
-    from ..display import fmt_sig
-    from ..units import unit
+    from .display import fmt_sig
+    from ..core.units import unit
     mm = unit("MMBtu/h").factor
     kgs = f["fuel_mass_flow"]
     same = [f"{fmt_sig(kgs * 3600)} kg/h", f"{fmt_sig(kgs)} kg/s"]
@@ -224,14 +224,14 @@ def _table(head, rows) -> list[str]:
 
 def _T(sh, T_K: float, decimals: int) -> str:
     """'52.2 °C' in the shown unit, with the absolute scale beside: '52.2 °C (325.4 K)'."""
-    from ..units import unit
+    from ..core.units import unit
     t = f"{unit(sh.T).from_si(T_K):.{decimals}f} {sh.T}"
     return t + (f" ({unit(sh.T_abs).from_si(T_K):.{decimals}f} {sh.T_abs})" if sh.T_abs else "")
 
 
 def render_text(r, sh=None, flow=None, flows=None) -> str:
-    from ..display import choose
-    from ..units import unit
+    from .display import choose
+    from ..core.units import unit
     sh = sh or choose()
     s = r.summary
     f, ox = r.fuel, r.oxidant
@@ -357,8 +357,8 @@ def uncertainty_lines(r) -> list[str]:
 
 
 def run(args) -> int:
-    from ..display import choose
-    from ..units import barometer_Pa, parse_flow
+    from .display import choose
+    from ..core.units import barometer_Pa, parse_flow
     from .common import data_notices
     data_notices(args)
     flow = parse_flow(args.flow) if args.flow is not None else None

@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import sys
 
-from ..errors import InputError, NameLookupError
-from ..jsonout import clean, dumps  # noqa: F401  (the commands import them from here)
+from ..core.errors import InputError, NameLookupError
+from ..core.jsonout import clean, dumps  # noqa: F401  (the commands import them from here)
 
 
 #: --h-datum help where the default follows tablegen.thermo.substance.default_datum.
@@ -68,7 +68,7 @@ def datum_from_text(text: str | None, substance=None, *, by_rule: bool = False,
     bare ``sensible`` means h = 0 at 298.15 K.
     """
     from ..thermo.substance import SENSIBLE_DATUM_T_K, T_REF, Datum, default_datum
-    from ..units import quantity, temperature_K
+    from ..core.units import quantity, temperature_K
     if text is None:
         return default_datum(substance, reacting=reacting) if by_rule else Datum("formation")
     t = text.strip()
@@ -85,7 +85,7 @@ def datum_from_text(text: str | None, substance=None, *, by_rule: bool = False,
 
 def anchor_from_text(text: str | None):
     from ..thermo.substance import Anchor
-    from ..units import temperature_K
+    from ..core.units import temperature_K
     if not text:
         return Anchor()
     vals = {}
@@ -122,8 +122,8 @@ def data_notices(args):
 
 def substance_with_options(args, name: str, *, by_rule: bool = False, reacting: bool | None = False):
     """Resolve a substance and apply --h-datum, --p-ref and --anchor (see datum_from_text)."""
-    from .. import api
-    from ..units import pressure_Pa
+    from ..calc import names as api
+    from ..core.units import pressure_Pa
     data_notices(args)
     sub = api.substance(name, source=args.source, data=args.data)
     return sub.with_options(datum=datum_from_text(getattr(args, "h_datum", None), sub, by_rule=by_rule,
@@ -134,7 +134,7 @@ def substance_with_options(args, name: str, *, by_rule: bool = False, reacting: 
 
 def published(args, out, files, notes, what: str, detail: str = "", paths: bool = True) -> None:
     """After a folder was published: its notes, one 'wrote' line, and (paths) every file on stdout."""
-    from ..outfiles import MANIFEST
+    from ..core.outfiles import MANIFEST
     for n in notes:
         notice(args, n)
     notice(args, f"wrote {len(files)} {what} and their manifest {MANIFEST} to {out}/{detail}")

@@ -1,7 +1,7 @@
 """tablegen compare SPEC.toml FOLDER: every table of a book against a reference folder.
 
 The part of the compare command that checks a whole book in one call
-(tablegen.compare_folder does the matching); one report, one deviations CSV and
+(tablegen.calc.compare_folder does the matching); one report, one deviations CSV and
 one summary for the book, exit status the worst of its tables.
 """
 
@@ -10,7 +10,7 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
-from ..errors import InputError, NameLookupError
+from ..core.errors import InputError, NameLookupError
 from .common import dumps, notice
 from .compare_table import (FILES, _is_spec, _keys, _refuse_datum_options, data_files, default_out, hint_lines,
                             load_spec, publish)
@@ -37,7 +37,7 @@ def _split_scoped(values, flag: str, tables) -> dict:
 
 def _table_options(args, specs, refs):
     """Per table: (keys, tolerances, align), from --columns, --tolerance and --align."""
-    from ..compare import parse_align, parse_tolerance
+    from ..calc.compare import parse_align, parse_tolerance
     tol_scoped, tol_all = _split_scoped(args.tolerance, "--tolerance", specs)
     al_scoped, al_all = _split_scoped(args.align, "--align", specs)
     used_tol, used_al = set(), set()
@@ -89,9 +89,9 @@ def _spec_info(spec, path: str) -> dict:
 
 def compute_book(args):
     """Read the spec and the folder, compare every table; (BookComparison, {path: bytes})."""
-    from ..compare import compare, read_reference
-    from ..compare_folder import BookComparison, TableComparison, read_folder, read_mapping
-    from ..compare_output import book_deviations_csv, book_summary
+    from ..calc.compare import compare, read_reference
+    from ..calc.compare_folder import BookComparison, TableComparison, read_folder, read_mapping
+    from ..calc.compare_output import book_deviations_csv, book_summary
 
     if not _is_spec(args.substance):
         raise InputError(f"{args.reference} is a folder; a reference folder is compared with a book "
@@ -140,8 +140,8 @@ def compute_book(args):
 
 
 def book_text(bc) -> str:
-    from ..compare import KEY_LABELS
-    from ..compare_output import format_dev, format_size, unit_suffix, worst_cell, worst_text
+    from ..calc.compare import KEY_LABELS
+    from ..calc.compare_output import format_dev, format_size, unit_suffix, worst_cell, worst_text
     s, f = bc.spec, bc.folder
     ident = f"{s['number']} rev {s['revision']}" if s.get("number") else s["name"]
     lines = [bc.verdict, f"  {s['file']} ({ident}) against {f.path}"]
@@ -181,7 +181,7 @@ def book_text(bc) -> str:
 
 
 def run_book(args) -> int:
-    from ..compare_output import book_summary
+    from ..calc.compare_output import book_summary
     bc, files, notes = compute_book(args)
     publish(args, files, notes, f"issue: comparison of book {bc.spec.get('name', '')} against "
                                 f"the folder {bc.folder.path}: {'PASS' if bc.passed else 'FAIL'}")

@@ -10,7 +10,7 @@ import re
 import sys
 from pathlib import Path
 
-from ..errors import InputError, NameLookupError, TablegenError
+from ..core.errors import InputError, NameLookupError, TablegenError
 from .common import dumps, notice, substance_with_options
 
 FILES = ("report.pdf", "deviations.csv", "summary.json")
@@ -38,7 +38,7 @@ def _refuse_datum_options(args, target):
 
 
 def load_spec(args):
-    from .. import spec as spec_module
+    from ..spec import book as spec_module
     # --extrapolate opens every table of the book, as it does for tablegen build
     return spec_module.load(args.substance, source=args.source, data=args.data,
                             edition=getattr(args, "edition", None),
@@ -73,15 +73,15 @@ def resolve(args):
     sub = substance_with_options(args, target)
     T_m = None
     if args.mean_from is not None:
-        from ..units import temperature_K
+        from ..core.units import temperature_K
         T_m = temperature_K(args.mean_from, "--mean-from")
     return sub, sub.id, sub.id, T_m, volume_reference(args.vol_ref), False
 
 
 def volume_reference(text):
     """--vol-ref: a named set of reference conditions or 'T,P'; None for the default."""
-    from ..compare import VOLUME_REFERENCES
-    from ..units import pressure_Pa, temperature_K
+    from ..calc.compare import VOLUME_REFERENCES
+    from ..core.units import pressure_Pa, temperature_K
     if text is None:
         return None
     t = text.strip()
@@ -143,7 +143,7 @@ def _keys(args, ref, notes: list) -> list:
 
 def parse_column_options(args, units: dict):
     """--tolerance and --align of one table: {key: Tolerance}, {key: kind}."""
-    from ..compare import parse_align, parse_tolerance
+    from ..calc.compare import parse_align, parse_tolerance
     tolerances, align = {}, {}
     for t in args.tolerance:
         k, tol = parse_tolerance(t, units)
@@ -160,8 +160,8 @@ def parse_column_options(args, units: dict):
 
 def compute(args):
     """Read, check and compare one reference table; returns (Comparison, {path: bytes}, notes)."""
-    from ..compare import compare, read_reference
-    from ..compare_output import deviations_csv, summary
+    from ..calc.compare import compare, read_reference
+    from ..calc.compare_output import deviations_csv, summary
 
     sub, name, target_label, T_m, vol_ref, is_spec = resolve(args)
     ref = read_reference(args.reference)
@@ -187,11 +187,11 @@ def compute(args):
 
 
 def write_outputs(files: dict, force: bool, about=()) -> list[str]:
-    """Publish the files as the one set of their folder (tablegen.outfiles.publish_folder: staged
+    """Publish the files as the one set of their folder (tablegen.core.outfiles.publish_folder: staged
     beside it, swapped in whole, with a manifest); any refusal or fault there is an output
     problem (exit 3), after which the folder holds what it held. Returns notes to print."""
-    from .. import outfiles
-    from ..errors import Interrupted
+    from ..core import outfiles
+    from ..core.errors import Interrupted
     folder = Path(next(iter(files))).parent
     try:
         return outfiles.publish_folder(folder, {Path(p).name: d for p, d in files.items()}, force=force,
@@ -203,8 +203,8 @@ def write_outputs(files: dict, force: bool, about=()) -> list[str]:
 
 
 def text_summary(cmp, label: str = "") -> str:
-    from ..compare import KEY_LABELS
-    from ..compare_output import format_dev, format_size, unit_suffix
+    from ..calc.compare import KEY_LABELS
+    from ..calc.compare_output import format_dev, format_size, unit_suffix
     ref = cmp.reference
     lines = [cmp.verdict, f"  {label or cmp.substance['id']} against {ref.path} ({len(ref.lines)} rows; "
                           f"{', '.join(c.key for c in cmp.columns)})"]
@@ -277,8 +277,8 @@ def run_table(args) -> int:
     if getattr(args, "edition", None) is not None:
         raise InputError(f"--edition {args.edition}: an edition is chosen only for a book spec compared "
                          f"with a reference folder; leave --edition out for one reference table")
-    from ..compare_hints import suggested_options
-    from ..compare_output import summary
+    from ..calc.compare_hints import suggested_options
+    from ..calc.compare_output import summary
     cmp, files, notes = compute(args)
     publish(args, files, notes, f"issue: comparison of {cmp.options.get('target') or cmp.substance['id']} "
                                 f"against {cmp.reference.path} (sha256 {cmp.reference.sha256}): {cmp.verdict}")

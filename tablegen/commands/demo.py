@@ -34,8 +34,8 @@ def add_arguments(p):
 
 
 def run(args) -> int:
-    from .. import outfiles
-    from .. import spec as specmod
+    from ..core import outfiles
+    from ..spec import book as specmod
     from ..book.build import all_names, file_names, issue_text, merge, progress_for, render_files
     from ..book.impose import render_booklet
     out = Path(args.out) if args.out else OUT

@@ -18,7 +18,7 @@ import sys
 import numpy as np
 
 from ..data.formats import TM4513, TP2002
-from ..errors import InputError, TablegenError
+from ..core.errors import InputError, TablegenError
 from ..thermo.polynomial import NINE, SEVEN
 from .common import data_notices, notice
 
@@ -206,8 +206,8 @@ def render(sub, lib, fmt: str, rid: str) -> str:
 
 
 def run(args) -> int:
-    from .. import api
-    from ..outfiles import check_files, write_files
+    from ..calc import names as api
+    from ..core.outfiles import check_files, write_files
     if args.out:
         check_files([args.out], args.force)
     lib = data_notices(args)

@@ -4,7 +4,7 @@ Reads a CSV in the shared column convention (header cells ``key [unit]``,
 ``#`` comment lines): a ``T`` column and a ``cp_molar`` column (or a mass-basis
 ``cp`` column, converted with the molar mass of ``--formula``), optionally
 ``dh298_molar`` (h - h(298.15 K)) and ``s0_molar`` (or mass-basis ``s0``)
-columns, which are then fitted with cp. The fit is tablegen.fitting's
+columns, which are then fitted with cp. The fit is tablegen.calc.fitting's
 constrained least squares (cp, h and s° continuous at each breakpoint); it is
 refused when ill-conditioned or when it misses the residual target. The record
 is written in the chosen format; the largest residuals go to stderr and into
@@ -22,7 +22,7 @@ from pathlib import Path
 import numpy as np
 
 from ..data.formats import TM4513, TP2002
-from ..errors import DataError, FitError, InputError, RangeError, TablegenError, UnitError
+from ..core.errors import DataError, FitError, InputError, RangeError, TablegenError, UnitError
 from ..thermo.polynomial import FORMS, NINE, SEVEN
 
 #: Output formats of the fitted record, and the card format written by default for each form.
@@ -97,7 +97,7 @@ def parse_formula(text: str) -> dict:
 
 def read_table(path: str, M_g_per_mol: float) -> dict:
     """The fit columns of a CSV, SI molar units; cites from '# source:' lines."""
-    from ..units import unit
+    from ..core.units import unit
     p = Path(path)
     try:
         text = p.read_text(encoding="utf-8-sig")
@@ -190,9 +190,9 @@ def report(fit, tab, path: str) -> list[str]:
 
 def run(args) -> int:
     from ..data.validate import check_polynomial
-    from ..fitting import fit_cp_table
-    from ..outfiles import check_files, write_files
-    from ..units import quantity, temperature_K
+    from ..calc.fitting import fit_cp_table
+    from ..core.outfiles import check_files, write_files
+    from ..core.units import quantity, temperature_K
     from .common import data_notices, notice
     from .export import check_id, with_poly, write_record
     fmt = args.format or CARD_OF_FORM[args.form]
@@ -222,7 +222,7 @@ def run(args) -> int:
     s298 = quantity(args.s298, "molar_entropy", "--s298") if args.s298 is not None else None
     if not 0 < args.target_cp < 1:
         raise RangeError(f"--target-cp {args.target_cp!r} must lie between 0 and 1 (a relative error)")
-    from ..fitting import FitError
+    from ..calc.fitting import FitError
     if h298 is None:
         notice(args, "note: h(298.15 K) taken as 0 (a sensible-enthalpy record); give --h298 for the "
                      "enthalpy of formation")

@@ -13,7 +13,7 @@ from __future__ import annotations
 import math
 import sys
 
-from ..errors import InputError, NameLookupError, RangeError
+from ..core.errors import InputError, NameLookupError, RangeError
 from .common import add_unit_options, anchor_from_text, datum_from_text, dumps
 
 EXAMPLE = """Gauge pressures (barg, mbarg, kPag, psig) are read against --barometer (default 1.01325 bar).
@@ -114,7 +114,7 @@ def add_arguments(p):
 # ------------------------------------------------------------------ parsing
 def parse_start(text: str, barometer_Pa: float | None = None):
     """'T=15C,P=1.013bar' -> (T1 in K, the start Pressure, {'T': '15C', 'P': '1.013bar'} as typed)."""
-    from ..units import parse_pressure, temperature_K
+    from ..core.units import parse_pressure, temperature_K
     vals = {}
     for part in str(text).split(","):
         if "=" not in part:
@@ -147,7 +147,7 @@ def _number(text: str, what: str, allow_percent: bool = False) -> float:
 
 def step_from_args(args, barometer_Pa: float | None = None) -> tuple[str, dict, dict]:
     """The step, its SI parameters, and the typed step option {'option': ..., 'text': ..., 'pressure': ...}."""
-    from ..units import parse_pressure, quantity, temperature_K
+    from ..core.units import parse_pressure, quantity, temperature_K
     chosen = [(dest, getattr(args, dest)) for dest in STEP_OPTIONS if getattr(args, dest) is not None]
     if len(chosen) != 1:
         names = ", ".join("--" + d.replace("_", "-") for d in STEP_OPTIONS)
@@ -190,9 +190,9 @@ def step_from_args(args, barometer_Pa: float | None = None) -> tuple[str, dict, 
 
 
 def resolve_substance(args):
-    from .. import api
-    from ..steps import incompressible
-    from ..units import pressure_Pa
+    from ..calc import names as api
+    from ..calc.steps import incompressible
+    from ..core.units import pressure_Pa
     if args.incompressible is not None:
         if args.substance is not None:
             raise InputError("give either a gas SUBSTANCE or --incompressible, not both")
@@ -295,7 +295,7 @@ def result_to_json(res, sub, step, params) -> dict:
 
 def dew_points(sub, d: dict) -> dict:
     """The gas's water dew point, and each state at or below the dew point at its own pressure."""
-    from ..saturation import dew_point_at
+    from ..thermo.saturation import dew_point_at
     T0, P0 = dew_point_at(sub)
     if P0 is None:
         return {}
@@ -317,7 +317,7 @@ FLOW_UNITS = {"mass_flow": "kg/s", "molar_flow": "kmol/s", "normal_volume_flow":
 
 def add_flow(d: dict, flow) -> None:
     """Flow figures into the JSON result: power = w × flow, duty = q × flow, volume flows v × flow."""
-    from ..units import P_NORMAL_PA, T_NORMAL_K
+    from ..core.units import P_NORMAL_PA, T_NORMAL_K
     from ..thermo.substance import R_MOLAR
     m = flow.mass_kg_per_s(d["M"], "--flow")
     d["mass_flow"] = m
@@ -351,9 +351,9 @@ def input_echo(args, P1, typed_step: dict, barometer_Pa: float) -> dict:
 
 
 def run(args) -> int:
-    from ..display import choose
-    from ..steps import MIXING_NOTE, process
-    from ..units import barometer_Pa, parse_flow
+    from .display import choose
+    from ..calc.steps import MIXING_NOTE, process
+    from ..core.units import barometer_Pa, parse_flow
     from .common import data_notices
     from .process_text import answer_line, format_text
     data_notices(args)

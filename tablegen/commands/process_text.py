@@ -1,14 +1,14 @@
 """Text of ``tablegen process``: the answer line first, then states, energies, flows, comparison.
 
 Receives the SI-based result dictionary of ``commands.process`` (the JSON
-object) and a :class:`tablegen.display.Shown`, and only formats: every number
+object) and a :class:`tablegen.commands.display.Shown`, and only formats: every number
 is converted from SI to the shown unit here and nowhere else.
 """
 
 from __future__ import annotations
 
-from ..display import fmt_sig
-from ..units import unit
+from .display import fmt_sig
+from ..core.units import unit
 
 STEP_TITLES = {
     "compress": "compression, steady flow, adiabatic",
@@ -39,7 +39,7 @@ def _si(d, key, factor):
 # ------------------------------------------------------------------ pieces
 def pressure_text(sh, P_Pa: float, *, brief: bool = False, barometer: bool = True) -> str:
     """'1.013 bar', or '9.000 barg (10.013 bar)' with the barometer unless left to the caller."""
-    from ..display import P_DECIMALS
+    from .display import P_DECIMALS
     shift = 1 if brief else 0
     dec = max(0, P_DECIMALS.get(sh.P, 4) - shift)
     absolute = f"{_num(unit(sh.P).from_si(P_Pa), dec)} {sh.P}"
@@ -120,7 +120,7 @@ def _states(d: dict, sh) -> list[str]:
     spec = [("T", sh.T, ("T1_K", "T2_K", "T2s_K"), 1.0, lambda x: _num(unit(sh.T).from_si(x), 2))]
     if sh.T_abs:
         spec.append(("T", sh.T_abs, ("T1_K", "T2_K", "T2s_K"), 1.0, lambda x: _num(unit(sh.T_abs).from_si(x), 2)))
-    from ..display import P_DECIMALS
+    from .display import P_DECIMALS
     spec.append(("P", sh.P, ("P1_Pa", "P2_Pa", "P2_Pa"), 1.0,
                  lambda x: _num(unit(sh.P).from_si(x), P_DECIMALS.get(sh.P, 4))))
     if sh.P_gauge:
@@ -164,7 +164,7 @@ def _energies(d: dict, sh) -> list[str]:
 
 
 def _flows(d: dict, sh, flow) -> list[str]:
-    from ..units import P_SCF_PA, T_SCF_K
+    from ..core.units import P_SCF_PA, T_SCF_K
     from ..thermo.substance import R_MOLAR
     m = d["mass_flow"]
     mu = sh.sym("mass_flow")
@@ -265,7 +265,7 @@ def _dew_lines(d: dict, sh) -> list[str]:
     """The gas's water dew point (its one figure) and the states at or below the dew point at their pressure."""
     if d.get("dew_point_P_Pa") is None:
         return []
-    from ..saturation import dew_point_text
+    from ..thermo.saturation import dew_point_text
     out = [f"water dew point of this gas {dew_point_text(d['dew_point_K'], d['dew_point_P_Pa'])}"]
     for c in d.get("condensing_states", ()):
         out.append(f"caution: state {c['state']} ({sh.T_text(c['T_K'], 2)}, {pressure_text(sh, c['P_Pa'])}) is at "

@@ -52,7 +52,7 @@ def check(lib) -> tuple[list[dict], list[str]]:
     built. Warnings: findings that do not refuse a record, one dict each with
     dataset, id, file, line, T_K, function (cp, h or s0), jump_relative, text.
     """
-    from ..errors import DataError
+    from ..core.errors import DataError
     warnings, errors = [], list(getattr(lib, "load_errors", []))
     for d in lib.search_order:
         ds = lib.datasets[d]
@@ -72,8 +72,8 @@ def check(lib) -> tuple[list[dict], list[str]]:
 
 def sources(lib, name: str, as_json: bool) -> int:
     """Print the agreement figures and the default source of one species."""
-    from .. import agreement
-    from ..errors import NameLookupError
+    from ..calc import agreement
+    from ..core.errors import NameLookupError
     try:
         rec = lib.record(name)
     except NameLookupError as e:
@@ -120,7 +120,7 @@ def sources(lib, name: str, as_json: bool) -> int:
 
 def user_records_passed(lib) -> list[dict]:
     """The user records that passed every check (part of the check report)."""
-    from ..errors import DataError
+    from ..core.errors import DataError
     out = []
     for d in reversed(getattr(lib, "user_order", [])):
         ds = lib.datasets[d]
@@ -136,7 +136,7 @@ def user_records_passed(lib) -> list[dict]:
 
 def breakpoint_jumps(lib) -> list[dict]:
     """The relative jump of cp, h and s° at every inner breakpoint of every record."""
-    from ..errors import DataError
+    from ..core.errors import DataError
     out = []
     for d in lib.search_order:
         ds = lib.datasets[d]

@@ -64,13 +64,13 @@ def add_arguments(p):
 def compute(args) -> tuple[list[dict], object]:
     import numpy as np
 
-    from ..units import barometer_Pa, parse_pressure, temperature_list
+    from ..core.units import barometer_Pa, parse_pressure, temperature_list
     sub = substance_with_options(args, args.substance, by_rule=True)
     T = np.array(temperature_list(args.T, "--T"))
     pr = parse_pressure(args.P, "--P", barometer_Pa=barometer_Pa(args.barometer)) if args.P is not None else None
     P = None if pr is None else pr.Pa
     p = sub.properties(T, P, extrapolate=args.extrapolate)
-    from ..saturation import dew_point_at
+    from ..thermo.saturation import dew_point_at
     dew = dew_point_at(sub, P)        # the gas's own figure, or at --P when that differs
     typed_T = [t.strip() for t in str(args.T).split(",")]
     units = {k: u for k, (_, u) in JSON_UNITS.items() if k in p}
@@ -101,9 +101,9 @@ def compute(args) -> tuple[list[dict], object]:
 
 
 def run(args) -> int:
-    from ..display import choose
-    from ..steps import MIXING_NOTE
-    from ..units import barometer_Pa, unit
+    from .display import choose
+    from ..calc.steps import MIXING_NOTE
+    from ..core.units import barometer_Pa, unit
     from .process_text import pressure_text
     rows, sub = compute(args)
     if args.json:
@@ -141,7 +141,7 @@ def run(args) -> int:
     if any(r.get("extrapolated") for r in rows):
         out.append("* extrapolated beyond the data range: not for design use")
     if rows and rows[0].get("dew_point_P_Pa") is not None:
-        from ..saturation import dew_point_text
+        from ..thermo.saturation import dew_point_text
         out.append(f"water dew point {dew_point_text(rows[0]['dew_point_K'], rows[0]['dew_point_P_Pa'])}"
                    + ("; c at or below it: water may condense at this temperature; ideal-gas values do not hold"
                       if any(r.get("condensing") for r in rows) else ""))

@@ -56,7 +56,7 @@ import math
 import re
 from dataclasses import dataclass
 
-from ..errors import DataError
+from ..core.errors import DataError
 from ..thermo.polynomial import NINE, SEVEN
 from . import former_names
 

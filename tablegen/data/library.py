@@ -26,9 +26,9 @@ from pathlib import Path
 
 import numpy as np
 
-from ..constants import R_MOLAR
-from ..errors import DataError, NameLookupError
-from ..tomlread import MAX_DEPTH, nesting_depth, read_text
+from ..core.constants import R_MOLAR
+from ..core.errors import DataError, NameLookupError
+from ..core.tomlread import MAX_DEPTH, nesting_depth, read_text
 from ..thermo.polynomial import FORMS, SEVEN, Polynomial, seven_to_nine
 from . import former_names
 from . import formats, validate

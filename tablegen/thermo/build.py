@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import math
 
-from ..composition import SUM_TOLERANCE, write
-from ..errors import DataError, InputError, NameLookupError, RangeError, TablegenError
+from ..core.composition import SUM_TOLERANCE, write
+from ..core.errors import DataError, InputError, NameLookupError, RangeError, TablegenError
 from .polynomial import combine
 from .substance import Component, Substance
 

@@ -24,7 +24,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ..errors import DataError
+from ..core.errors import DataError
 
 #: Number of coefficients per interval in the 9-coefficient layout.
 NCOEF = 9

@@ -19,13 +19,13 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
-from ..constants import P_STD, R_MOLAR, T_REF  # noqa: F401  (re-exported)
-from ..errors import DataRangeError, InputError, NameLookupError, RangeError
+from ..core.constants import P_STD, R_MOLAR, T_REF  # noqa: F401  (re-exported)
+from ..core.errors import DataRangeError, InputError, NameLookupError, RangeError
 from .polynomial import Polynomial
 
 #: The function that gives U_<key> columns for ``properties(uncertainty=True)``. The
 #: budget lives in the calc layer, above this one, so thermo never imports it: the
-#: public API registers it (tablegen/api.py) through :func:`use_uncertainty_columns`.
+#: public API registers it (tablegen/calc/names.py) through :func:`use_uncertainty_columns`.
 _UNCERTAINTY_COLUMNS: list = []
 
 
@@ -38,7 +38,7 @@ def _uncertainty_columns():
     if not _UNCERTAINTY_COLUMNS:
         raise InputError("uncertainty=True needs the uncertainty budget, which is not registered; "
                          "allowed: use tablegen.substance() or tablegen.mixture(), or call "
-                         "tablegen.thermo.substance.use_uncertainty_columns(tablegen.uncertainty."
+                         "tablegen.thermo.substance.use_uncertainty_columns(tablegen.calc.uncertainty."
                          "uncertainty_columns) first")
     return _UNCERTAINTY_COLUMNS[0]
 
@@ -91,10 +91,10 @@ SENSIBLE_DATUM_T_K = 273.15
 
 
 def products_of_combustion(substance) -> bool:
-    """True for the products of a combustion, computed or measured (tablegen.burn).
+    """True for the products of a combustion, computed or measured (tablegen.calc.burn).
 
     They are the substances that carry the combustion cautions
-    (``Substance.cautions``, which tablegen.burn gives every flue gas it makes
+    (``Substance.cautions``, which tablegen.calc.burn gives every flue gas it makes
     and no other substance has).
     """
     return bool(getattr(substance, "cautions", ()))
@@ -295,7 +295,7 @@ class Substance:
             adds the boolean array ``extrapolated``
         uncertainty : add U_<key>, the expanded uncertainty (k = 2, same unit as
             <key>) of each key, at the largest P given (else 1 bar); see
-            tablegen.uncertainty
+            tablegen.calc.uncertainty
         keys : the keys wanted (default: all); only what they need is evaluated,
             e.g. ``keys=("cp", "h")`` skips the logarithm and the entropy functions
 
