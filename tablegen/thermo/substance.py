@@ -21,6 +21,7 @@ import numpy as np
 
 from ..core.constants import P_STD, R_MOLAR, T_REF  # noqa: F401  (re-exported)
 from ..core.errors import DataRangeError, InputError, NameLookupError, RangeError
+from .inverse import INVERTIBLE, bad_value, solve
 from .polynomial import Polynomial
 
 #: The function that gives U_<key> columns for ``properties(uncertainty=True)``. The
@@ -43,22 +44,11 @@ def _uncertainty_columns():
     return _UNCERTAINTY_COLUMNS[0]
 
 
-#: Relative tolerance of the inverse functions (in T).
-INVERSE_RTOL = 1e-10
 #: Extrapolation reaches at most this factor beyond the data range: from T_min / 2 to
 #: 2 T_max (a polynomial fit says nothing further out; docs/spec.md, "extrapolate").
 EXTRAPOLATION_FACTOR = 2.0
 #: Largest |ln Pr| and |ln vr| given: Pr and vr stay between 1e-300 and 1e300.
 LN_SCALE_MAX = 690.0
-#: A point leaves the inverse iteration when its Newton step is below this part of T
-#: (above the rounding noise of the published forms, about 1e-11 in narrow intervals)
-#: (Newton converges quadratically: the next step would be far below INVERSE_RTOL).
-INVERSE_STEP_RTOL = 1e-11
-#: Newton passes after which an inverse call gives up (each pass has a bisection
-#: fallback, so 60 passes resolve the 2^-60 part of a grid cell).
-MAX_INVERSE_PASSES = 60
-#: Cells of the tabulation an inverse starts from (uniform in the inverted function).
-INVERSE_CELLS = 4096
 
 
 @dataclass(frozen=True, slots=True)
@@ -161,10 +151,6 @@ class Component:
     mass_fraction: float
     M: float
     source: str
-
-
-#: Properties that ``T_from`` can invert (all monotonic in T for an ideal gas).
-INVERTIBLE = ("h", "u", "s0", "Pr", "vr", "h_molar", "u_molar", "s0_molar")
 
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -314,18 +300,7 @@ class Substance:
             return self._properties_point(float(T), extrapolate, molar_only)
         T = _as_temperatures(T)
         mask = self.check_T(T, extrapolate)
-        if keys is None:
-            want = set(_PROPERTY_KEYS) if not molar_only else {k for k in _PROPERTY_KEYS if _IS_MOLAR[k]}
-            if P is not None:
-                want |= {"s", "s_molar", "v", "rho", "P_Pa"} if not molar_only else {"s_molar", "P_Pa"}
-        else:
-            want = set(keys)
-            unknown = want - set(_PROPERTY_KEYS) - {"s", "s_molar", "v", "rho", "P_Pa", "T_K"}
-            if unknown:
-                raise NameLookupError(f"unknown property key {sorted(unknown)[0]!r}; allowed: "
-                                      + ", ".join(_PROPERTY_KEYS) + ", s, s_molar, v, rho (with P)")
-            if P is None and want & {"s", "s_molar", "v", "rho", "P_Pa"}:
-                raise InputError("keys s, s_molar, v, rho need pressures P")
+        want = _wanted(keys, P is not None, molar_only)
         funcs = set()
         for key in want:
             funcs.update(_FUNCTIONS.get(key, ""))
@@ -364,48 +339,9 @@ class Substance:
             if "h" in want:
                 out["h"] = h_m / Mk
         if "s" in funcs:
-            sR = raw["s"]
-            s0_m = (sR - c["lnP"]) * R_MOLAR
-            out["s0_molar"] = s0_m
-            if "s0" in want:
-                out["s0"] = s0_m / Mk
-            if want & {"Pr", "vr"}:
-                lnPr = sR
-                lnPr -= c["sR_anchor"] - math.log(self.anchor.Pr)
-                if T.size:
-                    self._check_scales(float(lnPr.min()), float(lnPr.max()), float(T.min()), float(T.max()))
-                at_anchor = T == self.anchor.T_K     # the anchor values exactly, as the datum
-                if "Pr" in want:
-                    out["Pr"] = _set_where(np.exp(lnPr), at_anchor, self.anchor.Pr)
-                if "vr" in want:
-                    vr = np.exp(math.log(self.anchor.Pr) - lnPr)
-                    vr *= T
-                    vr *= self.anchor.vr / self.anchor.T_K
-                    out["vr"] = _set_where(vr, at_anchor, self.anchor.vr)
-            if want & {"g0", "g0_molar"}:
-                g0_m = out["h_molar"] - T * s0_m
-                out["g0_molar"] = g0_m
-                if "g0" in want:
-                    out["g0"] = g0_m / Mk
+            self._entropy_columns(out, T, raw["s"], c, want)
         if P is not None:
-            P = _as_numbers(P, f"{self.id}: pressures", "in Pa")
-            if not np.all(np.isfinite(P)) or np.any(P <= 0):
-                raise RangeError(f"{self.id}: pressures must be finite and above 0 Pa")
-            try:
-                shape = np.broadcast_shapes(P.shape, T.shape)
-            except ValueError:
-                raise InputError(f"{self.id}: {P.size} pressures for {T.size} temperatures; give one "
-                                    f"pressure, or one per temperature") from None
-            out["P_Pa"] = np.broadcast_to(P, shape)
-            if want & {"s", "s_molar"}:
-                s_m = out["s0_molar"] - R_MOLAR * np.log(P / self.P_ref_Pa)
-                out["s_molar"] = s_m
-                if "s" in want:
-                    out["s"] = s_m / Mk
-            if "v" in want:
-                out["v"] = self.R * T / P
-            if "rho" in want:
-                out["rho"] = P / (self.R * T)
+            self._pressure_columns(out, T, P, want)
         if keys is not None:
             out = {k: v for k, v in out.items() if k in want or k in ("T_K", "M", "R")}
         if mask is not None:
@@ -413,6 +349,55 @@ class Substance:
         if uncertainty:
             out.update(_uncertainty_columns()(self, T, P))
         return out
+
+    def _entropy_columns(self, out: dict, T: np.ndarray, sR, c: dict, want: set) -> None:
+        """Add s0_molar and the wanted of s0, Pr, vr, g0, g0_molar to ``out`` (sR: s°/R at 1 bar;
+        g0 needs h_molar in ``out`` already)."""
+        Mk = self.M * 1e-3
+        s0_m = (sR - c["lnP"]) * R_MOLAR
+        out["s0_molar"] = s0_m
+        if "s0" in want:
+            out["s0"] = s0_m / Mk
+        if want & {"Pr", "vr"}:
+            lnPr = sR
+            lnPr -= c["sR_anchor"] - math.log(self.anchor.Pr)
+            if T.size:
+                self._check_scales(float(lnPr.min()), float(lnPr.max()), float(T.min()), float(T.max()))
+            at_anchor = T == self.anchor.T_K     # the anchor values exactly, as the datum
+            if "Pr" in want:
+                out["Pr"] = _set_where(np.exp(lnPr), at_anchor, self.anchor.Pr)
+            if "vr" in want:
+                vr = np.exp(math.log(self.anchor.Pr) - lnPr)
+                vr *= T
+                vr *= self.anchor.vr / self.anchor.T_K
+                out["vr"] = _set_where(vr, at_anchor, self.anchor.vr)
+        if want & {"g0", "g0_molar"}:
+            g0_m = out["h_molar"] - T * s0_m
+            out["g0_molar"] = g0_m
+            if "g0" in want:
+                out["g0"] = g0_m / Mk
+
+    def _pressure_columns(self, out: dict, T: np.ndarray, P, want: set) -> None:
+        """Add P_Pa and the wanted of s, s_molar, v, rho at pressures P (Pa) to ``out``."""
+        Mk = self.M * 1e-3
+        P = _as_numbers(P, f"{self.id}: pressures", "in Pa")
+        if not np.all(np.isfinite(P)) or np.any(P <= 0):
+            raise RangeError(f"{self.id}: pressures must be finite and above 0 Pa")
+        try:
+            shape = np.broadcast_shapes(P.shape, T.shape)
+        except ValueError:
+            raise InputError(f"{self.id}: {P.size} pressures for {T.size} temperatures; give one "
+                             f"pressure, or one per temperature") from None
+        out["P_Pa"] = np.broadcast_to(P, shape)
+        if want & {"s", "s_molar"}:
+            s_m = out["s0_molar"] - R_MOLAR * np.log(P / self.P_ref_Pa)
+            out["s_molar"] = s_m
+            if "s" in want:
+                out["s"] = s_m / Mk
+        if "v" in want:
+            out["v"] = self.R * T / P
+        if "rho" in want:
+            out["rho"] = P / (self.R * T)
 
     def _exact_at_datum(self, T: np.ndarray, h, per_kg: float):
         """h at the datum temperature is the datum value by definition: set it exactly,
@@ -516,74 +501,6 @@ class Substance:
         return cp, h, s0
 
     # ------------------------------------------------------------- inverse
-    def _target(self, key: str, T: np.ndarray):
-        """Monotonic increasing f(T) for ``key`` and df/dT, from the polynomial alone.
-
-        Only the two functions the key needs are evaluated (cp and h, or cp and s):
-        an inverse pass costs a fraction of a ``properties`` call.
-        """
-        molar = key.endswith("_molar")
-        Mk = 1.0 if molar else self.M * 1e-3
-        base = key[:-6] if molar else key
-        if base in ("h", "u"):
-            raw = self.poly.evaluate(T, want=("cp", "h"))
-            cp = raw["cp"] * (R_MOLAR / Mk)
-            f = raw["h"] * (R_MOLAR / Mk) + self._constants()["h_off"] / Mk
-            if base == "h":
-                return f, cp
-            return f - (R_MOLAR / Mk) * T, cp - R_MOLAR / Mk
-        if base not in ("s0", "Pr", "vr"):
-            raise NameLookupError(f"cannot solve for T from {key!r}; allowed: {', '.join(INVERTIBLE)}")
-        raw = self.poly.evaluate(T, want=("cp", "s"))
-        cpR, sR = raw["cp"], raw["s"]
-        c = self._constants()
-        if base == "s0":
-            return (sR - c["lnP"]) * (R_MOLAR / Mk), cpR * (R_MOLAR / Mk) / T
-        lnPr = math.log(self.anchor.Pr) + (sR - c["sR_anchor"])
-        if base == "Pr":
-            return lnPr, cpR / T
-        # -ln vr = -ln vr_a - ln(T/T_a) + ln Pr - ln Pr_a; d/dT = (cp/R - 1)/T = cv/(R T)
-        return (-math.log(self.anchor.vr) - np.log(T / self.anchor.T_K) + lnPr - math.log(self.anchor.Pr),
-                (cpR - 1.0) / T)
-
-    def _grid(self, key: str):
-        """The tabulation the inverse starts from, uniform in f = f(T) so that a value's
-        cell is found by one division instead of a binary search.
-
-        Returns (f0, df_cell, T cells (n+1), f at the cell ends, cubic coefficients (4, n)
-        of T(t) on each cell, t in [0, 1] the fraction of the cell in f). The cubic is the
-        Hermite interpolant of the inverse function with slopes from cp (error about
-        1e-12 relative at 4096 cells).
-        """
-        g = self._cache.get(("grid", key))
-        if g is None:
-            # a fine geometric tabulation first; its cells bracket the uniform-f points
-            Tq = np.unique(np.concatenate([np.geomspace(self.T_min, self.T_max, 8193), self.poly.T_bounds]))
-            fq, _ = self._target(key, Tq)
-            fq = np.maximum.accumulate(fq)      # small jumps at breakpoints: keep it monotonic
-            n = INVERSE_CELLS
-            fu = np.linspace(fq[0], fq[-1], n + 1)
-            jq = np.clip(np.searchsorted(fq, fu, side="right") - 1, 0, Tq.size - 2)
-            Tu = Tq[jq] + (Tq[jq + 1] - Tq[jq]) * np.clip(
-                (fu - fq[jq]) / np.where(fq[jq + 1] > fq[jq], fq[jq + 1] - fq[jq], 1.0), 0.0, 1.0)
-            for _ in range(3):                  # polish the cell ends (Newton, kept in their cells)
-                f, df = self._target(key, Tu)
-                Tu = np.clip(Tu - (f - fu) / df, Tq[jq], Tq[jq + 1])
-            Tu[0], Tu[-1] = self.T_min, self.T_max
-            Tu = np.maximum.accumulate(Tu)
-            f, df = self._target(key, Tu)
-            f = np.maximum.accumulate(f)
-            span = np.diff(f)
-            dT = np.diff(Tu)
-            with np.errstate(divide="ignore", invalid="ignore"):
-                m0 = np.where(df[:-1] > 0, span / df[:-1], dT)
-                m1 = np.where(df[1:] > 0, span / df[1:], dT)
-            # T(t) = T0 + m0 t + (3 dT - 2 m0 - m1) t^2 + (m0 + m1 - 2 dT) t^3
-            cub = np.stack([Tu[:-1], m0, 3 * dT - 2 * m0 - m1, m0 + m1 - 2 * dT])
-            g = (float(fu[0]), float(fu[1] - fu[0]), Tu, f, cub)
-            self._cache[("grid", key)] = g
-        return g
-
     def T_from(self, key: str, values, *, report: bool = False):
         """Temperature (K) at which property ``key`` takes ``values`` (SI units).
 
@@ -609,68 +526,12 @@ class Substance:
         if key not in INVERTIBLE:
             raise NameLookupError(f"cannot solve for T from {key!r}; allowed: {', '.join(INVERTIBLE)}")
         y = _as_numbers(values, f"{self.id}: values of {key}", "in SI units")
-        shape = y.shape
         if key == "Pr":
-            y = np.log(y) if np.all(y > 0) else _bad_value(self, key, values)
+            y = np.log(y) if np.all(y > 0) else bad_value(self, key, values)
         elif key == "vr":
-            y = -np.log(y) if np.all(y > 0) else _bad_value(self, key, values)
-        y = y.ravel()
-        f0, dcell, Tg, fg, cub = self._grid(key)
-        if not np.all(np.isfinite(y)) or np.any(y < fg[0] - 1e-12 * abs(fg[0])) or \
-                np.any(y > fg[-1] + 1e-12 * abs(fg[-1])):
-            lo, hi = self.T_min, self.T_max
-            raise RangeError(f"{self.id}: a value of {key} lies outside what the data range "
-                             f"{lo:g}-{hi:g} K gives; allowed: values between {key}({lo:g} K) and {key}({hi:g} K)")
-        n = Tg.size - 1
-        x = (y - f0) / dcell
-        j = np.clip(x.astype(np.intp), 0, n - 1)
-        # the cell ends' f are the polished values, not exactly uniform: step to the cell
-        # that holds y where rounding put it in a neighbour
-        j -= (y < fg[j]) & (j > 0)
-        j += (y > fg[j + 1]) & (j < n - 1)
-        t = np.clip(x - j, 0.0, 1.0)
-        T = cub[3, j]
-        T *= t
-        T += cub[2, j]
-        T *= t
-        T += cub[1, j]
-        T *= t
-        T += cub[0, j]
-        lo, hi = Tg[j], Tg[j + 1]
-        np.clip(T, lo, hi, out=T)
-        todo = None                     # None: every point (no index arrays on the first pass)
-        passes, left, last_step = 0, [], 0.0
-        while todo is None or todo.size:
-            if passes == MAX_INVERSE_PASSES:
-                raise RangeError(f"{self.id}: T from {key} did not converge in {passes} passes (a value "
-                                 f"may fall in a jump of the data at a breakpoint)")
-            passes += 1
-            sel = slice(None) if todo is None else todo
-            Tt, yt, lt, ht = T[sel], y[sel], lo[sel], hi[sel]
-            f, df = self._target(key, Tt)
-            r = f - yt
-            lt = np.where(r < 0, Tt, lt)
-            ht = np.where(r > 0, Tt, ht)
-            with np.errstate(divide="ignore", invalid="ignore"):
-                Tn = Tt - r / df
-            # a Newton step that lands outside the bracket is replaced by bisection; one
-            # that lands on the bracket end it came from is a converged step, kept
-            inside = (Tn >= lt) & (Tn <= ht) & np.isfinite(Tn)
-            if not np.all(inside):
-                Tn = np.where(inside, Tn, 0.5 * (lt + ht))
-            step = np.abs(Tn - Tt)
-            T[sel] = Tn
-            lo[sel], hi[sel] = lt, ht
-            done = (step <= INVERSE_STEP_RTOL * Tn) | (ht - lt <= INVERSE_RTOL * Tn)
-            if step.size:
-                last_step = max(last_step, float(np.max(step / Tn)))
-            idx = np.arange(y.size) if todo is None else todo
-            todo = idx[~done]
-            left.append(int(todo.size))
-        T = T.reshape(shape)
-        if report:
-            return T, InverseReport(passes=passes, remaining=tuple(left), max_last_step_rel=last_step)
-        return T
+            y = -np.log(y) if np.all(y > 0) else bad_value(self, key, values)
+        return solve(self, key, y, report=report)
+
 
 #: Keys of properties() without pressures, and whether each is molar.
 _PROPERTY_KEYS = ("cp_molar", "cv_molar", "h_molar", "u_molar", "s0_molar", "g0_molar", "dh298_molar",
@@ -684,6 +545,23 @@ _FUNCTIONS = {"cp_molar": "c", "cv_molar": "c", "k": "c", "cp": "c", "cv": "c", 
 
 #: Types taken as one temperature by the no-array paths (a 0-d array is not among them).
 _SCALARS = (float, int, np.float64, np.float32, np.int64, np.int32)
+
+
+def _wanted(keys, with_P: bool, molar_only: bool) -> set:
+    """The keys properties() returns: all (or the molar ones), or those asked, checked."""
+    if keys is None:
+        want = set(_PROPERTY_KEYS) if not molar_only else {k for k in _PROPERTY_KEYS if _IS_MOLAR[k]}
+        if with_P:
+            want |= {"s", "s_molar", "v", "rho", "P_Pa"} if not molar_only else {"s_molar", "P_Pa"}
+        return want
+    want = set(keys)
+    unknown = want - set(_PROPERTY_KEYS) - {"s", "s_molar", "v", "rho", "P_Pa", "T_K"}
+    if unknown:
+        raise NameLookupError(f"unknown property key {sorted(unknown)[0]!r}; allowed: "
+                              + ", ".join(_PROPERTY_KEYS) + ", s, s_molar, v, rho (with P)")
+    if not with_P and want & {"s", "s_molar", "v", "rho", "P_Pa"}:
+        raise InputError("keys s, s_molar, v, rho need pressures P")
+    return want
 
 
 def _set_where(a, mask, value):
@@ -708,25 +586,3 @@ def _as_numbers(values, what: str, unit: str) -> np.ndarray:
 
 def _as_temperatures(T) -> np.ndarray:
     return _as_numbers(T, "temperatures", "in K")
-
-
-@dataclass(frozen=True, slots=True)
-class InverseReport:
-    """How an inverse call went (compare scipy.optimize's RootResults).
-
-    passes : Newton passes over the points still iterating
-    remaining : points still iterating after each pass (the last is 0)
-    max_last_step_rel : largest |ΔT|/T of the steps taken in the passes
-    """
-
-    passes: int
-    remaining: tuple
-    max_last_step_rel: float
-
-    @property
-    def converged(self) -> bool:
-        return not self.remaining or self.remaining[-1] == 0
-
-
-def _bad_value(sub, key, values):
-    raise RangeError(f"{sub.id}: {key} values must be positive")
