@@ -21,6 +21,7 @@ from hypothesis import strategies as st
 
 import tablegen
 from tablegen.calc import uncertainty as un
+from tablegen.calc import evidence as ev, interpolation as ip, realgas as rg
 from tablegen.data.library import library
 from tablegen.core.errors import TablegenError
 from tablegen.core.rounding import round_steps_down
@@ -46,7 +47,7 @@ def test_codata_key_values_from_memory_agree_with_nasa_tm4513():
     """CODATA 1989 S°(298.15 K) and ΔfH° (shipped from memory) against the shipped
     NASA TM-4513 functions: agreement within the CODATA uncertainty for the
     combustion species, which both evaluations rest on the same spectroscopy for."""
-    cd = un.codata_values()
+    cd = ev.codata_values()
     for sid in ("N2", "O2", "H2", "Ar", "He", "H2O", "CO", "CO2", "O", "H", "N", "NH3", "SO2", "H2S", "HCl"):
         v = cd[sid]
         e = library().record(sid, source="nasa1993").poly.evaluate(np.array([298.15]))
@@ -60,10 +61,10 @@ def test_codata_difference_widens_the_stated_uncertainty():
     U (S2: NASA TM-4513 takes newer data), the budget's S°(298.15 K) standard
     uncertainty is at least that difference as a rectangular half-width."""
     rec = library().record("S2", source="nasa1993")
-    sd = un.species_data(rec, np.array([500.0]), {})
+    sd = ev.species_data(rec, np.array([500.0]), {})
     e = rec.poly.evaluate(np.array([298.15]))
-    d = abs(e["s"][0] * R - un.codata_values()["S2"]["S298"])
-    assert d > un.codata_values()["S2"]["U_S298"]
+    d = abs(e["s"][0] * R - ev.codata_values()["S2"]["S298"])
+    assert d > ev.codata_values()["S2"]["U_S298"]
     assert sd.S298 >= d / math.sqrt(3)
 
 
@@ -78,10 +79,10 @@ def test_class_defaults_equal_what_tools_class_defaults_derives():
     tool = importlib.util.module_from_spec(spec)
     spec.loader.exec_module(tool)
     derived = tool.derive()
-    assert set(derived) == set(un.CLASS_DEFAULTS)
+    assert set(derived) == set(ev.CLASS_DEFAULTS)
     for cls, figs in derived.items():
         for what, vals in figs.items():
-            assert un.CLASS_DEFAULTS[cls][what] == pytest.approx(vals, rel=1e-9), (cls, what)
+            assert ev.CLASS_DEFAULTS[cls][what] == pytest.approx(vals, rel=1e-9), (cls, what)
 
 
 def test_real_gas_departure_is_stated_apart_from_U():
@@ -142,9 +143,9 @@ def test_virial_Z_h_s_cp_within_stated_uncertainty_of_coolprop(sid):
     a = AbstractState("HEOS", fluid)
     for T, P in VIRIAL_STATES[sid]:
         Ta = np.array([T])
-        est = un.virial_mixture(sub.components, Ta)
-        dep = un.model_departures(est, Ta, P)
-        bnd = un.departure_bounds(est, Ta, P)
+        est = rg.virial_mixture(sub.components, Ta)
+        dep = rg.model_departures(est, Ta, P)
+        bnd = rg.departure_bounds(est, Ta, P)
         a.update(CoolProp.PT_INPUTS, P, T)
         Z, h, s, cp = a.compressibility_factor(), a.hmolar(), a.smolar(), a.cpmolar()
         p0 = 1.0
@@ -180,7 +181,7 @@ def test_interpolation_bound_never_exceeded_at_10000_random_temperatures(name):
     T = rng.uniform(rows[0], rows[-1], 10000)
     j = np.clip(np.searchsorted(rows, T, side="right") - 1, 0, rows.size - 2)
     for key in ("cp", "h", "s0", "Pr", "vr", "k"):
-        bound = un.interpolation_bound(sub, key, rows)
+        bound = ip.interpolation_bound(sub, key, rows)
         f = sub.properties(T)[key]
         fr = sub.properties(rows)[key]
         lin = fr[j] + (fr[j + 1] - fr[j]) * (T - rows[j]) / (rows[j + 1] - rows[j])
@@ -193,15 +194,15 @@ def test_auto_step_is_largest_round_step_meeting_tolerance():
     """auto_step returns a round step that keeps interpolation in cp and h within
     1e-4 relative, and the next larger round step does not."""
     sub = tablegen.substance("air")
-    step = un.auto_step(sub, ("cp", "h"), 300.0, 1500.0, 1e-4)
+    step = ip.auto_step(sub, ("cp", "h"), 300.0, 1500.0, 1e-4)
     assert step in round_steps_down(1200.0)
     steps = round_steps_down(1200.0)
     bigger = steps[steps.index(step) - 1]
     rows = np.append(np.arange(300.0, 1500.0, bigger), 1500.0)
     mid = 0.5 * (rows[1:] + rows[:-1])
     p = sub.properties(mid)
-    b_cp = un.interpolation_bound(sub, "cp", rows) / p["cp"]
-    b_h = un.interpolation_bound(sub, "h", rows) / (p["cp"] * mid)
+    b_cp = ip.interpolation_bound(sub, "cp", rows) / p["cp"]
+    b_h = ip.interpolation_bound(sub, "h", rows) / (p["cp"] * mid)
     assert max(b_cp.max(), b_h.max()) > 1e-4
 
 
@@ -347,16 +348,16 @@ def test_auto_step_bad_tolerance_gives_one_clear_message():
     sub = tablegen.substance("air")
     for tol in ("abc", -1.0, {"cp": None}, {"h": 1.0}):
         with pytest.raises(SpecError) as e:
-            un.auto_step(sub, ("cp",), 300.0, 400.0, tol)
+            ip.auto_step(sub, ("cp",), 300.0, 400.0, tol)
         assert "tolerance" in str(e.value)
 
 
 def test_species_class_defaults():
-    assert un.species_class({"Ar": 1}) == "noble gas"
-    assert un.species_class({"O": 1}) == "monatomic"
-    assert un.species_class({"N": 2}) == "diatomic"
-    assert un.species_class({"O": 1, "H": 1}, "OH") == "diatomic radical"
-    assert un.species_class({"C": 1, "O": 2}) == "small polyatomic"
-    assert un.species_class({"N": 1, "O": 2}, "NO2") == "polyatomic radical"
-    assert un.species_class({"C": 1, "H": 4}) == "hydrocarbon or larger"
-    assert un.species_class({"C": 6, "H": 14}) == "hydrocarbon or larger"
+    assert ev.species_class({"Ar": 1}) == "noble gas"
+    assert ev.species_class({"O": 1}) == "monatomic"
+    assert ev.species_class({"N": 2}) == "diatomic"
+    assert ev.species_class({"O": 1, "H": 1}, "OH") == "diatomic radical"
+    assert ev.species_class({"C": 1, "O": 2}) == "small polyatomic"
+    assert ev.species_class({"N": 1, "O": 2}, "NO2") == "polyatomic radical"
+    assert ev.species_class({"C": 1, "H": 4}) == "hydrocarbon or larger"
+    assert ev.species_class({"C": 6, "H": 14}) == "hydrocarbon or larger"

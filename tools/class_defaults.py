@@ -32,7 +32,7 @@ import numpy as np
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 from tablegen.data.library import library  # noqa: E402
-from tablegen.calc.uncertainty import species_class  # noqa: E402
+from tablegen.calc.evidence import species_class  # noqa: E402
 
 from tablegen.thermo.substance import R_MOLAR as R  # noqa: E402
 #: tablegen id -> JANAF table index (janaf package)

@@ -388,6 +388,7 @@ def worked_example(ts, tm, doc):
     and U at the two rows. ``ts`` is the table spec, ``tm`` its model.
     """
     from ..calc import uncertainty as unc
+    from ..calc.interpolation import interpolation_bound
     from ..core.units import unit
     sub = ts.substance
     c = _example_column(tm)
@@ -406,7 +407,7 @@ def worked_example(ts, tm, doc):
     v1, v2 = (float(x) for x in (tm.columns[j].cells[i], tm.columns[j].cells[i + 1]))
     v = v1 + (t_read - t1) / (t2 - t1) * (v2 - v1)
     uf = _printed_factor(c.key, c, ts, doc, sub)
-    bound = float(unc.interpolation_bound(sub, c.key, np.array([T1, T2]), P_Pa=doc.max_pressure_Pa)[0]) / uf
+    bound = float(interpolation_bound(sub, c.key, np.array([T1, T2]), P_Pa=doc.max_pressure_Pa)[0]) / uf
     step = {c.key: 10.0 ** (-c.decimals) * uf}
     cu = getattr(ts, "composition_u", None)
     b = unc.budget(sub, np.array([T1, T2]), [c.key], P_max_Pa=doc.max_pressure_Pa, printed_step=step,

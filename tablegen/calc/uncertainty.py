@@ -42,18 +42,10 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..core.errors import InputError, NameLookupError, RangeError
-# the evidence and real-gas parts live in their own modules; their names stay
-# importable from here (public API: tablegen.calc.uncertainty.budget and friends)
-from .evidence import (BAND_EDGES_K, CLASS_DEFAULTS, CP_FLOOR_REL, SQRT3, SpeciesData,  # noqa: F401
-                       agreement_index, by_species, codata_values, load_agreement, record_for, record_functions,
-                       shipped_spread, species_class, species_data, spread_figures)
-from .realgas import (VirialEstimate, critical_constants, departure_bounds,  # noqa: F401
-                      model_departures, model_statements, second_virial, vapour_pressure_estimate,
-                      virial_mixture)
 from ..thermo.substance import P_STD, R_MOLAR, T_REF
-# the keys of the budget and the interpolation bounds (tablegen/calc/interpolation.py), importable from here
-from .interpolation import (ENERGY_KEYS, STANDARD_STATE_KEYS, UNITS, _check_keys,  # noqa: F401
-                            auto_step, interpolation_bound, interpolation_bounds)
+from .evidence import BAND_EDGES_K, SQRT3, agreement_index, by_species, record_for, species_data
+from .interpolation import ENERGY_KEYS, STANDARD_STATE_KEYS, UNITS, _check_keys, interpolation_bounds
+from .realgas import departure_bounds, model_statements, virial_mixture
 
 #: Coverage factor of every stated expanded uncertainty (about 95 % for a
 #: normal distribution; JCGM 100:2008 §6.2).
