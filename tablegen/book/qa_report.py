@@ -265,7 +265,47 @@ def _caution_and_signoff(flow, cmp):
 
 
 # ----------------------------------------------------------------- listing
-def _listing(flow, cmp, table: str = ""):
+#: What ``--listing`` accepts: every row; the rows out of tolerance with their neighbours;
+#: or every row up to LISTING_FULL_ROWS rows of a table and the failing rows above (default).
+LISTING_MODES = ("auto", "full", "failing")
+#: Rows of one table that "auto" still lists in full (about eleven A4 pages per group of
+#: three columns; a larger table takes seconds per thousand rows to draw and nobody reads it).
+LISTING_FULL_ROWS = 500
+#: Rows listed either side of a row out of tolerance in an abridged listing.
+LISTING_NEIGHBOURS = 2
+
+
+def listed_rows(cmp, listing: str = "auto") -> list:
+    """The rows the PDF listing prints: a list of row indices, with ``(a, b)`` for a run of
+    rows a..b-1 left out (all within tolerance). The first and last row always appear, so
+    the range compared is visible; deviations.csv keeps every row whatever the mode."""
+    n = int(cmp.T_K.size)
+    if listing == "full" or (listing == "auto" and n <= LISTING_FULL_ROWS):
+        return list(range(n))
+    bad = np.zeros(n, bool)
+    for col in cmp.columns:
+        bad |= np.asarray(col.present, bool) & ~np.asarray(col.within, bool)
+    keep = bad.copy()
+    for d in range(1, LISTING_NEIGHBOURS + 1):
+        keep[:-d] |= bad[d:]
+        keep[d:] |= bad[:-d]
+    if n:
+        keep[0] = keep[-1] = True
+    out, i = [], 0
+    while i < n:
+        if keep[i]:
+            out.append(i)
+            i += 1
+            continue
+        j = i
+        while j < n and not keep[j]:
+            j += 1
+        out.append((i, j))
+        i = j
+    return out
+
+
+def _listing(flow, cmp, table: str = "", listing: str = "auto"):
     from ..calc.compare_output import format_dev
     ref = cmp.reference
     cols = list(cmp.columns)
@@ -275,6 +315,7 @@ def _listing(flow, cmp, table: str = ""):
     w_line, w_T = 26.0, 44.0
     w_ref, w_tg, w_d, w_m = 52.0, 52.0, 42.0, 11.0
     aligned_any = any(c.alignment is not None for c in cols)
+    rows = listed_rows(cmp, listing)
     for g in range(0, len(cols), per):
         group = cols[g:g + per]
         flow.new_page()
@@ -285,6 +326,9 @@ def _listing(flow, cmp, table: str = ""):
                 f"figures (deviations.csv keeps every digit).")
         if aligned_any:
             note += "  tablegen columns of aligned keys include the fitted constant."
+        if len(rows) < cmp.T_K.size:
+            note += (f"  Abridged: the rows out of tolerance, {LISTING_NEIGHBOURS} rows either side, the first and "
+                     f"the last row; deviations.csv has all {cmp.T_K.size:,} rows (--listing full prints them).")
         paragraph(flow, note, 7.0, color=GREY, gap=2)
 
         def head(c, y, group=group):
@@ -310,11 +354,13 @@ def _listing(flow, cmp, table: str = ""):
                 x += w_m
         flow.need(4 * lead)
         flow.add(2 * lead, head)
-        n = cmp.T_K.size
-        for i in range(n):
+        for i in rows:
             if flow.y - lead < BOTTOM:
                 flow.new_page()
                 flow.add(2 * lead, head)
+            if isinstance(i, tuple):
+                flow.add(lead, lambda c, y, gap=i: _gap_row(c, y, ref, gap, lead, size))
+                continue
 
             def row(c, y, i=i, group=group):
                 # cells are queued and drawn per page in one text object per colour (flush_text)
@@ -353,6 +399,14 @@ def _listing(flow, cmp, table: str = ""):
             paragraph(flow, "* includes the fitted alignment constant (page 1).", 7.0, color=GREY)
 
 
+def _gap_row(c, y, ref, gap, lead, size):
+    """The line that stands for a run of rows left out of an abridged listing."""
+    a, b = gap
+    queue_text(c, MARGIN + 26.0 + 44.0, y - lead + 2.6,
+               f"… {b - a:,} rows within tolerance not listed (lines {ref.lines[a]}–{ref.lines[b - 1]})",
+               fonts.SANS, size, GREY, "left")
+
+
 def _pair(text, ref_value, tg_value, width, size):
     """Reference cell as printed and tablegen value to the same places; both to 8 significant
     figures when the printed text is too wide for the column (deviations.csv keeps everything)."""
@@ -380,8 +434,9 @@ def _table_body(flow, cmp, table: str = ""):
     _statistics(flow, cmp)
 
 
-def render_pdf(cmp) -> bytes:
-    """The QA report of one reference table as PDF bytes (same comparison, same bytes)."""
+def render_pdf(cmp, listing: str = "auto") -> bytes:
+    """The QA report of one reference table as PDF bytes (same comparison, same bytes);
+    ``listing``: the rows of the side-by-side listing (:data:`LISTING_MODES`, :func:`listed_rows`)."""
     fonts.register()
     flow = Flow()
     _title(flow, f"QA comparison: {cmp.substance['name']} against the reference table")
@@ -391,7 +446,7 @@ def render_pdf(cmp) -> bytes:
     _rules(flow, cmp)
     _caution_and_signoff(flow, cmp)
     plots(flow, cmp)
-    _listing(flow, cmp)
+    _listing(flow, cmp, listing=listing)
     verdict = "PASS" if cmp.passed else f"FAIL ({cmp.n_out} cells)"
     return _render(flow, title=f"QA comparison: {cmp.substance['id']} against {cmp.reference.path}",
                    subject=cmp.verdict, version=cmp.version, ok=cmp.passed,
@@ -462,8 +517,9 @@ def _book_page_one(flow, bc):
     _caution_and_signoff(flow, None)
 
 
-def render_book_pdf(bc) -> bytes:
-    """The QA report of a book against a reference folder: a summary page, then one section per table."""
+def render_book_pdf(bc, listing: str = "auto") -> bytes:
+    """The QA report of a book against a reference folder: a summary page, then one section per table
+    (``listing`` as for :func:`render_pdf`, table by table)."""
     fonts.register()
     flow = Flow()
     _book_page_one(flow, bc)
@@ -484,7 +540,7 @@ def render_book_pdf(bc) -> bytes:
         _hints_and_wide(flow, cmp.hints, cmp.wide)
         _table_body(flow, cmp, t.name)
         plots(flow, cmp, f"Deviation against temperature: {t.name}")
-        _listing(flow, cmp, t.name)
+        _listing(flow, cmp, t.name, listing)
     s = bc.spec
     verdict = "PASS" if bc.passed else f"FAIL ({bc.n_out} cells in {bc.n_failed_tables} tables)"
     return _render(flow, title=f"QA comparison: {s['name']} against {bc.folder.path}", subject=bc.verdict,

@@ -37,6 +37,11 @@ example:
 
 The files named here are in the project's docs/examples/ folder."""
 
+#: --listing values (tablegen.book.qa_report.LISTING_MODES; written out here so that parsing
+#: the arguments imports no drawing library)
+LISTING_MODES = ("auto", "full", "failing")
+
+
 def add_arguments(p):
     p.epilog = EXAMPLE
     p.add_argument("substance", metavar="SUBSTANCE-OR-SPEC",
@@ -76,6 +81,10 @@ def add_arguments(p):
     p.add_argument("--out", default=None, metavar="DIR",
                    help="folder for report.pdf, deviations.csv, summary.json (default "
                         "output/compare-NAME-vs-REFERENCE/)")
+    p.add_argument("--listing", default="auto", choices=LISTING_MODES,
+                   help="rows of report.pdf's side-by-side listing: every row (full), the rows out of "
+                        "tolerance with two rows either side (failing), or full up to 500 rows of a "
+                        "table and failing above (auto, the default); deviations.csv always has every row")
     p.add_argument("--force", action="store_true", help="overwrite existing output files")
     p.add_argument("--json", action="store_true", help="print the JSON summary on stdout")
     add_datum_options(p)

@@ -133,7 +133,7 @@ def compute_book(args):
                          "align": list(args.align), "columns": args.columns, "allow_wide": bool(args.allow_wide)})
     from ..book.qa_report import render_book_pdf
     out = Path(args.out) if args.out else default_out(spec.name, args.reference)
-    files = {out / "report.pdf": render_book_pdf(bc),
+    files = {out / "report.pdf": render_book_pdf(bc, args.listing),
              out / "deviations.csv": book_deviations_csv(bc),
              out / "summary.json": dumps(book_summary(bc))}
     return bc, files, notes

@@ -180,7 +180,7 @@ def compute(args):
                   allow_wide=args.allow_wide, spec_table=is_spec)
     from ..book.qa_report import render_pdf
     out = Path(args.out) if args.out else default_out(name, args.reference)
-    files = {out / "report.pdf": render_pdf(cmp),
+    files = {out / "report.pdf": render_pdf(cmp, args.listing),
              out / "deviations.csv": deviations_csv(cmp),
              out / "summary.json": dumps(summary(cmp))}
     return cmp, files, notes
