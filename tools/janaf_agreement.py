@@ -119,7 +119,8 @@ def main() -> int:
         n += 1
     (ROOT / "gasdata" / "agreement-janaf.toml").write_text("".join(out), encoding="utf-8")
     print(f"wrote gasdata/agreement-janaf.toml: {n} species", file=sys.stderr)
-    return 0
+    import compile_agreement      # the compact copy every budget reads
+    return compile_agreement.main()
 
 
 if __name__ == "__main__":

@@ -33,6 +33,7 @@ from functools import lru_cache
 
 import numpy as np
 
+from . import agreement_compiled
 from .agreement import evaluation_of, tier_of
 from ..core.errors import DataError, NameLookupError
 from ..thermo.substance import R_MOLAR, T_REF
@@ -258,6 +259,11 @@ class AgreementIndex(dict):
 
     def __missing__(self, species):
         rows = list(_spread_of(species))
+        compiled = _compiled()
+        if compiled is not None:
+            rows += agreement_compiled.rows_of(compiled, species)
+            self[species] = rows
+            return rows
         for name in AGREEMENT_FILES:
             p = gasdata_file(name)
             if p is not None:
@@ -272,6 +278,12 @@ class AgreementIndex(dict):
     def get(self, species, default=None):
         rows = self[species]
         return rows if rows else default
+
+
+def _compiled():
+    """gasdata/agreement-compiled.json when it was compiled from the agreement files there now."""
+    from ..data.library import gasdata_dir
+    return agreement_compiled.load(str(gasdata_dir()), AGREEMENT_FILES)
 
 
 @lru_cache(maxsize=1)
