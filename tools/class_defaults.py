@@ -1,4 +1,4 @@
-"""Derive the class-default uncertainties of tablegen/calc/uncertainty.py from JANAF.
+"""Derive the class-default uncertainties of tablegen/calc/evidence.py from JANAF.
 
 For each species class, the shipped NASA TM-4513 functions (gasdata/nasa1993.toml)
 are compared with the JANAF Thermochemical Tables, 4th edition (M. W. Chase,
