@@ -189,8 +189,10 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
 
     Returns
     -------
-    CombustionResult; with stated input uncertainties, ``uncertainty`` holds their
-    propagation (tablegen.calc.burn_inputs).
+    CombustionResult (tablegen.calc.burn_result): its figures are attributes of
+    ``ratios``, ``flue_gas``, ``dew_point``, ``heating_values`` and ``flame``, SI
+    inside; ``burn_result.to_json`` gives the JSON form. With stated input
+    uncertainties, ``uncertainty`` holds their propagation (tablegen.calc.burn_inputs).
 
     Raises
     ------
@@ -463,7 +465,7 @@ def result_for(substance) -> CombustionResult | None:
     """The combustion result behind a flue-gas Substance (its ``origin``), or None for other substances.
 
     Documents that tabulate a substance call this to print the combustion cautions and
-    summary with it.
+    figures with it.
     """
     origin = getattr(substance, "origin", None)
     return origin if isinstance(origin, CombustionResult) else None
