@@ -16,7 +16,8 @@ from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
 import tablegen
-from tablegen.calc import burn, flue
+from tablegen.calc import burn, flue, oxidants
+from tablegen.calc.burn_result import UNITS, figure_values, to_json
 from tablegen.data.library import library
 from tablegen.core.errors import SpecError, TablegenError
 from tablegen.thermo.saturation import T_sat_K, h_vap_J_per_kg, p_sat_Pa
@@ -70,12 +71,12 @@ def gas_fuels(draw):
        o2=st.one_of(st.none(), st.floats(20.96, 100.0)))
 def test_element_and_mass_balance_random_gas_fuels(fuel, lam, w, o2):
     """Identity (hypothesis): every element in = every element out, to round-off; mass too."""
-    ox = burn.make_oxidant(o2_percent=o2, humidity_ratio=w)
+    ox = oxidants.make_oxidant(o2_percent=o2, humidity_ratio=w)
     r = tablegen.combustion(fuel, ox, air_ratio=lam)
     # fuel per kg, computed here from the records
     M_fuel = sum(y * LIB.record(s).M for s, y in fuel.items()) * 1e-3
     fuel_mol = {LIB.record(s).id: y / M_fuel for s, y in fuel.items()}
-    n_ox = r.summary["afr_molar"] / M_fuel
+    n_ox = r.ratios.molar / M_fuel
     ox_mol = {s: y * n_ox for s, y in ox.composition.items()}
     into = elements_of(fuel_mol)
     for e, n in elements_of(ox_mol).items():
@@ -84,11 +85,11 @@ def test_element_and_mass_balance_random_gas_fuels(fuel, lam, w, o2):
     scale = max(into.values())
     assert_same_elements(into, out, scale)
     # the product Substance carries the same composition
-    N = r.summary["flue_gas_mol_wet_per_kg"]
+    N = r.flue_gas.mol_wet_per_kg
     comp = {c.id: c.mole_fraction * N for c in r.products.components}
     assert_same_elements(elements_of(comp), out, scale)
     # mass: 1 kg fuel + oxidant = flue gas
-    assert abs(1.0 + r.summary["afr_mass"] - r.summary["flue_gas_mass_wet_per_kg"]) <= ROUNDOFF * (1 + r.summary["afr_mass"])
+    assert abs(1.0 + r.ratios.mass - r.flue_gas.kg_wet_per_kg) <= ROUNDOFF * (1 + r.ratios.mass)
     # λ as defined: O2 supplied / O2 needed
     fe = elements_of(fuel_mol)
     need = fe.get("C", 0) + fe.get("H", 0) / 4 + fe.get("S", 0) - fe.get("O", 0) / 2
@@ -111,13 +112,13 @@ def test_element_and_mass_balance_random_analysis_fuels(c, h, o, n, s, moist, as
     m_w = moist / (LIB.record("H2O").M * 1e-3)
     into["H"] += 2 * m_w
     into["O"] += m_w
-    n_ox = r.summary["oxidant_volume_per_kg"] / (scipy.constants.R * 273.15 / 101325.0)
+    n_ox = r.ratios.volume_m3_per_kg / (scipy.constants.R * 273.15 / 101325.0)
     for e, k in elements_of({sp: y * n_ox for sp, y in AIR.items()}).items():
         into[e] = into.get(e, 0.0) + k
     out = elements_of(r.moles_per_kg)
     assert_same_elements({k: v for k, v in into.items() if v}, out, max(into.values()))
     ash_ar = ash * (1 - moist)
-    assert abs(1.0 + r.summary["afr_mass"] - r.summary["flue_gas_mass_wet_per_kg"] - ash_ar) <= 1e-10 * (1 + r.summary["afr_mass"])
+    assert abs(1.0 + r.ratios.mass - r.flue_gas.kg_wet_per_kg - ash_ar) <= 1e-10 * (1 + r.ratios.mass)
 
 
 def test_analysis_bases_convert_consistently():
@@ -133,10 +134,10 @@ def test_analysis_bases_convert_consistently():
     r3 = tablegen.combustion({"analysis": daf, "basis": "daf", "moisture": 0.15, "ash": ash_dry,
                               "hhv": hhv_ar / 0.74}, excess_air=25)
     for r in (r2, r3):
-        for k, y in r1.summary["products_wet"].items():
-            assert abs(r.summary["products_wet"][k] - y) <= 1e-12
-        assert abs(r.summary["hhv_mass"] - hhv_ar) <= 1e-9 * hhv_ar
-        assert abs(r.summary["afr_mass"] - r1.summary["afr_mass"]) <= 1e-12 * r1.summary["afr_mass"]
+        for k, y in r1.flue_gas.mole_fractions_wet.items():
+            assert abs(r.flue_gas.mole_fractions_wet[k] - y) <= 1e-12
+        assert abs(r.heating_values.hhv_J_per_kg / 1e6 - hhv_ar) <= 1e-9 * hhv_ar
+        assert abs(r.ratios.mass - r1.ratios.mass) <= 1e-12 * r1.ratios.mass
     an = r3.fuel.analysis
     for k in "CHONS":
         assert abs(an["as-received"][k] - ar[k]) <= 1e-12
@@ -148,7 +149,7 @@ def test_given_lhv_is_returned_at_its_reference_temperature():
     t = {"analysis": {"C": 0.855, "H": 0.105, "S": 0.025, "O": 0.006, "N": 0.004, "moisture": 0.004,
                       "ash": 0.001}, "lhv": "40.6 MJ/kg", "hv_reference_temperature": "15C"}
     r = tablegen.combustion(t, excess_air=10, T_ref_K=288.15)
-    assert abs(r.summary["lhv_mass"] - 40.6) <= 1e-9 * 40.6
+    assert abs(r.heating_values.lhv_J_per_kg / 1e6 - 40.6) <= 1e-9 * 40.6
 
 
 # ------------------------------------------------------------------ λ <-> measured O2
@@ -156,10 +157,10 @@ def test_given_lhv_is_returned_at_its_reference_temperature():
 @given(fuel=gas_fuels(), lam=st.floats(1.0, 4.0), rh=st.floats(0.0, 100.0))
 def test_lambda_measured_o2_round_trip(fuel, lam, rh):
     """Identity: O2 read from the flue gas at λ gives back λ (dry and wet basis), to round-off."""
-    ox = burn.make_oxidant(relative_humidity=rh, temperature_K=298.15, pressure_Pa=101325.0)
+    ox = oxidants.make_oxidant(relative_humidity=rh, temperature_K=298.15, pressure_Pa=101325.0)
     r = tablegen.combustion(fuel, ox, air_ratio=lam)
-    o2_dry = r.summary["products_dry"].get("O2", 0.0) * 100
-    o2_wet = r.summary["products_wet"].get("O2", 0.0) * 100
+    o2_dry = r.flue_gas.mole_fractions_dry.get("O2", 0.0) * 100
+    o2_wet = r.flue_gas.mole_fractions_wet.get("O2", 0.0) * 100
     back_dry = tablegen.combustion(fuel, ox, o2_dry=o2_dry).air_ratio
     back_wet = tablegen.combustion(fuel, ox, o2_wet=o2_wet).air_ratio
     assert abs(back_dry - lam) <= 1e-10 * lam
@@ -168,9 +169,9 @@ def test_lambda_measured_o2_round_trip(fuel, lam, rh):
 
 def test_amount_forms_agree():
     """Identity: excess air 20 % = λ 1.2 = φ 1/1.2."""
-    a = tablegen.combustion("C3H8", excess_air=20).summary["products_wet"]
-    b = tablegen.combustion("C3H8", air_ratio=1.2).summary["products_wet"]
-    c = tablegen.combustion("C3H8", phi=1 / 1.2).summary["products_wet"]
+    a = tablegen.combustion("C3H8", excess_air=20).flue_gas.mole_fractions_wet
+    b = tablegen.combustion("C3H8", air_ratio=1.2).flue_gas.mole_fractions_wet
+    c = tablegen.combustion("C3H8", phi=1 / 1.2).flue_gas.mole_fractions_wet
     for k in a:
         assert abs(a[k] - b[k]) <= 1e-14 and abs(a[k] - c[k]) <= 1e-14
 
@@ -182,7 +183,7 @@ def test_stoichiometric_afr_vs_textbook_values(fuel, afr):
     hydrogen 34.3 kg air/kg fuel. Tolerance 1 %: the textbook figures are rounded to three
     figures and take air as 21 % O2 / 79 % N2 (M = 28.97) instead of the Lemmon composition."""
     r = tablegen.combustion(fuel, excess_air=0)
-    assert abs(r.summary["afr_mass_stoich"] - afr) <= 0.01 * afr
+    assert abs(r.ratios.mass_stoich - afr) <= 0.01 * afr
 
 
 # ------------------------------------------------------------------ ISO 6976 heating values
@@ -198,13 +199,13 @@ def test_hhv_vs_iso6976_2016_at_25C(fuel):
     stated uncertainties (a few tenths of a kJ/mol for fuel, CO2 and H2O each) combine to below 0.1 %."""
     r = tablegen.combustion(fuel, excess_air=0, T_ref_K=298.15)
     ref = ISO6976_HS_25C[fuel]
-    assert abs(r.summary["hhv_molar"] - ref) <= 1e-3 * ref
+    assert abs(r.heating_values.hhv_J_per_mol / 1e3 - ref) <= 1e-3 * ref
 
 
 def test_hhv_methane_vs_iso6976_2016_at_15C():
     """ISO 6976:2016 gross calorific value of methane at 15 °C, 891.51 kJ/mol (from memory); 0.1 % as above."""
     r = tablegen.combustion("CH4", excess_air=0, T_ref_K=288.15)
-    assert abs(r.summary["hhv_molar"] - 891.51) <= 1e-3 * 891.51
+    assert abs(r.heating_values.hhv_J_per_mol / 1e3 - 891.51) <= 1e-3 * 891.51
 
 
 def test_hhv_minus_lhv_vs_codata_enthalpy_of_vaporisation():
@@ -212,7 +213,7 @@ def test_hhv_minus_lhv_vs_codata_enthalpy_of_vaporisation():
     so Δvap H° = 44.004 kJ/mol at 25 °C. Tolerance 0.1 %: we condense on the saturation line
     (vapour at 3.17 kPa), which differs from the ideal-gas standard state by about 0.03 %."""
     r = tablegen.combustion("n-C4H10", excess_air=0, T_ref_K=298.15)
-    per_mol_water = (r.summary["hhv_molar"] - r.summary["lhv_molar"]) / 5.0
+    per_mol_water = (r.heating_values.hhv_J_per_mol / 1e3 - r.heating_values.lhv_J_per_mol / 1e3) / 5.0
     assert abs(per_mol_water - 44.004) <= 1e-3 * 44.004
 
 
@@ -247,9 +248,9 @@ def test_dew_point_vs_iapws_saturation_temperature(fuel, excess):
     from iapws import IAPWS95
     from iapws.iapws97 import _TSat_P
     r = tablegen.combustion(fuel, excess_air=excess, P_flue_Pa=101325.0)
-    pw = r.summary["products_wet"]["H2O"] * 101325.0
-    assert abs(r.summary["water_partial_pressure_Pa"] - pw) <= 1e-9 * pw
-    Td = r.summary["dew_point_K"]
+    pw = r.flue_gas.mole_fractions_wet["H2O"] * 101325.0
+    assert abs(r.dew_point.water_partial_pressure_Pa - pw) <= 1e-9 * pw
+    Td = r.dew_point.T_K
     assert abs(Td - _TSat_P(pw / 1e6)) <= 1e-6
     T95 = IAPWS95(P=pw / 1e6, x=1).T
     dlnp_dT = float(h_vap_J_per_kg(T95)) / (scipy.constants.R / 0.018015268 * T95 ** 2)
@@ -259,7 +260,7 @@ def test_dew_point_vs_iapws_saturation_temperature(fuel, excess):
 def test_humid_air_water_content_vs_iapws():
     """iapws package, IAPWS-IF97 saturation pressure: y_H2O = RH p_sat(T) / P."""
     from iapws.iapws97 import _PSat_T
-    ox = burn.make_oxidant(relative_humidity=70.0, temperature_K=303.15, pressure_Pa=98000.0)
+    ox = oxidants.make_oxidant(relative_humidity=70.0, temperature_K=303.15, pressure_Pa=98000.0)
     assert abs(ox.y_H2O - 0.7 * _PSat_T(303.15) * 1e6 / 98000.0) <= 1e-12
     dry = {k: v / (1 - ox.y_H2O) for k, v in ox.composition.items() if k != "H2O"}
     for k, v in AIR.items():
@@ -269,7 +270,7 @@ def test_humid_air_water_content_vs_iapws():
 def test_no_water_gives_no_dew_point():
     """Carbon monoxide burnt in dry air makes no water: the dew point is not given."""
     r = tablegen.combustion("CO", excess_air=10)
-    assert r.summary["dew_point_K"] is None and "below 0 °C" in r.summary["dew_point_note"]
+    assert r.dew_point.T_K is None and "below 0 °C" in r.dew_point.note
 
 
 # ------------------------------------------------------------------ flame temperature vs cantera
@@ -309,21 +310,21 @@ def test_adiabatic_flame_temperature_vs_cantera(lam, T_fuel, T_ox, rh):
     # source="nasa1993": the same coefficients cantera reads (the default sources differ since
     # gasdata/defaults.toml picks the JANAF refit for several species)
     if rh is None:
-        ox = burn.make_oxidant(source="nasa1993")
+        ox = oxidants.make_oxidant(source="nasa1993")
     else:
-        ox = burn.make_oxidant(relative_humidity=rh, temperature_K=298.15, pressure_Pa=101325.0, source="nasa1993")
+        ox = oxidants.make_oxidant(relative_humidity=rh, temperature_K=298.15, pressure_Pa=101325.0, source="nasa1993")
     r = tablegen.combustion("CH4", ox, air_ratio=lam, T_fuel_K=T_fuel, T_oxidant_K=T_ox, source="nasa1993")
     n_ox = 2.0 * lam / ox.y_O2
     T_ct = _cantera_flame({"CH4": 1.0}, dict(ox.composition), n_ox, T_fuel, T_ox)
-    assert abs(r.summary["t_adiabatic_K"] - T_ct) <= 0.01
+    assert abs(r.flame.T_adiabatic_K - T_ct) <= 0.01
 
 
 def test_flame_temperature_above_2000K_is_flagged_as_upper_bound():
     r = tablegen.combustion("CH4", excess_air=0)
-    assert r.summary["t_adiabatic_K"] > 2000
+    assert r.flame.T_adiabatic_K > 2000
     assert any("upper bound" in c for c in r.cautions)
     lean = tablegen.combustion("CH4", excess_air=150)
-    assert lean.summary["t_adiabatic_K"] < 2000
+    assert lean.flame.T_adiabatic_K < 2000
     assert not any("upper bound" in c for c in lean.cautions)
 
 
@@ -333,16 +334,30 @@ def test_cautions_always_present():
     for phrase in ("complete combustion", "dissociation", "acid dew point", "toxic", "asphyxiant",
                    "local codes", "licensed"):
         assert phrase in text
-    assert r.summary["cautions"] == r.cautions
+    assert to_json(r)["cautions"] == r.cautions    # the JSON states the same cautions
+
+
+def test_json_states_every_figure_with_its_unit_and_the_attributes_it_came_from():
+    """The JSON form (burn_result.to_json): each figure key has a unit, and the figures are the
+    result's attributes in the JSON units (MJ for heating values; identity, the conversion is exact)."""
+    r = tablegen.combustion("CH4=0.9,C2H6=0.06,N2=0.04", "air,rh=60%,T=25C", excess_air=15)
+    d = to_json(r)
+    figs = figure_values(r)
+    assert set(figs) == set(UNITS) and set(figs) <= set(d)
+    assert d["units"] == UNITS and d["products_substance"] == r.products.id
+    assert d["amount_given"] == {"key": "excess_air", "value": 15.0, "U_k2": None, "unit": "%"}
+    assert d["lhv_mass"] == r.heating_values.lhv_J_per_kg * 1e-6 and d["dew_point_K"] == r.dew_point.T_K
+    assert abs(d["excess_air_percent"] - 15.0) <= 1e-12 and "uncertainty" not in d
+    assert d["T_oxidant_source"] == "stated with the oxidant" and d["notes"] == r.notes
 
 
 def test_oxygen_enriched_to_pure_oxygen():
     """Identity: methane in pure O2 at λ = 1 gives only CO2 and H2O in the ratio 1:2."""
     r = tablegen.combustion("CH4", "air,O2=100%", excess_air=0)
-    y = r.summary["products_wet"]
+    y = r.flue_gas.mole_fractions_wet
     assert set(y) == {"CO2", "H2O"}
     assert abs(y["CO2"] - 1 / 3) <= 1e-14
-    ox = burn.make_oxidant(o2_percent=30)
+    ox = oxidants.make_oxidant(o2_percent=30)
     assert abs(ox.y_O2 - 0.30) <= 1e-14
     assert abs(ox.composition["N2"] / ox.composition["Ar"] - 0.7812 / 0.0092) <= 1e-9
 
@@ -354,7 +369,7 @@ def test_flue_name_resolves_in_substance_and_state():
     r = tablegen.combustion("CH4=0.9,C2H6=0.06,N2=0.04", "air,rh=60%,T=25C", excess_air=15)
     assert sub.id == name and sub.kind == "mixture"
     for c in sub.components:
-        assert abs(c.mole_fraction - r.summary["products_wet"][c.id]) <= 1e-14
+        assert abs(c.mole_fraction - r.flue_gas.mole_fractions_wet[c.id]) <= 1e-14
     dry = tablegen.substance(name + "@dry")
     assert "H2O" not in {c.id for c in dry.components}
     assert r.products.id == name      # the result names itself in the same syntax
@@ -400,11 +415,11 @@ def test_analysis_fuel_needs_a_heating_value():
 def test_formula_fuel_matches_species_fuel():
     """Identity: n-C4H10 as a formula with the HHV of the gas species gives the same flue gas and LHV."""
     gas = tablegen.combustion("n-C4H10", excess_air=10)
-    f = tablegen.combustion({"formula": "C4H10", "hhv": gas.summary["hhv_mass"]}, excess_air=10)
-    for k, y in gas.summary["products_wet"].items():
-        assert abs(f.summary["products_wet"][k] - y) <= 1e-12
-    assert abs(f.summary["lhv_mass"] - gas.summary["lhv_mass"]) <= 1e-9 * gas.summary["lhv_mass"]
-    assert abs(f.summary["t_adiabatic_K"] - gas.summary["t_adiabatic_K"]) <= 1e-6
+    f = tablegen.combustion({"formula": "C4H10", "hhv": gas.heating_values.hhv_J_per_kg / 1e6}, excess_air=10)
+    for k, y in gas.flue_gas.mole_fractions_wet.items():
+        assert abs(f.flue_gas.mole_fractions_wet[k] - y) <= 1e-12
+    assert abs(f.heating_values.lhv_J_per_kg / 1e6 - gas.heating_values.lhv_J_per_kg / 1e6) <= 1e-9 * gas.heating_values.lhv_J_per_kg / 1e6
+    assert abs(f.flame.T_adiabatic_K - gas.flame.T_adiabatic_K) <= 1e-6
 
 
 # ------------------------------------------------------------------ command line
@@ -487,9 +502,9 @@ def test_flame_temperature_beyond_the_data_is_not_given():
     """Sulfur-bearing fuel in near-pure O2: the frozen flame lies above the 5000 K end of the
     TM-4513 SO2 data (the JANAF refit reaches 6000 K, hence source="nasa1993")."""
     r = tablegen.combustion("CH4=0.34,H2S=0.33,C2H6=0.33", "air,O2=88%", excess_air=0, source="nasa1993")
-    assert r.summary["t_adiabatic_K"] is None
+    assert r.flame.T_adiabatic_K is None
     assert any("not given" in c for c in r.cautions)
-    assert r.summary["hhv_mass"] > 0 and r.summary["dew_point_K"] > 273.15
+    assert r.heating_values.hhv_J_per_kg / 1e6 > 0 and r.dew_point.T_K > 273.15
 
 
 def test_fuel_bases_mass_and_volume_dry_agree_with_mole():
@@ -499,21 +514,22 @@ def test_fuel_bases_mass_and_volume_dry_agree_with_mole():
     Mmix = sum(y[k] * M[k] for k in y)
     w = {k: y[k] * M[k] / Mmix for k in y}
     dry = {k: 100 * v / 0.98 for k, v in y.items() if k != "H2O"}
-    ref = tablegen.combustion(y, excess_air=12).summary
-    by_mass = tablegen.combustion({"composition": w, "basis": "mass"}, excess_air=12).summary
+    ref = tablegen.combustion(y, excess_air=12)
+    by_mass = tablegen.combustion({"composition": w, "basis": "mass"}, excess_air=12)
     by_dry = tablegen.combustion({"composition": dry, "basis": "volume-dry", "water_percent": 2.0},
-                                 excess_air=12).summary
+                                 excess_air=12)
+    hhv = ref.heating_values.hhv_J_per_kg
     for other in (by_mass, by_dry):
-        for k, v in ref["products_wet"].items():
-            assert abs(other["products_wet"][k] - v) <= 1e-13
-        assert abs(other["hhv_mass"] - ref["hhv_mass"]) <= 1e-12 * ref["hhv_mass"]
+        for k, v in ref.flue_gas.mole_fractions_wet.items():
+            assert abs(other.flue_gas.mole_fractions_wet[k] - v) <= 1e-13
+        assert abs(other.heating_values.hhv_J_per_kg - hhv) <= 1e-12 * hhv
 
 
 def test_hydrogen_in_oxygen_leaves_water_only():
     """Edge: H2 in pure O2 at λ = 1 gives a flue gas of water only (no dry part, dew point 100 °C at 1 atm)."""
     r = tablegen.combustion("H2", "oxygen", excess_air=0)
-    assert r.products_dry is None and r.summary["products_dry"] == {}
-    assert abs(r.summary["dew_point_K"] - 373.124) <= 0.01    # IAPWS-IF97 Ts(101.325 kPa) = 373.124 K
+    assert r.products_dry is None and r.flue_gas.mole_fractions_dry == {}
+    assert abs(r.dew_point.T_K - 373.124) <= 0.01    # IAPWS-IF97 Ts(101.325 kPa) = 373.124 K
     with pytest.raises(TablegenError, match="nothing but O2"):
         tablegen.combustion("H2", "oxygen", o2_dry=50)
     assert abs(tablegen.combustion("H2", "oxygen", o2_wet=50).air_ratio - 3.0) <= 1e-12

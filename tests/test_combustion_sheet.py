@@ -21,6 +21,7 @@ from pypdf import PdfReader
 
 import tablegen
 from tablegen import cli
+from tablegen.calc.burn_result import figure_values
 
 FUEL = "CH4=87%±0.5%,C2H6=6%±0.2%,C3H8=2%±0.1%,N2=3%±0.1%,CO2=2%±0.1%"
 
@@ -100,18 +101,17 @@ def test_the_book_states_the_fuel_the_air_the_amount_and_the_results(b3):
                    "Uncertainty from the stated inputs", "Cautions for this fuel"):
         assert phrase in sheet, phrase
     r = tablegen.combustion(FUEL, "air,rh=60%,T=15C", o2_dry=3.5, o2_uncertainty=0.2)
-    s = r.summary
-    assert f"λ = {s['lambda']:.4f} ± {r.uncertainty.U('lambda'):.4f}" in sheet
-    assert f"{s['lhv_mass']:.3f} ± {r.uncertainty.U('lhv_mass'):.3f}" in sheet
+    assert f"λ = {r.air_ratio:.4f} ± {r.uncertainty.U('lambda'):.4f}" in sheet
+    assert f"{r.heating_values.lhv_J_per_kg / 1e6:.3f} ± {r.uncertainty.U('lhv_mass'):.3f}" in sheet
     # the JSON sidecar: the inputs as given and every figure at full precision
     sub = meta["substances"][0]
     c = sub["combustion"]
     assert c["fuel"]["as_given"]["values"]["C2H6"] == 0.06 and c["fuel"]["uncertainty_k2"]["C2H6"] == 0.002
     assert c["oxidant"]["relative_humidity_percent"] == 60 and c["oxidant"]["temperature_K"] == 288.15
     assert c["amount_given"] == {"key": "o2_dry", "value": 3.5, "U_k2": 0.2, "unit": "%"}
-    assert c["figures"]["lambda"]["value"] == s["lambda"]
+    assert c["figures"]["lambda"]["value"] == r.air_ratio
     assert c["figures"]["lambda"]["U_k2"] == r.uncertainty.U("lambda")
-    assert c["figures"]["t_adiabatic_K"]["value"] == s["t_adiabatic_K"]
+    assert c["figures"]["t_adiabatic_K"]["value"] == r.flame.T_adiabatic_K
     # and the spec the fingerprint covers holds them too
     spec_sub = meta["spec"]["substances"]["flue"]["combustion"]
     assert spec_sub["fuel"]["as_given"]["values"]["C2H6"] == 0.06 and spec_sub["oxidant"]["humidity_ratio"] > 0
@@ -120,7 +120,8 @@ def test_the_book_states_the_fuel_the_air_the_amount_and_the_results(b3):
     import jsonschema
     schema = json.loads((Path(__file__).parents[1] / "docs" / "book-json-schema.json").read_text(encoding="utf-8"))
     jsonschema.Draft202012Validator(schema).validate(meta)
-    # the CSVW metadata of each table of the gas: the same figures
+    # the CSVW metadata of each table of the gas: the same figures, in the units of the JSON
+    s = figure_values(r)
     for name in ("flue-si", "flue-us"):
         csvw = json.loads((out / f"{name}.csv-metadata.json").read_text(encoding="utf-8"))
         props = {p["schema:propertyID"]: p["schema:value"] for p in csvw["schema:additionalProperty"]}
@@ -210,7 +211,7 @@ def test_lambda_uncertainty_from_a_measured_o2_matches_the_closed_form():
     a = 0.2096
     r = tablegen.combustion("CH4", "air", o2_dry=3.5, o2_uncertainty=0.2)
     y, U = 0.035, 0.002
-    assert abs(r.summary["lambda"] - _lambda_of_dry_o2(y, a)) <= 1e-12
+    assert abs(r.air_ratio - _lambda_of_dry_o2(y, a)) <= 1e-12
     d = (-(2 - 2 * y / a) + (2 - y) * 2 / a) / (2 - 2 * y / a) ** 2     # dλ/dy, quotient rule
     assert abs(r.uncertainty.U("lambda") - abs(d) * U) <= 1e-6 * abs(d) * U
 
@@ -224,7 +225,7 @@ def test_flue_co2_uncertainty_from_the_fuel_analysis_matches_the_closed_form():
     r = tablegen.combustion("CH4=0.9±0.01,N2=0.1", "air", air_ratio=lam)
     k = 2 * lam * (1 - a) / a + 2 * (lam - 1)
     D = 1 + k * x
-    assert abs(r.summary["products_dry"]["CO2"] - x / D) <= 1e-14
+    assert abs(r.flue_gas.mole_fractions_dry["CO2"] - x / D) <= 1e-14
     dy = (D - x * k) / D ** 2
     assert abs(r.uncertainty.products["dry"]["CO2"] - abs(dy) * (1 - x) * U) <= 1e-6 * abs(dy) * (1 - x) * U
 
@@ -232,7 +233,7 @@ def test_flue_co2_uncertainty_from_the_fuel_analysis_matches_the_closed_form():
 def test_flue_name_and_spec_table_carry_the_o2_uncertainty(capsys, tmp_path):
     name = "flue@CH4=0.9±0.01,N2=0.1@o2-dry=3%±0.2%"
     sub = tablegen.substance(name)
-    assert sub.origin.uncertainty is not None and sub.origin.summary["amount_given"]["U_k2"] == 0.2
+    assert sub.origin.uncertainty is not None and sub.origin.amount_given.U_k2 == 0.2
     from tablegen.calc import flue
     s2 = flue.substance_from_spec({"fuel": {"composition": {"CH4": 90, "N2": 10}, "uncertainty": {"CH4": "1%"}},
                                    "o2_dry": "3%±0.2%"}, "tables[0].substance")

@@ -13,7 +13,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 import tablegen
-from tablegen.calc import burn
+from tablegen.calc import oxidants
 from tablegen.cli import main
 from tablegen.core.composition import colon_form_fix, parse, write
 from tablegen.core.errors import TablegenError
@@ -192,16 +192,16 @@ def _same_oxidant(a, b):
 
 def test_oxidant_text_means_what_the_keywords_mean():
     """Each text form equals make_oxidant with the keywords it stands for."""
-    _same_oxidant(burn.oxidant_from_text("air,rh=60%,T=25C"),
-                  burn.make_oxidant(relative_humidity=60, temperature_K=298.15))
-    _same_oxidant(burn.oxidant_from_text("air,rh=60%,T=25C,P=1atm"),
-                  burn.make_oxidant(relative_humidity=60, temperature_K=298.15, pressure_Pa=101325.0))
-    _same_oxidant(burn.oxidant_from_text("air,w=8g/kg"), burn.make_oxidant(humidity_ratio=0.008))
-    _same_oxidant(burn.oxidant_from_text("air,w=0.008kg/kg"), burn.make_oxidant(humidity_ratio=0.008))
-    _same_oxidant(burn.oxidant_from_text("air,O2=30%"), burn.make_oxidant(o2_percent=30))
-    _same_oxidant(burn.oxidant_from_text("air,O2=0.3"), burn.make_oxidant(o2_percent=30))
-    _same_oxidant(burn.oxidant_from_text("O2=30%,N2=70%"), burn.make_oxidant(composition={"O2": 0.3, "N2": 0.7}))
-    _same_oxidant(burn.oxidant_from_text("oxygen"), burn.make_oxidant(base="oxygen"))
+    _same_oxidant(oxidants.oxidant_from_text("air,rh=60%,T=25C"),
+                  oxidants.make_oxidant(relative_humidity=60, temperature_K=298.15))
+    _same_oxidant(oxidants.oxidant_from_text("air,rh=60%,T=25C,P=1atm"),
+                  oxidants.make_oxidant(relative_humidity=60, temperature_K=298.15, pressure_Pa=101325.0))
+    _same_oxidant(oxidants.oxidant_from_text("air,w=8g/kg"), oxidants.make_oxidant(humidity_ratio=0.008))
+    _same_oxidant(oxidants.oxidant_from_text("air,w=0.008kg/kg"), oxidants.make_oxidant(humidity_ratio=0.008))
+    _same_oxidant(oxidants.oxidant_from_text("air,O2=30%"), oxidants.make_oxidant(o2_percent=30))
+    _same_oxidant(oxidants.oxidant_from_text("air,O2=0.3"), oxidants.make_oxidant(o2_percent=30))
+    _same_oxidant(oxidants.oxidant_from_text("O2=30%,N2=70%"), oxidants.make_oxidant(composition={"O2": 0.3, "N2": 0.7}))
+    _same_oxidant(oxidants.oxidant_from_text("oxygen"), oxidants.make_oxidant(base="oxygen"))
 
 
 @pytest.mark.parametrize("text,expect", [
@@ -228,7 +228,7 @@ def test_oxidant_text_means_what_the_keywords_mean():
 ])
 def test_oxidant_refusals(text, expect):
     with pytest.raises(TablegenError) as e:
-        burn.oxidant_from_text(text)
+        oxidants.oxidant_from_text(text)
     assert expect in str(e.value) and "\n" not in str(e.value)
 
 
@@ -248,6 +248,6 @@ def test_flue_names_name_the_oxidant_in_its_own_text():
     assert [c.id for c in again.components] == [c.id for c in r.products.components]
     for a, b in zip(again.components, r.products.components):
         assert abs(a.mole_fraction - b.mole_fraction) <= 1e-15
-    ox = burn.make_oxidant(relative_humidity=60, temperature_K=298.15, o2_percent=25)
+    ox = oxidants.make_oxidant(relative_humidity=60, temperature_K=298.15, o2_percent=25)
     assert ox.spec == "air,O2=25%,rh=60%,T=298.15K,P=101325Pa"
-    _same_oxidant(burn.oxidant_from_text(ox.spec), ox)
+    _same_oxidant(oxidants.oxidant_from_text(ox.spec), ox)

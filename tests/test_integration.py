@@ -37,7 +37,7 @@ def test_demo_flue_gas_is_the_combustion_result():
     # the book's flue gas is the products substance of the fuel at 15 % excess air
     r = tablegen.combustion("CH4=86%±0.4%,C2H6=2.5%±0.1%,C3H8=0.5%±0.05%,CO2=7.5%±0.3%,N2=3.5%±0.2%",
                             "air,rh=70%,T=15C", excess_air=15)
-    assert r.summary["lambda"] == pytest.approx(1.15)
+    assert r.air_ratio == pytest.approx(1.15)
     assert r.products.cautions and "asphyxiant" in " ".join(r.products.cautions)
 
 

@@ -129,8 +129,8 @@ def test_flame_temperature_uses_the_air_temperature_given_energy_balance_with_ca
     ox_text = "air,rh=60%,T=15C"
     cold = tablegen.combustion(FUEL, ox_text, excess_air=0, source="nasa1993")
     warm = tablegen.combustion(FUEL, ox_text, excess_air=0, T_oxidant_K=298.15, source="nasa1993")
-    assert cold.summary["T_oxidant_K"] == 288.15 and cold.summary["T_oxidant_source"] == "stated with the oxidant"
-    assert warm.summary["T_oxidant_K"] == 298.15 and warm.summary["T_oxidant_source"] == "as given"
+    assert cold.flame.T_oxidant_K == 288.15 and cold.flame.T_oxidant_source == "stated with the oxidant"
+    assert warm.flame.T_oxidant_K == 298.15 and warm.flame.T_oxidant_source == "as given"
     ox = cold.oxidant
     species = {s.name: s for s in ct.Species.list_from_file("nasa_gas.yaml")}
     air = ct.Solution(thermo="ideal-gas", species=[species[n] for n in ox.composition])
@@ -139,11 +139,11 @@ def test_flame_temperature_uses_the_air_temperature_given_energy_balance_with_ca
     h25 = air.enthalpy_mole
     air.TPX = 288.15, ct.one_atm, dict(ox.composition)
     h15 = air.enthalpy_mole
-    prod = dict(cold.summary["products_wet"])
+    prod = dict(cold.flue_gas.mole_fractions_wet)
     n_prod = sum(cold.moles_per_kg.values()) * cold.fuel.M * 1e-3   # kmol products per kmol CH4
     gas = ct.Solution(thermo="ideal-gas", species=[species[n] for n in prod])
-    gas.TPX = warm.summary["t_adiabatic_K"], ct.one_atm, prod
+    gas.TPX = warm.flame.T_adiabatic_K, ct.one_atm, prod
     H_warm = gas.enthalpy_mole * n_prod                      # J per kmol CH4, products at the warm flame
     T_cold = _cantera_products_T(prod, (H_warm - n_ox * (h25 - h15)) / n_prod)
-    assert abs(cold.summary["t_adiabatic_K"] - T_cold) <= 0.01
-    assert warm.summary["t_adiabatic_K"] - cold.summary["t_adiabatic_K"] > 5.0
+    assert abs(cold.flame.T_adiabatic_K - T_cold) <= 0.01
+    assert warm.flame.T_adiabatic_K - cold.flame.T_adiabatic_K > 5.0

@@ -47,7 +47,7 @@ def dew_point_note(sub, unit_symbol: str, n_rows: int) -> str:
 def made_from(s) -> tuple[list, dict | None, list]:
     """What the front matter, the JSON and the CSVW say a substance was made from:
     (description sentences, combustion JSON or None, figures at full precision)."""
-    from ..calc.burn import CombustionResult
+    from ..calc.burn_result import CombustionResult
     from ..calc.oxidants import Oxidant
     from . import sheet
     origin = getattr(s, "origin", None)
@@ -180,7 +180,7 @@ def _ref_list(ids) -> str:
 
 def sheets_of(spec, tables, refs, cautions) -> tuple:
     """One combustion sheet per combustion that defines a substance of the book."""
-    from ..calc.burn import CombustionResult
+    from ..calc.burn_result import CombustionResult
     from . import sheet
     titles = {c.split(". ", 1)[0]: caution_title(c) for c in cautions}
     order, names = [], {}

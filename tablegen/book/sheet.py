@@ -9,7 +9,7 @@ uncertainties and what they give, and references to the cautions that apply.
 
 :func:`figures` lists the same numbers at full precision, with their units, for
 the JSON sidecar and the CSVW metadata of every table of the gas. The sheet is
-built from the finished result (tablegen.calc.burn.CombustionResult); nothing here
+built from the finished result (tablegen.calc.burn_result.CombustionResult); nothing here
 evaluates a polynomial.
 """
 
@@ -17,7 +17,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-#: Full-precision figures of a combustion: (summary key, label, unit).
+#: Full-precision figures of a combustion: (JSON key of calc.burn_result.figure_values, label, unit).
 FIGURES = (
     ("lambda", "air ratio λ", "1"), ("excess_air_percent", "excess air", "%"), ("phi", "equivalence ratio φ", "1"),
     ("afr_mass_stoich", "oxidant/fuel by mass, stoichiometric", "kg/kg"),
@@ -71,7 +71,8 @@ class Sheet:
 
 def figures(result) -> list:
     """[(key, label, value, unit, U_k2 or None)] of a combustion at full precision (None values left out)."""
-    s = result.summary
+    from ..calc.burn_result import figure_values
+    s = figure_values(result)
     prop = result.uncertainty
     out = []
     for key, label, unit in FIGURES:
@@ -88,14 +89,17 @@ def figures(result) -> list:
 
 def to_json(result, caution_refs=()) -> dict:
     """The combustion of a substance for the JSON sidecar: inputs as given, figures at full precision."""
-    s = result.summary
+    from ..calc.burn_result import amount_json
+    fg, fl, prop = result.flue_gas, result.flame, result.uncertainty
     return {
-        "fuel": s["fuel"], "oxidant": s["oxidant"], "amount_given": s.get("amount_given"),
-        "T_fuel_source": s.get("T_fuel_source"), "T_oxidant_source": s.get("T_oxidant_source"),
+        "fuel": result.fuel.describe(), "oxidant": result.oxidant.describe(),
+        "amount_given": amount_json(result.amount_given),
+        "T_fuel_source": fl.T_fuel_source, "T_oxidant_source": fl.T_oxidant_source,
         "figures": {k: {"label": lab, "value": v, "unit": u, "U_k2": U} for k, lab, v, u, U in figures(result)},
-        "products_wet": dict(s["products_wet"]), "products_dry": dict(s["products_dry"]),
-        "products_wet_mass": dict(s["products_wet_mass"]), "products_dry_mass": dict(s["products_dry_mass"]),
-        "uncertainty": s.get("uncertainty"), "notes": list(s["notes"]), "cautions": list(caution_refs),
+        "products_wet": dict(fg.mole_fractions_wet), "products_dry": dict(fg.mole_fractions_dry),
+        "products_wet_mass": dict(fg.mass_fractions_wet), "products_dry_mass": dict(fg.mass_fractions_dry),
+        "uncertainty": None if prop is None else prop.to_json(), "notes": list(result.notes),
+        "cautions": list(caution_refs),
     }
 
 
@@ -114,7 +118,7 @@ def _celsius(T_K: float, digits: int = 2) -> str:
     return f"{T_K:.{digits}f} K ({T_K - 273.15:.{digits}f} °C)"
 
 
-def _fuel_blocks(f, s, prop) -> list:
+def _fuel_blocks(f) -> list:
     g = f.given or {}
     out = [("heading", "Fuel")]
     kinds = {"gas": "gas by species", "analysis": "ultimate analysis (mass fractions)", "formula": "formula"}
@@ -198,54 +202,54 @@ def _oxidant_blocks(ox) -> list:
     return out
 
 
-def _amount_para(s, prop) -> str:
-    a = s.get("amount_given") or {}
+def _amount_para(r, prop) -> str:
+    a = r.amount_given
+    key, value, U_k2 = (None, 0, None) if a is None else (a.key, a.value, a.U_k2)
     U = None if prop is None else prop.U("lambda")
-    lam = _pm(s["lambda"], U, "{:.4f}")
-    ea = _pm(s["excess_air_percent"], None if prop is None else prop.U("excess_air_percent"), "{:.2f}")
-    src = {"excess_air": f"excess air given: {a.get('value', 0):g} %", "air_ratio": f"λ given: {a.get('value', 0):g}",
-           "phi": f"φ given: {a.get('value', 0):g}"}.get(a.get("key"))
+    lam = _pm(r.air_ratio, U, "{:.4f}")
+    ea = _pm(r.excess_air_percent, None if prop is None else prop.U("excess_air_percent"), "{:.2f}")
+    src = {"excess_air": f"excess air given: {value:g} %", "air_ratio": f"λ given: {value:g}",
+           "phi": f"φ given: {value:g}"}.get(key)
     if src is None:
-        basis = "dry" if a.get("key") == "o2_dry" else "wet"
-        pm = "" if a.get("U_k2") is None else f" ± {a['U_k2']:g} %"
-        src = f"from the measured flue-gas O2 {a.get('value', 0):g} %{pm} by volume ({basis})"
-    return f"λ = {lam}, excess air = {ea} %, φ = {s['phi']:.4f}; {src}."
+        basis = "dry" if key == "o2_dry" else "wet"
+        pm = "" if U_k2 is None else f" ± {U_k2:g} %"
+        src = f"from the measured flue-gas O2 {value:g} %{pm} by volume ({basis})"
+    return f"λ = {lam}, excess air = {ea} %, φ = {r.phi:.4f}; {src}."
 
 
-def _ratio_rows(s, gas: bool) -> tuple:
-    rows = [("by mass, oxidant as supplied", "kg/kg", f"{s['afr_mass_stoich']:.4f}", f"{s['afr_mass']:.4f}"),
-            ("by mass, dry oxidant", "kg/kg", f"{s['afr_mass_dry_oxidant_stoich']:.4f}",
-             f"{s['afr_mass_dry_oxidant']:.4f}")]
-    if s.get("afr_molar") is not None:
-        rows.append(("by mole", "mol/mol", f"{s['afr_molar_stoich']:.4f}", f"{s['afr_molar']:.4f}"))
-    if gas and s.get("afr_volume") is not None:
-        rows.append(("by normal volume", "m³/m³", f"{s['afr_volume_stoich']:.4f}", f"{s['afr_volume']:.4f}"))
-    rows.append(("oxidant per kg fuel", "m³/kg", f"{s['oxidant_volume_per_kg_stoich']:.4f}",
-                 f"{s['oxidant_volume_per_kg']:.4f}"))
+def _ratio_rows(q, gas: bool) -> tuple:
+    rows = [("by mass, oxidant as supplied", "kg/kg", f"{q.mass_stoich:.4f}", f"{q.mass:.4f}"),
+            ("by mass, dry oxidant", "kg/kg", f"{q.mass_dry_oxidant_stoich:.4f}", f"{q.mass_dry_oxidant:.4f}")]
+    if q.molar is not None:
+        rows.append(("by mole", "mol/mol", f"{q.molar_stoich:.4f}", f"{q.molar:.4f}"))
+    if gas and q.volume is not None:
+        rows.append(("by normal volume", "m³/m³", f"{q.volume_stoich:.4f}", f"{q.volume:.4f}"))
+    rows.append(("oxidant per kg fuel", "m³/kg", f"{q.volume_m3_per_kg_stoich:.4f}", f"{q.volume_m3_per_kg:.4f}"))
     return tuple(rows)
 
 
-def _flue_rows(s) -> tuple:
-    rows = [("per kg fuel", "kg/kg", f"{s['flue_gas_mass_wet_per_kg']:.4f}", f"{s['flue_gas_mass_dry_per_kg']:.4f}"),
-            ("per kg fuel", "m³/kg", f"{s['flue_gas_volume_wet_per_kg']:.4f}",
-             f"{s['flue_gas_volume_dry_per_kg']:.4f}"),
-            ("per kg fuel", "mol/kg", f"{s['flue_gas_mol_wet_per_kg']:.3f}", f"{s['flue_gas_mol_dry_per_kg']:.3f}")]
-    if s.get("flue_gas_volume_wet_per_m3_fuel") is not None:
-        rows.append(("per normal m³ fuel", "m³/m³", f"{s['flue_gas_volume_wet_per_m3_fuel']:.4f}",
-                     f"{s['flue_gas_volume_dry_per_m3_fuel']:.4f}"))
-    rows.append(("molar mass", "kg/kmol", f"{s['M_flue_wet']:.4f}",
-                 "—" if s.get("M_flue_dry") is None else f"{s['M_flue_dry']:.4f}"))
+def _flue_rows(fg) -> tuple:
+    rows = [("per kg fuel", "kg/kg", f"{fg.kg_wet_per_kg:.4f}", f"{fg.kg_dry_per_kg:.4f}"),
+            ("per kg fuel", "m³/kg", f"{fg.m3_wet_per_kg:.4f}", f"{fg.m3_dry_per_kg:.4f}"),
+            ("per kg fuel", "mol/kg", f"{fg.mol_wet_per_kg:.3f}", f"{fg.mol_dry_per_kg:.3f}")]
+    if fg.m3_wet_per_m3_fuel is not None:
+        rows.append(("per normal m³ fuel", "m³/m³", f"{fg.m3_wet_per_m3_fuel:.4f}", f"{fg.m3_dry_per_m3_fuel:.4f}"))
+    rows.append(("molar mass", "kg/kmol", f"{fg.M_wet_kg_per_kmol:.4f}",
+                 "—" if fg.M_dry_kg_per_kmol is None else f"{fg.M_dry_kg_per_kmol:.4f}"))
     return tuple(rows)
 
 
-def _hv_rows(s, prop) -> tuple:
-    def pm(key, fmt):
-        return _pm(s[key], None if prop is None else prop.U(key), fmt)
-    rows = [("per kg", "MJ/kg", pm("lhv_mass", "{:.3f}"), pm("hhv_mass", "{:.3f}"))]
-    if s.get("lhv_molar") is not None:
-        rows.append(("per kmol", "MJ/kmol", pm("lhv_molar", "{:.2f}"), pm("hhv_molar", "{:.2f}")))
-    if s.get("lhv_volume") is not None:
-        rows.append(("per normal m³", "MJ/m³", pm("lhv_volume", "{:.3f}"), pm("hhv_volume", "{:.3f}")))
+def _hv_rows(hv, prop) -> tuple:
+    def pm(key, v, fmt):          # v in MJ per unit; key names its uncertainty (figure_values)
+        return _pm(v, None if prop is None else prop.U(key), fmt)
+    rows = [("per kg", "MJ/kg", pm("lhv_mass", hv.lhv_J_per_kg * 1e-6, "{:.3f}"),
+             pm("hhv_mass", hv.hhv_J_per_kg * 1e-6, "{:.3f}"))]
+    if hv.lhv_J_per_mol is not None:
+        rows.append(("per kmol", "MJ/kmol", pm("lhv_molar", hv.lhv_J_per_mol * 1e-3, "{:.2f}"),
+                     pm("hhv_molar", hv.hhv_J_per_mol * 1e-3, "{:.2f}")))
+    if hv.lhv_J_per_m3 is not None:
+        rows.append(("per normal m³", "MJ/m³", pm("lhv_volume", hv.lhv_J_per_m3 * 1e-6, "{:.3f}"),
+                     pm("hhv_volume", hv.hhv_J_per_m3 * 1e-6, "{:.3f}")))
     return tuple(rows)
 
 
@@ -257,58 +261,43 @@ def dew_point_sentence(T_K, P_Pa) -> str:
 
 def build(result, names: tuple, caution_refs: tuple, caution_titles: dict) -> Sheet:
     """The printed combustion sheet of ``result`` for the substances ``names``."""
-    s, f, ox, prop = result.summary, result.fuel, result.oxidant, result.uncertainty
+    f, ox, prop = result.fuel, result.oxidant, result.uncertainty
+    fg, dp, hv, fl = result.flue_gas, result.dew_point, result.heating_values, result.flame
     gas = f.kind == "gas"
-    Tm, Pm = s["metering_T_K"], s["metering_P_Pa"]
+    Tm, Pm = result.metering_T_K, result.metering_P_Pa
     blocks = [("para", f"Defines: {', '.join(names)}. Model: frozen complete combustion (tablegen.burn); "
                        f"normal volumes are ideal-gas volumes at {Tm - 273.15:g} °C and {Pm / 1000:g} kPa.")]
-    blocks += _fuel_blocks(f, s, prop)
+    blocks += _fuel_blocks(f)
     blocks += _oxidant_blocks(ox)
-    blocks += [("heading", "Amount of oxidant"), ("para", _amount_para(s, prop)),
+    blocks += [("heading", "Amount of oxidant"), ("para", _amount_para(result, prop)),
                ("heading", "Oxidant/fuel ratios"),
-               ("grid", ("Ratio", "Unit", "Stoichiometric", "Actual"), _ratio_rows(s, gas),
+               ("grid", ("Ratio", "Unit", "Stoichiometric", "Actual"), _ratio_rows(result.ratios, gas),
                 (0.4, 0.16, 0.22, 0.22), (2, 3)),
                ("heading", "Flue gas per unit of fuel"),
-               ("grid", ("Quantity", "Unit", "Wet", "Dry"), _flue_rows(s), (0.4, 0.16, 0.22, 0.22), (2, 3))]
-    rows = []
-    for k, y in s["products_wet"].items():
-        d, dm = s["products_dry"].get(k), s["products_dry_mass"].get(k)
-        row = [k, _pct(y)]
-        if prop is not None:
-            row.append(_pct(prop.products["wet"].get(k, 0.0)))
-        row += [_pct(s["products_wet_mass"][k]), "—" if d is None else _pct(d)]
-        if prop is not None:
-            row.append("—" if d is None else _pct(prop.products["dry"].get(k, 0.0)))
-        rows.append(tuple(row + ["—" if dm is None else _pct(dm)]))
-    if prop is None:
-        head, fr = ("Species", "Wet, mole %", "Wet, mass %", "Dry, mole %", "Dry, mass %"), (0.2,) * 5
-    else:
-        head = ("Species", "Wet, mole %", "U (k = 2)", "Wet, mass %", "Dry, mole %", "U (k = 2)", "Dry, mass %")
-        fr = (0.16, 0.15, 0.12, 0.15, 0.15, 0.12, 0.15)
-    blocks += [("heading", "Flue-gas composition"),
-               ("grid", head, tuple(rows), fr, tuple(range(1, len(head))))]
+               ("grid", ("Quantity", "Unit", "Wet", "Dry"), _flue_rows(fg), (0.4, 0.16, 0.22, 0.22), (2, 3))]
+    blocks += _composition_blocks(fg, prop)
     blocks += [("heading", "Water dew point"),
-               ("para", f"{dew_point_sentence(s['dew_point_K'], s['flue_pressure_Pa'])}, the flue pressure "
-                        f"stated (water partial pressure {s['water_partial_pressure_Pa'] / 1000:.4f} kPa; "
+               ("para", f"{dew_point_sentence(dp.T_K, dp.flue_pressure_Pa)}, the flue pressure "
+                        f"stated (water partial pressure {dp.water_partial_pressure_Pa / 1000:.4f} kPa; "
                         f"saturation temperature of IAPWS-IF97, eq. 31)"
                         + ("" if prop is None or prop.U("dew_point_K") is None else
                            f"; U (k = 2) {prop.U('dew_point_K'):.2f} K from the stated inputs")
                         + ". Table rows at or below it are marked c: water may condense there and the "
                           "ideal-gas values do not hold.")]
-    Tr = s["combustion_reference_T_K"]
+    Tr = hv.T_ref_K
     blocks += [("heading", f"Heating values at {Tr - 273.15:g} °C (combustion reference temperature)"),
-               ("grid", ("Basis", "Unit", "LHV", "HHV"), _hv_rows(s, prop), (0.25, 0.15, 0.3, 0.3), (2, 3)),
-               ("para", f"Water condensed for the HHV with Δh_vap = {s['h_vap_water_J_per_kg'] / 1000:.2f} kJ/kg "
-                        f"at {Tr - 273.15:g} °C; {s['water_formed_kg_per_kg']:.4f} kg water formed per kg fuel.")]
-    Ta = s["t_adiabatic_K"]
+               ("grid", ("Basis", "Unit", "LHV", "HHV"), _hv_rows(hv, prop), (0.25, 0.15, 0.3, 0.3), (2, 3)),
+               ("para", f"Water condensed for the HHV with Δh_vap = {hv.h_vap_water_J_per_kg / 1000:.2f} kJ/kg "
+                        f"at {Tr - 273.15:g} °C; {hv.water_formed_kg_per_kg:.4f} kg water formed per kg fuel.")]
+    Ta = fl.T_adiabatic_K
     ta_text = ("above the upper end of the flue-gas data (not given)" if Ta is None else
                _pm(Ta, None if prop is None else prop.U("t_adiabatic_K"), "{:.0f}") + f" K ({Ta - 273.15:.0f} °C)")
     blocks += [("heading", "Adiabatic flame temperature"),
                ("para", f"{ta_text}: frozen complete-combustion products, no heat loss; fuel at "
-                        f"{s['T_fuel_K'] - 273.15:g} °C ({s.get('T_fuel_source', 'as given')}), oxidant at "
-                        f"{s['T_oxidant_K'] - 273.15:g} °C ({s.get('T_oxidant_source', 'as given')}).")]
+                        f"{fl.T_fuel_K - 273.15:g} °C ({fl.T_fuel_source or 'as given'}), oxidant at "
+                        f"{fl.T_oxidant_K - 273.15:g} °C ({fl.T_oxidant_source or 'as given'}).")]
     if prop is not None:
-        blocks += _uncertainty_blocks(prop, s)
+        blocks += _uncertainty_blocks(prop, result)
     refs = ", ".join(f"{c} ({caution_titles.get(c, '')})" for c in caution_refs)
     blocks += [("heading", "Cautions for this fuel"),
                ("para", f"{refs}: printed in full in the Caution section; they apply to every table of "
@@ -317,7 +306,29 @@ def build(result, names: tuple, caution_refs: tuple, caution_titles: dict) -> Sh
                  caution_refs=tuple(caution_refs))
 
 
-def _uncertainty_blocks(prop, s) -> list:
+def _composition_blocks(fg, prop) -> list:
+    """The flue-gas composition grid, wet and dry, by mole and mass (with U where stated)."""
+    rows = []
+    for k, y in fg.mole_fractions_wet.items():
+        d, dm = fg.mole_fractions_dry.get(k), fg.mass_fractions_dry.get(k)
+        row = [k, _pct(y)]
+        if prop is not None:
+            row.append(_pct(prop.products["wet"].get(k, 0.0)))
+        row += [_pct(fg.mass_fractions_wet[k]), "—" if d is None else _pct(d)]
+        if prop is not None:
+            row.append("—" if d is None else _pct(prop.products["dry"].get(k, 0.0)))
+        rows.append(tuple(row + ["—" if dm is None else _pct(dm)]))
+    if prop is None:
+        head, fr = ("Species", "Wet, mole %", "Wet, mass %", "Dry, mole %", "Dry, mass %"), (0.2,) * 5
+    else:
+        head = ("Species", "Wet, mole %", "U (k = 2)", "Wet, mass %", "Dry, mole %", "U (k = 2)", "Dry, mass %")
+        fr = (0.16, 0.15, 0.12, 0.15, 0.15, 0.12, 0.15)
+    return [("heading", "Flue-gas composition"), ("grid", head, tuple(rows), fr, tuple(range(1, len(head))))]
+
+
+def _uncertainty_blocks(prop, result) -> list:
+    from ..calc.burn_result import figure_values
+    s = figure_values(result)
     inputs = "; ".join(f"{i.label} {i.value * 100 if i.unit == 'fraction' else i.value:.6g} ± "
                        f"{i.U * 100 if i.unit == 'fraction' else i.U:.3g} %" for i in prop.inputs)
     out = [("heading", "Uncertainty from the stated inputs"),

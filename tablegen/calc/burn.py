@@ -30,16 +30,15 @@ Model (the usual one of boiler and burner calculations):
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+from dataclasses import replace
 
 import numpy as np
 
 from ..core.errors import InputError, RangeError, UnitError
-# the fuels and oxidants of the public API are read from here too (tablegen.calc.burn.make_oxidant, ...)
-from .fuels import (FUEL_KEYS, Fuel, _h_products, _oxygen_need, _products_of_fuel_per_kg,  # noqa: F401
-                    condensed_fuel, fuel_from_table, fuel_from_text, gas_fuel, parse_formula)
-from .oxidants import (OXIDANT_CONDITIONS, OXIDANT_FORMS, Oxidant, is_oxidant_base,  # noqa: F401
-                       make_oxidant, oxidant_colon_fix, oxidant_from_table, oxidant_from_text)
+from .burn_result import (AmountGiven, CombustionResult, DewPoint, Flame, FlueGasQuantities, HeatingValues,
+                          OxidantRatios, figure_values)
+from .fuels import FUEL_KEYS, Fuel, _h_products, _oxygen_need, _products_of_fuel_per_kg, fuel_from_table, fuel_from_text
+from .oxidants import Oxidant, oxidant_from_table, oxidant_from_text
 from .reactants import P_NORMAL, T_NORMAL, _M_H2O, _g, _h_molar, _lib, _num
 from ..thermo.substance import R_MOLAR, T_REF
 
@@ -62,27 +61,6 @@ CAUTION_CODES = ("These are engineering estimates: for boiler, burner, flue and 
                  "codes and licensed engineering practice.")
 #: The cautions of every combustion result; the others are added where they apply (combustion_cautions).
 CAUTIONS = (CAUTION_TOXIC, CAUTION_CODES)
-
-
-# ================================================================== result
-@dataclass(frozen=True, slots=True, eq=False)
-class CombustionResult:
-    """Complete combustion of a fuel with an oxidant.
-
-    ``products`` is the wet flue gas and ``products_dry`` the dry flue gas, both
-    ordinary Substances (``products_dry`` is None when the flue gas is water only); ``summary`` holds every figure (JSON-ready); ``cautions``
-    must be shown with every result.
-    """
-
-    fuel: Fuel
-    oxidant: Oxidant
-    air_ratio: float
-    products: object
-    products_dry: object
-    moles_per_kg: dict          # product species -> mol per kg of fuel (wet)
-    summary: dict
-    cautions: list
-    uncertainty: object = None  # tablegen.calc.burn_inputs.Propagation of the stated input uncertainties
 
 
 AMOUNT_KEYS = ("excess_air", "air_ratio", "phi", "o2_dry", "o2_wet")
@@ -211,8 +189,10 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
 
     Returns
     -------
-    CombustionResult; with stated input uncertainties, ``uncertainty`` holds their
-    propagation (tablegen.calc.burn_inputs).
+    CombustionResult (tablegen.calc.burn_result): its figures are attributes of
+    ``ratios``, ``flue_gas``, ``dew_point``, ``heating_values`` and ``flame``, SI
+    inside; ``burn_result.to_json`` gives the JSON form. With stated input
+    uncertainties, ``uncertainty`` holds their propagation (tablegen.calc.burn_inputs).
 
     Raises
     ------
@@ -245,22 +225,20 @@ def combustion(fuel, oxidant="air", *, excess_air=None, air_ratio=None, phi=None
     conditions = dict(T_ref_K=T_ref_K, T_meter_K=T_meter_K, P_meter_Pa=P_meter_Pa, P_flue_Pa=P_flue_Pa,
                       T_fuel_K=temps["T_fuel_K"][0], T_oxidant_K=temps["T_oxidant_K"][0])
     r = _burn(f, ox, amount, data=data, source=source, **conditions)
-    s = r.summary
-    s["T_fuel_source"], s["T_oxidant_source"] = temps["T_fuel_K"][1], temps["T_oxidant_K"][1]
     (ak, av), = amount.items()
-    s["amount_given"] = {"key": ak, "value": float(av), "U_k2": None if o2_uncertainty is None else
-                         float(o2_uncertainty), "unit": {"excess_air": "%", "air_ratio": "-", "phi": "-"}.get(ak, "%")}
+    given = AmountGiven(key=ak, value=float(av), U_k2=None if o2_uncertainty is None else float(o2_uncertainty),
+                        unit={"excess_air": "%", "air_ratio": "-", "phi": "-"}.get(ak, "%"))
+    flame = replace(r.flame, T_fuel_source=temps["T_fuel_K"][1], T_oxidant_source=temps["T_oxidant_K"][1])
     unc = None
     if f.uncertainty or o2_uncertainty:
         from .burn_inputs import propagate
 
         def rerun(fuel_x, amount_x):
-            return _burn(fuel_x, ox, amount_x, data=data, source=source, **conditions).summary
-        unc = propagate(s, f, amount, o2_uncertainty, rerun)
-        s["uncertainty"] = unc.to_json()
-    result = replace(r, uncertainty=unc)
-    # one dew point, computed once: the figure of the summary travels with the wet flue gas
-    products = replace(r.products, cautions=tuple(r.cautions), dew_point_K=s["dew_point_K"],
+            return figure_values(_burn(fuel_x, ox, amount_x, data=data, source=source, **conditions))
+        unc = propagate(figure_values(r), f, amount, o2_uncertainty, rerun)
+    result = replace(r, flame=flame, amount_given=given, uncertainty=unc)
+    # one dew point, computed once: the figure of the result travels with the wet flue gas
+    products = replace(r.products, cautions=tuple(r.cautions), dew_point_K=r.dew_point.T_K,
                        dew_point_P_Pa=float(P_flue_Pa), _cache={})
     products_dry = None if r.products_dry is None else replace(r.products_dry, cautions=tuple(r.cautions),
                                                                 _cache={})
@@ -328,25 +306,26 @@ def _burn(f: Fuel, ox: Oxidant, amount: dict, *, T_ref_K, T_meter_K, P_meter_Pa,
                                      what="dry flue gas") if has_dry else None
 
     notes = list(f.notes) + list(ox.notes)
-    s = _quantities(f, ox, lam, n_st, o2_need, prod, recs, y_wet, y_dry, has_dry, products, products_dry,
-                    T_meter_K, P_meter_Pa, T_ref, notes)
-    s.update(_dew_point(y_wet, P_flue_Pa))
-    s.update(_heating_values(f, o2_need, T_ref, s["_Vm"], data, source, notes))
+    Vm = _normal_molar_volume(T_meter_K, P_meter_Pa)                    # m³/mol
+    ratios, flue_gas = _quantities(f, ox, lam, n_st, o2_need, prod, recs, y_wet, y_dry, has_dry, products,
+                                   products_dry, Vm)
+    if f.kind == "gas":
+        notes.append(f"volumes are ideal-gas normal volumes at {T_meter_K:g} K and {P_meter_Pa / 1000:g} kPa "
+                     f"(no compression factor)")
+    dew_point = _dew_point(y_wet, P_flue_Pa)
+    heating_values = _heating_values(f, o2_need, T_ref, Vm, data, source, notes)
     T_ad = _flame(f, ox, n_ox, N_wet, products, T_fuel_K, T_oxidant_K, data, source, notes)
-    s.update(t_adiabatic_K=T_ad, T_fuel_K=float(T_fuel_K), T_oxidant_K=float(T_oxidant_K))
-    del s["_Vm"]
+    flame = Flame(T_adiabatic_K=T_ad, T_fuel_K=float(T_fuel_K), T_oxidant_K=float(T_oxidant_K))
     cautions = combustion_cautions(f, prod, products, T_ad)
-    s["fuel"] = f.describe()
-    s["oxidant"] = ox.describe()
-    s["notes"] = notes
-    s["cautions"] = cautions
     return CombustionResult(fuel=f, oxidant=ox, air_ratio=lam, products=products, products_dry=products_dry,
-                            moles_per_kg=prod, summary=s, cautions=cautions)
+                            moles_per_kg=prod, ratios=ratios, flue_gas=flue_gas, dew_point=dew_point,
+                            heating_values=heating_values, flame=flame, metering_T_K=T_meter_K,
+                            metering_P_Pa=P_meter_Pa, notes=notes, cautions=cautions)
 
 
 def _quantities(f, ox, lam, n_st, o2_need, prod, recs, y_wet, y_dry, has_dry, products, products_dry,
-                T_meter_K, P_meter_Pa, T_ref, notes) -> dict:
-    """Oxidant/fuel ratios, flue-gas amounts and compositions."""
+                Vm) -> tuple[OxidantRatios, FlueGasQuantities]:
+    """Oxidant/fuel ratios, flue-gas amounts and compositions (Vm: normal molar volume, m³/mol)."""
     n_ox = lam * n_st
     N_wet = sum(prod.values())
     N_dry = N_wet - prod.get("H2O", 0.0)
@@ -356,60 +335,45 @@ def _quantities(f, ox, lam, n_st, o2_need, prod, recs, y_wet, y_dry, has_dry, pr
         N_dry = m_dry = 0.0
     w_wet = {k: v * recs[k].M * 1e-3 / m_wet for k, v in prod.items()}
     w_dry = {k: v * recs[k].M * 1e-3 / m_dry for k, v in prod.items() if k != "H2O"} if has_dry else {}
-    Vm = _normal_molar_volume(T_meter_K, P_meter_Pa)                    # m³/mol
     M_ox = ox.M * 1e-3
-    s: dict = {
-        "lambda": lam, "excess_air_percent": (lam - 1) * 100, "phi": 1 / lam,
-        "oxygen_stoich_mol_per_kg": o2_need,
-        "afr_mass_stoich": n_st * M_ox, "afr_mass": n_ox * M_ox,
-        "afr_mass_dry_oxidant_stoich": n_st * (ox.M - ox.y_H2O * _M_H2O()) * 1e-3,
-        "oxidant_volume_per_kg_stoich": n_st * Vm, "oxidant_volume_per_kg": n_ox * Vm,
-        "products_wet": y_wet, "products_dry": y_dry,
-        "products_wet_mass": w_wet, "products_dry_mass": w_dry,
-        "flue_gas_mol_wet_per_kg": N_wet, "flue_gas_mol_dry_per_kg": N_dry,
-        "flue_gas_mass_wet_per_kg": m_wet, "flue_gas_mass_dry_per_kg": m_dry,
-        "flue_gas_volume_wet_per_kg": N_wet * Vm, "flue_gas_volume_dry_per_kg": N_dry * Vm,
-        "M_flue_wet": products.M, "M_flue_dry": products_dry.M if has_dry else None,
-        "metering_T_K": T_meter_K, "metering_P_Pa": P_meter_Pa,
-        "combustion_reference_T_K": T_ref, "ash_mass_per_kg": f.ash, "_Vm": Vm,
-    }
-    s["afr_mass_dry_oxidant"] = s["afr_mass_dry_oxidant_stoich"] * lam
-    if f.kind == "gas":
+    molar = volume = per_m3_fuel = (None, None)
+    if f.kind in ("gas", "formula"):
         Mf = f.M * 1e-3
-        s.update(afr_molar_stoich=n_st * Mf, afr_molar=n_ox * Mf,
-                 afr_volume_stoich=n_st * Mf, afr_volume=n_ox * Mf,     # ideal gas: volume ratio = mole ratio
-                 flue_gas_volume_wet_per_m3_fuel=N_wet * Mf, flue_gas_volume_dry_per_m3_fuel=N_dry * Mf)
-    elif f.kind == "formula":
-        Mf = f.M * 1e-3
-        s.update(afr_molar_stoich=n_st * Mf, afr_molar=n_ox * Mf, afr_volume_stoich=None, afr_volume=None,
-                 flue_gas_volume_wet_per_m3_fuel=None, flue_gas_volume_dry_per_m3_fuel=None)
-    else:
-        s.update(afr_molar_stoich=None, afr_molar=None, afr_volume_stoich=None, afr_volume=None,
-                 flue_gas_volume_wet_per_m3_fuel=None, flue_gas_volume_dry_per_m3_fuel=None)
-    if f.kind == "gas":
-        notes.append(f"volumes are ideal-gas normal volumes at {T_meter_K:g} K and {P_meter_Pa / 1000:g} kPa "
-                     f"(no compression factor)")
-    return s
+        molar = (n_st * Mf, n_ox * Mf)
+        if f.kind == "gas":                      # ideal gas: volume ratio = mole ratio
+            volume, per_m3_fuel = (n_st * Mf, n_ox * Mf), (N_wet * Mf, N_dry * Mf)
+    dry_stoich = n_st * (ox.M - ox.y_H2O * _M_H2O()) * 1e-3
+    ratios = OxidantRatios(
+        oxygen_stoich_mol_per_kg=o2_need, mass_stoich=n_st * M_ox, mass=n_ox * M_ox,
+        mass_dry_oxidant_stoich=dry_stoich, mass_dry_oxidant=dry_stoich * lam,
+        molar_stoich=molar[0], molar=molar[1], volume_stoich=volume[0], volume=volume[1],
+        volume_m3_per_kg_stoich=n_st * Vm, volume_m3_per_kg=n_ox * Vm)
+    flue_gas = FlueGasQuantities(
+        mole_fractions_wet=y_wet, mole_fractions_dry=y_dry, mass_fractions_wet=w_wet, mass_fractions_dry=w_dry,
+        mol_wet_per_kg=N_wet, mol_dry_per_kg=N_dry, kg_wet_per_kg=m_wet, kg_dry_per_kg=m_dry,
+        m3_wet_per_kg=N_wet * Vm, m3_dry_per_kg=N_dry * Vm,
+        m3_wet_per_m3_fuel=per_m3_fuel[0], m3_dry_per_m3_fuel=per_m3_fuel[1],
+        M_wet_kg_per_kmol=products.M, M_dry_kg_per_kmol=products_dry.M if has_dry else None,
+        ash_kg_per_kg=f.ash)
+    return ratios, flue_gas
 
 
-def _dew_point(y_wet: dict, P_flue_Pa: float) -> dict:
+def _dew_point(y_wet: dict, P_flue_Pa: float) -> DewPoint:
     """The water dew point of the wet flue gas at the flue pressure (IAPWS-IF97 eq. 31)."""
     from ..thermo.saturation import water_dew_point_K
     yw = y_wet.get("H2O", 0.0)
     pw = yw * P_flue_Pa
-    out = {"flue_pressure_Pa": float(P_flue_Pa), "water_partial_pressure_Pa": pw,
-           "dew_point_K": water_dew_point_K(yw, P_flue_Pa)}
-    if out["dew_point_K"] is not None:
-        out["dew_point_note"] = ("water dew point: IAPWS-IF97 saturation temperature (eq. 31) at the water "
-                                 "partial pressure")
+    T_K = water_dew_point_K(yw, P_flue_Pa)
+    if T_K is not None:
+        note = "water dew point: IAPWS-IF97 saturation temperature (eq. 31) at the water partial pressure"
     else:
-        out["dew_point_note"] = (f"water partial pressure {pw:.4g} Pa is below 611.2 Pa: the dew point lies below "
-                                 f"0 °C (frost point, not computed)")
-    return out
+        note = (f"water partial pressure {pw:.4g} Pa is below 611.2 Pa: the dew point lies below "
+                f"0 °C (frost point, not computed)")
+    return DewPoint(T_K=T_K, flue_pressure_Pa=float(P_flue_Pa), water_partial_pressure_Pa=pw, note=note)
 
 
-def _heating_values(f: Fuel, o2_need: float, T_ref: float, Vm: float, data, source, notes) -> dict:
-    """LHV and HHV at the combustion reference temperature, per kg, kmol and normal m³."""
+def _heating_values(f: Fuel, o2_need: float, T_ref: float, Vm: float, data, source, notes) -> HeatingValues:
+    """LHV and HHV at the combustion reference temperature, per kg, mol and normal m³."""
     from ..thermo.saturation import h_vap_J_per_kg
     hf, e1 = f.h_J_per_kg(T_ref, data, source)
     h_o2, e2 = _h_molar("O2", T_ref, data, source)
@@ -420,23 +384,20 @@ def _heating_values(f: Fuel, o2_need: float, T_ref: float, Vm: float, data, sour
     lhv = h_react - hp_vap                                             # J/kg
     hhv = h_react - hp_liq
     dh_vap = float(h_vap_J_per_kg(T_ref))
-    s = dict(lhv_mass=lhv * 1e-6, hhv_mass=hhv * 1e-6, h_vap_water_J_per_kg=dh_vap,
-             water_formed_kg_per_kg=stoich_prod["H2O"] * _M_H2O() * 1e-3)
+    molar = volume = (None, None)
     if f.M is not None:
         Mf = f.M * 1e-3
-        s.update(lhv_molar=lhv * Mf * 1e-3, hhv_molar=hhv * Mf * 1e-3)     # MJ/kmol = kJ/mol
-    else:
-        s.update(lhv_molar=None, hhv_molar=None)
+        molar = (lhv * Mf, hhv * Mf)                                   # J/mol
     if f.kind == "gas":
-        s.update(lhv_volume=lhv * f.M * 1e-3 / Vm * 1e-6, hhv_volume=hhv * f.M * 1e-3 / Vm * 1e-6)  # MJ/m³
-    else:
-        s.update(lhv_volume=None, hhv_volume=None)
+        volume = (lhv * f.M * 1e-3 / Vm, hhv * f.M * 1e-3 / Vm)        # J/m³ (normal)
     notes.append(f"heating values at {T_ref:g} K from the enthalpies of formation of the data; water condensed "
                  f"with Δh_vap = {dh_vap / 1000:.2f} kJ/kg at {T_ref:g} K (Wagner & Pruss 1993 with Clapeyron)")
     if e1 or e2 or e3:
         notes.append("some species enthalpies were evaluated slightly below the lower end of their data "
                      "(SO2 and H2S data start at 300 K) with the lowest interval extrapolated")
-    return s
+    return HeatingValues(lhv_J_per_kg=lhv, hhv_J_per_kg=hhv, lhv_J_per_mol=molar[0], hhv_J_per_mol=molar[1],
+                         lhv_J_per_m3=volume[0], hhv_J_per_m3=volume[1], h_vap_water_J_per_kg=dh_vap,
+                         water_formed_kg_per_kg=stoich_prod["H2O"] * _M_H2O() * 1e-3, T_ref_K=T_ref)
 
 
 def _flame(f: Fuel, ox: Oxidant, n_ox: float, N_wet: float, products, T_fuel_K, T_oxidant_K, data, source,
@@ -504,7 +465,7 @@ def result_for(substance) -> CombustionResult | None:
     """The combustion result behind a flue-gas Substance (its ``origin``), or None for other substances.
 
     Documents that tabulate a substance call this to print the combustion cautions and
-    summary with it.
+    figures with it.
     """
     origin = getattr(substance, "origin", None)
     return origin if isinstance(origin, CombustionResult) else None

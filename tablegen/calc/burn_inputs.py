@@ -16,10 +16,10 @@ combustion calculation (5.1.3 allows a numerical derivative). A part of the
 analysis is moved by ±δ and the analysis renormalised to a sum of 1, so the other
 parts scale (the convention of the composition part of tablegen.calc.uncertainty); the
 measured O2 is moved by ±δ directly. The results so treated: λ and the other
-figures of the summary (FIGURES), and the wet and dry flue-gas mole fractions,
-whose change per standard uncertainty of each input (a signed vector, so the
-correlation between CO2, H2O and N2 is kept) is handed to the uncertainty budget
-of every table of the flue gas (tablegen.calc.uncertainty, ``composition_inputs``).
+figures of the result (FIGURES, keys of tablegen.calc.burn_result.figure_values),
+and the wet and dry flue-gas mole fractions, whose change per standard uncertainty
+of each input (a signed vector, so the correlation between CO2, H2O and N2 is
+kept) is handed to the uncertainty budget of every table of the flue gas (tablegen.calc.uncertainty, ``composition_inputs``).
 """
 
 from __future__ import annotations
@@ -28,7 +28,7 @@ from dataclasses import dataclass
 
 from ..core.errors import InputError
 
-#: Summary figures whose uncertainty is stated (every scalar a combustion engineer reads off).
+#: Figures (figure_values keys) whose uncertainty is stated (every scalar a combustion engineer reads off).
 FIGURES = ("lambda", "excess_air_percent", "phi", "afr_mass", "afr_mass_dry_oxidant", "afr_molar", "afr_volume",
            "afr_mass_stoich", "afr_molar_stoich", "afr_volume_stoich", "oxidant_volume_per_kg",
            "flue_gas_mass_wet_per_kg", "flue_gas_mass_dry_per_kg", "flue_gas_volume_wet_per_kg",
@@ -56,7 +56,7 @@ class Input:
 class Propagation:
     """The stated input uncertainties and what they give.
 
-    ``figures[name]`` = {"U": expanded (k = 2) uncertainty of that summary figure,
+    ``figures[name]`` = {"U": expanded (k = 2) uncertainty of that figure,
     "parts": {input label: signed standard contribution c u}}; ``wet`` and ``dry``
     = {input label: {species: signed change of its mole fraction for one standard
     uncertainty of the input}}; ``products`` = {"wet"/"dry": {species: U (k = 2)}}.
@@ -113,19 +113,19 @@ def _moved(fuel, amount: dict, inp: Input, step: float):
     return fuel, a
 
 
-def propagate(summary: dict, fuel, amount: dict, o2_U, rerun) -> Propagation:
+def propagate(figures_at: dict, fuel, amount: dict, o2_U, rerun) -> Propagation:
     """Propagate the stated uncertainties of ``fuel`` and of a measured O2 through ``rerun``.
 
     Parameters
     ----------
-    summary : the summary of the calculation at the stated inputs
+    figures_at : the figures of the calculation at the stated inputs (tablegen.calc.burn_result.figure_values)
     fuel : Fuel with ``uncertainty`` (part -> U, k = 2) and ``remake``
     amount : {amount key: value} as given
     o2_U : expanded uncertainty (k = 2) of a measured O2, % by volume, or None
-    rerun : callable(fuel, amount) -> summary of the same calculation
+    rerun : callable(fuel, amount) -> figures of the same calculation
     """
     inputs = _inputs(fuel, amount, o2_U)
-    figures = {k: {"U": 0.0, "parts": {}} for k in FIGURES if summary.get(k) is not None}
+    figures = {k: {"U": 0.0, "parts": {}} for k in FIGURES if figures_at.get(k) is not None}
     wet, dry = {}, {}
     for inp in inputs:
         if inp.unit == "fraction":
@@ -140,7 +140,7 @@ def propagate(summary: dict, fuel, amount: dict, o2_U, rerun) -> Propagation:
                 continue
             fig["parts"][inp.label] = (hi[k] - lo[k]) / (2 * d) * u
         for basis, out in (("products_wet", wet), ("products_dry", dry)):
-            species = dict.fromkeys([*summary[basis], *hi[basis], *lo[basis]])
+            species = dict.fromkeys([*figures_at[basis], *hi[basis], *lo[basis]])
             out[inp.label] = {sp: (hi[basis].get(sp, 0.0) - lo[basis].get(sp, 0.0)) / (2 * d) * u
                               for sp in species}
     for fig in figures.values():

@@ -293,6 +293,61 @@ def _h_products(prod: dict, T_K: float, data, source, *, liquid_water: bool) -> 
     return tot, ext
 
 
+def _condensed_bases(formula, analysis, basis, moisture, ash, W, what) -> tuple[dict, str, str, float | None]:
+    """(mass fractions on each basis, basis, kind "formula" / "analysis", M of the formula unit or None)."""
+    if formula is not None:
+        if analysis is not None:
+            raise InputError(f"{what}: give a formula or an analysis, not both")
+        counts = parse_formula(formula, f"{what}.formula")
+        M_formula = sum(W[e] * n for e, n in counts.items())
+        mass = {e: W[e] * n / M_formula for e, n in counts.items()}
+        if moisture or ash:
+            raise InputError(f"{what}: a formula fuel has no moisture or ash; use an analysis for those")
+        bases = {"as-received": {**{k: mass.get(k, 0.0) for k in BURNING}, "moisture": 0.0, "ash": 0.0}}
+        return bases, "as-received", "formula", M_formula
+    if not isinstance(analysis, dict):
+        raise InputError(f"{what}: give composition (gas species), analysis (mass fractions of "
+                         f"C, H, O, N, S, moisture, ash) or formula")
+    if basis not in ANALYSIS_BASES:
+        raise NameLookupError(f"{what}.basis {basis!r} is not known for an analysis; allowed: "
+                              f"{', '.join(ANALYSIS_BASES)}")
+    return _convert_analysis(analysis, basis, moisture, ash, what), basis, "analysis", None
+
+
+def _fuel_enthalpy(el, mw, ar, basis, kind, given, hhv, lhv, h_formation, M_formula, T_hv, notes, data, source,
+                   what) -> float:
+    """The fuel's enthalpy, J/kg as fired, at the heating value's reference temperature ``T_hv``.
+
+    From the enthalpy of formation, or from the HHV (an LHV first made an HHV with the
+    water formed) by HHV = h_fuel + n_O2 h_O2 - Σ n h(products, liquid water).
+    """
+    from ..thermo.saturation import h_vap_J_per_kg
+    # mass of the basis material per kg as fired
+    per_kg_ar = {"as-received": 1.0, "dry": 1 - ar["moisture"], "daf": sum(ar[k] for k in BURNING)}[basis]
+    prod = _products_of_fuel_per_kg(el, mw)
+    o2 = _oxygen_need(el)
+    h_o2, _ = _h_molar("O2", T_hv, data, source)
+    dh_vap = float(h_vap_J_per_kg(T_hv))
+    if h_formation is not None:
+        hf = float(h_formation)
+        h_ref = hf / (M_formula * 1e-3) if kind == "formula" else hf
+        notes.append(f"enthalpy of formation of the fuel given: {h_ref / 1e6:.6g} MJ/kg at {T_hv:g} K")
+        return h_ref
+    hp_liq, _ = _h_products(prod, T_hv, data, source, liquid_water=True)
+    if hhv is not None:
+        hhv_ar = float(hhv) * per_kg_ar
+    else:
+        # water formed per kg of basis material: as received it includes the moisture
+        water_b = prod["H2O"] if basis == "as-received" else (prod["H2O"] - mw) / per_kg_ar
+        hhv_b = float(lhv) + dh_vap * water_b * _M_H2O() * 1e-3
+        hhv_ar = hhv_b * per_kg_ar
+    if hhv_ar <= 0:
+        raise RangeError(f"{what}: the heating value must be positive")
+    notes.append(f"fuel enthalpy derived from the given {given.upper()} "
+                 f"(per kg{'' if kind == 'formula' else ' ' + basis}) at {T_hv:g} K")
+    return hhv_ar + hp_liq - o2 * h_o2
+
+
 def condensed_fuel(*, formula=None, basis="as-received", analysis=None,
                    moisture=None, ash=None, hhv=None, lhv=None, h_formation=None, hv_T_ref=T_REF,
                    cp=None, phase="liquid", name=None, id=None, data=(), source=None,
@@ -313,65 +368,22 @@ def condensed_fuel(*, formula=None, basis="as-received", analysis=None,
         fraction (a fraction, or a text with '%')
     """
     W = _weights(data)
-    M_formula = None
-    if formula is not None:
-        if analysis is not None:
-            raise InputError(f"{what}: give a formula or an analysis, not both")
-        counts = parse_formula(formula, f"{what}.formula")
-        M_formula = sum(W[e] * n for e, n in counts.items())
-        mass = {e: W[e] * n / M_formula for e, n in counts.items()}
-        if moisture or ash:
-            raise InputError(f"{what}: a formula fuel has no moisture or ash; use an analysis for those")
-        bases = {"as-received": {**{k: mass.get(k, 0.0) for k in BURNING}, "moisture": 0.0, "ash": 0.0}}
-        basis = "as-received"
-        kind = "formula"
-    else:
-        if not isinstance(analysis, dict):
-            raise InputError(f"{what}: give composition (gas species), analysis (mass fractions of "
-                             f"C, H, O, N, S, moisture, ash) or formula")
-        if basis not in ANALYSIS_BASES:
-            raise NameLookupError(f"{what}.basis {basis!r} is not known for an analysis; allowed: "
-                                  f"{', '.join(ANALYSIS_BASES)}")
-        bases = _convert_analysis(analysis, basis, moisture, ash, what)
-        kind = "analysis"
+    bases, basis, kind, M_formula = _condensed_bases(formula, analysis, basis, moisture, ash, W, what)
     ar = bases["as-received"]
     el = {e: ar.get(e, 0.0) / (W[e] * 1e-3) for e in BURNING if ar.get(e, 0.0) > 0}
     mw = ar["moisture"] / (_M_H2O() * 1e-3)
     if _oxygen_need(el) <= 0:
         raise InputError(f"{what}: the fuel needs no oxygen (it holds as much O as its C, H and S "
                          f"can take): nothing to burn")
-    # mass of the basis-b material per kg as fired, and its water per kg of basis material
-    per_kg_ar = {"as-received": 1.0, "dry": 1 - ar["moisture"], "daf": sum(ar[k] for k in BURNING)}[basis]
     given = [k for k, v in (("hhv", hhv), ("lhv", lhv), ("h_formation", h_formation)) if v is not None]
     if len(given) != 1:
         raise InputError(f"{what}: a fuel given by {'formula' if formula else 'analysis'} needs exactly one "
                          f"of hhv, lhv or h_formation (its enthalpy is not in the data); got "
                          f"{', '.join(given) or 'none'}")
     T_hv = float(hv_T_ref)
-    prod = _products_of_fuel_per_kg(el, mw)
-    o2 = _oxygen_need(el)
-    h_o2, _ = _h_molar("O2", T_hv, data, source)
-    from ..thermo.saturation import h_vap_J_per_kg
-    dh_vap = float(h_vap_J_per_kg(T_hv))
     notes = []
-    if h_formation is not None:
-        hf = float(h_formation)
-        h_ref = hf / (M_formula * 1e-3) if formula is not None else hf
-        notes.append(f"enthalpy of formation of the fuel given: {h_ref / 1e6:.6g} MJ/kg at {T_hv:g} K")
-    else:
-        hp_liq, _ = _h_products(prod, T_hv, data, source, liquid_water=True)
-        if hhv is not None:
-            hhv_ar = float(hhv) * per_kg_ar
-        else:
-            # water formed per kg of basis material: as received it includes the moisture
-            water_b = prod["H2O"] if basis == "as-received" else (prod["H2O"] - mw) / per_kg_ar
-            hhv_b = float(lhv) + dh_vap * water_b * _M_H2O() * 1e-3
-            hhv_ar = hhv_b * per_kg_ar
-        if hhv_ar <= 0:
-            raise RangeError(f"{what}: the heating value must be positive")
-        h_ref = hhv_ar + hp_liq - o2 * h_o2          # HHV = h_fuel + n_O2 h_O2 - Σ n h(products, liquid water)
-        notes.append(f"fuel enthalpy derived from the given {given[0].upper()} "
-                     f"(per kg{'' if kind == 'formula' else ' ' + basis}) at {T_hv:g} K")
+    h_ref = _fuel_enthalpy(el, mw, ar, basis, kind, given[0], hhv, lhv, h_formation, M_formula, T_hv,
+                           notes, data, source, what)
     if cp is None:
         notes.append("fuel cp not given: its sensible enthalpy is neglected (h(T) = h at the heating "
                      "value's reference temperature)")

@@ -106,27 +106,64 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
     humidity ratio, a humidity above saturation at the stated temperature, or a dew
     point above the stated temperature.
     """
+    from ..thermo.saturation import water_dew_point_K
+    notes = []
+    dry, label, kind = _dry_base(base, composition, what, notes)
+    dry, recs = _checked_species(dry, data, source, what)
+    enriched = False
+    if o2_percent is not None:
+        dry, label, enriched = _enriched(dry, recs, o2_percent, label, notes, what, data, source)
+    if dry.get("O2", 0.0) <= 0:
+        raise InputError(f"{what}: contains no O2; an oxidant needs oxygen")
+    M_dry = sum(v * recs[k].M for k, v in dry.items())
+    T = None if temperature_K is None else _num(temperature_K, f"{what}.temperature (K)", lo=0.0, lo_open=True)
+    P = P_NORMAL if pressure_Pa is None else _num(pressure_Pa, f"{what}.pressure (Pa)", lo=0.0, lo_open=True)
+    given = [k for k, v in (("relative_humidity", relative_humidity), ("humidity_ratio", humidity_ratio),
+                            ("dew_point", dew_point_K)) if v is not None]
+    if len(given) > 1:
+        raise InputError(f"{what}: {' and '.join(k.replace('_', ' ') for k in given)} are both given; "
+                         f"allowed: one of relative humidity (rh), humidity ratio (w) or dew point (dew)")
+    how = given[0] if given else "dry"
+    humidity = {"relative_humidity": relative_humidity, "humidity_ratio": humidity_ratio,
+                "dew_point": dew_point_K}.get(how)
+    yw, rh = _water_fraction(how, humidity, T, P, M_dry, what, keyed)
+    yw, w, rh = _saturation_checked(how, yw, rh, T, P, M_dry, what)
+    dew = water_dew_point_K(yw, P) if yw > 0 else None
+    comp = {k: v * (1 - yw) for k, v in dry.items()}
+    if yw > 0:
+        comp["H2O"] = yw
+        recs["H2O"] = _record("H2O", data, source)
+    M = sum(v * recs[k].M for k, v in comp.items())
+    label = _humid_label(how, label, kind, enriched, T, P, rh, w, yw, dew_point_K, notes)
+    spec = _oxidant_spec(base, composition, kind, how, humidity, o2_percent, T, P, pressure_Pa)
+    return Oxidant(id=label, name=name or label, composition=comp, M=M, humidity_ratio=w, notes=tuple(notes),
+                   spec=spec, T_K=T, P_Pa=P, humidity_given=how, relative_humidity=rh, dew_point_K=dew,
+                   o2_percent_dry=dry["O2"] * 100.0, base=kind, enriched=enriched)
+
+
+def _dry_base(base, composition, what: str, notes: list) -> tuple[dict, str, str]:
+    """(dry mole fractions as named, label, kind "composition" / "oxygen" / "air") of the dry oxidant."""
     from ..data.mixtures import shipped_mixtures
     from ..data.library import norm_name
-    from ..thermo.saturation import T_CRIT, T_LOW_IF97, p_sat_Pa, water_dew_point_K
-    notes = []
-    enriched = False
     if composition is not None:
         dry, _ = _fractions(composition, f"{what}.composition")
-        label, kind = "dry oxidant " + write_composition(dry, digits=4), "composition"
-    else:
-        b = norm_name(str(base))
-        if b in ("oxygen", "o2"):
-            dry, label, kind = {"O2": 1.0}, "oxygen", "oxygen"
-        else:
-            m = shipped_mixtures().get(b)
-            if m is None or m["id"] != "air":
-                raise NameLookupError(f"{what}.base {base!r} is not known; allowed: air, oxygen (or give a composition)")
-            dry, label, kind = dict(m["components"]), "air", "air"
-            tot = sum(dry.values())
-            dry = {k: v / tot for k, v in dry.items()}
-            notes.append("dry air of the shipped composition ("
-                         + ", ".join(f"{k} {v:g}" for k, v in m["components"].items()) + ", mole fractions)")
+        return dry, "dry oxidant " + write_composition(dry, digits=4), "composition"
+    b = norm_name(str(base))
+    if b in ("oxygen", "o2"):
+        return {"O2": 1.0}, "oxygen", "oxygen"
+    m = shipped_mixtures().get(b)
+    if m is None or m["id"] != "air":
+        raise NameLookupError(f"{what}.base {base!r} is not known; allowed: air, oxygen (or give a composition)")
+    dry = dict(m["components"])
+    tot = sum(dry.values())
+    dry = {k: v / tot for k, v in dry.items()}
+    notes.append("dry air of the shipped composition ("
+                 + ", ".join(f"{k} {v:g}" for k, v in m["components"].items()) + ", mole fractions)")
+    return dry, "air", "air"
+
+
+def _checked_species(dry: dict, data, source, what: str) -> tuple[dict, dict]:
+    """The dry oxidant keyed by record id, and those records; refuses water and non-oxidant species."""
     recs = {}
     for k in list(dry):
         rec = _record(k, data, source, what=f"{what}.composition.{k}")
@@ -138,39 +175,42 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
             raise InputError(f"{what}.composition: species {rec.id!r} is given twice")
         recs[rec.id] = rec
         dry[rec.id] = dry.pop(k)
-    if o2_percent is not None:
-        z = _num(o2_percent, f"{what}.o2_percent", lo=0.0, hi=100.0) / 100.0
-        y0 = dry.get("O2", 0.0)
-        if z < y0 - 1e-12:
-            raise RangeError(f"{what}.o2_percent = {z * 100:g} is below the O2 content of the base "
-                             f"({y0 * 100:.4g} %); enrichment adds O2: allowed {y0 * 100:.4g} to 100")
-        a = (1 - z) / (1 - y0) if y0 < 1 else 1.0   # share of base gas, rest pure O2
-        dry = {k: v * a for k, v in dry.items()}
-        dry["O2"] = dry.get("O2", 0.0) + (1 - a)
-        recs.setdefault("O2", _record("O2", data, source))
-        enriched = z > y0 + 1e-12
-        if enriched:
-            label = f"O2-enriched {label} ({z * 100:g} % O2, dry basis)"
-        notes.append(f"enriched with pure O2 to {z * 100:g} % O2 by volume (dry)")
-    if dry.get("O2", 0.0) <= 0:
-        raise InputError(f"{what}: contains no O2; an oxidant needs oxygen")
-    M_dry = sum(v * recs[k].M for k, v in dry.items())
-    M_w = _M_H2O()
-    T = None if temperature_K is None else _num(temperature_K, f"{what}.temperature (K)", lo=0.0, lo_open=True)
-    P = P_NORMAL if pressure_Pa is None else _num(pressure_Pa, f"{what}.pressure (Pa)", lo=0.0, lo_open=True)
-    given = [k for k, v in (("relative_humidity", relative_humidity), ("humidity_ratio", humidity_ratio),
-                            ("dew_point", dew_point_K)) if v is not None]
-    if len(given) > 1:
-        raise InputError(f"{what}: {' and '.join(k.replace('_', ' ') for k in given)} are both given; "
-                         f"allowed: one of relative humidity (rh), humidity ratio (w) or dew point (dew)")
-    how = given[0] if given else "dry"
-    yw, rh = 0.0, None
+    return dry, recs
+
+
+def _enriched(dry: dict, recs: dict, o2_percent, label: str, notes: list, what: str, data,
+              source) -> tuple[dict, str, bool]:
+    """The dry base enriched with pure O2 to ``o2_percent`` (% by volume): (dry, label, enriched)."""
+    z = _num(o2_percent, f"{what}.o2_percent", lo=0.0, hi=100.0) / 100.0
+    y0 = dry.get("O2", 0.0)
+    if z < y0 - 1e-12:
+        raise RangeError(f"{what}.o2_percent = {z * 100:g} is below the O2 content of the base "
+                         f"({y0 * 100:.4g} %); enrichment adds O2: allowed {y0 * 100:.4g} to 100")
+    a = (1 - z) / (1 - y0) if y0 < 1 else 1.0   # share of base gas, rest pure O2
+    dry = {k: v * a for k, v in dry.items()}
+    dry["O2"] = dry.get("O2", 0.0) + (1 - a)
+    recs.setdefault("O2", _record("O2", data, source))
+    enriched = z > y0 + 1e-12
+    if enriched:
+        label = f"O2-enriched {label} ({z * 100:g} % O2, dry basis)"
+    notes.append(f"enriched with pure O2 to {z * 100:g} % O2 by volume (dry)")
+    return dry, label, enriched
+
+
+def _water_fraction(how: str, humidity, T, P: float, M_dry: float, what: str,
+                    keyed: bool) -> tuple[float, float | None]:
+    """(water mole fraction, relative humidity % or None) from the one humidity given.
+
+    ``how`` is "dry", "relative_humidity" (``humidity`` in %), "humidity_ratio" (kg/kg)
+    or "dew_point" (K); water saturation pressure from IAPWS-IF97 eq. 30.
+    """
+    from ..thermo.saturation import T_CRIT, T_LOW_IF97, p_sat_Pa
 
     def at(key: str, words: str) -> str:
         return f"{what}.{key}:" if keyed else f"{what}: {words}"
 
     if how == "relative_humidity":
-        rh = _num(relative_humidity, f"{what}: relative humidity (%)")
+        rh = _num(humidity, f"{what}: relative humidity (%)")
         if not 0.0 <= rh <= 100.0:
             raise RangeError(f"{at('relative_humidity', 'relative humidity')} {rh:g} % is outside 0 to 100 %; "
                              f"allowed: 0 <= rh <= 100 %")
@@ -184,19 +224,19 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
         if pw >= P:
             raise RangeError(f"{what}: water vapour pressure {pw:g} Pa reaches the total pressure {P:g} Pa; "
                              f"allowed: a relative humidity whose vapour pressure stays below the pressure")
-        yw = pw / P
-    elif how == "humidity_ratio":
-        w = _num(humidity_ratio, f"{what}: humidity ratio (kg/kg)")
+        return pw / P, rh
+    if how == "humidity_ratio":
+        w = _num(humidity, f"{what}: humidity ratio (kg/kg)")
         if w < 0:
             raise RangeError(f"{at('humidity_ratio', 'humidity ratio')} {w:g} kg/kg is negative; allowed: w >= 0 "
                              f"(e.g. w=8g/kg)")
         if w > 10:
             raise RangeError(f"{at('humidity_ratio', 'humidity ratio')} {w:g} kg/kg is too large; allowed: "
                              f"0 <= w <= 10 kg/kg")
-        r = w * M_dry / M_w
-        yw = r / (1 + r)
-    elif how == "dew_point":
-        Td = _num(dew_point_K, f"{what}: dew point (K)", lo=0.0, lo_open=True)
+        r = w * M_dry / _M_H2O()
+        return r / (1 + r), None
+    if how == "dew_point":
+        Td = _num(humidity, f"{what}: dew point (K)", lo=0.0, lo_open=True)
         if Td < T_LOW_IF97:
             raise RangeError(f"{at('dew_point', 'dew point')} {_celsius(Td)} is below 0 °C, where water deposits as ice "
                              f"(a frost point); give the humidity ratio (w=...) instead")
@@ -208,7 +248,16 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
             raise RangeError(f"{what}: a dew point of {_celsius(Td)} needs a water vapour pressure of {pw:g} Pa, "
                              f"not below the pressure {P:g} Pa; allowed: a dew point below the boiling point "
                              f"at that pressure")
-        yw = pw / P
+        return pw / P, None
+    return 0.0, None
+
+
+def _saturation_checked(how: str, yw: float, rh, T, P: float, M_dry: float,
+                        what: str) -> tuple[float, float, float | None]:
+    """(water mole fraction, humidity ratio kg/kg, relative humidity %): refuses a humid oxidant
+    above saturation at its stated temperature, and gives its relative humidity there."""
+    from ..thermo.saturation import T_CRIT, T_LOW_IF97, p_sat_Pa
+    M_w = _M_H2O()
     w = yw / (1 - yw) * M_w / M_dry
     if how != "dry" and T is not None and T_LOW_IF97 <= T <= T_CRIT:
         ps = float(p_sat_Pa(T))
@@ -219,54 +268,53 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
             raise RangeError(f"{what}: humidity ratio {w * 1000:.4g} g/kg is above saturation at {_celsius(T)} "
                              f"and {P / 1000:g} kPa; allowed: w <= {w_max * 1000:.4g} g/kg there")
         rh = rh_T if rh is None else rh
-    dew = water_dew_point_K(yw, P) if yw > 0 else None
-    comp = {k: v * (1 - yw) for k, v in dry.items()}
-    if yw > 0:
-        comp["H2O"] = yw
-        recs["H2O"] = _record("H2O", data, source)
-    M = sum(v * recs[k].M for k, v in comp.items())
-    # the label says what the user stated, in the order they would read it
+    return yw, w, rh
+
+
+def _humid_label(how, label, kind, enriched, T, P, rh, w, yw, dew_point_K, notes) -> str:
+    """The oxidant's label (and, when humid, its note): what the user stated, in the order they would read it."""
+    from ..thermo.saturation import p_sat_Pa
     if how == "dry":
-        label = ("dry " + label if kind == "air" and not enriched else label) + (
+        return ("dry " + label if kind == "air" and not enriched else label) + (
             f" at {_celsius(T)}" if T is not None else "")
+    if how == "relative_humidity":
+        cond = f"RH {rh:g} % at {_celsius(T)} and {P / 1000:g} kPa"
+    elif how == "humidity_ratio":
+        cond = f"humidity ratio {w * 1000:.4g} g/kg" + (f" at {_celsius(T)}" if T is not None else "")
     else:
-        if how == "relative_humidity":
-            cond = f"RH {rh:g} % at {_celsius(T)} and {P / 1000:g} kPa"
-        elif how == "humidity_ratio":
-            cond = f"humidity ratio {w * 1000:.4g} g/kg" + (f" at {_celsius(T)}" if T is not None else "")
-        else:
-            cond = f"dew point {_celsius(float(dew_point_K))} at {P / 1000:g} kPa" + (
-                f", air at {_celsius(T)}" if T is not None else "")
-        label = f"humid {label}, {cond}"
-        ps_note = ""
-        if how == "relative_humidity":
-            ps_note = (f"; saturation pressure of water at {_celsius(T)} from IAPWS-IF97 region 4 (eq. 30): "
-                       f"{float(p_sat_Pa(T)):.6g} Pa")
-        elif how == "dew_point":
-            ps_note = (f"; saturation pressure of water at the dew point from IAPWS-IF97 region 4 (eq. 30): "
-                       f"{yw * P:.6g} Pa")
-        notes.append(f"humid: {cond}{ps_note}; water {yw * 100:.6g} % by volume, humidity ratio "
-                     f"{w * 1000:.6g} g/kg (ideal-gas mixing, no enhancement factor)")
+        cond = f"dew point {_celsius(float(dew_point_K))} at {P / 1000:g} kPa" + (
+            f", air at {_celsius(T)}" if T is not None else "")
+    ps_note = ""
+    if how == "relative_humidity":
+        ps_note = (f"; saturation pressure of water at {_celsius(T)} from IAPWS-IF97 region 4 (eq. 30): "
+                   f"{float(p_sat_Pa(T)):.6g} Pa")
+    elif how == "dew_point":
+        ps_note = (f"; saturation pressure of water at the dew point from IAPWS-IF97 region 4 (eq. 30): "
+                   f"{yw * P:.6g} Pa")
+    notes.append(f"humid: {cond}{ps_note}; water {yw * 100:.6g} % by volume, humidity ratio "
+                 f"{w * 1000:.6g} g/kg (ideal-gas mixing, no enhancement factor)")
+    return f"humid {label}, {cond}"
+
+
+def _oxidant_spec(base, composition, kind, how, humidity, o2_percent, T, P, pressure_Pa) -> str | None:
+    """The oxidant written back as it is typed (``air,rh=60%,T=298.15K,P=101325Pa``), for flue@ names;
+    None for a composition with conditions (no text form)."""
     opts = []
     if o2_percent is not None:
         opts.append(f"O2={_g(o2_percent)}%")
     if how == "relative_humidity":
-        opts.append(f"rh={_g(relative_humidity)}%")
+        opts.append(f"rh={_g(humidity)}%")
     elif how == "humidity_ratio":
-        opts.append(f"w={_g(humidity_ratio)}kg/kg")
+        opts.append(f"w={_g(humidity)}kg/kg")
     elif how == "dew_point":
-        opts.append(f"dew={_g(float(dew_point_K))}K")
+        opts.append(f"dew={_g(float(humidity))}K")
     if T is not None:
         opts.append(f"T={_g(T)}K")
     if how in ("relative_humidity", "dew_point") or pressure_Pa is not None:
         opts.append(f"P={_g(P)}Pa")
     if composition is None:
-        spec = ",".join(["oxygen" if kind == "oxygen" and not opts else str(base).strip().lower(), *opts])
-    else:
-        spec = None if opts else write_composition({k: float(v) for k, v in composition.items()})
-    return Oxidant(id=label, name=name or label, composition=comp, M=M, humidity_ratio=w, notes=tuple(notes),
-                   spec=spec, T_K=T, P_Pa=P, humidity_given=how, relative_humidity=rh, dew_point_K=dew,
-                   o2_percent_dry=dry["O2"] * 100.0, base=kind, enriched=enriched)
+        return ",".join(["oxygen" if kind == "oxygen" and not opts else str(base).strip().lower(), *opts])
+    return None if opts else write_composition({k: float(v) for k, v in composition.items()})
 
 
 #: Conditions of an oxidant written BASE,KEY=VALUE,... (docs/combustion.md), with what they mean.

@@ -28,29 +28,6 @@ or formula = "C12H23" with a heating value. See docs/combustion.md; fuels/heavy-
 the project's docs/examples/ folder.
 The products can be tabulated: tablegen state "flue@CH4@excess-air=15" --T 400K,1500K"""
 
-#: JSON key -> unit, stated in the JSON output under "units".
-UNITS = {
-    "lambda": "-", "excess_air_percent": "%", "phi": "-",
-    "afr_mass_stoich": "kg oxidant/kg fuel", "afr_mass": "kg oxidant/kg fuel",
-    "afr_mass_dry_oxidant_stoich": "kg dry oxidant/kg fuel", "afr_mass_dry_oxidant": "kg dry oxidant/kg fuel",
-    "afr_molar_stoich": "mol oxidant/mol fuel", "afr_molar": "mol oxidant/mol fuel",
-    "afr_volume_stoich": "m³ oxidant/m³ fuel (normal)", "afr_volume": "m³ oxidant/m³ fuel (normal)",
-    "oxidant_volume_per_kg_stoich": "m³ (normal)/kg fuel", "oxidant_volume_per_kg": "m³ (normal)/kg fuel",
-    "oxygen_stoich_mol_per_kg": "mol O2/kg fuel",
-    "products_wet": "mole fraction", "products_dry": "mole fraction",
-    "products_wet_mass": "mass fraction", "products_dry_mass": "mass fraction",
-    "flue_gas_mol_wet_per_kg": "mol/kg fuel", "flue_gas_mol_dry_per_kg": "mol/kg fuel",
-    "flue_gas_mass_wet_per_kg": "kg/kg fuel", "flue_gas_mass_dry_per_kg": "kg/kg fuel",
-    "flue_gas_volume_wet_per_kg": "m³ (normal)/kg fuel", "flue_gas_volume_dry_per_kg": "m³ (normal)/kg fuel",
-    "flue_gas_volume_wet_per_m3_fuel": "m³/m³ fuel (normal)", "flue_gas_volume_dry_per_m3_fuel": "m³/m³ fuel (normal)",
-    "M_flue_wet": "kg/kmol", "M_flue_dry": "kg/kmol", "ash_mass_per_kg": "kg/kg fuel",
-    "dew_point_K": "K", "water_partial_pressure_Pa": "Pa", "flue_pressure_Pa": "Pa",
-    "lhv_mass": "MJ/kg", "hhv_mass": "MJ/kg", "lhv_molar": "MJ/kmol", "hhv_molar": "MJ/kmol",
-    "lhv_volume": "MJ/m³ (normal)", "hhv_volume": "MJ/m³ (normal)",
-    "h_vap_water_J_per_kg": "J/kg", "water_formed_kg_per_kg": "kg/kg fuel",
-    "combustion_reference_T_K": "K", "metering_T_K": "K", "metering_P_Pa": "Pa",
-    "t_adiabatic_K": "K", "T_fuel_K": "K", "T_oxidant_K": "K",
-}
 #: Keys of the "flow" member of the JSON output (with --flow) -> unit.
 FLOW_UNITS = {"fuel_mass_flow": "kg/s", "heat_input_lhv": "kW", "heat_input_hhv": "kW",
               "flue_gas_mass_flow_wet": "kg/s", "flue_gas_mass_flow_dry": "kg/s",
@@ -175,14 +152,14 @@ def compute(args):
 
 def flow_figures(r, flow) -> dict:
     """Flows at a fuel flow: heat input = heating value × fuel flow; gas flows = per-kg figures × fuel flow."""
-    s = r.summary
+    hv, fg = r.heating_values, r.flue_gas
     m = flow.mass_kg_per_s(r.fuel.M, "--flow")
-    return {"fuel_mass_flow": m, "heat_input_lhv": s["lhv_mass"] * 1e3 * m, "heat_input_hhv": s["hhv_mass"] * 1e3 * m,
-            "flue_gas_mass_flow_wet": s["flue_gas_mass_wet_per_kg"] * m,
-            "flue_gas_mass_flow_dry": s["flue_gas_mass_dry_per_kg"] * m,
-            "flue_gas_volume_flow_wet": s["flue_gas_volume_wet_per_kg"] * m,
-            "flue_gas_volume_flow_dry": s["flue_gas_volume_dry_per_kg"] * m,
-            "oxidant_mass_flow": s["afr_mass"] * m, "oxidant_volume_flow": s["oxidant_volume_per_kg"] * m}
+    # MJ/kg x 1e3 x kg/s = kW, in the order of operations the figures were always computed in
+    return {"fuel_mass_flow": m, "heat_input_lhv": hv.lhv_J_per_kg * 1e-6 * 1e3 * m,
+            "heat_input_hhv": hv.hhv_J_per_kg * 1e-6 * 1e3 * m,
+            "flue_gas_mass_flow_wet": fg.kg_wet_per_kg * m, "flue_gas_mass_flow_dry": fg.kg_dry_per_kg * m,
+            "flue_gas_volume_flow_wet": fg.m3_wet_per_kg * m, "flue_gas_volume_flow_dry": fg.m3_dry_per_kg * m,
+            "oxidant_mass_flow": r.ratios.mass * m, "oxidant_volume_flow": r.ratios.volume_m3_per_kg * m}
 
 
 def render_flow(f: dict, flow, sh, norm: str) -> list[str]:
@@ -233,69 +210,59 @@ def render_text(r, sh=None, flow=None, flows=None) -> str:
     from .display import choose
     from ..core.units import unit
     sh = sh or choose()
-    s = r.summary
     f, ox = r.fuel, r.oxidant
+    q, fg, dp, hv, fl = r.ratios, r.flue_gas, r.dew_point, r.heating_values, r.flame
     gas = f.kind == "gas"
-    Tm, Pm = s["metering_T_K"], s["metering_P_Pa"]
+    Tm, Pm = r.metering_T_K, r.metering_P_Pa
     norm = f"normal m³ = {unit(sh.T).from_si(Tm):g} {sh.T}, {Pm / 1000:g} kPa"
     out = [f"Combustion of {f.name}" + (f" (M = {f.M:.4f} kg/kmol)" if f.M else ""),
            f"  oxidant: {oxidant_text(ox)}",
-           f"  λ = {s['lambda']:.4f}   excess air = {s['excess_air_percent']:.2f} %   φ = {s['phi']:.4f}"
-           + amount_text(s),
+           f"  λ = {r.air_ratio:.4f}   excess air = {r.excess_air_percent:.2f} %   φ = {r.phi:.4f}"
+           + amount_text(r.amount_given),
            f"  volumes: {norm}, ideal gas", ""]
     if flows is not None:
         out += render_flow(flows, flow, sh, norm) + [""]
-    rows = [("mass [kg/kg]", _fmt(s["afr_mass_stoich"]), _fmt(s["afr_mass"]))]
+    rows = [("mass [kg/kg]", _fmt(q.mass_stoich), _fmt(q.mass))]
     if ox.y_H2O > 0:
-        rows.append(("mass, dry oxidant [kg/kg]", _fmt(s["afr_mass_dry_oxidant_stoich"]),
-                     _fmt(s["afr_mass_dry_oxidant"])))
-    if s["afr_molar"] is not None:
-        rows.append(("molar [mol/mol]", _fmt(s["afr_molar_stoich"]), _fmt(s["afr_molar"])))
+        rows.append(("mass, dry oxidant [kg/kg]", _fmt(q.mass_dry_oxidant_stoich), _fmt(q.mass_dry_oxidant)))
+    if q.molar is not None:
+        rows.append(("molar [mol/mol]", _fmt(q.molar_stoich), _fmt(q.molar)))
     if gas:
-        rows.append(("volume [m³/m³]", _fmt(s["afr_volume_stoich"]), _fmt(s["afr_volume"])))
-    rows.append(("oxidant volume [m³/kg fuel]", _fmt(s["oxidant_volume_per_kg_stoich"]),
-                 _fmt(s["oxidant_volume_per_kg"])))
+        rows.append(("volume [m³/m³]", _fmt(q.volume_stoich), _fmt(q.volume)))
+    rows.append(("oxidant volume [m³/kg fuel]", _fmt(q.volume_m3_per_kg_stoich), _fmt(q.volume_m3_per_kg)))
     out += ["Oxidant/fuel ratios"] + _table(("", "stoichiometric", "actual"), rows)
     rows = []
-    for k in s["products_wet"]:
-        d, dm = s["products_dry"].get(k), s["products_dry_mass"].get(k)
-        rows.append((k, f"{s['products_wet'][k] * 100:.4f}", f"{s['products_wet_mass'][k] * 100:.4f}",
+    for k, y in fg.mole_fractions_wet.items():
+        d, dm = fg.mole_fractions_dry.get(k), fg.mass_fractions_dry.get(k)
+        rows.append((k, f"{y * 100:.4f}", f"{fg.mass_fractions_wet[k] * 100:.4f}",
                      "-" if d is None else f"{d * 100:.4f}", "-" if dm is None else f"{dm * 100:.4f}"))
-    rows.append(("molar mass [kg/kmol]", f"{s['M_flue_wet']:.4f}", "", _fmt(s["M_flue_dry"]), ""))
+    rows.append(("molar mass [kg/kmol]", f"{fg.M_wet_kg_per_kmol:.4f}", "", _fmt(fg.M_dry_kg_per_kmol), ""))
     out += ["", "Flue gas, frozen complete combustion"] + \
         _table(("", "wet mole %", "wet mass %", "dry mole %", "dry mass %"), rows)
-    rows = [("per kg fuel [kg/kg]", _fmt(s["flue_gas_mass_wet_per_kg"]), _fmt(s["flue_gas_mass_dry_per_kg"])),
-            ("per kg fuel [m³/kg]", _fmt(s["flue_gas_volume_wet_per_kg"]), _fmt(s["flue_gas_volume_dry_per_kg"]))]
+    rows = [("per kg fuel [kg/kg]", _fmt(fg.kg_wet_per_kg), _fmt(fg.kg_dry_per_kg)),
+            ("per kg fuel [m³/kg]", _fmt(fg.m3_wet_per_kg), _fmt(fg.m3_dry_per_kg))]
     if gas:
-        rows.append(("per m³ fuel [m³/m³]", _fmt(s["flue_gas_volume_wet_per_m3_fuel"]),
-                     _fmt(s["flue_gas_volume_dry_per_m3_fuel"])))
+        rows.append(("per m³ fuel [m³/m³]", _fmt(fg.m3_wet_per_m3_fuel), _fmt(fg.m3_dry_per_m3_fuel)))
     if f.ash:
-        rows.append(("ash [kg/kg fuel]", _fmt(s["ash_mass_per_kg"]), ""))
+        rows.append(("ash [kg/kg fuel]", _fmt(fg.ash_kg_per_kg), ""))
     out += ["", "Flue-gas quantities"] + _table(("", "wet", "dry"), rows)
-    dp = s["dew_point_K"]
     from .process_text import pressure_text
-    flue_P = pressure_text(sh, s["flue_pressure_Pa"]) if sh.P_gauge else f"{s['flue_pressure_Pa'] / 1000:g} kPa"
+    flue_P = pressure_text(sh, dp.flue_pressure_Pa) if sh.P_gauge else f"{dp.flue_pressure_Pa / 1000:g} kPa"
     out += ["", f"Water dew point at {flue_P}: " +
-            (f"{_T(sh, dp, 1)}; water partial pressure "
-             f"{s['water_partial_pressure_Pa'] / 1000:.4f} kPa" if dp is not None else s["dew_point_note"])]
-    Tr = s["combustion_reference_T_K"]
-    rows = [("per kg [MJ/kg]", f"{s['lhv_mass']:.3f}", f"{s['hhv_mass']:.3f}")]
-    if s["lhv_molar"] is not None:
-        rows.append(("per kmol [MJ/kmol]", f"{s['lhv_molar']:.2f}", f"{s['hhv_molar']:.2f}"))
-    if s["lhv_volume"] is not None:
-        rows.append(("per normal m³ [MJ/m³]", f"{s['lhv_volume']:.3f}", f"{s['hhv_volume']:.3f}"))
-    out += ["", f"Heating values, combustion reference temperature {_T(sh, Tr, 2)} "
-                f"(Δh_vap of water {s['h_vap_water_J_per_kg'] / 1000:.2f} kJ/kg)"] + \
-        _table(("", "LHV", "HHV"), rows)
-    Ta = s["t_adiabatic_K"]
+            (f"{_T(sh, dp.T_K, 1)}; water partial pressure "
+             f"{dp.water_partial_pressure_Pa / 1000:.4f} kPa" if dp.T_K is not None else dp.note)]
+    out += ["", f"Heating values, combustion reference temperature {_T(sh, hv.T_ref_K, 2)} "
+                f"(Δh_vap of water {hv.h_vap_water_J_per_kg / 1000:.2f} kJ/kg)"] + \
+        _table(("", "LHV", "HHV"), _hv_rows(hv))
+    Ta = fl.T_adiabatic_K
     out += ["", "Adiabatic flame temperature: " +
             (_T(sh, Ta, 0) if Ta is not None else
              f"above {r.products.T_max:g} K, the end of the data (not given)") +
-            f", fuel at {unit(sh.T).from_si(s['T_fuel_K']):g} {sh.T} ({s.get('T_fuel_source', 'as given')}), "
-            f"oxidant at {unit(sh.T).from_si(s['T_oxidant_K']):g} {sh.T} ({s.get('T_oxidant_source', 'as given')})"]
+            f", fuel at {unit(sh.T).from_si(fl.T_fuel_K):g} {sh.T} ({fl.T_fuel_source or 'as given'}), "
+            f"oxidant at {unit(sh.T).from_si(fl.T_oxidant_K):g} {sh.T} ({fl.T_oxidant_source or 'as given'})"]
     if r.uncertainty is not None:
         out += ["", *uncertainty_lines(r)]
-    out += ["", "Notes"] + [f"  - {n}" for n in s["notes"]]
+    out += ["", "Notes"] + [f"  - {n}" for n in r.notes]
     out += ["", "Printed digits: heating values to 0.001 MJ/kg (the data agree with ISO 6976 to about 0.01 %), "
                 "dew point to 0.1 K, flame temperature to 1 K; fractions and ratios are exact to round-off "
                 "within the model. --json gives full precision."]
@@ -303,6 +270,16 @@ def render_text(r, sh=None, flow=None, flows=None) -> str:
     if r.products.id.lower().startswith("flue@"):
         out += ["", f"Tabulate this flue gas: tablegen state \"{r.products.id}\" --T 400K,1500K"]
     return "\n".join(out) + "\n"
+
+
+def _hv_rows(hv) -> list:
+    """LHV and HHV rows in MJ per kg, kmol and normal m³ (those that apply)."""
+    rows = [("per kg [MJ/kg]", f"{hv.lhv_J_per_kg * 1e-6:.3f}", f"{hv.hhv_J_per_kg * 1e-6:.3f}")]
+    if hv.lhv_J_per_mol is not None:
+        rows.append(("per kmol [MJ/kmol]", f"{hv.lhv_J_per_mol * 1e-3:.2f}", f"{hv.hhv_J_per_mol * 1e-3:.2f}"))
+    if hv.lhv_J_per_m3 is not None:
+        rows.append(("per normal m³ [MJ/m³]", f"{hv.lhv_J_per_m3 * 1e-6:.3f}", f"{hv.hhv_J_per_m3 * 1e-6:.3f}"))
+    return rows
 
 
 def oxidant_text(ox) -> str:
@@ -319,16 +296,18 @@ def oxidant_text(ox) -> str:
     return "; ".join(parts)
 
 
-def amount_text(s) -> str:
-    """Where λ came from, when it was not given directly: '  (from measured O2 3.5 ± 0.2 % dry)'."""
-    a = s.get("amount_given") or {}
-    if a.get("key") in ("o2_dry", "o2_wet"):
-        pm = "" if a.get("U_k2") is None else f" ± {a['U_k2']:g}"
-        return f"   (from measured O2 {a['value']:g}{pm} % {'dry' if a['key'] == 'o2_dry' else 'wet'})"
+def amount_text(a) -> str:
+    """Where λ came from, when it was not given directly: '  (from measured O2 3.5 ± 0.2 % dry)'.
+
+    ``a`` is the result's AmountGiven (or None).
+    """
+    if a is not None and a.key in ("o2_dry", "o2_wet"):
+        pm = "" if a.U_k2 is None else f" ± {a.U_k2:g}"
+        return f"   (from measured O2 {a.value:g}{pm} % {'dry' if a.key == 'o2_dry' else 'wet'})"
     return ""
 
 
-#: Figures of the uncertainty block: summary key, label, unit, scale, format.
+#: Figures of the uncertainty block: JSON key (calc.burn_result.figure_values), label, unit, scale, format.
 U_FIGURES = (("lambda", "λ", "", 1.0, "{:.4f}"), ("excess_air_percent", "excess air", "%", 1.0, "{:.2f}"),
              ("afr_mass", "oxidant/fuel, mass", "kg/kg", 1.0, "{:.4f}"),
              ("flue_gas_volume_wet_per_kg", "flue gas, wet", "m³/kg fuel", 1.0, "{:.4f}"),
@@ -339,7 +318,8 @@ U_FIGURES = (("lambda", "λ", "", 1.0, "{:.4f}"), ("excess_air_percent", "excess
 
 def uncertainty_lines(r) -> list[str]:
     """The stated input uncertainties and what they give (expanded, k = 2)."""
-    u, s = r.uncertainty, r.summary
+    from ..calc.burn_result import figure_values
+    u, s = r.uncertainty, figure_values(r)
     out = ["Uncertainty from the stated inputs (expanded, k = 2; JCGM 100:2008 linear propagation)"]
     out += [f"  input  {i.label}: {i.value * 100 if i.unit == 'fraction' else i.value:.6g} ± "
             f"{i.U * 100 if i.unit == 'fraction' else i.U:.3g} %" for i in u.inputs]
@@ -368,9 +348,8 @@ def run(args) -> int:
     r = compute(args)
     flows = flow_figures(r, flow) if flow is not None else None
     if args.json:
-        obj = dict(r.summary)
-        obj["units"] = dict(UNITS)
-        obj["products_substance"] = r.products.id
+        from ..calc.burn_result import to_json
+        obj = to_json(r)
         obj["input"] = {k: v for k, v in (("fuel", args.fuel), ("oxidant", args.oxidant), ("flow", args.flow),
                                           ("barometer", args.barometer),
                                           *((k, getattr(args, k)) for k in CONDITION_DEFAULTS)) if v is not None}

@@ -891,21 +891,26 @@ def parse(raw: dict, *, name: str, base: Path | None = None, source: str | None 
     return spec
 
 
-#: Summary entries of a combustion that state what it was computed from (the fingerprint covers them).
-COMBUSTION_INPUTS = ("fuel", "oxidant", "amount_given", "T_fuel_K", "T_fuel_source", "T_oxidant_K",
-                     "T_oxidant_source", "flue_pressure_Pa", "combustion_reference_T_K", "metering_T_K",
-                     "metering_P_Pa")
+def _combustion_inputs(o) -> dict:
+    """What a combustion result was computed from (the fingerprint covers them)."""
+    from ..calc.burn_result import amount_json
+    fl = o.flame
+    return {"fuel": o.fuel.describe(), "oxidant": o.oxidant.describe(), "amount_given": amount_json(o.amount_given),
+            "T_fuel_K": fl.T_fuel_K, "T_fuel_source": fl.T_fuel_source, "T_oxidant_K": fl.T_oxidant_K,
+            "T_oxidant_source": fl.T_oxidant_source, "flue_pressure_Pa": o.dew_point.flue_pressure_Pa,
+            "combustion_reference_T_K": o.heating_values.T_ref_K, "metering_T_K": o.metering_T_K,
+            "metering_P_Pa": o.metering_P_Pa}
 
 
 def _made_from(sub) -> dict:
     """What a substance was made from, for the normalised spec: the inputs of its combustion,
     or the conditions of a humid air; {} for others."""
-    from ..calc.burn import CombustionResult
+    from ..calc.burn_result import CombustionResult
     from ..calc.oxidants import Oxidant
     o = getattr(sub, "origin", None)
     out = {}
     if isinstance(o, CombustionResult):
-        out["combustion"] = {k: o.summary[k] for k in COMBUSTION_INPUTS if k in o.summary}
+        out["combustion"] = _combustion_inputs(o)
     elif isinstance(o, Oxidant):
         out["humid_air"] = o.describe()
     if getattr(sub, "dew_point_P_Pa", None) is not None:
