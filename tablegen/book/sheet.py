@@ -265,7 +265,7 @@ def build(result, names: tuple, caution_refs: tuple, caution_titles: dict) -> Sh
     fg, dp, hv, fl = result.flue_gas, result.dew_point, result.heating_values, result.flame
     gas = f.kind == "gas"
     Tm, Pm = result.metering_T_K, result.metering_P_Pa
-    blocks = [("para", f"Defines: {', '.join(names)}. Model: frozen complete combustion (tablegen.burn); "
+    blocks = [("para", f"Defines: {', '.join(names)}. Model: frozen complete combustion (tablegen.calc.burn); "
                        f"normal volumes are ideal-gas volumes at {Tm - 273.15:g} °C and {Pm / 1000:g} kPa.")]
     blocks += _fuel_blocks(f)
     blocks += _oxidant_blocks(ox)
