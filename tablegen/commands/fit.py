@@ -22,6 +22,7 @@ from pathlib import Path
 import numpy as np
 
 from ..data.formats import TM4513, TP2002
+from ..core.formula import parse_formula
 from ..core.errors import DataError, FitError, InputError, RangeError, TablegenError, UnitError
 from ..thermo.polynomial import FORMS, NINE, SEVEN
 
@@ -44,7 +45,6 @@ COLUMNS = {"T": "temperature", "cp_molar": "molar_entropy", "cp": "specific_entr
            "dh298_molar": "molar_energy", "s0_molar": "molar_entropy", "s0": "specific_entropy"}
 
 _HEAD = re.compile(r"^\s*([A-Za-z0-9_]+)\s*\[(.*)\]\s*$")
-_FORMULA = re.compile(r"([A-Z][a-z]?)(\d+(?:\.\d*)?|\.\d+)?")
 
 
 def add_arguments(p):
@@ -72,27 +72,6 @@ def add_arguments(p):
                         "form, tp-2002 for the 9-coefficient form")
     p.add_argument("--out", default=None, metavar="FILE", help="write to FILE instead of stdout")
     p.add_argument("--force", action="store_true", help="replace FILE if it exists")
-
-
-def parse_formula(text: str) -> dict:
-    """'CO2' -> {'C': 1, 'O': 2}; fractional counts allowed (a pseudo-species)."""
-    t = text.strip()
-    pos, out = 0, {}
-    for m in _FORMULA.finditer(t):
-        if m.start() != pos:
-            break
-        el, n = m.group(1), m.group(2)
-        x = float(n) if n else 1.0
-        if el in out:
-            raise InputError(f"--formula {text!r}: element {el} is given twice")
-        if x <= 0:
-            raise RangeError(f"--formula {text!r}: count of {el} must be positive")
-        out[el] = int(x) if x == int(x) else x
-        pos = m.end()
-    if pos != len(t) or not out:
-        raise InputError(f"--formula {text!r} is not a formula; write element symbols with counts, "
-                         f"e.g. CO2, C3H8 or C1.02H3.9O0.1")
-    return out
 
 
 def read_table(path: str, M_g_per_mol: float) -> dict:
@@ -202,7 +181,7 @@ def run(args) -> int:
     if args.out:
         check_files([args.out], args.force)
     lib = data_notices(args)
-    elements = parse_formula(args.formula)
+    elements = parse_formula(args.formula, "--formula")
     M = lib.weights.molar_mass(elements, f"--formula {args.formula}: ")
     rid = check_id(args.id or args.formula.strip())
     tab = read_table(args.table, M)
