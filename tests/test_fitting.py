@@ -240,3 +240,14 @@ def test_fit_and_fuel_formula_messages_are_unchanged(tmp_path, capsys):
     with pytest.raises(TablegenError, match=r"^fuel\.formula 'C12H23x' is not a formula; write e\.g\. "
                                             r"C12H23 or CH1\.8O0\.5 \(elements C, H, O, N, S\)$"):
         condensed_fuel(formula="C12H23x", what="fuel", hhv=45e6)
+
+
+def test_fit_table_with_a_quoted_line_break_keeps_the_file_line_numbers(tmp_path, capsys):
+    # RFC 4180 section 2.6: a quoted mark cell spans lines 3-4; the bad cell is on line 5.
+    from tablegen.cli import main
+    csv = tmp_path / "cp.csv"
+    csv.write_text('T [K],cp_molar [J/(mol K)],mark\n300,29.1,\n400,29.2,"two\nlines"\n500,one,\n',
+                   encoding="utf-8")
+    assert main(["fit", str(csv), "--form", "9-coefficient", "--formula", "N2"]) == 2
+    assert capsys.readouterr().err == (f"tablegen: {csv}:5: column 'cp_molar [J/(mol K)]': 'one' is not "
+                                       f"a number\n")

@@ -37,7 +37,7 @@ def _split_scoped(values, flag: str, tables) -> dict:
 
 def _table_options(args, specs, refs):
     """Per table: (keys, tolerances, align), from --columns, --tolerance and --align."""
-    from ..calc.compare import parse_align, parse_tolerance
+    from ..calc.compare_tolerance import parse_align, parse_tolerance
     tol_scoped, tol_all = _split_scoped(args.tolerance, "--tolerance", specs)
     al_scoped, al_all = _split_scoped(args.align, "--align", specs)
     used_tol, used_al = set(), set()
@@ -89,7 +89,8 @@ def _spec_info(spec, path: str) -> dict:
 
 def compute_book(args):
     """Read the spec and the folder, compare every table; (BookComparison, {path: bytes})."""
-    from ..calc.compare import compare, read_reference
+    from ..calc.compare import compare
+    from ..calc.compare_reference import read_reference
     from ..calc.compare_folder import BookComparison, TableComparison, read_folder, read_mapping
     from ..calc.compare_output import book_deviations_csv, book_summary
 
@@ -140,7 +141,7 @@ def compute_book(args):
 
 
 def book_text(bc) -> str:
-    from ..calc.compare import KEY_LABELS
+    from ..calc.compare_keys import KEY_LABELS
     from ..calc.compare_output import format_dev, format_size, unit_suffix, worst_cell, worst_text
     s, f = bc.spec, bc.folder
     ident = f"{s['number']} rev {s['revision']}" if s.get("number") else s["name"]

@@ -80,7 +80,7 @@ def resolve(args):
 
 def volume_reference(text):
     """--vol-ref: a named set of reference conditions or 'T,P'; None for the default."""
-    from ..calc.compare import VOLUME_REFERENCES
+    from ..calc.compare_keys import VOLUME_REFERENCES
     from ..core.units import pressure_Pa, temperature_K
     if text is None:
         return None
@@ -143,7 +143,7 @@ def _keys(args, ref, notes: list) -> list:
 
 def parse_column_options(args, units: dict):
     """--tolerance and --align of one table: {key: Tolerance}, {key: kind}."""
-    from ..calc.compare import parse_align, parse_tolerance
+    from ..calc.compare_tolerance import parse_align, parse_tolerance
     tolerances, align = {}, {}
     for t in args.tolerance:
         k, tol = parse_tolerance(t, units)
@@ -160,7 +160,8 @@ def parse_column_options(args, units: dict):
 
 def compute(args):
     """Read, check and compare one reference table; returns (Comparison, {path: bytes}, notes)."""
-    from ..calc.compare import compare, read_reference
+    from ..calc.compare import compare
+    from ..calc.compare_reference import read_reference
     from ..calc.compare_output import deviations_csv, summary
 
     sub, name, target_label, T_m, vol_ref, is_spec = resolve(args)
@@ -203,7 +204,7 @@ def write_outputs(files: dict, force: bool, about=()) -> list[str]:
 
 
 def text_summary(cmp, label: str = "") -> str:
-    from ..calc.compare import KEY_LABELS
+    from ..calc.compare_keys import KEY_LABELS
     from ..calc.compare_output import format_dev, format_size, unit_suffix
     ref = cmp.reference
     lines = [cmp.verdict, f"  {label or cmp.substance['id']} against {ref.path} ({len(ref.lines)} rows; "
