@@ -843,3 +843,19 @@ def test_quoted_cell_with_a_line_break_is_read_and_later_lines_keep_their_number
     rc, out, err = run(["compare", "N2", bad, "--out", tmp_path / "o2"], capsys)
     assert rc == 2 and err == (f"tablegen: {bad}:8: cell '29.x' in column 'cp_molar' is not a number; "
                                f"write plain decimal numbers (an empty cell or '-' marks a gap)\n")
+
+
+def test_the_compare_command_modules_import_one_way():
+    # compare.py -> compare_book.py -> compare_table.py, never back (common practice: no import tangles).
+    import ast
+    import pathlib
+    import tablegen.commands as commands
+    here = pathlib.Path(commands.__file__).parent
+    imported = {}
+    for name in ("compare", "compare_book", "compare_table"):
+        tree = ast.parse((here / f"{name}.py").read_text(encoding="utf-8"))
+        imported[name] = {n.module for n in ast.walk(tree) if isinstance(n, ast.ImportFrom) and n.level == 1
+                          and n.module and n.module.startswith("compare")}
+    assert imported["compare_table"] == set()
+    assert imported["compare_book"] == {"compare_table"}
+    assert imported["compare"] <= {"compare_book", "compare_table"}

@@ -24,11 +24,11 @@ class OutputProblem(TablegenError):
     exit_status = EXIT_OUTPUT
 
 
-def _is_spec(target: str) -> bool:
+def is_spec(target: str) -> bool:
     return target.lower().endswith(".toml")
 
 
-def _refuse_datum_options(args, target):
+def refuse_datum_options(args, target):
     given = [o for o, v in (("--h-datum", args.h_datum), ("--p-ref", args.p_ref),
                             ("--anchor", args.anchor), ("--mean-from", args.mean_from),
                             ("--vol-ref", args.vol_ref)) if v is not None]
@@ -48,8 +48,8 @@ def load_spec(args):
 def resolve(args):
     """The substance to compare (datum, P° and anchor applied) and its display name."""
     target = args.substance
-    if _is_spec(target):
-        _refuse_datum_options(args, target)
+    if is_spec(target):
+        refuse_datum_options(args, target)
         book = load_spec(args)
         tables = list(book.tables)
         if args.table is not None:
@@ -122,7 +122,7 @@ def default_out(name: str, reference: str) -> Path:
     return Path("output") / f"compare-{safe_name(name)}-vs-{safe_name(stem)}"
 
 
-def _keys(args, ref, notes: list) -> list:
+def compared_keys(args, ref, notes: list) -> list:
     if args.columns is not None:
         keys = [k.strip() for k in args.columns.split(",")]
         if not all(keys):
@@ -164,10 +164,10 @@ def compute(args):
     from ..calc.compare_reference import read_reference
     from ..calc.compare_output import deviations_csv, summary
 
-    sub, name, target_label, T_m, vol_ref, is_spec = resolve(args)
+    sub, name, target_label, T_m, vol_ref, spec_table = resolve(args)
     ref = read_reference(args.reference)
     notes = []
-    keys = _keys(args, ref, notes)
+    keys = compared_keys(args, ref, notes)
     units = {k: tuple(c.unit for c in ref.columns_of(k)) for k in keys}
     tolerances, align = parse_column_options(args, units)
     options = {"target": target_label, "reference": args.reference, "columns": keys,
@@ -178,7 +178,7 @@ def compute(args):
                "data_files": data_files(sub, args)}
     cmp = compare(sub, ref, columns=keys, tolerances=tolerances, align=align,
                   extrapolate=args.extrapolate, T_mean_ref_K=T_m, volume_reference=vol_ref, options=options,
-                  allow_wide=args.allow_wide, spec_table=is_spec)
+                  allow_wide=args.allow_wide, spec_table=spec_table)
     from ..book.qa_report import render_pdf
     out = Path(args.out) if args.out else default_out(name, args.reference)
     files = {out / "report.pdf": render_pdf(cmp),
