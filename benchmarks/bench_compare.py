@@ -20,7 +20,8 @@ sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 import tablegen  # noqa: E402
 from tablegen.book.qa_report import render_pdf  # noqa: E402
 from tablegen.commands.common import dumps  # noqa: E402
-from tablegen.calc.compare import compare, read_reference  # noqa: E402
+from tablegen.calc.compare import compare  # noqa: E402
+from tablegen.calc.compare_reference import read_reference  # noqa: E402
 from tablegen.calc.compare_output import deviations_csv, summary  # noqa: E402
 
 KEYS = [("cp", "kJ/(kg K)"), ("cv", "kJ/(kg K)"), ("k", "-"), ("h", "kJ/kg"), ("u", "kJ/kg"),

@@ -235,7 +235,7 @@ def test_compare_refuses_infinite_cells_and_tolerances_in_one_line(tmp_path, cap
 
 
 def test_compare_references_are_bounded_in_rows_and_bytes(tmp_path, capsys):
-    from tablegen.calc.compare import MAX_REFERENCE_BYTES, MAX_REFERENCE_ROWS
+    from tablegen.calc.compare_reference import MAX_REFERENCE_BYTES, MAX_REFERENCE_ROWS
     ref = tmp_path / "long.csv"
     ref.write_text("T [K],cp [kJ/(kg K)]\n" + "300,1.04\n" * (MAX_REFERENCE_ROWS + 1), encoding="utf-8")
     refused(capsys, ["compare", "N2", ref, "--out", tmp_path / "o"],

@@ -22,7 +22,9 @@ import pytest
 
 from tablegen import cli
 from tablegen.book.qa_report import OUT_MARK
-from tablegen.calc.compare import compare, parse_tolerance, read_reference
+from tablegen.calc.compare import compare
+from tablegen.calc.compare_reference import read_reference
+from tablegen.calc.compare_tolerance import parse_tolerance
 from tablegen.core.units import unit
 
 import janaf  # a test dependency (pyproject [test]): missing, it is a failure, not a skip
@@ -309,6 +311,7 @@ BAD = [
     ("no T", "cp [kJ/(kg K)],h [kJ/kg]\n1.0,2\n", ":1: no temperature column"),
     ("only gaps", "T [K],cp [kJ/(kg K)]\n300,-\n400,\n", ": the compared columns hold no values"),
     ("twice", "T [K],cp [kJ/(kg K)],cp [kJ/(kg K)]\n300,1,1\n", ":1: column 'cp [kJ/(kg K)]' appears twice"),
+    ("unclosed quote", "T [K],cp [kJ/(kg K)],mark\n300,1.04,\"x\n400,1.04,\n", ":2: a quote opened in this row is never closed"),
 ]
 
 
@@ -811,9 +814,48 @@ def test_datum_plus_one_wrong_cell_is_hinted_as_such(tmp_path, capsys):
 
 
 def test_a_missing_reference_column_is_a_name_error_naming_the_columns(tmp_path):
-    from tablegen.calc.compare import read_reference
+    from tablegen.calc.compare_reference import read_reference
     from tablegen.core.errors import NameLookupError
     p = tmp_path / "ref.csv"
     p.write_text("T [K],cp [kJ/(kg K)]\n300,1.005\n400,1.013\n", encoding="utf-8")
     with pytest.raises(NameLookupError, match="no column .h.; allowed: cp"):
         read_reference(p).column("h")
+
+
+def test_quoted_cell_with_a_line_break_is_read_and_later_lines_keep_their_numbers(tmp_path, capsys):
+    # RFC 4180 section 2.6: a quoted field may hold a line break. The mark cell of
+    # row 2 spans lines 4-5; the rows after it start on lines 7 and 8 (line 6 a comment
+    # whose quote opens no cell). Values: NIST-JANAF N2 (janaf package), 3 decimals.
+    T, cp, _, _ = janaf_rows("N2", (300.0, 500.0))
+    rows = [f"{t:g},{c:.3f}" for t, c in zip(T, cp)]
+    text = ("# NIST-JANAF N2\nT [K],cp_molar [J/(mol K)],mark\n"
+            f"{rows[0]},\n{rows[1]},\"read from the printed table,\nsecond line\"\n"
+            f"# a note, \"quoted\n{rows[2]},\n")
+    ref = tmp_path / "ref.csv"
+    ref.write_text(text, encoding="utf-8")
+    r = read_reference(ref)
+    assert r.lines == (3, 4, 7) and r.comments == ("NIST-JANAF N2", 'a note, "quoted')
+    assert list(r.T_K) == [float(t) for t in T[:3]]
+    rc, out, err = run(["compare", "N2", ref, "--out", tmp_path / "o", "--tolerance", "cp_molar=0.1%"], capsys)
+    assert rc == 0, err
+    bad = tmp_path / "bad.csv"
+    bad.write_text(text + f"{T[3]:g},29.x,\n", encoding="utf-8")
+    rc, out, err = run(["compare", "N2", bad, "--out", tmp_path / "o2"], capsys)
+    assert rc == 2 and err == (f"tablegen: {bad}:8: cell '29.x' in column 'cp_molar' is not a number; "
+                               f"write plain decimal numbers (an empty cell or '-' marks a gap)\n")
+
+
+def test_the_compare_command_modules_import_one_way():
+    # compare.py -> compare_book.py -> compare_table.py, never back (common practice: no import tangles).
+    import ast
+    import pathlib
+    import tablegen.commands as commands
+    here = pathlib.Path(commands.__file__).parent
+    imported = {}
+    for name in ("compare", "compare_book", "compare_table"):
+        tree = ast.parse((here / f"{name}.py").read_text(encoding="utf-8"))
+        imported[name] = {n.module for n in ast.walk(tree) if isinstance(n, ast.ImportFrom) and n.level == 1
+                          and n.module and n.module.startswith("compare")}
+    assert imported["compare_table"] == set()
+    assert imported["compare_book"] == {"compare_table"}
+    assert imported["compare"] <= {"compare_book", "compare_table"}

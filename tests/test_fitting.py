@@ -198,3 +198,56 @@ def test_constraints_hold_for_any_breakpoints(bps, h298, s298, form):
     assert math.isclose(ref["s"][0] * R_MOLAR, s298, rel_tol=1e-9)
     for j in fit.poly.boundary_jumps():
         assert j["cp"] < 1e-10 and j["h"] < 1e-10 and j["s"] < 1e-10
+
+
+# ------------------------------------------------ the one formula reader (fit and fuels)
+def test_formula_counts_give_the_iupac_molar_mass_of_co2_and_ethanol():
+    # IUPAC 2021 standard atomic weights (abridged, as in gasdata/atomic-weights.toml):
+    # C 12.011, H 1.008, O 15.999 -> CO2 44.009 g/mol, C2H5OH 46.069 g/mol.
+    from tablegen.core.formula import parse_formula
+    W = {"C": 12.011, "H": 1.008, "O": 15.999}
+    co2 = parse_formula("CO2", "--formula")
+    assert co2 == {"C": 1, "O": 2}
+    ethanol = parse_formula("CH3CH2OH", "fuel.formula", elements=("C", "H", "O", "N", "S"), add_repeats=True)
+    assert sum(W[e] * n for e, n in ethanol.items()) == pytest.approx(46.069, abs=5e-4)
+    assert sum(W[e] * n for e, n in co2.items()) == pytest.approx(44.009, abs=5e-4)
+    assert parse_formula(" C1.02H3.9O0.1 ") == {"C": 1.02, "H": 3.9, "O": 0.1}
+
+
+@pytest.mark.parametrize("text, kwargs, match", [
+    ("CO2x", {}, r"--formula 'CO2x' is not a formula; write element symbols with counts"),
+    ("", {}, r"is not a formula"),
+    ("C2C", {}, r"element C is given twice"),
+    ("C0H4", {}, r"count of C must be positive"),
+    ("CHCl3", {"elements": ("C", "H", "O", "N", "S"), "add_repeats": True},
+     r"element Cl is not handled; allowed: C, H, O, N, S"),
+])
+def test_formula_refusals_name_what_is_wrong(text, kwargs, match):
+    from tablegen.core.formula import parse_formula
+    with pytest.raises(TablegenError, match=match):
+        parse_formula(text, "--formula", **kwargs)
+
+
+def test_fit_and_fuel_formula_messages_are_unchanged(tmp_path, capsys):
+    # The messages of both callers, as they read before the two readers became one.
+    from tablegen.cli import main
+    from tablegen.calc.fuels import condensed_fuel
+    csv = tmp_path / "cp.csv"
+    csv.write_text("T [K],cp_molar [J/(mol K)]\n300,29.1\n400,29.2\n", encoding="utf-8")
+    assert main(["fit", str(csv), "--form", "9-coefficient", "--formula", "N2x"]) == 2
+    assert capsys.readouterr().err == ("tablegen: --formula 'N2x' is not a formula; write element symbols "
+                                       "with counts, e.g. CO2, C3H8 or C1.02H3.9O0.1\n")
+    with pytest.raises(TablegenError, match=r"^fuel\.formula 'C12H23x' is not a formula; write e\.g\. "
+                                            r"C12H23 or CH1\.8O0\.5 \(elements C, H, O, N, S\)$"):
+        condensed_fuel(formula="C12H23x", what="fuel", hhv=45e6)
+
+
+def test_fit_table_with_a_quoted_line_break_keeps_the_file_line_numbers(tmp_path, capsys):
+    # RFC 4180 section 2.6: a quoted mark cell spans lines 3-4; the bad cell is on line 5.
+    from tablegen.cli import main
+    csv = tmp_path / "cp.csv"
+    csv.write_text('T [K],cp_molar [J/(mol K)],mark\n300,29.1,\n400,29.2,"two\nlines"\n500,one,\n',
+                   encoding="utf-8")
+    assert main(["fit", str(csv), "--form", "9-coefficient", "--formula", "N2"]) == 2
+    assert capsys.readouterr().err == (f"tablegen: {csv}:5: column 'cp_molar [J/(mol K)]': 'one' is not "
+                                       f"a number\n")

@@ -1,9 +1,7 @@
-"""QA comparison of tablegen values against a reference table.
+"""QA comparison of tablegen values against a reference table: the judge.
 
-A REFERENCE is a CSV or whitespace-separated text table (the shared CSV
-convention: header cells ``key [unit]``, key a property key of the ``state``
-JSON, temperature column ``T``; lines starting with ``#`` are comments). This
-module reads it, evaluates the same properties at the reference temperatures,
+Given a REFERENCE as read by :func:`tablegen.calc.compare_reference.read_reference`,
+this module evaluates the same properties at the reference temperatures,
 optionally fits an alignment constant per column (a constant offset for
 datum-dependent energies and entropies, a scale factor for Pr and vr), and
 judges every cell against a per-column tolerance.
@@ -28,255 +26,17 @@ Rules, stated once (docs/compare.md repeats them for the user):
 
 from __future__ import annotations
 
-import csv
-import hashlib
 import math
-import re
 from dataclasses import dataclass, field
-from pathlib import Path
 
 import numpy as np
 
-# The key tables, tolerances and outputs live in companion modules; their public
-# names are re-exported here so that ``tablegen.calc.compare`` stays the one entry point.
-from .compare_keys import NUMBER as _NUMBER, last_place as _quantum
-from .compare_keys import (ALIGNABLE, CHANGE_FLOOR_MOLAR, CHANGE_KEYS, CHANGE_REL, DEFAULT_REL,  # noqa: F401
-                           KEY_DIMENSIONS, KEY_LABELS, MEAN_KEYS, T_CHANGE_FROM, VOL_KEYS,
-                           VOLUME_REFERENCES)
-from .compare_tolerance import Tolerance, default_tolerance, parse_align, parse_tolerance, wide_reason  # noqa: F401
-from ..core.errors import DataError, FitError, InputError, NameLookupError, RangeError, UnitError
+from .compare_keys import KEY_LABELS, MEAN_KEYS, T_CHANGE_FROM, VOL_KEYS, VOLUME_REFERENCES
+from .compare_reference import Reference
+from .compare_tolerance import Tolerance, default_tolerance, wide_reason
+from ..core.errors import DataError, FitError, InputError, NameLookupError, RangeError
+from ..core.units import Unit
 from ..thermo.substance import R_MOLAR
-from ..core.units import Unit, unit as _unit
-
-COMMENT = "#"
-#: Largest reference table read: rows (a book table has at most 20 000) and bytes.
-MAX_REFERENCE_ROWS = 20000
-MAX_REFERENCE_BYTES = 8 << 20
-
-
-# ---------------------------------------------------------------- reading
-@dataclass(frozen=True, slots=True)
-class RefColumn:
-    """One property column of a reference table."""
-
-    key: str
-    unit: Unit | None             # None: a key this comparison cannot evaluate (e.g. h_vol)
-    header: str                   # the header cell as written
-    values_si: np.ndarray         # NaN where the cell is empty
-    text: tuple                   # cell text as printed ("" for empty)
-    quantum: np.ndarray           # one unit in the last printed place, in the column unit
-
-
-@dataclass(frozen=True, slots=True)
-class Reference:
-    """A reference table as read: temperatures, columns, where each row came from."""
-
-    path: str
-    sha256: str
-    layout: str                   # "csv" or "whitespace"
-    T_unit: Unit
-    T_header: str
-    T_K: np.ndarray
-    T_text: tuple
-    lines: tuple                  # 1-based line number of each row in the file
-    columns: tuple                # RefColumn, in file order
-    comments: tuple               # comment lines, '#' stripped
-
-    header_line: int = 0
-
-    def column(self, key: str) -> RefColumn:
-        """The first column of a key (NameLookupError naming the keys the table has)."""
-        for c in self.columns:
-            if c.key == key:
-                return c
-        raise NameLookupError(f"the reference has no column {key!r}; "
-                              f"allowed: {', '.join(dict.fromkeys(c.key for c in self.columns))}")
-
-    def columns_of(self, key: str) -> tuple:
-        """Every column of a key (a table may give one property in SI and US units)."""
-        return tuple(c for c in self.columns if c.key == key)
-
-    @property
-    def keys(self) -> tuple:
-        """Distinct property keys in file order."""
-        return tuple(dict.fromkeys(c.key for c in self.columns))
-
-    @property
-    def comparable_keys(self) -> tuple:
-        return tuple(dict.fromkeys(c.key for c in self.columns if c.unit is not None))
-
-
-#: Header of the row-mark column of tablegen's own CSV files (read, never compared).
-MARK_KEY = "mark"
-#: Prefix of the uncertainty columns of tablegen's own CSV files (U_cp ...; read, never compared).
-UNCERTAINTY_PREFIX = "U_"
-
-_HEADER_CELL = re.compile(r"^\s*([A-Za-z][A-Za-z0-9_]*)\s*\[([^\[\]]*)\]\s*$")
-_HEADER_WS = re.compile(r"([A-Za-z][A-Za-z0-9_]*)\s*\[([^\[\]]*)\]")
-def _allowed_keys() -> str:
-    return "T, " + ", ".join(KEY_DIMENSIONS)
-
-
-def read_reference(path) -> Reference:
-    """Read a REFERENCE table; every problem raises TablegenError naming file and line.
-
-    Parameters
-    ----------
-    path : file path of a CSV (comma-separated, RFC 4180 quoting) or
-        whitespace-separated text table. The first line that is not blank and
-        not a ``#`` comment is the header: cells ``key [unit]``.
-
-    Raises
-    ------
-    TablegenError (exit 2) for an unreadable file, a header cell not in the
-    ``key [unit]`` form, an unknown or repeated key, a unit that does not fit
-    the key, a row with the wrong number of cells or a cell that is not a number.
-    """
-    p = Path(path)
-    name = str(path)
-    try:
-        size = p.stat().st_size
-    except OSError:
-        size = 0                       # the read below says what is wrong
-    if size > MAX_REFERENCE_BYTES:
-        raise DataError(f"{name}: {size} bytes; a reference table may have at most "
-                        f"{MAX_REFERENCE_BYTES} bytes ({MAX_REFERENCE_BYTES >> 20} MiB) and "
-                        f"{MAX_REFERENCE_ROWS} rows")
-    try:
-        raw = p.read_bytes()
-    except FileNotFoundError:
-        raise DataError(f"{name}: reference file not found; give the path of a CSV or text table") from None
-    except IsADirectoryError:
-        raise DataError(f"{name}: is a folder; give the path of a CSV or text table") from None
-    except OSError as e:
-        raise DataError(f"{name}: cannot read the reference file ({e.strerror})") from None
-    try:
-        text = raw.decode("utf-8-sig")
-    except UnicodeDecodeError as e:
-        line = raw[:e.start].count(b"\n") + 1
-        raise DataError(f"{name}:{line}: not UTF-8 text; save the reference table as UTF-8") from None
-    digest = hashlib.sha256(raw).hexdigest()
-
-    comments, rows, header, header_line, layout = [], [], None, 0, "csv"
-    for i, line in enumerate(text.splitlines(), start=1):
-        s = line.strip()
-        if not s:
-            continue
-        if s.startswith(COMMENT):
-            comments.append(s[1:].strip())
-            continue
-        if header is None:
-            header_line = i
-            if "," in s:
-                layout = "csv"
-                header = [c for c in next(csv.reader([s]))]
-            else:
-                layout = "whitespace"
-                header = _split_ws_header(s, name, i)
-            continue
-        if layout == "csv":
-            cells = next(csv.reader([s]))
-        else:
-            cells = s.split()
-        rows.append((i, [c.strip() for c in cells]))
-        if len(rows) > MAX_REFERENCE_ROWS:
-            raise DataError(f"{name}:{i}: more than {MAX_REFERENCE_ROWS} data rows; a reference table "
-                            f"may have at most {MAX_REFERENCE_ROWS} rows (split it and compare each part)")
-    if header is None:
-        raise DataError(f"{name}: no header line; the first line that is not a '#' comment must name "
-                        f"each column as key [unit], e.g. T [K],cp [kJ/(kg K)]")
-
-    keys, units, seen = [], [], set()
-    for cell in header:
-        if cell.strip() == MARK_KEY:       # the row marks of a tablegen CSV: text, not compared
-            keys.append(MARK_KEY)
-            units.append(None)
-            continue
-        m = _HEADER_CELL.match(cell)
-        if not m:
-            raise DataError(f"{name}:{header_line}: header cell {cell.strip()!r} is not in the form "
-                            f"key [unit], e.g. cp [kJ/(kg K)]")
-        key, usym = m.group(1), m.group(2).strip()
-        if key.startswith(UNCERTAINTY_PREFIX) and key[len(UNCERTAINTY_PREFIX):] in KEY_DIMENSIONS:
-            keys.append(MARK_KEY)          # a tablegen CSV's U_<key> column: read, never compared
-            units.append(None)
-            continue
-        if key != "T" and key not in KEY_DIMENSIONS:
-            if not re.fullmatch(r"[A-Za-z][A-Za-z0-9]*(_mean_[hs])?_vol", key) or key.split("_")[0] not in KEY_DIMENSIONS:
-                raise DataError(f"{name}:{header_line}: unknown column key {key!r}; allowed: {_allowed_keys()}")
-            u = None            # a tablegen key of the volumetric basis: units per m³ are not known here
-        else:
-            dim = "temperature" if key == "T" else KEY_DIMENSIONS[key]
-            try:
-                u = _unit(usym, dim)
-            except UnitError as e:
-                raise UnitError(f"{name}:{header_line}: column {key!r}: {e}") from None
-        ident = (key, u.symbol if u else usym)
-        if ident in seen:
-            raise DataError(f"{name}:{header_line}: column {cell.strip()!r} appears twice; give each once")
-        seen.add(ident)
-        keys.append(key)
-        units.append(u)
-    if "T" not in keys:
-        raise DataError(f"{name}:{header_line}: no temperature column; one column must be T [K] "
-                        f"(or T [°C], T [°F], T [°R])")
-    if all(k in ("T", MARK_KEY) for k in keys):
-        raise DataError(f"{name}:{header_line}: only a temperature column; add property columns, "
-                        f"allowed keys: {', '.join(KEY_DIMENSIONS)}")
-    if not rows:
-        raise DataError(f"{name}: header but no data rows; add one row per temperature")
-
-    n = len(keys)
-    cells_by_col = [[] for _ in range(n)]
-    for line, cells in rows:
-        if len(cells) != n:
-            hint = "; in a whitespace table write '-' for an empty cell" if layout == "whitespace" else ""
-            raise DataError(f"{name}:{line}: {len(cells)} cells, but the header names {n} columns{hint}")
-        for j, c in enumerate(cells):
-            if keys[j] == MARK_KEY:
-                cells_by_col[j].append(c)
-                continue
-            if c in ("", "-", "—") and keys[j] != "T":
-                cells_by_col[j].append("")
-                continue
-            if not _NUMBER.match(c):
-                raise DataError(f"{name}:{line}: cell {c!r} in column {keys[j]!r} is not a number; "
-                                f"write plain decimal numbers (an empty cell or '-' marks a gap)")
-            if not math.isfinite(float(c)):
-                raise DataError(f"{name}:{line}: cell {c!r} in column {keys[j]!r} is beyond the range "
-                                f"of a double (about 1.8e308); write a finite number")
-            cells_by_col[j].append(c)
-
-    lines = tuple(r[0] for r in rows)
-    jT = keys.index("T")
-    T_text = tuple(cells_by_col[jT])
-    T_K = units[jT].to_si(np.array([float(c) for c in T_text]))
-    for line, T in zip(lines, T_K):
-        if not (math.isfinite(T) and T > 0):
-            raise DataError(f"{name}:{line}: temperature {T:g} K is not above 0 K")
-    columns = []
-    for j, key in enumerate(keys):
-        if key in ("T", MARK_KEY):   # the first T column is the temperature; others (T in °F ...) are ignored
-            continue
-        txt = tuple(cells_by_col[j])
-        vals = np.array([float(c) if c else np.nan for c in txt])
-        q = np.array([_quantum(c) if c else np.nan for c in txt])
-        si = units[j].to_si(vals) if units[j] is not None else vals
-        columns.append(RefColumn(key, units[j], header[j].strip(), si, txt, q))
-    return Reference(name, digest, layout, units[jT], header[jT].strip(), T_K, T_text, lines,
-                     tuple(columns), tuple(comments), header_line)
-
-
-def _split_ws_header(s: str, name: str, line: int) -> list[str]:
-    """Header of a whitespace table: cells 'key [unit]'; units may hold blanks."""
-    cells = [f"{m.group(1)} [{m.group(2)}]" for m in _HEADER_WS.finditer(s)]
-    rest = _HEADER_WS.sub("", s).strip()
-    if rest or not cells:
-        bad = rest.split()[0] if rest else s
-        raise DataError(f"{name}:{line}: header text {bad!r} is not in the form key [unit]; "
-                        f"separate columns by commas or blanks, e.g. T [K],cp [kJ/(kg K)]")
-    return cells
-
 
 
 # ------------------------------------------------------------- comparing
@@ -435,6 +195,31 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
     """
     tolerances = dict(tolerances or {})
     align = dict(align or {})
+    keys = _compared_keys(ref, columns, tolerances, align)
+    T = _temperatures(sub, ref, extrapolate)
+    options = dict(options or {})
+    p, n_per_m3 = _evaluate(sub, T, keys, extrapolate, T_mean_ref_K, volume_reference, options)
+    extrap = np.asarray(p.get("extrapolated", np.zeros(T.shape, bool)), bool)
+
+    selected = [rc for rc in ref.columns if rc.key in keys]
+    selected.sort(key=lambda rc: keys.index(rc.key))
+    results = [_judge_column(rc, p, sub, ref, T, tolerances, align, n_per_m3) for rc in selected]
+    if not any(np.any(r.present) for r in results):
+        raise DataError(f"{ref.path}: the compared columns hold no values (every cell is a gap); "
+                        f"there is nothing to judge")
+    wide = _wide(results, allow_wide)
+    from .. import __version__
+    from .compare_hints import comparison_hints
+    h298 = float(sub.properties(np.array([T_CHANGE_FROM]), extrapolate=True)["h"][0])
+    context = {"M": sub.M, "n_per_m3": n_per_m3, "P_ref_Pa": sub.P_ref_Pa, "h298_J_per_kg": h298,
+               "anchor": {"T_K": sub.anchor.T_K, "Pr": sub.anchor.Pr, "vr": sub.anchor.vr},
+               "spec": bool(spec_table), "T_text": ref.T_text, "T_unit": ref.T_unit.symbol}
+    return Comparison(substance_info(sub), ref, T, extrap, tuple(results),
+                      version or __version__, options, wide, comparison_hints(results, context))
+
+
+def _compared_keys(ref: Reference, columns, tolerances: dict, align: dict) -> list:
+    """The keys to compare, checked against the reference's columns and the options."""
     keys = list(columns) if columns else list(ref.keys)
     for k in keys:
         if k not in ref.keys:
@@ -450,7 +235,11 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
         if k not in keys:
             raise InputError(f"column {k!r} has a tolerance or alignment but is not compared; "
                              f"compared columns: {', '.join(keys)}")
+    return keys
 
+
+def _temperatures(sub, ref: Reference, extrapolate: bool) -> np.ndarray:
+    """The reference temperatures, K, refused outside the data range unless extrapolating."""
     # A converted temperature may miss a range end by rounding (-73.15 °C is
     # 199.99999999999997 K): within 1e-9 relative it counts as the end itself.
     T = ref.T_K.copy()
@@ -467,8 +256,16 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
                              f"is outside the data range {sub.T_min:g}-{sub.T_max:g} K "
                              f"of {sub.id}; allowed: {sub.T_min:g} to {sub.T_max:g} K, or --extrapolate "
                              f"(every extrapolated value is marked)")
+    return T
+
+
+def _evaluate(sub, T, keys, extrapolate, T_mean_ref_K, volume_reference, options: dict):
+    """tablegen's properties at T, SI, with the mean and volumetric keys the comparison needs.
+
+    Returns the property dict and the amount per m³ of the volumetric basis (1
+    when no volumetric key is compared); ``options`` gains what was assumed.
+    """
     p = dict(sub.properties(T, extrapolate=extrapolate))
-    options = dict(options or {})
     n_per_m3 = 1.0
     if any(k in VOL_KEYS for k in keys):
         vT, vP, vtext = volume_reference or VOLUME_REFERENCES["normal"]
@@ -483,57 +280,44 @@ def compare(sub, ref: Reference, *, columns=None, tolerances=None, align=None,
     for k in VOL_KEYS:
         if k in keys and k not in MEAN_KEYS:
             p[k] = p[k[:-4] + "_molar"] * n_per_m3
-    extrap = np.asarray(p.get("extrapolated", np.zeros(T.shape, bool)), bool)
+    return p, n_per_m3
 
-    results = []
-    selected = [rc for rc in ref.columns if rc.key in keys]
-    selected.sort(key=lambda rc: keys.index(rc.key))
-    for rc in selected:
-        key = rc.key
-        u = rc.unit
-        present = np.isfinite(rc.values_si)
-        ref_si = rc.values_si
-        calc_si = np.asarray(p[key], float)
-        alignment = None
-        aligned_si = calc_si
-        if key in align:
-            alignment, aligned_si = _fit(key, align[key], ref_si, calc_si, present, u, ref, sub, rc)
-        tol = tolerances.get(key) or default_tolerance(key, sub.M, u, n_per_m3)
-        change_si = 0.0
-        if tol.rel_change:
-            p0 = sub.properties(np.array([T_CHANGE_FROM]), extrapolate=True)
-            at0 = (float(p0[key[:-4] + "_molar"][0]) * n_per_m3 if key.endswith("_vol")
-                   else float(np.asarray(p0[key])[0]))
-            if alignment is not None:
-                at0 = at0 + alignment.value if alignment.kind == "offset" else at0 * alignment.value
-            change_si = aligned_si - at0
-        dev_si = np.where(present, aligned_si - ref_si, np.nan)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            rel = np.where(present & (ref_si != 0), dev_si / np.abs(ref_si), np.nan)
-        quantum_si = np.where(present, rc.quantum * u.factor, np.nan)
-        bound_si = np.where(present, tol.bound_si(ref_si, quantum_si, change_si), np.nan)
-        within = present & (np.abs(np.nan_to_num(dev_si, nan=np.inf)) <= np.nan_to_num(bound_si, nan=-1))
-        ref_u, raw_u, cal_u = (u.from_si(x) for x in (ref_si, calc_si, aligned_si))
-        dev_u = dev_si / u.factor
-        bound_u = bound_si / u.factor
-        results.append(ColumnResult(
-            key=key, unit=u, header=rc.header, tolerance=tol,
-            reference=np.where(present, ref_u, np.nan), tablegen_raw=raw_u, tablegen=cal_u,
-            deviation=dev_u, relative=rel, bound=bound_u, present=present, within=within,
-            text=rc.text, alignment=alignment,
-            stats=_stats(dev_u, rel, bound_u, present, within, T, ref)))
-    if not any(np.any(r.present) for r in results):
-        raise DataError(f"{ref.path}: the compared columns hold no values (every cell is a gap); "
-                        f"there is nothing to judge")
-    wide = _wide(results, allow_wide)
-    from .. import __version__
-    from .compare_hints import comparison_hints
-    h298 = float(sub.properties(np.array([T_CHANGE_FROM]), extrapolate=True)["h"][0])
-    context = {"M": sub.M, "n_per_m3": n_per_m3, "P_ref_Pa": sub.P_ref_Pa, "h298_J_per_kg": h298,
-               "anchor": {"T_K": sub.anchor.T_K, "Pr": sub.anchor.Pr, "vr": sub.anchor.vr},
-               "spec": bool(spec_table), "T_text": ref.T_text, "T_unit": ref.T_unit.symbol}
-    return Comparison(substance_info(sub), ref, T, extrap, tuple(results),
-                      version or __version__, options, wide, comparison_hints(results, context))
+
+def _judge_column(rc, p, sub, ref: Reference, T, tolerances: dict, align: dict, n_per_m3: float) -> ColumnResult:
+    """One reference column against tablegen: alignment, tolerance bound, verdict per cell."""
+    key = rc.key
+    u = rc.unit
+    present = np.isfinite(rc.values_si)
+    ref_si = rc.values_si
+    calc_si = np.asarray(p[key], float)
+    alignment = None
+    aligned_si = calc_si
+    if key in align:
+        alignment, aligned_si = _fit(key, align[key], ref_si, calc_si, present, u, ref, sub, rc)
+    tol = tolerances.get(key) or default_tolerance(key, sub.M, u, n_per_m3)
+    change_si = 0.0
+    if tol.rel_change:
+        p0 = sub.properties(np.array([T_CHANGE_FROM]), extrapolate=True)
+        at0 = (float(p0[key[:-4] + "_molar"][0]) * n_per_m3 if key.endswith("_vol")
+               else float(np.asarray(p0[key])[0]))
+        if alignment is not None:
+            at0 = at0 + alignment.value if alignment.kind == "offset" else at0 * alignment.value
+        change_si = aligned_si - at0
+    dev_si = np.where(present, aligned_si - ref_si, np.nan)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        rel = np.where(present & (ref_si != 0), dev_si / np.abs(ref_si), np.nan)
+    quantum_si = np.where(present, rc.quantum * u.factor, np.nan)
+    bound_si = np.where(present, tol.bound_si(ref_si, quantum_si, change_si), np.nan)
+    within = present & (np.abs(np.nan_to_num(dev_si, nan=np.inf)) <= np.nan_to_num(bound_si, nan=-1))
+    ref_u, raw_u, cal_u = (u.from_si(x) for x in (ref_si, calc_si, aligned_si))
+    dev_u = dev_si / u.factor
+    bound_u = bound_si / u.factor
+    return ColumnResult(
+        key=key, unit=u, header=rc.header, tolerance=tol,
+        reference=np.where(present, ref_u, np.nan), tablegen_raw=raw_u, tablegen=cal_u,
+        deviation=dev_u, relative=rel, bound=bound_u, present=present, within=within,
+        text=rc.text, alignment=alignment,
+        stats=_stats(dev_u, rel, bound_u, present, within, T, ref))
 
 
 def _wide(results, allow: bool) -> tuple:

@@ -15,7 +15,8 @@ import re
 
 import numpy as np
 
-from .compare import _NUMBER, Alignment, Comparison
+from .compare import Alignment, Comparison
+from .compare_keys import NUMBER
 
 def format_like(value: float, text: str) -> str:
     """A number printed to the places of a reference cell's text ('29.104' -> 3 decimals)."""
@@ -23,7 +24,7 @@ def format_like(value: float, text: str) -> str:
         return "—"
     if not text:
         return f"{value:.6g}"
-    m = _NUMBER.match(text)
+    m = NUMBER.match(text)
     mant, exp = m.group(1), m.group(2)
     decimals = len(mant.split(".", 1)[1]) if "." in mant else 0
     if exp:
@@ -64,7 +65,7 @@ def unit_suffix(symbol: str) -> str:
 def _neutral(text: str) -> str:
     """Neutralise text against spreadsheet formula injection; numbers stay numbers."""
     s = str(text)
-    if _NUMBER.match(s) or re.fullmatch(r"-?(inf|nan)", s):
+    if NUMBER.match(s) or re.fullmatch(r"-?(inf|nan)", s):
         return s
     return "'" + s if s[:1] in ("=", "+", "-", "@", "\t", "\r", "|", "%") else s
 

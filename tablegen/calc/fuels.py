@@ -8,11 +8,11 @@ analysis states.
 
 from __future__ import annotations
 
-import re
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 from ..core.composition import looks_like as is_composition, parse as parse_composition, write as write_composition
+from ..core.formula import parse_formula
 from ..core.errors import InputError, NameLookupError, RangeError, SpecError, TablegenError, UnitError
 from .reactants import BURNING, NOBLE, _M_H2O, _fractions, _h_molar, _num, _qty, _record, _weights, check_table
 from ..thermo.substance import T_REF
@@ -197,24 +197,6 @@ def gas_fuel(composition: dict, basis: str = "mole", *, water_percent: float = 0
                 notes=tuple(notes), given=given, uncertainty=unc, remake=remake)
 
 
-_FORMULA = re.compile(r"([A-Z][a-z]?)(\d+(?:\.\d*)?|\.\d+)?")
-
-
-def parse_formula(text: str, what: str = "formula") -> dict:
-    """'C12H23' or 'CH1.8O0.5N0.01' -> {element: count}; only C, H, O, N, S."""
-    t = str(text).strip()
-    if not t or "".join(m.group(0) for m in _FORMULA.finditer(t)) != t:
-        raise InputError(f"{what} {text!r} is not a formula; write e.g. C12H23 or CH1.8O0.5 "
-                         f"(elements {', '.join(BURNING)})")
-    out: dict = {}
-    for m in _FORMULA.finditer(t):
-        e, n = m.group(1), float(m.group(2)) if m.group(2) else 1.0
-        if e not in BURNING:
-            raise InputError(f"{what} {text!r}: element {e} is not handled; allowed: {', '.join(BURNING)}")
-        out[e] = out.get(e, 0.0) + n
-    return out
-
-
 #: Analysis keys and bases for fuels given by ultimate analysis.
 ANALYSIS_KEYS = ("C", "H", "O", "N", "S", "moisture", "ash")
 ANALYSIS_BASES = ("as-received", "dry", "daf")
@@ -298,7 +280,8 @@ def _condensed_bases(formula, analysis, basis, moisture, ash, W, what) -> tuple[
     if formula is not None:
         if analysis is not None:
             raise InputError(f"{what}: give a formula or an analysis, not both")
-        counts = parse_formula(formula, f"{what}.formula")
+        counts = parse_formula(formula, f"{what}.formula", elements=BURNING, add_repeats=True,
+                               example=f"e.g. C12H23 or CH1.8O0.5 (elements {', '.join(BURNING)})")
         M_formula = sum(W[e] * n for e, n in counts.items())
         mass = {e: W[e] * n / M_formula for e, n in counts.items()}
         if moisture or ash:

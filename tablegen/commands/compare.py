@@ -3,6 +3,9 @@
 Exit status, one meaning each: 0 every compared cell is within tolerance, 1 some
 cell is not, 2 bad input (the reference or the options; nothing written), 3 an
 output problem (files exist without --force, or cannot be written).
+
+The three modules import one way: compare.py (arguments, dispatch) -> compare_book.py
+(a book against a folder) -> compare_table.py (one table, and what a book shares with it).
 """
 
 from __future__ import annotations
@@ -10,8 +13,6 @@ from __future__ import annotations
 from pathlib import Path
 
 from .common import add_datum_options
-# the exit status of an output problem and the files written, kept importable here
-from .compare_table import EXIT_OUTPUT, FILES, OutputProblem  # noqa: F401
 
 EXAMPLE = """REFERENCE: CSV or whitespace-separated text; header cells 'key [unit]' (keys of the
 state JSON: cp, cv, k, h, u, s0, g0, Pr, vr, a, cp_molar, h_molar, s0_molar,

@@ -12,8 +12,8 @@ from pathlib import Path
 
 from ..core.errors import InputError, NameLookupError
 from .common import dumps, notice
-from .compare_table import (FILES, _is_spec, _keys, _refuse_datum_options, data_files, default_out, hint_lines,
-                            load_spec, publish)
+from .compare_table import (FILES, compared_keys, data_files, default_out, hint_lines, is_spec, load_spec,
+                            publish, refuse_datum_options)
 
 
 def _split_scoped(values, flag: str, tables) -> dict:
@@ -37,7 +37,7 @@ def _split_scoped(values, flag: str, tables) -> dict:
 
 def _table_options(args, specs, refs):
     """Per table: (keys, tolerances, align), from --columns, --tolerance and --align."""
-    from ..calc.compare import parse_align, parse_tolerance
+    from ..calc.compare_tolerance import parse_align, parse_tolerance
     tol_scoped, tol_all = _split_scoped(args.tolerance, "--tolerance", specs)
     al_scoped, al_all = _split_scoped(args.align, "--align", specs)
     used_tol, used_al = set(), set()
@@ -47,7 +47,7 @@ def _table_options(args, specs, refs):
         if args.columns is not None:
             keys = [k.strip() for k in args.columns.split(",") if k.strip() in ref.comparable_keys]
         else:
-            keys = _keys(args, ref, notes)
+            keys = compared_keys(args, ref, notes)
         units = {k: tuple(c.unit for c in ref.columns_of(k)) for k in keys}
         tolerances, align = {}, {}
         for text in tol_all + tol_scoped[t.name]:
@@ -89,14 +89,15 @@ def _spec_info(spec, path: str) -> dict:
 
 def compute_book(args):
     """Read the spec and the folder, compare every table; (BookComparison, {path: bytes})."""
-    from ..calc.compare import compare, read_reference
+    from ..calc.compare import compare
+    from ..calc.compare_reference import read_reference
     from ..calc.compare_folder import BookComparison, TableComparison, read_folder, read_mapping
     from ..calc.compare_output import book_deviations_csv, book_summary
 
-    if not _is_spec(args.substance):
+    if not is_spec(args.substance):
         raise InputError(f"{args.reference} is a folder; a reference folder is compared with a book "
                          f"spec (*.toml), a substance with one reference table")
-    _refuse_datum_options(args, args.substance)
+    refuse_datum_options(args, args.substance)
     spec = load_spec(args)
     specs = list(spec.tables)
     if args.table is not None:
@@ -140,7 +141,7 @@ def compute_book(args):
 
 
 def book_text(bc) -> str:
-    from ..calc.compare import KEY_LABELS
+    from ..calc.compare_keys import KEY_LABELS
     from ..calc.compare_output import format_dev, format_size, unit_suffix, worst_cell, worst_text
     s, f = bc.spec, bc.folder
     ident = f"{s['number']} rev {s['revision']}" if s.get("number") else s["name"]

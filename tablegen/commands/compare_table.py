@@ -24,11 +24,11 @@ class OutputProblem(TablegenError):
     exit_status = EXIT_OUTPUT
 
 
-def _is_spec(target: str) -> bool:
+def is_spec(target: str) -> bool:
     return target.lower().endswith(".toml")
 
 
-def _refuse_datum_options(args, target):
+def refuse_datum_options(args, target):
     given = [o for o, v in (("--h-datum", args.h_datum), ("--p-ref", args.p_ref),
                             ("--anchor", args.anchor), ("--mean-from", args.mean_from),
                             ("--vol-ref", args.vol_ref)) if v is not None]
@@ -48,8 +48,8 @@ def load_spec(args):
 def resolve(args):
     """The substance to compare (datum, P° and anchor applied) and its display name."""
     target = args.substance
-    if _is_spec(target):
-        _refuse_datum_options(args, target)
+    if is_spec(target):
+        refuse_datum_options(args, target)
         book = load_spec(args)
         tables = list(book.tables)
         if args.table is not None:
@@ -80,7 +80,7 @@ def resolve(args):
 
 def volume_reference(text):
     """--vol-ref: a named set of reference conditions or 'T,P'; None for the default."""
-    from ..calc.compare import VOLUME_REFERENCES
+    from ..calc.compare_keys import VOLUME_REFERENCES
     from ..core.units import pressure_Pa, temperature_K
     if text is None:
         return None
@@ -122,7 +122,7 @@ def default_out(name: str, reference: str) -> Path:
     return Path("output") / f"compare-{safe_name(name)}-vs-{safe_name(stem)}"
 
 
-def _keys(args, ref, notes: list) -> list:
+def compared_keys(args, ref, notes: list) -> list:
     if args.columns is not None:
         keys = [k.strip() for k in args.columns.split(",")]
         if not all(keys):
@@ -143,7 +143,7 @@ def _keys(args, ref, notes: list) -> list:
 
 def parse_column_options(args, units: dict):
     """--tolerance and --align of one table: {key: Tolerance}, {key: kind}."""
-    from ..calc.compare import parse_align, parse_tolerance
+    from ..calc.compare_tolerance import parse_align, parse_tolerance
     tolerances, align = {}, {}
     for t in args.tolerance:
         k, tol = parse_tolerance(t, units)
@@ -160,13 +160,14 @@ def parse_column_options(args, units: dict):
 
 def compute(args):
     """Read, check and compare one reference table; returns (Comparison, {path: bytes}, notes)."""
-    from ..calc.compare import compare, read_reference
+    from ..calc.compare import compare
+    from ..calc.compare_reference import read_reference
     from ..calc.compare_output import deviations_csv, summary
 
-    sub, name, target_label, T_m, vol_ref, is_spec = resolve(args)
+    sub, name, target_label, T_m, vol_ref, spec_table = resolve(args)
     ref = read_reference(args.reference)
     notes = []
-    keys = _keys(args, ref, notes)
+    keys = compared_keys(args, ref, notes)
     units = {k: tuple(c.unit for c in ref.columns_of(k)) for k in keys}
     tolerances, align = parse_column_options(args, units)
     options = {"target": target_label, "reference": args.reference, "columns": keys,
@@ -177,7 +178,7 @@ def compute(args):
                "data_files": data_files(sub, args)}
     cmp = compare(sub, ref, columns=keys, tolerances=tolerances, align=align,
                   extrapolate=args.extrapolate, T_mean_ref_K=T_m, volume_reference=vol_ref, options=options,
-                  allow_wide=args.allow_wide, spec_table=is_spec)
+                  allow_wide=args.allow_wide, spec_table=spec_table)
     from ..book.qa_report import render_pdf
     out = Path(args.out) if args.out else default_out(name, args.reference)
     files = {out / "report.pdf": render_pdf(cmp, args.listing),
@@ -203,7 +204,7 @@ def write_outputs(files: dict, force: bool, about=()) -> list[str]:
 
 
 def text_summary(cmp, label: str = "") -> str:
-    from ..calc.compare import KEY_LABELS
+    from ..calc.compare_keys import KEY_LABELS
     from ..calc.compare_output import format_dev, format_size, unit_suffix
     ref = cmp.reference
     lines = [cmp.verdict, f"  {label or cmp.substance['id']} against {ref.path} ({len(ref.lines)} rows; "

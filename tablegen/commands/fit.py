@@ -13,8 +13,6 @@ the record's comments.
 
 from __future__ import annotations
 
-import csv
-import io
 import re
 import sys
 from pathlib import Path
@@ -22,6 +20,8 @@ from pathlib import Path
 import numpy as np
 
 from ..data.formats import TM4513, TP2002
+from ..core.formula import parse_formula
+from ..core.table_reader import header_cell, split_table
 from ..core.errors import DataError, FitError, InputError, RangeError, TablegenError, UnitError
 from ..thermo.polynomial import FORMS, NINE, SEVEN
 
@@ -42,9 +42,6 @@ janaf-co2.csv (the NIST-JANAF CO2 table) is in the project's docs/examples/ fold
 #: Columns the fit reads: key -> dimension of its unit.
 COLUMNS = {"T": "temperature", "cp_molar": "molar_entropy", "cp": "specific_entropy",
            "dh298_molar": "molar_energy", "s0_molar": "molar_entropy", "s0": "specific_entropy"}
-
-_HEAD = re.compile(r"^\s*([A-Za-z0-9_]+)\s*\[(.*)\]\s*$")
-_FORMULA = re.compile(r"([A-Z][a-z]?)(\d+(?:\.\d*)?|\.\d+)?")
 
 
 def add_arguments(p):
@@ -74,27 +71,6 @@ def add_arguments(p):
     p.add_argument("--force", action="store_true", help="replace FILE if it exists")
 
 
-def parse_formula(text: str) -> dict:
-    """'CO2' -> {'C': 1, 'O': 2}; fractional counts allowed (a pseudo-species)."""
-    t = text.strip()
-    pos, out = 0, {}
-    for m in _FORMULA.finditer(t):
-        if m.start() != pos:
-            break
-        el, n = m.group(1), m.group(2)
-        x = float(n) if n else 1.0
-        if el in out:
-            raise InputError(f"--formula {text!r}: element {el} is given twice")
-        if x <= 0:
-            raise RangeError(f"--formula {text!r}: count of {el} must be positive")
-        out[el] = int(x) if x == int(x) else x
-        pos = m.end()
-    if pos != len(t) or not out:
-        raise InputError(f"--formula {text!r} is not a formula; write element symbols with counts, "
-                         f"e.g. CO2, C3H8 or C1.02H3.9O0.1")
-    return out
-
-
 def read_table(path: str, M_g_per_mol: float) -> dict:
     """The fit columns of a CSV, SI molar units; cites from '# source:' lines."""
     from ..core.units import unit
@@ -105,29 +81,24 @@ def read_table(path: str, M_g_per_mol: float) -> dict:
         raise DataError(f"{path}: no such file; give a CSV table of cp(T)") from None
     except (OSError, UnicodeDecodeError) as e:
         raise DataError(f"{path}: cannot read ({e}); the table must be UTF-8 CSV") from None
-    lines = text.splitlines()
-    cites, body = [], []
-    for n, ln in enumerate(lines, 1):
-        if ln.lstrip().startswith("#"):
-            m = re.match(r"^\s*#\s*source:\s*(.+?)\s*$", ln, re.I)
-            if m:
-                cites.append(m.group(1))
-            continue
-        if ln.strip():
-            body.append((n, ln))
-    if not body:
+    table = split_table(text, path, whitespace=False, strip=False)
+    cites = []
+    for _, ln in table.comments:
+        m = re.match(r"^\s*#\s*source:\s*(.+?)\s*$", ln, re.I)
+        if m:
+            cites.append(m.group(1))
+    if not table.header_line:
         raise DataError(f"{path}: the table is empty; it needs a header line and rows")
-    rows = list(csv.reader(io.StringIO("\n".join(ln for _, ln in body))))
-    head_line, head = body[0][0], rows[0]
+    head_line, head = table.header_line, table.header
     cols = {}
     for j, cell in enumerate(head):
         if cell.strip() == "mark":      # the row marks of a tablegen CSV
             continue
-        m = _HEAD.match(cell)
-        if not m:
+        key_unit = header_cell(cell)
+        if key_unit is None:
             raise DataError(f"{path}:{head_line}: header cell {cell!r} is not 'key [unit]', e.g. 'T [K]' "
                             f"or 'cp_molar [J/(mol K)]'")
-        key, u = m.group(1), m.group(2).strip()
+        key, u = key_unit
         if key in COLUMNS:
             if key in cols:
                 raise DataError(f"{path}:{head_line}: column {key!r} appears twice")
@@ -143,7 +114,7 @@ def read_table(path: str, M_g_per_mol: float) -> dict:
         if a in cols and b in cols:
             raise DataError(f"{path}:{head_line}: give {a} or {b}, not both")
     data = {k: [] for k in cols}
-    for (n, _), r in zip(body[1:], rows[1:]):
+    for n, r in table.rows:
         if len(r) != len(head):
             raise DataError(f"{path}:{n}: the row has {len(r)} cells but the header has {len(head)}")
         for k, (j, u) in cols.items():
@@ -202,7 +173,7 @@ def run(args) -> int:
     if args.out:
         check_files([args.out], args.force)
     lib = data_notices(args)
-    elements = parse_formula(args.formula)
+    elements = parse_formula(args.formula, "--formula")
     M = lib.weights.molar_mass(elements, f"--formula {args.formula}: ")
     rid = check_id(args.id or args.formula.strip())
     tab = read_table(args.table, M)
