@@ -16,7 +16,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 import tablegen  # noqa: E402
 from tablegen.book.chart_model import build_chart  # noqa: E402
 from tablegen.book.chart_pdf import chart_pdf  # noqa: E402
-from tablegen.book.chart_png import chart_png  # noqa: E402
+from tablegen.book.chart_png import PngPages, chart_png  # noqa: E402
 from tablegen.spec.chart import parse_charts  # noqa: E402
 
 TARGET_S = 4.0
@@ -44,7 +44,12 @@ def main() -> int:
     for m in models[:2]:
         chart_png(m, "A4", dpi=300)
     t4 = time.perf_counter()
-    print(f"PNG at 300 dpi, A4: {(t4 - t3) / 2:.2f} s per chart (reported, not in the target)")
+    pages = PngPages()
+    for m in models[:2]:
+        pages.png(m, "A4", dpi=300)
+    t5 = time.perf_counter()
+    print(f"PNG at 300 dpi, A4: {(t4 - t3) / 2:.2f} s per chart on a figure of its own, "
+          f"{(t5 - t4) / 2:.2f} s on one figure reused (reported, not in the target)")
     return 0 if total <= TARGET_S else 1
 
 

@@ -15,7 +15,7 @@ from tablegen.book.chart_labels import _obb_overlap, _Placer
 from tablegen.book.chart_layout import layout
 from tablegen.book.chart_model import build_chart
 from tablegen.book.chart_pdf import chart_pdf, draw_chart
-from tablegen.book.chart_png import chart_png
+from tablegen.book.chart_png import PngPages, chart_png
 from tablegen.cli import main
 from tablegen.core.errors import SpecError
 from tablegen.core.units import unit
@@ -404,3 +404,15 @@ def test_overlay_machine_step_identities(T1, ratio, eta, expand):
     else:
         assert two.h == pytest.approx(one.h + (iso.h - one.h) / eta, abs=1e-6 * abs(iso.h - one.h) + 1e-6)
         assert two.s >= iso.s - 1e-9 * air.R
+
+
+def test_png_pages_on_one_figure_equal_pngs_on_figures_of_their_own(air):
+    # determinism: a figure reused between charts (tablegen chart writes both kinds so)
+    # must leave nothing of one chart on the next; each page equals a page on a fresh figure
+    specs = charts({"kind": "both", "overlays": [GT], "volumes": [1]})
+    models = [build_chart(air, sp, T_range_K=(250.0, 1500.0)) for sp in specs]
+    pages = PngPages()
+    reused = [pages.png(m, "A4", dpi=72) for m in models + models[:1]]
+    alone = [chart_png(m, "A4", dpi=72) for m in models + models[:1]]
+    assert reused == alone
+    assert reused[0] != reused[1]

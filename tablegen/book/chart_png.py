@@ -67,30 +67,66 @@ class _MplSurface(_Surface):
                      rotation=angle, rotation_mode="anchor", color=rgb, zorder=self._z())
 
 
+#: rcParams every chart PNG is drawn and saved under (dashes in points, no path
+#: simplification, no TeX or mathtext, a fixed hash salt): the same bytes everywhere.
+_RC = {"lines.scale_dashes": False, "path.simplify": False, "text.usetex": False,
+       "svg.hashsalt": "tablegen", "text.parse_math": False}
+
+
+class PngPages:
+    """Chart PNGs drawn on one matplotlib figure per paper and dpi, reused between charts.
+
+    Building a figure costs more than clearing one; a command that writes a T-s and an
+    h-s PNG of the same paper draws both on the same figure. The figure's artists are
+    removed after each page, so every page is drawn on an empty figure and its bytes are
+    those of a figure of its own.
+    """
+
+    def __init__(self):
+        self._figs = {}
+
+    def _figure(self, W: float, H: float, dpi: int):
+        from matplotlib.backends.backend_agg import FigureCanvasAgg
+        from matplotlib.figure import Figure
+
+        key = (W, H, dpi)
+        if key not in self._figs:
+            fig = Figure(figsize=(W / 72.0, H / 72.0), dpi=dpi, facecolor="white")
+            FigureCanvasAgg(fig)
+            ax = fig.add_axes((0, 0, 1, 1))
+            ax.set_xlim(0, W)
+            ax.set_ylim(0, H)
+            ax.set_axis_off()
+            self._figs[key] = (fig, ax)
+        return self._figs[key]
+
+    def png(self, model, paper: str | None = None, dpi: int = 300) -> bytes:
+        """The chart as a PNG page (landscape A4 or A3) at ``dpi``; reproducible bytes."""
+        import io
+
+        import matplotlib
+
+        paper = (paper or model.paper).upper()
+        if paper not in PAPERS:
+            raise TablegenError(f"paper {paper!r} is not known; allowed: A4, A3")
+        W, H = PAPERS[paper]
+        with matplotlib.rc_context(_RC):
+            fig, ax = self._figure(W, H, dpi)
+            try:
+                _compose(_MplSurface(ax), model, 0.0, 0.0, W, H, page_text="")
+                buf = io.BytesIO()
+                fig.savefig(buf, format="png", dpi=dpi, facecolor="white",
+                            metadata={"Software": None, "Title": model.title[:200],
+                                      "Description": f"tablegen chart {model.fingerprint}"})
+            finally:
+                for artist in (*ax.lines, *ax.patches, *ax.texts):
+                    artist.remove()
+        return buf.getvalue()
+
+
 def chart_png(model, paper: str | None = None, dpi: int = 300) -> bytes:
-    """The chart as a PNG page (landscape A4 or A3) at ``dpi``; reproducible bytes."""
-    import io
+    """The chart as a PNG page (landscape A4 or A3) at ``dpi``; reproducible bytes.
 
-    import matplotlib
-    from matplotlib.backends.backend_agg import FigureCanvasAgg
-    from matplotlib.figure import Figure
-
-    paper = (paper or model.paper).upper()
-    if paper not in PAPERS:
-        raise TablegenError(f"paper {paper!r} is not known; allowed: A4, A3")
-    W, H = PAPERS[paper]
-    with matplotlib.rc_context({"lines.scale_dashes": False, "path.simplify": False,
-                                "text.usetex": False, "svg.hashsalt": "tablegen",
-                                "text.parse_math": False}):
-        fig = Figure(figsize=(W / 72.0, H / 72.0), dpi=dpi, facecolor="white")
-        FigureCanvasAgg(fig)
-        ax = fig.add_axes((0, 0, 1, 1))
-        ax.set_xlim(0, W)
-        ax.set_ylim(0, H)
-        ax.set_axis_off()
-        _compose(_MplSurface(ax), model, 0.0, 0.0, W, H, page_text="")
-        buf = io.BytesIO()
-        fig.savefig(buf, format="png", dpi=dpi, facecolor="white",
-                    metadata={"Software": None, "Title": model.title[:200],
-                              "Description": f"tablegen chart {model.fingerprint}"})
-    return buf.getvalue()
+    One page on a figure of its own; :class:`PngPages` draws several on one figure.
+    """
+    return PngPages().png(model, paper, dpi)

@@ -187,7 +187,7 @@ def run(args) -> int:
     data_notices(args)
     from ..book.chart_model import build_chart
     from ..book.chart_pdf import chart_pdf
-    from ..book.chart_png import chart_png
+    from ..book.chart_png import PngPages
     from .. import __version__
 
     if args.extrapolate:
@@ -234,11 +234,12 @@ def run(args) -> int:
         jobs[out / f"{stem}-charts.pdf"] = lambda: chart_pdf(models, title=f"{sub.name}: T-s and h-s charts",
                                                             date_text=date or "")
     if args.format in ("png", "both"):
+        pages = PngPages()      # one figure for every PNG of the same paper
         seen = {}
         for m in models:
             seen[m.kind] = seen.get(m.kind, 0) + 1
             suffix = "" if sum(1 for x in models if x.kind == m.kind) == 1 else f"-{seen[m.kind]}"
-            jobs[out / f"{stem}-{m.kind}{suffix}.png"] = lambda m=m: chart_png(m, m.paper, dpi=args.dpi)
+            jobs[out / f"{stem}-{m.kind}{suffix}.png"] = lambda m=m: pages.png(m, m.paper, dpi=args.dpi)
     check_files(jobs, args.force)
     written = write_files({p: make() for p, make in jobs.items()}, args.force)
     for p in written:
