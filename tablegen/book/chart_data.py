@@ -47,7 +47,7 @@ class Line:
     family: str           # isobar, isochore, isotherm, process, isentropic, aux
     x: np.ndarray         # chart units
     y: np.ndarray
-    style: str            # key of STYLES
+    style: str            # key of chart_layout.STYLES
     label: Label | None = None
     value_SI: float = math.nan    # P (Pa), v (m³/kg) or T (K) of the line
     T_K: np.ndarray | None = None
