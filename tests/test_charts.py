@@ -11,10 +11,15 @@ import scipy.constants
 import pytest
 
 import tablegen
-from tablegen.book import charts as C
+from tablegen.book.chart_labels import _obb_overlap, _Placer
+from tablegen.book.chart_layout import layout
+from tablegen.book.chart_model import build_chart
+from tablegen.book.chart_pdf import chart_pdf, draw_chart
+from tablegen.book.chart_png import PngPages, chart_png
 from tablegen.cli import main
 from tablegen.core.errors import SpecError
 from tablegen.core.units import unit
+from tablegen.spec.chart import PAPERS, UNIT_SYSTEMS, parse_charts
 
 #: Pure arithmetic on the same engine values: only floating-point round-off differs.
 RTOL_SAME = 1e-9
@@ -32,11 +37,11 @@ def air():
 
 
 def charts(raw, units="SI"):
-    return C.parse_charts(raw, "charts", units=units)
+    return parse_charts(raw, "charts", units=units)
 
 
 def si_of(model_units, T_unit):
-    sym = dict(C.UNIT_SYSTEMS[model_units], T=T_unit)
+    sym = dict(UNIT_SYSTEMS[model_units], T=T_unit)
     return {k: unit(v) for k, v in sym.items()}
 
 
@@ -46,7 +51,7 @@ def test_ts_isobars_follow_s_equals_s0_minus_R_ln_P(name, units, T_unit):
     """Every drawn isobar: s(T, P) = s°(T) - R ln(P/P°) with the engine's s°(T)."""
     sub = tablegen.substance(name)
     spec, = charts({"kind": "ts", "volumes": [0.5, 5], "temperature_unit": T_unit, "units": units})
-    m = C.build_chart(sub, spec, T_range_K=(300.0, 1500.0))
+    m = build_chart(sub, spec, T_range_K=(300.0, 1500.0))
     u = si_of(units, T_unit)
     isobars = [ln for ln in m.lines if ln.family == "isobar"]
     assert len(isobars) == 10
@@ -75,7 +80,7 @@ def test_ts_isobar_matches_nist_janaf_n2_entropy():
     keep = (T_j >= 300) & (T_j <= 1500)
     n2 = tablegen.substance("N2", source="nasa1993")    # TM-4513 data, independent of JANAF
     spec, = charts({"kind": "ts", "pressures": ["10bar"]})
-    m = C.build_chart(n2, spec, T_range_K=(300.0, 1500.0))
+    m = build_chart(n2, spec, T_range_K=(300.0, 1500.0))
     ln, = [ln for ln in m.lines if ln.family == "isobar"]
     s_line = np.interp(T_j[keep], ln.T_K, ln.x * 1000.0)     # kJ/(kg K) -> J/(kg K)
     R_molar = scipy.constants.R                            # CODATA 2018 (N_A k, exact) via scipy
@@ -86,7 +91,7 @@ def test_ts_isobar_matches_nist_janaf_n2_entropy():
 
 def test_ts_right_scale_reads_h_of_T(air):
     spec, = charts({"kind": "ts"})
-    m = C.build_chart(air, spec, T_range_K=(250.0, 1500.0))
+    m = build_chart(air, spec, T_range_K=(250.0, 1500.0))
     T = np.array(m.side.major)
     h_label = np.array([float(t.replace("−", "-")) for t in m.side.labels])
     np.testing.assert_allclose(air.properties(T)["h"] / 1000.0, h_label, rtol=1e-9, atol=1e-9)
@@ -94,7 +99,7 @@ def test_ts_right_scale_reads_h_of_T(air):
 
 def test_hs_isobars_isotherms_and_scale_follow_engine_h(air):
     spec, = charts({"kind": "hs", "isotherms": ["400K", "800K", "1200K"]})
-    m = C.build_chart(air, spec, T_range_K=(300.0, 1500.0))
+    m = build_chart(air, spec, T_range_K=(300.0, 1500.0))
     isobars = [ln for ln in m.lines if ln.family == "isobar"]
     assert isobars
     for ln in isobars:
@@ -128,7 +133,7 @@ def _engine_steps(sub, T1, P1):
 
 def test_overlay_end_states_equal_engine_process_calculation(air):
     spec, = charts({"kind": "ts", "overlays": [GT]})
-    m = C.build_chart(air, spec, T_range_K=(250.0, 1500.0))
+    m = build_chart(air, spec, T_range_K=(250.0, 1500.0))
     expect = _engine_steps(air, 288.15, 1.013e5)
     got = {p.name: p for p in m.points}
     assert list(got) == ["1", "2s", "2", "3", "4s", "4"]
@@ -154,7 +159,7 @@ def test_overlay_isentropic_end_matches_cantera_air():
     gas.SP = s1, 12e5
     air = tablegen.substance("air")
     spec, = charts({"kind": "ts", "overlays": [GT]})
-    m = C.build_chart(air, spec, T_range_K=(250.0, 1500.0))
+    m = build_chart(air, spec, T_range_K=(250.0, 1500.0))
     T2s = {p.name: p for p in m.points}["2s"].T_K
     assert T2s == pytest.approx(gas.T, rel=2e-3)
 
@@ -164,7 +169,7 @@ def test_other_steps_constant_volume_and_throttle(air):
         "start": {"T": "300K", "P": "2bar"},
         "steps": [{"step": "heat_v", "T2": "900K"}, {"step": "throttle", "P2": "1.5bar"},
                   {"step": "heat_p", "T2": "400K"}, {"step": "expand", "ratio": 2.0, "eta": 1.0}]}]})
-    m = C.build_chart(air, spec, T_range_K=(250.0, 1000.0))
+    m = build_chart(air, spec, T_range_K=(250.0, 1000.0))
     p = {q.name: q for q in m.points}
     v = lambda q: air.R * q.T_K / q.P_Pa
     assert v(p["2"]) == pytest.approx(v(p["1"]), rel=1e-12)          # heat_v: v constant
@@ -187,11 +192,11 @@ def _labels(m):
 def test_every_line_labelled_and_labels_do_not_overlap(air):
     for paper in ("A4", "A3"):
         for spec in charts({"kind": "both", "paper": paper, "volumes": [0.2, 2], "overlays": [GT]}):
-            m = C.build_chart(air, spec, T_range_K=(250.0, 1500.0))
+            m = build_chart(air, spec, T_range_K=(250.0, 1500.0))
             fam = [ln for ln in m.lines if ln.family in ("isobar", "isochore", "isotherm")]
             assert all(ln.label is not None for ln in fam)
-            lay = C.layout(*C.PAPERS[paper])
-            pl = C._Placer(lay.plot, m.x_axis, m.y_axis)
+            lay = layout(*PAPERS[paper])
+            pl = _Placer(lay.plot, m.x_axis, m.y_axis)
             boxes = []
             for lab in _labels(m) + [p.label for p in m.points]:
                 u, v = pl.norm([lab.x], [lab.y])
@@ -200,16 +205,16 @@ def test_every_line_labelled_and_labels_do_not_overlap(air):
                 boxes.append((float(u[0]) * pl.W, float(v[0]) * pl.H, lab.du / L, lab.dv / L, w, lab.size * 0.5))
             for i in range(len(boxes)):
                 for j in range(i):
-                    assert not C._obb_overlap(boxes[i], boxes[j]), (paper, spec.kind, i, j)
+                    assert not _obb_overlap(boxes[i], boxes[j]), (paper, spec.kind, i, j)
 
 
 def test_pdf_and_png_are_byte_reproducible_and_well_formed(air):
     specs = charts({"kind": "both", "overlays": [GT], "volumes": [1]})
-    a = [C.build_chart(air, s, T_range_K=(250.0, 1500.0)) for s in specs]
-    b = [C.build_chart(air, s, T_range_K=(250.0, 1500.0)) for s in specs]
-    pdf1, pdf2 = C.chart_pdf(a), C.chart_pdf(b)
+    a = [build_chart(air, s, T_range_K=(250.0, 1500.0)) for s in specs]
+    b = [build_chart(air, s, T_range_K=(250.0, 1500.0)) for s in specs]
+    pdf1, pdf2 = chart_pdf(a), chart_pdf(b)
     assert pdf1 == pdf2
-    png1, png2 = C.chart_png(a[0], "A4"), C.chart_png(b[0], "A4")
+    png1, png2 = chart_png(a[0], "A4"), chart_png(b[0], "A4")
     assert png1 == png2
     assert png1[:8] == b"\x89PNG\r\n\x1a\n"
     from PIL import Image
@@ -231,7 +236,7 @@ def test_pdf_and_png_are_byte_reproducible_and_well_formed(air):
 
 def test_a3_page_size(air):
     spec, = charts({"kind": "ts", "paper": "A3"})
-    pdf = C.chart_pdf([C.build_chart(air, spec, T_range_K=(300.0, 1200.0))])
+    pdf = chart_pdf([build_chart(air, spec, T_range_K=(300.0, 1200.0))])
     import pypdf
     r = pypdf.PdfReader(io.BytesIO(pdf))
     assert float(r.pages[0].mediabox.width) == pytest.approx(1190.55, abs=0.1)
@@ -254,7 +259,7 @@ def test_a3_page_size(air):
 ])
 def test_spec_errors_name_the_key(raw, key):
     with pytest.raises(SpecError) as e:
-        C.parse_charts([raw], "charts", units="SI")
+        parse_charts([raw], "charts", units="SI")
     assert str(e.value).startswith(key + ":")
 
 
@@ -262,7 +267,7 @@ def test_build_errors_name_the_overlay_key(air):
     spec, = charts({"overlays": [{"start": {"T": "300K", "P": "1bar"},
                                   "steps": [{"step": "expand", "P2": "5bar", "eta": 0.9}]}]})
     with pytest.raises(SpecError, match=r"^charts\[0\]\.overlays\[0\]\.steps\[0\]:"):
-        C.build_chart(air, spec, T_range_K=(300.0, 1000.0))
+        build_chart(air, spec, T_range_K=(300.0, 1000.0))
 
 
 def test_cli_spec_error_exits_2_naming_key_and_writes_nothing(tmp_path, capsys):
@@ -321,9 +326,9 @@ def _ov(n):
 def test_too_many_overlays_for_a4_panel_refused_naming_key_a3_accepts(air):
     spec, = charts({"kind": "ts", "paper": "A4", "overlays": [_ov(i) for i in range(4)]})
     with pytest.raises(SpecError, match=r"^charts\[0\]\.overlays:.*A3"):
-        C.build_chart(air, spec, T_range_K=(250.0, 1500.0))
+        build_chart(air, spec, T_range_K=(250.0, 1500.0))
     spec, = charts({"kind": "ts", "paper": "A3", "overlays": [_ov(i) for i in range(4)]})
-    m = C.build_chart(air, spec, T_range_K=(250.0, 1500.0))
+    m = build_chart(air, spec, T_range_K=(250.0, 1500.0))
     assert len(m.points) == 4 * 6
     with pytest.raises(SpecError, match=r"^charts\[0\]\.overlays:.*at most 4"):
         charts({"overlays": [_ov(i) for i in range(5)]})
@@ -336,18 +341,18 @@ def test_draw_chart_into_a_portrait_book_box(air):
     from tablegen.book.fonts import SANS
     box = (535.0, 740.0)
     spec, = charts({"kind": "hs", "overlays": [GT]}, units="both")
-    m = C.build_chart(air, spec, T_range_K=(250.0, 1500.0), box_pt=box)
+    m = build_chart(air, spec, T_range_K=(250.0, 1500.0), box_pt=box)
     assert m.units == "SI"
     buf = io.BytesIO()
     c = Canvas(buf, pagesize=(595.27, 841.89), invariant=1, initialFontName=SANS)
-    C.draw_chart(c, m, 30.0, 50.0, *box, page_text="page 3 of 9")
+    draw_chart(c, m, 30.0, 50.0, *box, page_text="page 3 of 9")
     c.showPage()
     c.save()
     import pypdf
     text = pypdf.PdfReader(io.BytesIO(buf.getvalue())).pages[0].extract_text()
     assert "page 3 of 9" in text and "GT-2" in text
     with pytest.raises(tablegen.core.errors.TablegenError, match="too small"):
-        C.layout(200.0, 150.0)
+        layout(200.0, 150.0)
 
 
 def test_cli_bytes_identical_across_processes_and_hash_seeds(tmp_path):
@@ -383,7 +388,7 @@ def test_overlay_machine_step_identities(T1, ratio, eta, expand):
     step = {"step": "expand" if expand else "compress", "ratio": ratio, "eta": eta}
     try:
         spec, = charts({"kind": "ts", "overlays": [{"start": {"T": f"{T0}K", "P": "2bar"}, "steps": [step]}]})
-        m = C.build_chart(air, spec, T_range_K=(250.0, 1500.0))
+        m = build_chart(air, spec, T_range_K=(250.0, 1500.0))
     except tablegen.core.errors.TablegenError as e:
         # a large expansion ratio from a cold start leaves the 200 K end of the data:
         # refusing it is the documented behaviour, not a broken identity
@@ -399,3 +404,15 @@ def test_overlay_machine_step_identities(T1, ratio, eta, expand):
     else:
         assert two.h == pytest.approx(one.h + (iso.h - one.h) / eta, abs=1e-6 * abs(iso.h - one.h) + 1e-6)
         assert two.s >= iso.s - 1e-9 * air.R
+
+
+def test_png_pages_on_one_figure_equal_pngs_on_figures_of_their_own(air):
+    # determinism: a figure reused between charts (tablegen chart writes both kinds so)
+    # must leave nothing of one chart on the next; each page equals a page on a fresh figure
+    specs = charts({"kind": "both", "overlays": [GT], "volumes": [1]})
+    models = [build_chart(air, sp, T_range_K=(250.0, 1500.0)) for sp in specs]
+    pages = PngPages()
+    reused = [pages.png(m, "A4", dpi=72) for m in models + models[:1]]
+    alone = [chart_png(m, "A4", dpi=72) for m in models + models[:1]]
+    assert reused == alone
+    assert reused[0] != reused[1]

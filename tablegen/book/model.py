@@ -149,7 +149,7 @@ class TableModel:
     columns: tuple          # Column; the temperature columns first
     head_lines: tuple = ()  # lines printed under the title on every page of the table
     notes: list = field(default_factory=list)     # strings printed under the table
-    charts: tuple = ()      # chart models (tablegen.book.charts), drawn after the table
+    charts: tuple = ()      # chart models (tablegen.book.chart_model), drawn after the table
     uncertainty: dict | None = None   # the budget's figures (tablegen.calc.uncertainty), for the JSON
     U_columns: tuple = ()   # (csv header, values) of U_<key> columns, when the spec asks for them
     #: (csv header, values, description) of the Z and real-gas departure columns
@@ -392,7 +392,7 @@ def build_table(t, doc) -> TableModel:
     unc, U_cols, V_cols, stated = uncertainty_notes(t, doc, sub, cols, notes)
     charts = ()
     if t.charts:
-        from .charts import build_chart
+        from .chart_model import build_chart
         charts = tuple(build_chart(sub, c, T_range_K=(float(t.T_K.min()), float(t.T_K.max())), units=t.units,
                                    **chart_page(doc))
                        for c in t.charts)

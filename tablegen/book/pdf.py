@@ -744,7 +744,7 @@ def plan(book):
 
 
 def _chart_pages(t, index: int, L, pages):
-    """One page per chart model, drawn by tablegen.book.charts; on small paper a spread of two
+    """One page per chart model, drawn by tablegen.book.chart_pdf; on small paper a spread of two
     pages, the chart on the left and its reading panel on the right."""
     for j, model in enumerate(t.charts, 1):
         anchor = ("anchor", f"chart{index}.{j}")
@@ -878,8 +878,8 @@ def _draw_ops(c, ops, anchors, L):
             c.setFont(font, size)
             c.drawCentredString(x, y, text)
         elif kind == "chart":
-            from . import charts
-            charts.draw_chart(c, op[1], *pagination.chart_box(L), part=op[2])
+            from .chart_pdf import draw_chart
+            draw_chart(c, op[1], *pagination.chart_box(L), part=op[2])
         elif kind == "anchor":
             pass
 

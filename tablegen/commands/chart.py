@@ -185,7 +185,9 @@ def _stem(text: str) -> str:
 def run(args) -> int:
     from .common import data_notices
     data_notices(args)
-    from ..book import charts as C
+    from ..book.chart_model import build_chart
+    from ..book.chart_pdf import chart_pdf
+    from ..book.chart_png import PngPages
     from .. import __version__
 
     if args.extrapolate:
@@ -220,7 +222,7 @@ def run(args) -> int:
     sub = substance_with_options(args, sub_name, by_rule=True, reacting=None)
     footer = f"tablegen {__version__} · " + (sub.name if sub.name == sub.id else f"{sub.name} ({sub.id})")
     try:
-        models = [C.build_chart(sub, sp, units=sp.units, footer=footer) for sp in specs]
+        models = [build_chart(sub, sp, units=sp.units, footer=footer) for sp in specs]
     except SpecError as e:
         raise SpecError(_cli_message(str(e))) from None
 
@@ -229,14 +231,15 @@ def run(args) -> int:
     from ..core.outfiles import check_files, write_files
     jobs = {}
     if args.format in ("pdf", "both"):
-        jobs[out / f"{stem}-charts.pdf"] = lambda: C.chart_pdf(models, title=f"{sub.name}: T-s and h-s charts",
-                                                              date_text=date or "")
+        jobs[out / f"{stem}-charts.pdf"] = lambda: chart_pdf(models, title=f"{sub.name}: T-s and h-s charts",
+                                                            date_text=date or "")
     if args.format in ("png", "both"):
+        pages = PngPages()      # one figure for every PNG of the same paper
         seen = {}
         for m in models:
             seen[m.kind] = seen.get(m.kind, 0) + 1
             suffix = "" if sum(1 for x in models if x.kind == m.kind) == 1 else f"-{seen[m.kind]}"
-            jobs[out / f"{stem}-{m.kind}{suffix}.png"] = lambda m=m: C.chart_png(m, m.paper, dpi=args.dpi)
+            jobs[out / f"{stem}-{m.kind}{suffix}.png"] = lambda m=m: pages.png(m, m.paper, dpi=args.dpi)
     check_files(jobs, args.force)
     written = write_files({p: make() for p, make in jobs.items()}, args.force)
     for p in written:

@@ -3,7 +3,7 @@
 ``parse_charts(raw)`` turns the ``charts`` tables of a book spec, or the options of
 ``tablegen chart``, into frozen ``ChartSpec`` values (paper, unit system, axes,
 isobars, volume lines, process overlays). The spec layer: no drawing library, no
-evaluation of a substance; the chart model (tablegen/book/charts.py) builds on these.
+evaluation of a substance; the chart model (tablegen/book/chart_model.py) builds on these.
 """
 
 from __future__ import annotations
