@@ -100,7 +100,8 @@ def _book(title, number="KFH-PT-0107", paper="A5"):
 
 
 def test_running_head_is_shortened_by_rule_never_cut():
-    from tablegen.book.pdf import _w, running_head
+    from tablegen.book.pdf import running_head
+    from tablegen.book.textflow import text_width
     from tablegen.book.fonts import SANS, register
     register()
     L = layout_for("A5")
@@ -113,5 +114,5 @@ def test_running_head_is_shortened_by_rule_never_cut():
                 "for the shift engineers")
     lines = running_head(_book(no_break), L)
     assert len(lines) == 2 and " ".join(lines) == no_break                     # wrapped, every word kept
-    room = L.live_width - _w("KFH-PT-0107  Rev. C", "TG-Sans-Bold", L.run)
-    assert all(_w(x, SANS, L.run) < room for x in lines)
+    room = L.live_width - text_width("KFH-PT-0107  Rev. C", "TG-Sans-Bold", L.run)
+    assert all(text_width(x, SANS, L.run) < room for x in lines)
