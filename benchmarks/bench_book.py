@@ -31,7 +31,7 @@ def spec_text(rows_per_table: int) -> str:
 
 def main() -> int:
     from tablegen.spec import book as specmod
-    from tablegen.book import csvout, jsonout, model, pdf
+    from tablegen.book import csvout, jsonout, model, pdf, tablepages
     from tablegen.book.fonts import register
     register()
     with tempfile.TemporaryDirectory() as d:
@@ -39,7 +39,7 @@ def main() -> int:
         p = Path(d) / "bench.toml"
         p.write_text(spec_text(60), encoding="utf-8")
         probe = model.build_book(specmod.load(p))
-        rpp = pdf.plan_table(probe.tables[0], pdf.layout_for("A4", "portrait")).chunks[0][1]
+        rpp = tablepages.plan_table(probe.tables[0], pdf.layout_for("A4", "portrait")).chunks[0][1]
         p.write_text(spec_text(20 * rpp), encoding="utf-8")
         t0 = time.perf_counter()
         spec = specmod.load(p)

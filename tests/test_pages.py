@@ -130,7 +130,8 @@ def test_pocket_column_parts_face_each_other(books):
 
 
 def test_a_left_hand_page_is_made_by_a_blank_verso_that_says_so():
-    from tablegen.book.pdf import Page, to_left_page
+    from tablegen.book.tablepages import to_left_page
+    from tablegen.book.textflow import Page
     L = layout_for("A5", two_sided=True)
     pages = [Page("front") for _ in range(2)]
     to_left_page(pages, L, "The parts of Table 9 face each other.")

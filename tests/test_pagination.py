@@ -100,7 +100,8 @@ def _book(title, number="KFH-PT-0107", paper="A5"):
 
 
 def test_running_head_is_shortened_by_rule_never_cut():
-    from tablegen.book.pdf import _w, running_head
+    from tablegen.book.pdf import running_head
+    from tablegen.book.textflow import text_width
     from tablegen.book.fonts import SANS, register
     register()
     L = layout_for("A5")
@@ -113,5 +114,62 @@ def test_running_head_is_shortened_by_rule_never_cut():
                 "for the shift engineers")
     lines = running_head(_book(no_break), L)
     assert len(lines) == 2 and " ".join(lines) == no_break                     # wrapped, every word kept
-    room = L.live_width - _w("KFH-PT-0107  Rev. C", "TG-Sans-Bold", L.run)
-    assert all(_w(x, SANS, L.run) < room for x in lines)
+    room = L.live_width - text_width("KFH-PT-0107  Rev. C", "TG-Sans-Bold", L.run)
+    assert all(text_width(x, SANS, L.run) < room for x in lines)
+
+
+# ---------------------------------------------------------------- the page-flow engine
+@given(heights=st.lists(st.floats(0.5, 900.0), min_size=1, max_size=60))
+def test_page_flow_breaks_where_a_block_does_not_fit_and_only_there(heights):
+    """Blocks in order down pages of a 700 pt body. Common practice of page make-up: a block
+    goes to a new page when it does not fit, unless the page is still empty, so a block taller
+    than a page stands alone instead of being pushed on for ever."""
+    from tablegen.book.pageflow import PageFlow
+    top, bottom = 760.0, 60.0
+    f = PageFlow(top, bottom)
+    for k, h in enumerate(heights):
+        f.add(h, (k, h))
+    placed = [blk for page in f.pages for _, blk in page]
+    assert [k for k, _ in placed] == list(range(len(heights)))          # every block, in order
+    for n, page in enumerate(f.pages):
+        assert page, n                                                  # no empty page
+        y0, (k0, h0) = page[0]
+        assert abs(y0 - top) < 1e-9                                     # each page starts at the top
+        for (y, (k, h)), nxt in zip(page, page[1:] + [None]):
+            assert y - h >= bottom - 1e-9 or len(page) == 1, (n, k)     # only a lone block overruns
+            if nxt is not None:
+                assert abs(nxt[0] - (y - h)) < 1e-9                     # stacked without gaps
+        if n + 1 < len(f.pages):                                        # broken only where it had to be
+            y_last, (k, h) = page[-1]
+            assert y_last - h - f.pages[n + 1][0][1][1] < bottom
+
+
+def test_a_heading_is_kept_with_what_follows_and_a_table_head_repeats():
+    from tablegen.book.pageflow import PageFlow
+    f = PageFlow(760.0, 60.0)
+    f.add(650.0, "text")                      # 50 pt left on the page
+    f.keep_with_next(20.0, 40.0)              # a heading of 20 pt and the first 40 pt after it
+    f.add(20.0, "heading")
+    assert [b for _, b in f.pages[1]] == ["heading"]
+    assert not f.turn_if_short(600.0)         # a row that fits: same page
+    f.add(600.0, "row")
+    assert f.turn_if_short(200.0) and len(f.pages) == 3 and abs(f.y - 760.0) < 1e-9
+
+
+def test_the_book_and_the_qa_report_flow_on_the_one_engine():
+    """Each document's running blocks are placed by tablegen.book.pageflow (issue: one
+    page-flow engine)."""
+    from tablegen.book.fonts import register
+    from tablegen.book.pageflow import PageFlow
+    from tablegen.book.qa_layout import BOTTOM, TOP, report_flow
+    from tablegen.book.textflow import Flow
+    register()
+    L = layout_for("A4")
+    book = Flow(L, [], "front")
+    report = report_flow()
+    assert isinstance(book, PageFlow) and isinstance(report, PageFlow)
+    assert max(abs(book.top - L.body_top), abs(book.bottom - L.body_bottom), abs(report.top - TOP),
+               abs(report.bottom - BOTTOM)) < 1e-9
+    book.space(book.y - book.bottom - L.text)    # a line's height left: the heading goes on
+    book.heading("Caution", anchor="caution")
+    assert len(book.pages) == 2 and ("anchor", "caution") in book.pages[1].ops

@@ -9,6 +9,8 @@ they are intentionally blank.
 from __future__ import annotations
 
 from . import pagination, pdf
+from .pageflow import with_binary_streams
+from .tablepages import blank_page
 
 
 def render_booklet(book) -> bytes:
@@ -18,7 +20,7 @@ def render_booklet(book) -> bytes:
     on the short edge, folded and stapled at the fold. Pages that pad the count to a
     multiple of four say that they are intentionally blank."""
     L, pages = pdf.plan(book)
-    return pdf.with_binary_streams(_render_booklet, book, L, pages, pdf.anchors_of(pages))
+    return with_binary_streams(_render_booklet, book, L, pages, pdf.anchors_of(pages))
 
 
 def _render_booklet(book, L, pages, anchors) -> bytes:
@@ -30,7 +32,7 @@ def _render_booklet(book, L, pages, anchors) -> bytes:
     off = (sheet_w - 2 * L.width) / 2
     total = len(pages)
     head = pdf.running_head(book, L)
-    pad = pdf.blank_page(L, "It completes the last sheet of the booklet.")
+    pad = blank_page(L, "It completes the last sheet of the booklet.")
     for sides in pagination.saddle_stitch(total):
         for pair in sides:
             for slot, no in enumerate(pair):

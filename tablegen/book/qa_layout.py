@@ -1,7 +1,8 @@
 """Drawing primitives of the QA report: page geometry, colours, text, and a flow of blocks.
 
-Blocks are stacked down pages by :class:`Flow`; each block is a function that draws
-itself at a given height. The drawing state last set on a canvas (fill colour, font)
+Blocks are stacked down pages by the documents' page-flow engine
+(:class:`tablegen.book.pageflow.PageFlow`, made for these pages by :func:`report_flow`);
+each block is a function that draws itself at a given height. The drawing state last set on a canvas (fill colour, font)
 is kept in a dict keyed by the canvas, never on the library's object, so long pages
 skip operators that change nothing.
 """
@@ -11,6 +12,7 @@ from __future__ import annotations
 import math
 
 from . import fonts
+from .pageflow import PageFlow
 
 PAGE_W, PAGE_H = 595.2756, 841.8898          # A4 portrait, pt
 MARGIN = 36.0
@@ -30,26 +32,10 @@ EXTRAP_MARK = "†"
 
 
 # ------------------------------------------------------------- flow layout
-class Flow:
-    """Blocks stacked down pages; page breaks where a block does not fit."""
-
-    def __init__(self):
-        self.pages = [[]]
-        self.y = TOP
-
-    def need(self, h: float):
-        if self.y - h < BOTTOM and self.pages[-1]:
-            self.new_page()
-
-    def new_page(self):
-        self.pages.append([])
-        self.y = TOP
-
-    def add(self, h: float, draw):
-        """draw(canvas, y_top) fills the band [y_top - h, y_top]."""
-        self.need(h)
-        self.pages[-1].append((self.y, draw))
-        self.y -= h
+def report_flow() -> PageFlow:
+    """The report's blocks on its pages: ``flow.add(h, draw)``, where draw(canvas, y_top)
+    fills the band [y_top - h, y_top]."""
+    return PageFlow(TOP, BOTTOM)
 
 
 #: Drawing state last set on each canvas being drawn (fill colour, font), so that big
@@ -134,9 +120,13 @@ def wrap_text(s: str, font: str, size: float, width: float) -> list[str]:
 
 
 def fit_text(s: str, font: str, size: float, width: float) -> str:
-    """Text cut with '…' to fit a width (the book pages' rule)."""
-    from .pdf import _fit
-    return _fit(s, font, size, width)
+    """Text cut with '…' to fit a width (the report's cells and running head)."""
+    from reportlab.pdfbase.pdfmetrics import stringWidth
+    if stringWidth(s, font, size) <= width:
+        return s
+    while s and stringWidth(s + "…", font, size) > width:
+        s = s[:-1]
+    return s + "…"
 
 
 def fmt_num(x, digits=3) -> str:
@@ -175,11 +165,10 @@ def ruled_table(flow, head, rows, widths, aligns, size=7.6, font=fonts.SANS, row
         for h, w, a in zip(head, widths, aligns):
             table_cell(c, x, y, w, lead, h, fonts.SANS_BOLD, size, INK, a)
             x += w
-    flow.need(lead * 2)
+    flow.keep_with_next(lead, lead)
     flow.add(lead, draw_head)
     for k, r in enumerate(rows):
-        if flow.y - lead < BOTTOM:
-            flow.new_page()
+        if flow.turn_if_short(lead):
             flow.add(lead, draw_head)
         fill = row_fills[k] if row_fills else None
         def draw(c, y, r=r, fill=fill):

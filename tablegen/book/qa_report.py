@@ -31,9 +31,10 @@ from pathlib import Path
 import numpy as np
 
 from . import fonts
-from .qa_layout import (BOTTOM, DRAW_STATE, EXTRAP_MARK, FAIL_FILL, FAIL_INK, GREY, INK, MARGIN, OUT_MARK,
-                        PAGE_H, PAGE_W, PASS_FILL, PASS_INK, RULE, WIDTH, Flow, draw_text, fit_text, flush_text,
-                        forget_state, heading, paragraph, queue_text, ruled_table, set_fill, set_stroke,
+from .pageflow import draw_pages, page_of, with_binary_streams
+from .qa_layout import (DRAW_STATE, EXTRAP_MARK, FAIL_FILL, FAIL_INK, GREY, INK, MARGIN, OUT_MARK, PAGE_H,
+                        PAGE_W, PASS_FILL, PASS_INK, RULE, WIDTH, draw_text, fit_text, flush_text, forget_state,
+                        heading, paragraph, queue_text, report_flow, ruled_table, set_fill, set_stroke,
                         wrap_text)
 from .qa_plots import plots
 
@@ -352,11 +353,10 @@ def _listing(flow, cmp, table: str = "", listing: str = "auto"):
                 c.setLineWidth(0.3)
                 c.line(x + w_m, y, x + w_m, y - 2 * lead)
                 x += w_m
-        flow.need(4 * lead)
+        flow.keep_with_next(2 * lead, 2 * lead)
         flow.add(2 * lead, head)
         for i in rows:
-            if flow.y - lead < BOTTOM:
-                flow.new_page()
+            if flow.turn_if_short(lead):
                 flow.add(2 * lead, head)
             if isinstance(i, tuple):
                 flow.add(lead, lambda c, y, gap=i: _gap_row(c, y, ref, gap, lead, size))
@@ -438,7 +438,7 @@ def render_pdf(cmp, listing: str = "auto") -> bytes:
     """The QA report of one reference table as PDF bytes (same comparison, same bytes);
     ``listing``: the rows of the side-by-side listing (:data:`LISTING_MODES`, :func:`listed_rows`)."""
     fonts.register()
-    flow = Flow()
+    flow = report_flow()
     _title(flow, f"QA comparison: {cmp.substance['name']} against the reference table")
     _verdict(flow, cmp)
     _hints_and_wide(flow, cmp.hints, cmp.wide)
@@ -521,7 +521,7 @@ def render_book_pdf(bc, listing: str = "auto") -> bytes:
     """The QA report of a book against a reference folder: a summary page, then one section per table
     (``listing`` as for :func:`render_pdf`, table by table)."""
     fonts.register()
-    flow = Flow()
+    flow = report_flow()
     _book_page_one(flow, bc)
     n = len(bc.tables)
     for k, t in enumerate(bc.tables, start=1):
@@ -550,27 +550,28 @@ def render_book_pdf(bc, listing: str = "auto") -> bytes:
 
 # ------------------------------------------------------------------ render
 def _render(flow, *, title, subject, version, ok, right, foot) -> bytes:
-    from reportlab import rl_config
-    a85, rl_config.useA85 = rl_config.useA85, 0     # binary streams: smaller and faster
+    return with_binary_streams(_draw, flow.pages, title, subject, version, ok, right, foot)
+
+
+def _draw(pages, title, subject, version, ok, right, foot) -> bytes:
     buf = io.BytesIO()
     c = fonts.canvas(buf, pagesize=(PAGE_W, PAGE_H), initialFontName=fonts.SANS, pageCompression=1)
     c.setTitle(title)
     c.setAuthor("tablegen")
     c.setCreator(f"tablegen {version}")
     c.setSubject(subject)
-    total = len(flow.pages)
+
+    def draw_page(c, no, total):
+        forget_state(c)
+        _running(c, no, total, ok, right, f"{foot}  tablegen {version}")
+        for y, draw in pages[no - 1]:
+            draw(c, y)
+        flush_text(c)
     try:
-        for k, page in enumerate(flow.pages, start=1):
-            forget_state(c)
-            _running(c, k, total, ok, right, f"{foot}  tablegen {version}")
-            for y, draw in page:
-                draw(c, y)
-            flush_text(c)
-            c.showPage()
+        draw_pages(c, pages, draw_page)
         c.save()
     finally:
         DRAW_STATE.pop(id(c), None)
-        rl_config.useA85 = a85
     return buf.getvalue()
 
 
@@ -584,4 +585,4 @@ def _running(c, k, total, ok, right, foot):
     c.line(MARGIN, MARGIN + 14, PAGE_W - MARGIN, MARGIN + 14)
     draw_text(c, MARGIN, MARGIN + 4, f"Checks agreement with the given reference only.  {foot}",
               fonts.SANS, 6.8, GREY)
-    draw_text(c, PAGE_W - MARGIN, MARGIN + 4, f"page {k} of {total}", fonts.SANS, 7.5, INK, "right")
+    draw_text(c, PAGE_W - MARGIN, MARGIN + 4, page_of(k, total), fonts.SANS, 7.5, INK, "right")
