@@ -122,7 +122,7 @@ def metadata(book, t, csv_name: str, editions: tuple = ()) -> dict:
     editions of the book that print this same file (schema.org ``bookEdition``), so one
     folder can hold the files of every edition of one issue.
     """
-    from .model import DEFINITIONS
+    from .definitions import DEFINITIONS
     d = book.document
     cols = []
     names = column_names(t)

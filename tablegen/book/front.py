@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from . import pagination
 from .fonts import SANS, SANS_BOLD
-from .model import pressure_text
+from .definitions import pressure_text
 from .pagination import Layout
 from .textfit import simpleSplit
 from .textflow import Flow, figure_text, text_width

@@ -23,30 +23,10 @@ import numpy as np
 
 from ..spec.columns import column_values_SI, unit_factor, unit_for
 from ..core.units import temperature_text as _fmtT
+from .definitions import DEFINITIONS, pressure_text
 from .stated import Section, appendix_sections, auto_digits, uncertainty_notes, worked_example  # noqa: F401
 
 # ---------------------------------------------------------------- definitions
-#: key -> (printed symbol, name, formula as printed on the "how to read" page)
-DEFINITIONS = {
-    "T": ("T", "temperature", "the row's temperature; the grid is exact in the unit it was given in"),
-    "cp": ("cₚ", "isobaric heat capacity", "cₚ(T) from the NASA polynomial, cₚ/R = Σ aᵢ Tⁱ"),
-    "cv": ("cᵥ", "isochoric heat capacity", "cᵥ = cₚ − R"),
-    "k": ("k", "ratio of heat capacities", "k = cₚ / cᵥ"),
-    "h": ("h", "enthalpy", "h(T) = h(T₀) + ∫ cₚ dT, with the table's enthalpy datum"),
-    "u": ("u", "internal energy", "u = h − R T"),
-    "s0": ("s°", "entropy at P°", "s°(T) = s°(T₀) + ∫ (cₚ/T) dT at the reference pressure P°; "
-                                  "at pressure P: s(T, P) = s°(T) − R ln(P/P°)"),
-    "Pr": ("Pr", "relative pressure", "Pr = Prₐ exp[(s°(T) − s°(Tₐ))/R]; along an isentrope "
-                                      "P₂/P₁ = Pr₂/Pr₁"),
-    "vr": ("vr", "relative volume", "vr = vrₐ (T/Tₐ)(Prₐ/Pr); along an isentrope v₂/v₁ = vr₂/vr₁"),
-    "a": ("a", "speed of sound", "a = √(k R T) (ideal gas)"),
-    "g0": ("g°", "Gibbs energy at P°", "g° = h − T s°"),
-    "cp_mean_h": ("c̄ₚ,h", "mean cₚ for enthalpy",
-                  "c̄ₚ,h = [h(T) − h(Tₘ)]/(T − Tₘ); at T = Tₘ the limit cₚ(Tₘ) is printed; "
-                  "heat from Tₘ to T is c̄ₚ,h (T − Tₘ)"),
-    "cp_mean_s": ("c̄ₚ,s", "mean cₚ for entropy",
-                  "c̄ₚ,s = [s°(T) − s°(Tₘ)]/ln(T/Tₘ); at T = Tₘ the limit cₚ(Tₘ) is printed"),
-}
 
 ROUNDING_RULE = ("Each printed value is the computed double-precision value rounded once to the "
                  "printed number of decimals (or of significant digits, for Pr and vr), ties to even "
@@ -295,12 +275,6 @@ def anchor_text_of(an, unit_symbol: str = "K") -> str:
     return f"Pr = {an.Pr:g} and vr = {an.vr:g} at {_fmtT(an.T_K, unit_symbol)}"
 
 
-def pressure_text(P: float) -> str:
-    if abs(P - 1e5) < 1e-6:
-        return "1 bar (100 kPa)"
-    if abs(P - 101325.0) < 1e-6:
-        return "1 atm (101.325 kPa)"
-    return f"{P / 1000:g} kPa"
 
 
 def _grid_text(g: dict) -> str:
