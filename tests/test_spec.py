@@ -15,6 +15,7 @@ import pytest
 
 from tablegen import cli
 from tablegen.spec import book as spec
+from tablegen.spec import grids
 from tablegen.core.errors import SpecError
 
 BASE = textwrap.dedent('''
@@ -82,7 +83,7 @@ BAD = [
     ("temperature-without-unit", _table0(SEG, SEG.replace('stop = "400 K"', 'stop = "400"')), "tables[0].grid.segments[0].stop"),
     ("stop-below-start", _table0(SEG, SEG.replace('stop = "400 K"', 'stop = "250 K"')), "tables[0].grid.segments[0].stop: must be above start"),
     ("million-rows", _table0(SEG, 'grid = { segments = [ { start = "300 K", stop = "1300 K", step = "0.001 K" } ] }'),
-     f"at most {spec.MAX_ROWS_PER_TABLE} rows"),
+     f"at most {grids.MAX_ROWS_PER_TABLE} rows"),
     ("outside-data-range", _table0(SEG, SEG.replace('stop = "400 K"', 'stop = "9000 K"')), "tables[0].grid"),
     ("unknown-column", _table0('substance = "air"', 'substance = "air"\ncolumns = ["T", "cp", "enthalpy"]'), "tables[0].columns[2]"),
     ("column-twice", _table0('substance = "air"', 'substance = "air"\ncolumns = ["cp", "cp"]'), "tables[0].columns[1]"),
