@@ -107,7 +107,7 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
     point above the stated temperature.
     """
     from ..data.mixtures import shipped_mixtures
-    from ..data.library import norm_name
+    from ..data.records import norm_name
     from ..thermo.saturation import T_CRIT, T_LOW_IF97, p_sat_Pa, water_dew_point_K
     notes = []
     enriched = False
@@ -288,7 +288,7 @@ _HUMIDITY_RATIO = re.compile(r"^([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(k
 def is_oxidant_base(head: str) -> bool:
     """Whether ``head`` is a base word of the BASE,KEY=VALUE oxidant form (air and its aliases, oxygen)."""
     from ..data.mixtures import shipped_mixtures
-    from ..data.library import norm_name
+    from ..data.records import norm_name
     b = norm_name(head)
     m = shipped_mixtures().get(b)
     return b in ("oxygen", "o2") or (m is not None and m["id"] == "air")
