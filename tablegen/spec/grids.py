@@ -99,7 +99,7 @@ def parse_grid(raw, where, sub, columns_for_auto, extrapolate):
         _fail(f"{where}.start", f"is {ua.to_si(a):g} K; temperatures must be above 0 K")
     if not b > a:
         _fail(f"{where}.stop", f"must be above start ({b:g} {ua.symbol} <= {a:g} {ua.symbol})")
-    step, worst = auto_step(sub, a, b, ua, columns_for_auto, tol, extrapolate, where)
+    step, worst = _auto_step(sub, a, b, ua, columns_for_auto, tol, extrapolate, where)
     n = int(math.floor((b - a) / step + 1e-9)) + 1
     vals = a + step * np.arange(n)
     if abs(vals[-1] - b) > 1e-9 * max(1.0, abs(b)):
@@ -120,42 +120,36 @@ def fail_range(where: str, e: TablegenError):
     _fail(where, str(e.offering(EXTRAPOLATE_HOW) if isinstance(e, DataRangeError) else e))
 
 
-def auto_step(sub, a, b, ua, keys, tol, extrapolate, where):
-    """Largest round step (in the grid's unit) for which linear interpolation between
-    adjacent rows stays within ``tol`` for every printed column.
+def _auto_step(sub, a, b, ua, keys, tol, extrapolate, where):
+    """Largest round step (in the grid's unit) whose rows keep linear interpolation
+    within the relative ``tol`` for every printed column, and the worst bound.
 
-    The error at each interval midpoint, |f(mid) - (f(lo) + f(hi))/2|, is taken
-    relative to max(|f(mid)|, span of f over the table) so that columns passing
-    through zero (sensible enthalpy) are judged against their range. The midpoint
-    of linear interpolation is where the error of a smooth function peaks.
+    The bound is tablegen.calc.interpolation's (a dense evaluation between each pair of
+    rows, not an estimate), relative to |f|, or to cp·T for the energies with a datum
+    (h, u, g0), which pass through zero.
     """
+    from ..calc.interpolation import step_within
     from .columns import column_values_SI
-    keys = [k for k in keys if k != "T"] or ["cp"]
-    for step in round_steps_from_top(b - a):
+    keys = tuple(dict.fromkeys(k for k in keys if k != "T")) or ("cp",)
+
+    def rows_for(step):
         n = int(math.floor((b - a) / step + 1e-9)) + 1
         if n > MAX_ROWS_PER_TABLE:
-            break
+            return np.empty(n)        # only its size is read: too many rows
         vals = a + step * np.arange(n)
         if abs(vals[-1] - b) > 1e-9 * max(1.0, abs(b)):
             vals = np.append(vals, b)
-        T = ua.to_si(vals)
-        if T.size < 2:
-            continue
-        mid = 0.5 * (T[1:] + T[:-1])
-        try:
-            fT = column_values_SI(sub, T, keys, extrapolate=extrapolate)
-            fm = column_values_SI(sub, mid, keys, extrapolate=extrapolate)
-        except TablegenError as e:
-            fail_range(where, e)
-        worst = 0.0
-        for k in keys:
-            y, ym = fT[k], fm[k]
-            scale = max(float(np.max(y) - np.min(y)), 1e-300)
-            err = np.abs(ym - 0.5 * (y[1:] + y[:-1])) / np.maximum(np.abs(ym), scale)
-            worst = max(worst, float(np.max(err)))
-        if worst <= tol:
-            return step, worst
-    _fail(f"{where}.tolerance", f"{tol:g} needs more than {MAX_ROWS_PER_TABLE} rows "
-                                f"(a table has at most {MAX_ROWS_PER_TABLE}); loosen it or narrow the range")
+        return ua.to_si(vals)
 
+    def values(ks, T):
+        return column_values_SI(sub, T, ks, extrapolate=extrapolate)
 
+    try:
+        found = step_within(sub, keys, round_steps_from_top(b - a), rows_for, dict.fromkeys(keys, tol),
+                            relative=True, values=values, max_rows=MAX_ROWS_PER_TABLE)
+    except TablegenError as e:
+        fail_range(where, e)
+    if found is None:
+        _fail(f"{where}.tolerance", f"{tol:g} needs more than {MAX_ROWS_PER_TABLE} rows "
+                                    f"(a table has at most {MAX_ROWS_PER_TABLE}); loosen it or narrow the range")
+    return found
