@@ -17,7 +17,8 @@ import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 import tablegen  # noqa: E402
-from tablegen.calc.steps import incompressible, process  # noqa: E402
+from tablegen.calc.incompressible import incompressible  # noqa: E402
+from tablegen.calc.steps import process  # noqa: E402
 
 N = 100_000
 

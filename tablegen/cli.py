@@ -149,12 +149,12 @@ def _restore(saved: dict) -> None:
 
 
 def main(argv=None) -> int:
-    from .core import outfiles
+    from .core import oswrite
     from .commands import common
     argv = _join_negative_values(list(sys.argv[1:] if argv is None else argv))
     saved = _catch_termination()
     common.hold_notices()
-    outfiles.WRITTEN.clear()
+    oswrite.WRITTEN.clear()
     ok = False
     args = None
     try:
@@ -184,7 +184,7 @@ def main(argv=None) -> int:
         return e.exit_status
     except (KeyboardInterrupt, Terminated) as e:
         word = "terminated" if isinstance(e, Terminated) else "interrupted"
-        done = outfiles.WRITTEN
+        done = oswrite.WRITTEN
         left = (f"{len(done)} file{'s' if len(done) > 1 else ''} had been written (first: {done[0]})"
                 if done else "no file was written")
         print(f"tablegen: {word}; {left}", file=sys.stderr)

@@ -15,8 +15,8 @@ import pytest
 import janaf  # reference library: a missing one is a failure, not a skip
 from tablegen.data.library import library
 from tablegen.core.errors import TablegenError
-from tablegen.calc.fitting import (FitError, _basis, fit_cp_table, scaled_to_raw,
-                              T_SCALE)
+from tablegen.calc.fit_solver import T_SCALE, _basis, scaled_to_raw
+from tablegen.calc.fitting import FitError, fit_cp_table
 from tablegen.thermo.polynomial import Polynomial
 from tablegen.thermo.substance import R_MOLAR
 
@@ -164,7 +164,7 @@ def test_narrow_range_is_refused_as_ill_conditioned():
 
 def test_reported_condition_of_janaf_fit_is_moderate():
     # The scaled variable keeps the system far from the refusal limit.
-    from tablegen.calc.fitting import COND_LIMIT
+    from tablegen.calc.fit_solver import COND_LIMIT
     T, cp, S, H, dfH = janaf_table("N-023")
     fit = fit_cp_table(T, cp, breakpoints=[1000.0], s298_J_per_molK=191.609, target=1e-3)
     assert fit.condition < COND_LIMIT / 100

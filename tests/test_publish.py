@@ -29,7 +29,7 @@ import pytest
 from pypdf import PdfReader
 
 from tablegen import cli
-from tablegen.core import outfiles
+from tablegen.core import filewrite, oswrite, outfiles
 from tablegen.spec import book as spec
 from tablegen.book.build import issue_text, render_files
 from tablegen.core.errors import Interrupted, OutputError, OutputExistsError
@@ -115,7 +115,8 @@ def leftovers(dest: Path) -> list[str]:
 
 # ---------------------------------------------------------------- fault injection
 class FaultyOs:
-    """The os module as tablegen.core.outfiles sees it, with one call failing at its k-th use."""
+    """The os module as tablegen.core.outfiles, filewrite and oswrite see it, with one call failing
+    at its k-th use (counted over the three)."""
 
     def __init__(self, op: str, k: int, exc: BaseException, hook=None):
         self.op, self.k, self.exc, self.hook, self.calls, self.fired = op, k, exc, hook, 0, False
@@ -135,6 +136,12 @@ class FaultyOs:
                     raise self.exc
             return real(*a, **kw)
         return call
+
+
+def patch_os(monkeypatch, fake) -> None:
+    """Give every module that writes output the same faulty os module."""
+    for module in (outfiles, filewrite, oswrite):
+        monkeypatch.setattr(module, "os", fake)
 
 
 def _exchange_point(monkeypatch, k, exc, counter):
@@ -169,7 +176,7 @@ def _inject(monkeypatch, op, k, exc):
         monkeypatch.setattr(outfiles, "_remove_tree", fake)
         return lambda: c[0] >= k
     f = FaultyOs(op, k, exc)
-    monkeypatch.setattr(outfiles, "os", f)
+    patch_os(monkeypatch, f)
     return lambda: f.fired
 
 
@@ -321,7 +328,7 @@ def test_a_signal_while_staging_leaves_the_old_issue_and_one_line(tmp_path, issu
     dest = tmp_path / "book"
     assert cli.main(["build", str(_spec_file(tmp_path, "A")), "--out", str(dest), "--quiet"]) == 0
     spec_b = _spec_file(tmp_path, "B")
-    monkeypatch.setattr(outfiles, "os", FaultyOs("fsync", 2, None, hook=lambda: os.kill(os.getpid(), signum)))
+    patch_os(monkeypatch, FaultyOs("fsync", 2, None, hook=lambda: os.kill(os.getpid(), signum)))
     rc = cli.main(["build", str(spec_b), "--out", str(dest), "--force"])
     err = capsys.readouterr().err
     assert rc == status and err == f"tablegen: {word}; nothing was published; {dest}/ is as it was\n"
@@ -412,7 +419,7 @@ def test_a_file_saved_into_the_folder_during_staging_stays_there(tmp_path, issue
     dest = tmp_path / "book"
     outfiles.publish_folder(dest, issues["A"][0], force=True, about=issues["A"][1])
     hook = FaultyOs("fsync", 3, None, hook=lambda: (dest / "late.txt").write_text("saved meanwhile"))
-    monkeypatch.setattr(outfiles, "os", hook)
+    patch_os(monkeypatch, hook)
     with pytest.raises(OutputExistsError, match=r"\(first: late.txt\)"):
         outfiles.publish_folder(dest, issues["B"][0], force=True, about=issues["B"][1])
     monkeypatch.undo()
@@ -454,7 +461,7 @@ def test_demo_refuses_a_folder_with_other_files_before_building(tmp_path, capsys
 @pytest.mark.parametrize("op,k", [("open", 1), ("mkdir", 1), ("write", 2)], ids=["lock", "staging", "file"])
 def test_disk_full_read_only_and_no_permission_are_one_line(tmp_path, capsys, monkeypatch, code, text, op, k):
     dest = tmp_path / "book"
-    monkeypatch.setattr(outfiles, "os", FaultyOs(op, k, OSError(code, os.strerror(code))))
+    patch_os(monkeypatch, FaultyOs(op, k, OSError(code, os.strerror(code))))
     rc = cli.main(["build", str(_spec_file(tmp_path, "A")), "--out", str(dest)])
     err = capsys.readouterr().err
     monkeypatch.undo()
@@ -483,7 +490,7 @@ def test_the_folder_you_are_in_is_refused(tmp_path, capsys, monkeypatch):
 # ---------------------------------------------------------------- single files
 def test_single_file_writers_fail_in_one_line_and_leave_nothing(tmp_path, capsys, monkeypatch):
     out = tmp_path / "site.toml"
-    monkeypatch.setattr(outfiles, "os", FaultyOs("write", 1, OSError(errno.ENOSPC, "No space left on device")))
+    patch_os(monkeypatch, FaultyOs("write", 1, OSError(errno.ENOSPC, "No space left on device")))
     rc = cli.main(["export", "CO2", "--format", "toml", "--out", str(out)])
     err = capsys.readouterr().err
     monkeypatch.undo()
@@ -500,8 +507,8 @@ def test_single_file_writers_fail_in_one_line_and_leave_nothing(tmp_path, capsys
 def test_a_file_that_appears_meanwhile_is_never_replaced_without_force(tmp_path, monkeypatch):
     out = tmp_path / "site.toml"
     hook = FaultyOs("fsync", 1, None, hook=lambda: out.write_text("another run's file"))
-    monkeypatch.setattr(outfiles, "os", hook)
+    patch_os(monkeypatch, hook)
     with pytest.raises(OutputExistsError, match="already exists"):
-        outfiles.write_files({out: "mine"}, force=False)
+        filewrite.write_files({out: "mine"}, force=False)
     monkeypatch.undo()
     assert out.read_text() == "another run's file" and sorted(os.listdir(tmp_path)) == ["site.toml"]

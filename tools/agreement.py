@@ -18,7 +18,7 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 from tablegen.calc.agreement import all_figures, defaults_from, render_agreement, render_defaults  # noqa: E402
-from tablegen.core.outfiles import write_bytes  # noqa: E402
+from tablegen.core.filewrite import write_bytes  # noqa: E402
 
 
 def main() -> int:

@@ -37,7 +37,7 @@ sys.path.insert(0, str(ROOT))
 import tablegen  # noqa: E402
 from tablegen.cli import main as cli  # noqa: E402
 from tablegen.data import formats  # noqa: E402
-from tablegen.core.outfiles import write_bytes  # noqa: E402
+from tablegen.core.filewrite import write_bytes  # noqa: E402
 from tablegen.thermo.substance import Anchor, Datum  # noqa: E402
 
 OUT = ROOT / "docs" / "examples"

@@ -35,7 +35,7 @@ sys.path.insert(0, str(ROOT))
 from tablegen.data.library import library  # noqa: E402
 from tablegen.data.tomlout import table  # noqa: E402
 from tablegen.calc.fitting import FitError, fit_cp_table, residuals_against  # noqa: E402
-from tablegen.core.outfiles import write_bytes  # noqa: E402
+from tablegen.core.filewrite import write_bytes  # noqa: E402
 from tablegen.thermo.polynomial import NINE, Polynomial  # noqa: E402
 from tablegen.thermo.substance import R_MOLAR  # noqa: E402
 

@@ -458,7 +458,7 @@ def species_data(rec, T: np.ndarray, agreement, *, held_out: str | None = None) 
 
     Parameters
     ----------
-    rec : library record (tablegen.data.library.Record)
+    rec : library record (tablegen.data.records.Record)
     T : temperatures, K
     agreement : agreement rows (a list, or a mapping species id -> rows)
     held_out : an evaluation (tablegen.calc.agreement.EVALUATION_OF values, e.g.

@@ -2,7 +2,7 @@
 
 The bound is found on a dense grid between each pair of rows (one evaluation for every
 column of a table); ``auto_step`` picks the largest round step whose bound stays inside
-a tolerance. Also the keys the uncertainty budget knows (their SI units), shared with
+a tolerance (``step_within`` the walk, which a book's automatic grid takes too). Also the keys the uncertainty budget knows (their SI units), shared with
 tablegen/calc/uncertainty.py.
 """
 
@@ -59,7 +59,8 @@ def interpolation_bound(substance, key: str, T_rows, *, P_Pa: float = P_STD, n_f
     return interpolation_bounds(substance, (key,), T_rows, P_Pa=P_Pa, n_fine=n_fine)[key]
 
 
-def interpolation_bounds(substance, keys, T_rows, *, P_Pa: float = P_STD, n_fine: int = 64) -> dict:
+def interpolation_bounds(substance, keys, T_rows, *, P_Pa: float = P_STD, n_fine: int = 64,
+                         values=None) -> dict:
     """Largest error of linear interpolation in each of ``keys`` between adjacent rows.
 
     For each interval [T_i, T_i+1] the functions are evaluated on a fine grid
@@ -70,19 +71,25 @@ def interpolation_bounds(substance, keys, T_rows, *, P_Pa: float = P_STD, n_fine
     (only the functions they need); the refinement grid depends on where each key's
     error is largest, so it is evaluated per key.
 
+    ``values(keys, T)`` gives the values to bound (default: the properties of the
+    substance at ``P_Pa``); a table's columns pass their own (tablegen.spec.grids).
+
     Returns
     -------
     {key: array of len(T_rows) - 1 bounds, SI unit of the key}.
     """
     keys = tuple(keys)
+    if values is None:
+        def values(ks, T):
+            return _values(substance, ks, T, P_Pa)
     Tr = np.asarray(T_rows, float)
     if Tr.ndim != 1 or Tr.size < 2 or not np.all(np.diff(Tr) > 0):
         raise InputError("interpolation bound: rows must be at least 2 increasing temperatures")
     a, b = Tr[:-1], Tr[1:]
-    ends = _values(substance, keys, Tr, P_Pa)
+    ends = values(keys, Tr)
     t = np.linspace(0.0, 1.0, n_fine + 1)
     grid = a[:, None] + (b - a)[:, None] * t[None, :]
-    fine = _values(substance, keys, grid.ravel(), P_Pa)
+    fine = values(keys, grid.ravel())
     dt = 1.0 / n_fine
     bp = substance.poly.T_bounds[1:-1]
     out = {}
@@ -97,7 +104,7 @@ def interpolation_bounds(substance, keys, T_rows, *, P_Pa: float = P_STD, n_fine
         best = e[np.arange(e.shape[0]), i]
         t2 = np.clip(t[i][:, None] + np.linspace(-dt, dt, 33)[None, :], 0.0, 1.0)
         T2 = a[:, None] + (b - a)[:, None] * t2
-        e2 = np.abs(_values(substance, (k,), T2.ravel(), P_Pa)[k].reshape(T2.shape) - line(t2))
+        e2 = np.abs(values((k,), T2.ravel())[k].reshape(T2.shape) - line(t2))
         best = np.maximum(best, e2.max(axis=1))
         # breakpoints of the collapsed polynomial: the function may jump there
         for Tb in bp:
@@ -105,7 +112,7 @@ def interpolation_bounds(substance, keys, T_rows, *, P_Pa: float = P_STD, n_fine
             if 0 <= j < a.size:
                 tb = (np.array([Tb * (1 - 1e-12), Tb, Tb * (1 + 1e-12)]) - a[j]) / (b[j] - a[j])
                 tb = np.clip(tb, 0.0, 1.0)
-                f = _values(substance, (k,), a[j] + (b[j] - a[j]) * tb, P_Pa)[k]
+                f = values((k,), a[j] + (b[j] - a[j]) * tb)[k]
                 best[j] = max(best[j], float(np.max(np.abs(f - (fa[j] + (fb[j] - fa[j]) * tb)))))
         scale = np.maximum(np.abs(fa), np.abs(fb))
         out[k] = best * (1 + 1e-5) + 8 * np.finfo(float).eps * scale
@@ -147,29 +154,76 @@ def auto_step(substance, keys, T_lo: float, T_hi: float, tolerance, *, P_Pa: flo
         rel = True
     if not all(math.isfinite(v) and v > 0 for v in tol.values()):
         raise SpecError("automatic step: tolerance must be a positive number")
-    for step in round_steps_down(T_hi - T_lo):
+
+    def rows_for(step):
         rows = np.arange(T_lo, T_hi, step)
-        rows = np.append(rows[rows < T_hi - 1e-9 * T_hi], T_hi)
-        if rows.size > 200000:
+        return np.append(rows[rows < T_hi - 1e-9 * T_hi], T_hi)
+
+    found = step_within(substance, keys, round_steps_down(T_hi - T_lo), rows_for, tol, relative=rel, P_Pa=P_Pa)
+    if found is not None:
+        return float(found[0])
+    raise SpecError(f"automatic step: no step down to 0.01 K keeps interpolation within {tolerance!r}")
+
+
+def step_within(substance, keys, steps, rows_for, tol: dict, *, relative: bool, P_Pa: float = P_STD,
+                values=None, max_rows: int = 200000):
+    """The first of ``steps`` (largest first) whose rows keep the bound of linear
+    interpolation (:func:`interpolation_bounds`) within ``tol`` for every key.
+
+    Parameters
+    ----------
+    steps : candidate steps, largest first, in the unit ``rows_for`` reads
+    rows_for : step -> increasing row temperatures, K
+    tol : key -> tolerance: relative (``relative``: to |value|, or to cp·T for the
+        energies with a datum, ENERGY_KEYS, at each interval's middle) or absolute, SI
+    values : ``values(keys, T)``, as :func:`interpolation_bounds`
+    max_rows : the walk stops at a step that gives more rows
+
+    Returns
+    -------
+    (step, worst) with worst the largest ratio of bound to its scale (relative) or the
+    largest bound (absolute) over every key and interval; None if no step does.
+    """
+    keys = tuple(keys)
+    if values is None:
+        def values(ks, T):
+            return _values(substance, ks, T, P_Pa)
+    for step in steps:
+        rows = rows_for(step)
+        if rows.size > max_rows:
             break
-        ok = True
+        if rows.size < 2:
+            continue
+        mid = 0.5 * (rows[1:] + rows[:-1])
+        cp_keys = tuple(dict.fromkeys("cp_molar" if k.endswith("_molar") else "cp"
+                                      for k in keys if relative and k in ENERGY_KEYS))
+        at_rows = values(keys, rows)
+        at_mid = values(tuple(dict.fromkeys(keys + cp_keys)), mid)
+        scales = {}
         for k in keys:
-            bnd = interpolation_bound(substance, k, rows, P_Pa=P_Pa)
-            if rel:
-                mid = 0.5 * (rows[1:] + rows[:-1])
-                if k in ENERGY_KEYS:
-                    p = substance.properties(mid)
-                    scale = (p["cp_molar"] if k.endswith("_molar") else p["cp"]) * mid
-                else:
-                    scale = np.abs(_values(substance, (k,), mid, P_Pa)[k])
-                ok = bool(np.all(bnd <= tol[k] * scale))
+            if not relative:
+                scales[k] = 1.0
+            elif k in ENERGY_KEYS:
+                scales[k] = at_mid["cp_molar" if k.endswith("_molar") else "cp"] * mid
             else:
-                ok = bool(np.all(bnd <= tol[k]))
+                scales[k] = np.abs(at_mid[k])
+        # the error at the midpoints is a true error, below the bound: a step it already
+        # breaks is passed over without the dense evaluation (speed only, same choice)
+        if any(np.any(np.abs(at_mid[k] - 0.5 * (at_rows[k][1:] + at_rows[k][:-1])) > tol[k] * scales[k])
+               for k in keys):
+            continue
+        bnd = interpolation_bounds(substance, keys, rows, P_Pa=P_Pa, values=values)
+        ok, worst = True, 0.0
+        for k in keys:
+            scale = scales[k]
+            ok = ok and bool(np.all(bnd[k] <= tol[k] * scale))
+            with np.errstate(divide="ignore", invalid="ignore"):
+                worst = max(worst, float(np.max(bnd[k] / scale)))
             if not ok:
                 break
         if ok:
-            return float(step)
-    raise SpecError(f"automatic step: no step down to 0.01 K keeps interpolation within {tolerance!r}")
+            return step, worst
+    return None
 
 
 # ----------------------------------------------------------------- rounding

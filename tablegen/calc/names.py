@@ -9,7 +9,8 @@
 from __future__ import annotations
 
 from ..core import composition
-from ..data.library import library, norm_name
+from ..data.library import library
+from ..data.records import norm_name
 from ..data.mixtures import shipped_mixtures
 from ..core.errors import InputError, NameLookupError
 from ..thermo.build import mixture_substance, species_substance

@@ -144,7 +144,7 @@ def make_oxidant(*, base="air", composition=None, o2_percent=None, relative_humi
 def _dry_base(base, composition, what: str, notes: list) -> tuple[dict, str, str]:
     """(dry mole fractions as named, label, kind "composition" / "oxygen" / "air") of the dry oxidant."""
     from ..data.mixtures import shipped_mixtures
-    from ..data.library import norm_name
+    from ..data.records import norm_name
     if composition is not None:
         dry, _ = _fractions(composition, f"{what}.composition")
         return dry, "dry oxidant " + write_composition(dry, digits=4), "composition"
@@ -336,7 +336,7 @@ _HUMIDITY_RATIO = re.compile(r"^([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(k
 def is_oxidant_base(head: str) -> bool:
     """Whether ``head`` is a base word of the BASE,KEY=VALUE oxidant form (air and its aliases, oxygen)."""
     from ..data.mixtures import shipped_mixtures
-    from ..data.library import norm_name
+    from ..data.records import norm_name
     b = norm_name(head)
     m = shipped_mixtures().get(b)
     return b in ("oxygen", "o2") or (m is not None and m["id"] == "air")

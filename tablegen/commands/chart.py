@@ -228,7 +228,7 @@ def run(args) -> int:
 
     stem = _stem(args.name or name or sub.id)
     out = Path(args.out)
-    from ..core.outfiles import check_files, write_files
+    from ..core.filewrite import check_files, write_files
     jobs = {}
     if args.format in ("pdf", "both"):
         jobs[out / f"{stem}-charts.pdf"] = lambda: chart_pdf(models, title=f"{sub.name}: T-s and h-s charts",

@@ -207,7 +207,7 @@ def render(sub, lib, fmt: str, rid: str) -> str:
 
 def run(args) -> int:
     from ..calc import names as api
-    from ..core.outfiles import check_files, write_files
+    from ..core.filewrite import check_files, write_files
     if args.out:
         check_files([args.out], args.force)
     lib = data_notices(args)

@@ -162,7 +162,7 @@ def report(fit, tab, path: str) -> list[str]:
 def run(args) -> int:
     from ..data.validate import check_polynomial
     from ..calc.fitting import fit_cp_table
-    from ..core.outfiles import check_files, write_files
+    from ..core.filewrite import check_files, write_files
     from ..core.units import quantity, temperature_K
     from .common import data_notices, notice
     from .export import check_id, with_poly, write_record

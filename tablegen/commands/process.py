@@ -191,7 +191,7 @@ def step_from_args(args, barometer_Pa: float | None = None) -> tuple[str, dict, 
 
 def resolve_substance(args):
     from ..calc import names as api
-    from ..calc.steps import incompressible
+    from ..calc.incompressible import incompressible
     from ..core.units import pressure_Pa
     if args.incompressible is not None:
         if args.substance is not None:

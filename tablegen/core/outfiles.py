@@ -1,6 +1,4 @@
-"""Writing output files: a folder published as one set, or single files; never half-visible.
-
-Two ways to write, both all-or-nothing, used by every command that writes:
+"""Writing an output folder as one set, never half-visible.
 
 * :func:`publish_folder` -- a book, the demo books, a QA comparison: a folder that holds one
   issue. Every file of the set and a manifest (``tablegen-issue.sha256``: SHA-256 and name of
@@ -13,9 +11,9 @@ Two ways to write, both all-or-nothing, used by every command that writes:
   folder tablegen owns is replaced: one that is empty, or holds nothing but the files of an
   earlier issue (named in its manifest) or of this one. A folder with any other file is
   refused, so a swap never moves, hides or deletes a user's file.
-* :func:`write_files` -- charts, exported and fitted records: each file is written under a
-  hidden temporary name in its folder, fsynced and renamed into place; without --force a
-  file that appears meanwhile is never replaced (a hard link places the new file).
+
+Single files are written by tablegen.core.filewrite, and both use the OS layer of
+tablegen.core.oswrite.
 
 Every OS fault (no space, read-only, permission denied, name too long, a file where a
 folder is needed) becomes one :class:`OutputError` naming the path and the cause, and
@@ -30,14 +28,13 @@ import contextlib
 import errno
 import os
 import re
-import signal
 import stat
 import sys
-import threading
 from pathlib import Path
 
-from .errors import (Interrupted, OutputBusyError, OutputError, OutputExistsError, TablegenError,
-                     Terminated)
+from .errors import OutputBusyError, OutputExistsError, TablegenError, Terminated
+from .oswrite import (WRITTEN, fault, fsync_dir, interrupted, show_path, signals_held, unlink_quietly,
+                      write_new)
 
 #: The manifest of a published folder; ``sha256sum -c tablegen-issue.sha256`` checks a copy.
 MANIFEST = "tablegen-issue.sha256"
@@ -46,88 +43,13 @@ MANIFEST_HEAD = "# tablegen-issue/1"
 LITTER = frozenset({".DS_Store", "Thumbs.db", "desktop.ini"})
 _MANIFEST_LINE = re.compile(r"^([0-9a-f]{64})  ([^/\\\x00-\x1f]+)$")
 _MANIFEST_MAX_BYTES = 1 << 20
-#: Paths written by this process's last command, for the message after an interruption.
-WRITTEN: list = []
-_HINTS = {
-    errno.ENOSPC: "free space there or choose another --out",
-    errno.EROFS: "the file system is read-only; choose another --out",
-    errno.EACCES: "choose an --out you may write to",
-    errno.EPERM: "choose an --out you may write to",
-    errno.ENAMETOOLONG: "choose a shorter --out path",
-    errno.ENOTDIR: "a part of the path is a file; choose another --out",
-    errno.EISDIR: "a folder stands where a file goes; choose another --out",
-    errno.EXDEV: "choose an --out folder inside a folder on the same drive",
-}
-if hasattr(errno, "EDQUOT"):
-    _HINTS[errno.EDQUOT] = "your disk quota is used up; free space or choose another --out"
-
-
-# ---------------------------------------------------------------- messages
-def fault(e: OSError, path, state: str = "", *, this_path: bool = False) -> OutputError:
-    """One line for an OS error: the path (the error's own unless this_path), the cause, what was left, what to do."""
-    cause = e.strerror or str(e)
-    own = None if this_path else getattr(e, "filename", None)
-    where = _show(Path(os.fsdecode(own))) if own else _show(Path(path))
-    hint = _HINTS.get(e.errno, "choose another --out")
-    return OutputError(f"cannot write {where}: {cause}" + (f" ({state})" if state else "") + f"; {hint}")
-
-
-def _interrupted(e: BaseException, state: str) -> Interrupted:
-    status = e.exit_status if isinstance(e, Terminated) else 130
-    word = "terminated" if isinstance(e, Terminated) else "interrupted"
-    return Interrupted(f"{word}; {state}", status)
-
-
-def _show(p: Path) -> str:
-    """A path as the messages print it: relative to the working folder where it lies below it."""
-    try:
-        rel = os.path.relpath(p)
-    except ValueError:          # another drive (Windows)
-        return str(p)
-    return str(p) if rel.startswith("..") else rel
 
 
 def _count(n: int, word: str) -> str:
     return f"{n} {word}{'' if n == 1 else 's'}"
 
 
-# ---------------------------------------------------------------- low-level writing
-def _write_new(path: Path, data: bytes) -> None:
-    """Create path (it must not exist), write data, fsync; mode 0666 less the umask; removed on failure."""
-    fd = os.open(path, os.O_WRONLY | os.O_CREAT | os.O_EXCL | getattr(os, "O_BINARY", 0), 0o666)
-    try:
-        try:
-            view = memoryview(data)
-            while view:
-                n = os.write(fd, view)
-                view = view[n:]
-            os.fsync(fd)
-        finally:
-            os.close(fd)
-    except BaseException:
-        _unlink_quietly(path)
-        raise
-
-
-def _fsync_dir(path: Path) -> None:
-    """Make a rename in this folder durable (POSIX; Windows has no folder handles to sync)."""
-    if os.name == "nt":
-        return
-    fd = os.open(path, os.O_RDONLY)
-    try:
-        os.fsync(fd)
-    except OSError as e:
-        if e.errno not in (errno.EINVAL, errno.ENOTSUP, errno.EOPNOTSUPP):   # cannot sync a folder there
-            raise
-    finally:
-        os.close(fd)
-
-
-def _unlink_quietly(path: Path) -> None:
-    with contextlib.suppress(OSError):
-        os.unlink(path)
-
-
+# ---------------------------------------------------------------- the swap
 def _remove_tree(path: Path) -> None:
     import shutil
     shutil.rmtree(path)
@@ -159,30 +81,6 @@ def _exchange(a: Path, b: Path) -> None:
     if err in (errno.EINVAL, errno.ENOSYS, errno.ENOTSUP, errno.EOPNOTSUPP):
         raise _NoExchange
     raise OSError(err, os.strerror(err), str(b))
-
-
-@contextlib.contextmanager
-def _signals_held():
-    """Hold Ctrl-C and termination signals for a few system calls, so a run knows what it did.
-
-    The handlers are swapped for one that notes the signal, and the signal is raised again
-    once the block is done (main thread only: Python runs signal handlers there).
-    """
-    if threading.current_thread() is not threading.main_thread():
-        yield
-        return
-    got, saved = [], {}
-    for name in ("SIGINT", "SIGTERM", "SIGHUP"):
-        sig = getattr(signal, name, None)
-        if sig is not None and signal.getsignal(sig) is not None:
-            saved[sig] = signal.signal(sig, lambda n, frame: got.append(n))
-    try:
-        yield
-    finally:
-        for sig, handler in saved.items():
-            signal.signal(sig, handler)
-        if got:
-            signal.raise_signal(got[0])
 
 
 # ---------------------------------------------------------------- the lock
@@ -226,7 +124,7 @@ class Lock:
             try:
                 fd = os.open(self.path, os.O_RDWR | os.O_CREAT, 0o666)
             except OSError as e:
-                raise fault(e, self.path, f"the lock beside {_show(self.dest)}/; nothing was written") from None
+                raise fault(e, self.path, f"the lock beside {show_path(self.dest)}/; nothing was written") from None
             try:
                 locked = _try_lock(fd)
             except BaseException:
@@ -236,7 +134,7 @@ class Lock:
                 holder = _read_text(fd)
                 os.close(fd)
                 who = f"process {holder}" if holder else "another process"
-                raise OutputBusyError(f"{_show(self.dest)}/ is being written by another tablegen run ({who}); "
+                raise OutputBusyError(f"{show_path(self.dest)}/ is being written by another tablegen run ({who}); "
                                       f"wait for it to finish, or choose another --out folder")
             try:           # the file may have been released and deleted between open and lock
                 same = os.path.samestat(os.fstat(fd), os.stat(self.path))
@@ -246,7 +144,7 @@ class Lock:
                 break
             os.close(fd)
         else:  # pragma: no cover - a hundred releases in a row between open and lock
-            raise OutputBusyError(f"{_show(self.dest)}/ is being written by other tablegen runs; try again")
+            raise OutputBusyError(f"{show_path(self.dest)}/ is being written by other tablegen runs; try again")
         self.fd = fd
         try:
             self.previous = _read_text(fd)
@@ -262,7 +160,7 @@ class Lock:
 
     def __exit__(self, *exc):
         if os.name != "nt":            # Windows cannot delete an open file; the next run reuses it
-            _unlink_quietly(self.path)
+            unlink_quietly(self.path)
         os.close(self.fd)
         self.fd = None
         return False
@@ -326,13 +224,13 @@ def _refuse_location(dest: Path, what: str):
     while not os.path.lexists(above) and above.parent != above:
         above = above.parent
     if not os.path.isdir(above):
-        raise OutputExistsError(f"{_show(above)} is a file; give --out a path inside a folder")
+        raise OutputExistsError(f"{show_path(above)} is a file; give --out a path inside a folder")
     if dest.parent == dest or os.path.ismount(dest):
         raise OutputExistsError(f"{dest} is the top of a drive; a {what} is published by renaming a folder "
                                 f"inside it: give --out a folder within it, e.g. {dest / 'NAME'}")
     cwd = Path(os.path.realpath(os.getcwd()))
     if cwd == dest or dest in cwd.parents:
-        raise OutputExistsError(f"{_show(dest)}/ is the folder you are working in (or holds it); a {what} "
+        raise OutputExistsError(f"{show_path(dest)}/ is the folder you are working in (or holds it); a {what} "
                                 f"folder is replaced as a whole: run tablegen from outside it")
 
 
@@ -354,7 +252,7 @@ def _allowed(folder: Path, names) -> set:
 
 
 def _foreign_message(dest: Path, foreign, what: str) -> str:
-    return (f"{_show(dest)}/ holds {_count(len(foreign), 'file')} that tablegen did not publish there "
+    return (f"{show_path(dest)}/ holds {_count(len(foreign), 'file')} that tablegen did not publish there "
             f"(first: {foreign[0]}); a {what} folder is replaced as a whole, so it must be new, empty or "
             f"hold only an earlier issue: move them out or choose another --out folder")
 
@@ -372,7 +270,7 @@ def _inspect(dest: Path, names, force: bool, what: str) -> bool:
     except OSError as e:
         raise fault(e, dest, "nothing was written") from None
     if not stat.S_ISDIR(st.st_mode):
-        raise OutputExistsError(f"{_show(dest)} is a file, not a folder; a {what} is written into a folder: "
+        raise OutputExistsError(f"{show_path(dest)} is a file, not a folder; a {what} is written into a folder: "
                                 f"give --out the path of a folder")
     try:
         content = [e for e in sorted(os.listdir(dest)) if e not in LITTER]
@@ -388,10 +286,10 @@ def _inspect(dest: Path, names, force: bool, what: str) -> bool:
         issue = next((n[len("issue: "):] for n in (found[1] if found else []) if n.startswith("issue: ")), "")
         issue = re.sub(r"(fingerprint [0-9a-f]{16})[0-9a-f]+", r"\1…", issue)
         if issue:
-            raise OutputExistsError(f"{_show(dest)}/ holds an earlier issue ({issue}); pass --force to replace "
+            raise OutputExistsError(f"{show_path(dest)}/ holds an earlier issue ({issue}); pass --force to replace "
                                     f"it with this one, or choose another --out folder")
         listed = [e for e in content if e != MANIFEST] or content
-        raise OutputExistsError(f"{_count(len(listed), 'file')} of the {what} already exist in {_show(dest)}/ "
+        raise OutputExistsError(f"{_count(len(listed), 'file')} of the {what} already exist in {show_path(dest)}/ "
                                 f"(first: {listed[0]}); pass --force to replace them, or choose another "
                                 f"--out folder")
     return True
@@ -435,11 +333,11 @@ def _clean_stale(dest: Path, previous_holder: str) -> list[str]:
     who = f" (process {previous_holder})" if previous_holder else ""
     did = []
     if restored:
-        did.append(f"put back the previous issue of {_show(dest)}/ that it had moved aside")
+        did.append(f"put back the previous issue of {show_path(dest)}/ that it had moved aside")
     if removed:
         did.append(f"removed its {'staging folder' if len(removed) == 1 else f'{len(removed)} staging folders'} "
                    f"{', '.join(removed)}")
-    return [f"note: an earlier run into {_show(dest)}/ was interrupted{who}; " + " and ".join(did)]
+    return [f"note: an earlier run into {show_path(dest)}/ was interrupted{who}; " + " and ".join(did)]
 
 
 def publish_folder(dest, files: dict, *, force: bool, about=(), what: str = "book") -> list[str]:
@@ -468,15 +366,15 @@ def publish_folder(dest, files: dict, *, force: bool, about=(), what: str = "boo
     try:
         notes = _publish(dest, files, force, about, what, state)
     except (KeyboardInterrupt, Terminated) as e:
-        shown = _show(dest)
-        raise _interrupted(e, f"{shown}/ holds the new issue, complete" if state["published"]
+        shown = show_path(dest)
+        raise interrupted(e, f"{shown}/ holds the new issue, complete" if state["published"]
                            else f"nothing was published; {shown}/ is as it was") from None
     WRITTEN.extend(dest / n for n in sorted([*files, MANIFEST]))
     return notes
 
 
 def _publish(dest: Path, files: dict, force: bool, about, what: str, state: dict) -> list[str]:
-    shown = _show(dest)
+    shown = show_path(dest)
     try:
         dest.parent.mkdir(parents=True, exist_ok=True)
     except OSError as e:
@@ -496,13 +394,13 @@ def _publish(dest: Path, files: dict, force: bool, about, what: str, state: dict
                 os.mkdir(stage)
                 for name in [*sorted(files), MANIFEST]:
                     current = name            # a fault names the file as the user will find it
-                    _write_new(stage / name, files[name] if name in files else manifest(files, about))
+                    write_new(stage / name, files[name] if name in files else manifest(files, about))
                 current = None
                 if had:
                     os.chmod(stage, stat.S_IMODE(os.stat(dest).st_mode))
-                _fsync_dir(stage)
+                fsync_dir(stage)
                 allowed = _allowed(dest, files) if had else set()
-                with _signals_held():
+                with signals_held():
                     leftover = _swap(stage, dest, had)
                     state["published"] = True
                     if leftover is not None:
@@ -516,7 +414,7 @@ def _publish(dest: Path, files: dict, force: bool, about, what: str, state: dict
                 raise fault(e, dest / current if current else dest, f"nothing was published; {shown}/ is as it was",
                             this_path=current is not None) from None
             try:
-                _fsync_dir(dest.parent)
+                fsync_dir(dest.parent)
             except OSError as e:
                 raise fault(e, dest.parent, f"{shown}/ holds the new issue, but the disk did not confirm "
                                             f"it is stored: check the drive") from None
@@ -529,7 +427,7 @@ def _publish(dest: Path, files: dict, force: bool, about, what: str, state: dict
                 try:
                     _remove_tree(leftover)
                 except OSError as e:
-                    notes.append(f"note: could not remove the previous issue from {_show(leftover)} "
+                    notes.append(f"note: could not remove the previous issue from {show_path(leftover)} "
                                  f"({e.strerror}); the next run into {shown}/ removes it")
     return notes
 
@@ -538,7 +436,7 @@ def _swap(stage: Path, dest: Path, had: bool) -> Path | None:
     """Make the staged set the folder dest in one step; the path of the old set to delete, if any."""
     if not had:
         for e in LITTER:
-            _unlink_quietly(dest / e)
+            unlink_quietly(dest / e)
         try:
             os.rename(stage, dest)        # POSIX: replaces a missing or empty folder in one step
             return None
@@ -575,90 +473,3 @@ def _swap_back(old: Path, dest: Path, stage: Path) -> None:
     os.rename(old, dest)
 
 
-# ---------------------------------------------------------------- single files
-def check_files(paths, force: bool) -> None:
-    """Refuse before writing anything: a folder where a file goes, or a file that exists without force."""
-    paths = [Path(p) for p in paths]
-    for p in paths:
-        if p.is_dir():
-            raise OutputExistsError(f"{p} is a folder; give the path of a file, e.g. {p / 'NAME'}")
-        if p.parent.exists() and not p.parent.is_dir():
-            raise OutputExistsError(f"{p.parent} is a file; give a path inside a folder")
-    existing = [p for p in paths if os.path.lexists(p)]
-    if existing and not force:
-        raise OutputExistsError(_exists(existing))
-
-
-def _exists(existing) -> str:
-    if len(existing) == 1:
-        return f"{existing[0]} already exists; pass --force to replace it, or choose another --out"
-    return (f"{len(existing)} files already exist (first: {existing[0]}); pass --force to replace them, "
-            f"or choose another --out")
-
-
-def write_files(files: dict, force: bool) -> list[Path]:
-    """Write ``{path: bytes or str}``, each under a temporary name and renamed; all checked first.
-
-    On any fault or interruption every temporary file is removed and, without force,
-    every file this call had already placed; with force a file already replaced stays
-    replaced (each file is complete either way).
-    """
-    data = {Path(p): (d.encode("utf-8") if isinstance(d, str) else bytes(d)) for p, d in files.items()}
-    check_files(data, force)
-    temps, placed, current, done = {}, [], None, False
-    try:
-        try:
-            for p in data:
-                current = p
-                p.parent.mkdir(parents=True, exist_ok=True)
-                tmp = p.parent / f".{p.name}.tablegen-part-{os.urandom(4).hex()}"
-                _write_new(tmp, data[p])
-                temps[p] = tmp
-            for p in data:
-                current = p
-                with _signals_held():
-                    if force:
-                        os.replace(temps[p], p)
-                    else:
-                        _place_new(temps[p], p)
-                    placed.append(p)
-                    del temps[p]
-            for d in dict.fromkeys(p.parent for p in data):
-                _fsync_dir(d)
-            done = True
-        finally:
-            if not done:
-                for t in temps.values():
-                    _unlink_quietly(t)
-                if not force:
-                    for p in placed:
-                        _unlink_quietly(p)
-    except OSError as e:
-        left = "files already replaced stay replaced" if force and placed else "no file was written"
-        raise fault(e, current, left, this_path=e.errno not in (errno.ENOTDIR, errno.EEXIST)) from None
-    except (KeyboardInterrupt, Terminated) as e:
-        left = "files already replaced stay replaced" if force and placed else "no file was written"
-        raise _interrupted(e, left) from None
-    WRITTEN.extend(data)
-    return list(data)
-
-
-def _place_new(tmp: Path, path: Path) -> None:
-    """Rename tmp to path unless path exists, even if it appears meanwhile (a hard link)."""
-    try:
-        os.link(tmp, path)
-    except FileExistsError:
-        raise OutputExistsError(_exists([path])) from None
-    except OSError as e:
-        if e.errno not in (errno.EPERM, errno.ENOTSUP, errno.EOPNOTSUPP, errno.EMLINK, errno.ENOSYS):
-            raise
-        if os.path.lexists(path):          # no hard links on this file system (FAT, some shares)
-            raise OutputExistsError(_exists([path])) from None
-        os.rename(tmp, path)
-        return
-    os.unlink(tmp)
-
-
-def write_bytes(path, data: bytes) -> None:
-    """Write one file (replacing it) through a temporary name, fsync and rename."""
-    write_files({path: data}, force=True)

@@ -5,7 +5,8 @@ from __future__ import annotations
 import tomllib
 from functools import lru_cache
 
-from .library import library, norm_name
+from .library import library
+from .records import norm_name
 
 
 @lru_cache(maxsize=None)
