@@ -19,7 +19,8 @@ import tablegen
 from tablegen.cli import main
 from tablegen.data.library import gasdata_dir
 from tablegen.core.errors import RangeError, TablegenError
-from tablegen.calc.incompressible import INVERSE_RTOL, Incompressible, incompressible
+from tablegen.calc.incompressible import Incompressible, incompressible
+from tablegen.thermo.inverse import INVERSE_RTOL
 from tablegen.calc.steps import process
 from tablegen.thermo.polynomial import Polynomial
 from tablegen.thermo.substance import R_MOLAR, Substance

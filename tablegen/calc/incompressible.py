@@ -14,11 +14,10 @@ from types import MappingProxyType
 
 import numpy as np
 
+from ..thermo.inverse import INVERSE_RTOL   # the incompressible inverse T(u) meets the gas one's tolerance
 from ..core.errors import DataError, InputError, NameLookupError, RangeError
 from ..thermo.substance import T_REF
 
-#: Relative tolerance of the incompressible inverse T(u), like Substance.T_from.
-INVERSE_RTOL = 1e-10
 
 
 @dataclass(frozen=True, slots=True, eq=False)

@@ -5,7 +5,8 @@ from __future__ import annotations
 import sys
 
 from ..core.errors import InputError, RangeError
-from .common import add_unit_options, dumps
+from ..core.jsonout import dumps
+from .common import add_unit_options
 
 EXAMPLE = """--flow gives the heat input (LHV and HHV, kW and MMBtu/h) and the flue-gas and air flows
 (normal m³/h, kg/s); fuel flows kg/s, kg/h, t/h, lb/h, or for a gas kmol/h, Nm3/h (0 °C,

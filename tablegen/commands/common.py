@@ -5,7 +5,6 @@ from __future__ import annotations
 import sys
 
 from ..core.errors import InputError, NameLookupError
-from ..core.jsonout import clean, dumps  # noqa: F401  (the commands import them from here)
 
 
 #: --h-datum help where the default follows tablegen.thermo.substance.default_datum.

@@ -11,7 +11,8 @@ import sys
 from pathlib import Path
 
 from ..core.errors import InputError, NameLookupError
-from .common import dumps, notice
+from ..core.jsonout import dumps
+from .common import notice
 from .compare_table import (FILES, compared_keys, data_files, default_out, hint_lines, is_spec, load_spec,
                             publish, refuse_datum_options)
 

@@ -11,7 +11,8 @@ import sys
 from pathlib import Path
 
 from ..core.errors import InputError, NameLookupError, TablegenError
-from .common import dumps, notice, substance_with_options
+from ..core.jsonout import dumps
+from .common import notice, substance_with_options
 
 FILES = ("report.pdf", "deviations.csv", "summary.json")
 #: Exit status of an output problem (bad input is 2, as for every command).

@@ -14,7 +14,8 @@ import math
 import sys
 
 from ..core.errors import InputError, NameLookupError, RangeError
-from .common import add_unit_options, anchor_from_text, datum_from_text, dumps
+from ..core.jsonout import dumps
+from .common import add_unit_options, anchor_from_text, datum_from_text
 
 EXAMPLE = """Gauge pressures (barg, mbarg, kPag, psig) are read against --barometer (default 1.01325 bar).
 Flows: kg/s, kg/h, t/h, lb/h, lb/s, kmol/h, Nm3/h (0 °C, 101.325 kPa) or SCFM (60 °F,

@@ -4,7 +4,8 @@ from __future__ import annotations
 
 import sys
 
-from .common import dumps, notice
+from ..core.jsonout import dumps
+from .common import notice
 
 EXAMPLE = """example:
   tablegen species

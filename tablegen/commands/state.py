@@ -4,7 +4,8 @@ from __future__ import annotations
 
 import sys
 
-from .common import add_datum_options, add_unit_options, dumps, substance_with_options
+from ..core.jsonout import dumps
+from .common import add_datum_options, add_unit_options, substance_with_options
 
 EXAMPLE = """The answer comes in the units you typed: --T 15C gives °C and K, --P in psig gives psig
 and psia (gauge values against --barometer, default 1.01325 bar); --units SI or US, --T-unit

@@ -109,7 +109,7 @@ class Library:
         self.user_files.append(Path(path))
         try:
             ds = open_dataset(path, self.weights, user=True)
-            names = ds.names  # noqa: F841  (duplicate ids are refused here)
+            ds.names     # building the names refuses duplicate ids here
         except DataError as e:
             if self.strict:
                 raise
