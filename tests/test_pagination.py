@@ -173,3 +173,19 @@ def test_the_book_and_the_qa_report_flow_on_the_one_engine():
     book.space(book.y - book.bottom - L.text)    # a line's height left: the heading goes on
     book.heading("Caution", anchor="caution")
     assert len(book.pages) == 2 and ("anchor", "caution") in book.pages[1].ops
+
+
+def test_a_qa_report_heading_never_ends_a_page():
+    # a heading with room for itself but not for two lines after it goes to the next page
+    from tablegen.book.qa_layout import BOTTOM, HEADING_KEEP, heading, paragraph, report_flow
+    flow = report_flow()
+    paragraph(flow, "first page text")
+    flow.y = BOTTOM + 24 + HEADING_KEEP / 2
+    heading(flow, "Statistics")
+    assert len(flow.pages) == 2 and len(flow.pages[1]) == 1
+    # with room for both it stays
+    flow = report_flow()
+    paragraph(flow, "first page text")
+    flow.y = BOTTOM + 24 + HEADING_KEEP + 1
+    heading(flow, "Statistics")
+    assert len(flow.pages) == 1

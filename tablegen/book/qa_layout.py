@@ -138,12 +138,17 @@ def fmt_num(x, digits=3) -> str:
 
 
 # ---------------------------------------------------------------- sections
+#: Points of what follows a heading kept on its page (two lines of body text).
+HEADING_KEEP = 21.0
+
+
 def heading(flow, title: str):
     def draw(c, y):
         draw_text(c, MARGIN, y - 13, title, fonts.SANS_BOLD, 10.5)
         c.setStrokeColorRGB(*RULE)
         c.setLineWidth(0.5)
         c.line(MARGIN, y - 17, MARGIN + WIDTH, y - 17)
+    flow.keep_with_next(24, HEADING_KEEP)    # never a heading alone at the foot of a page
     flow.add(24, draw)
 
 
