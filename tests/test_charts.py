@@ -416,3 +416,17 @@ def test_png_pages_on_one_figure_equal_pngs_on_figures_of_their_own(air):
     alone = [chart_png(m, "A4", dpi=72) for m in models + models[:1]]
     assert reused == alone
     assert reused[0] != reused[1]
+
+
+def test_png_pages_are_opaque_rgb_with_their_text_and_no_software_chunk():
+    # the page is opaque white, so the PNG carries no alpha channel (a constant byte per
+    # pixel); the title and fingerprint stay readable in its tEXt chunks
+    from PIL import Image
+    air = tablegen.substance("air")
+    m = build_chart(air, parse_charts({"kind": "ts"}, "charts", units="SI")[0], T_range_K=(250.0, 1500.0))
+    data = chart_png(m, "A4", dpi=72)
+    img = Image.open(io.BytesIO(data))
+    assert img.mode == "RGB" and abs(img.size[0] - 842) <= 1 and abs(img.size[1] - 595) <= 1   # A4 landscape at 72 dpi
+    assert img.info["Title"] == m.title[:200] and m.fingerprint in img.info["Description"]
+    assert "Software" not in img.info and b"tIME" not in data
+    assert chart_png(m, "A4", dpi=72) == data

@@ -13,6 +13,11 @@ from ..spec.chart import PAPERS
 from .chart_compose import _compose, _Surface
 from .chart_layout import INK
 
+#: zlib level of the PNG files. A 300 dpi A4 chart, RGB (measured 2026-12-02): level 3
+#: encodes in 0.14 s to 649 KiB, the default 6 in 0.18 s to 558 KiB (RGBA at 6, as before:
+#: 0.23 s, 617 KiB); the pixels are the same at every level.
+PNG_COMPRESS_LEVEL = 3
+
 
 class _MplSurface(_Surface):
     def __init__(self, ax):
@@ -115,13 +120,27 @@ class PngPages:
             try:
                 _compose(_MplSurface(ax), model, 0.0, 0.0, W, H, page_text="")
                 buf = io.BytesIO()
-                fig.savefig(buf, format="png", dpi=dpi, facecolor="white",
-                            metadata={"Software": None, "Title": model.title[:200],
-                                      "Description": f"tablegen chart {model.fingerprint}"})
+                _save_rgb(fig, buf, dpi, {"Title": model.title[:200],
+                                          "Description": f"tablegen chart {model.fingerprint}"})
             finally:
                 for artist in (*ax.lines, *ax.patches, *ax.texts):
                     artist.remove()
         return buf.getvalue()
+
+
+def _save_rgb(fig, buf, dpi: int, text: dict) -> None:
+    """The drawn figure as an RGB PNG (the page is opaque white: an alpha channel would
+    only add a constant byte per pixel to encode), with ``text`` as tEXt chunks and the
+    resolution in pHYs; no time or software chunk, so the bytes are reproducible."""
+    from PIL import Image, PngImagePlugin
+
+    fig.canvas.draw()
+    w, h = fig.canvas.get_width_height(physical=True)
+    rgb = Image.frombuffer("RGBA", (w, h), fig.canvas.buffer_rgba(), "raw", "RGBA", 0, 1).convert("RGB")
+    info = PngImagePlugin.PngInfo()
+    for k, v in text.items():
+        info.add_text(k, v)
+    rgb.save(buf, format="png", pnginfo=info, dpi=(dpi, dpi), compress_level=PNG_COMPRESS_LEVEL)
 
 
 def chart_png(model, paper: str | None = None, dpi: int = 300) -> bytes:
