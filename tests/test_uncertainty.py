@@ -361,3 +361,19 @@ def test_species_class_defaults():
     assert ev.species_class({"N": 1, "O": 2}, "NO2") == "polyatomic radical"
     assert ev.species_class({"C": 1, "H": 4}) == "hydrocarbon or larger"
     assert ev.species_class({"C": 6, "H": 14}) == "hydrocarbon or larger"
+
+
+def test_interpolation_bounds_in_chunks_equal_one_grid_over_the_table(monkeypatch):
+    # a long table's fine grids are evaluated chunk by chunk (memory); every chunk stays on
+    # the polynomial's array path, so the bounds are the very numbers one grid gives
+    from tablegen.thermo.polynomial import SMALL
+    assert ip.BOUND_CHUNK // 2 * 33 > SMALL
+    sub = tablegen.substance("CO2")
+    rows = np.arange(200.0, 200.0 + 2.5 * ip.BOUND_CHUNK + 7)
+    keys = ("cp", "h", "s0", "Pr", "vr")
+    chunked = ip.interpolation_bounds(sub, keys, rows)
+    assert len(ip._chunks(rows.size - 1)) == 3
+    monkeypatch.setattr(ip, "BOUND_CHUNK", 10 ** 9)
+    whole = ip.interpolation_bounds(sub, keys, rows)
+    for k in keys:
+        assert np.array_equal(chunked[k], whole[k]), k

@@ -59,6 +59,43 @@ def interpolation_bound(substance, key: str, T_rows, *, P_Pa: float = P_STD, n_f
     return interpolation_bounds(substance, (key,), T_rows, P_Pa=P_Pa, n_fine=n_fine)[key]
 
 
+#: Row intervals whose fine grids are evaluated together: a table of 5,700 rows held some
+#: 60 MB of fine-grid values at once; in chunks it holds a third of that. Every chunk has
+#: at least half of this many intervals, so its grids (65 and 33 points an interval) stay
+#: above the polynomial's small-array size and take the same evaluation path, point for
+#: point the same bits, as one grid over the whole table.
+BOUND_CHUNK = 2048
+
+
+def _chunks(n: int) -> list[tuple[int, int]]:
+    """(start, stop) of the interval chunks; a short last chunk joins the one before it."""
+    edges = list(range(0, n, BOUND_CHUNK)) + [n]
+    if len(edges) > 2 and edges[-1] - edges[-2] < BOUND_CHUNK // 2:
+        del edges[-2]
+    return list(zip(edges[:-1], edges[1:]))
+
+
+def _bound_chunk(values, keys, ends, a, b, t, dt, lo, hi, best) -> None:
+    """The largest interpolation error of each key in the intervals lo..hi-1, into ``best``:
+    the fine grid, then a second grid around each interval's largest error."""
+    a, b = a[lo:hi], b[lo:hi]
+    grid = a[:, None] + (b - a)[:, None] * t[None, :]
+    fine = values(keys, grid.ravel())
+    for k in keys:
+        fa, fb = ends[k][lo:hi], ends[k][lo + 1:hi + 1]
+
+        def line(tt, fa=fa, fb=fb):
+            return fa[:, None] + (fb - fa)[:, None] * tt
+
+        e = np.abs(fine[k].reshape(grid.shape) - line(t[None, :]))
+        i = np.argmax(e, axis=1)
+        top = e[np.arange(e.shape[0]), i]
+        t2 = np.clip(t[i][:, None] + np.linspace(-dt, dt, 33)[None, :], 0.0, 1.0)
+        T2 = a[:, None] + (b - a)[:, None] * t2
+        e2 = np.abs(values((k,), T2.ravel())[k].reshape(T2.shape) - line(t2))
+        best[k][lo:hi] = np.maximum(top, e2.max(axis=1))
+
+
 def interpolation_bounds(substance, keys, T_rows, *, P_Pa: float = P_STD, n_fine: int = 64,
                          values=None) -> dict:
     """Largest error of linear interpolation in each of ``keys`` between adjacent rows.
@@ -88,24 +125,15 @@ def interpolation_bounds(substance, keys, T_rows, *, P_Pa: float = P_STD, n_fine
     a, b = Tr[:-1], Tr[1:]
     ends = values(keys, Tr)
     t = np.linspace(0.0, 1.0, n_fine + 1)
-    grid = a[:, None] + (b - a)[:, None] * t[None, :]
-    fine = values(keys, grid.ravel())
     dt = 1.0 / n_fine
+    best = {k: np.empty(a.size) for k in keys}
+    for lo, hi in _chunks(a.size):
+        _bound_chunk(values, keys, ends, a, b, t, dt, lo, hi, best)
     bp = substance.poly.T_bounds[1:-1]
     out = {}
     for k in keys:
         fa, fb = ends[k][:-1], ends[k][1:]
-
-        def line(tt, fa=fa, fb=fb):
-            return fa[:, None] + (fb - fa)[:, None] * tt
-
-        e = np.abs(fine[k].reshape(grid.shape) - line(t[None, :]))
-        i = np.argmax(e, axis=1)
-        best = e[np.arange(e.shape[0]), i]
-        t2 = np.clip(t[i][:, None] + np.linspace(-dt, dt, 33)[None, :], 0.0, 1.0)
-        T2 = a[:, None] + (b - a)[:, None] * t2
-        e2 = np.abs(values((k,), T2.ravel())[k].reshape(T2.shape) - line(t2))
-        best = np.maximum(best, e2.max(axis=1))
+        bk = best[k]
         # breakpoints of the collapsed polynomial: the function may jump there
         for Tb in bp:
             j = np.searchsorted(Tr, Tb, side="right") - 1
@@ -113,9 +141,9 @@ def interpolation_bounds(substance, keys, T_rows, *, P_Pa: float = P_STD, n_fine
                 tb = (np.array([Tb * (1 - 1e-12), Tb, Tb * (1 + 1e-12)]) - a[j]) / (b[j] - a[j])
                 tb = np.clip(tb, 0.0, 1.0)
                 f = values((k,), a[j] + (b[j] - a[j]) * tb)[k]
-                best[j] = max(best[j], float(np.max(np.abs(f - (fa[j] + (fb[j] - fa[j]) * tb)))))
+                bk[j] = max(bk[j], float(np.max(np.abs(f - (fa[j] + (fb[j] - fa[j]) * tb)))))
         scale = np.maximum(np.abs(fa), np.abs(fb))
-        out[k] = best * (1 + 1e-5) + 8 * np.finfo(float).eps * scale
+        out[k] = bk * (1 + 1e-5) + 8 * np.finfo(float).eps * scale
     return out
 
 
