@@ -21,7 +21,7 @@ import numpy as np
 
 from .compare_keys import KEY_DIMENSIONS, NUMBER, last_place
 from ..core.errors import DataError, NameLookupError, UnitError
-from ..core.table_reader import header_cell, split_table
+from ..core.table_reader import MARK_COLUMN, header_fields, split_table
 from ..core.units import Unit, unit as _unit
 
 #: Largest reference table read: rows (a book table has at most 20 000) and bytes.
@@ -81,7 +81,7 @@ class Reference:
 
 
 #: Header of the row-mark column of tablegen's own CSV files (read, never compared).
-MARK_KEY = "mark"
+MARK_KEY = MARK_COLUMN
 #: Prefix of the uncertainty columns of tablegen's own CSV files (U_cp ...; read, never compared).
 UNCERTAINTY_PREFIX = "U_"
 
@@ -180,21 +180,11 @@ def _read_file(path, name: str) -> tuple[str, str]:
 
 def _header_keys(header, name: str, header_line: int) -> tuple[list, list]:
     """Key and unit of each header cell (mark and U_ columns: MARK_KEY, unit None)."""
-    keys, units, seen = [], [], set()
-    for cell in header:
-        if cell.strip() == MARK_KEY:       # the row marks of a tablegen CSV: text, not compared
-            keys.append(MARK_KEY)
-            units.append(None)
-            continue
-        key_unit = header_cell(cell)
-        if key_unit is None:
-            raise DataError(f"{name}:{header_line}: header cell {cell.strip()!r} is not in the form "
-                            f"key [unit], e.g. cp [kJ/(kg K)]")
-        key, usym = key_unit
+    keys, units, seen = [MARK_KEY] * len(header), [None] * len(header), set()
+    for j, key, usym in header_fields(header, name, header_line):
+        cell = header[j]
         if key.startswith(UNCERTAINTY_PREFIX) and key[len(UNCERTAINTY_PREFIX):] in KEY_DIMENSIONS:
-            keys.append(MARK_KEY)          # a tablegen CSV's U_<key> column: read, never compared
-            units.append(None)
-            continue
+            continue                       # a tablegen CSV's U_<key> column: read, never compared
         if key != "T" and key not in KEY_DIMENSIONS:
             if not re.fullmatch(r"[A-Za-z][A-Za-z0-9]*(_mean_[hs])?_vol", key) or key.split("_")[0] not in KEY_DIMENSIONS:
                 raise DataError(f"{name}:{header_line}: unknown column key {key!r}; allowed: {_allowed_keys()}")
@@ -209,8 +199,7 @@ def _header_keys(header, name: str, header_line: int) -> tuple[list, list]:
         if ident in seen:
             raise DataError(f"{name}:{header_line}: column {cell.strip()!r} appears twice; give each once")
         seen.add(ident)
-        keys.append(key)
-        units.append(u)
+        keys[j], units[j] = key, u
     return keys, units
 
 

@@ -21,7 +21,7 @@ import numpy as np
 
 from ..data.formats import TM4513, TP2002
 from ..core.formula import parse_formula
-from ..core.table_reader import header_cell, split_table
+from ..core.table_reader import header_fields, split_table
 from ..core.errors import DataError, FitError, InputError, RangeError, TablegenError, UnitError
 from ..thermo.polynomial import FORMS, NINE, SEVEN
 
@@ -91,14 +91,8 @@ def read_table(path: str, M_g_per_mol: float) -> dict:
         raise DataError(f"{path}: the table is empty; it needs a header line and rows")
     head_line, head = table.header_line, table.header
     cols = {}
-    for j, cell in enumerate(head):
-        if cell.strip() == "mark":      # the row marks of a tablegen CSV
-            continue
-        key_unit = header_cell(cell)
-        if key_unit is None:
-            raise DataError(f"{path}:{head_line}: header cell {cell!r} is not 'key [unit]', e.g. 'T [K]' "
-                            f"or 'cp_molar [J/(mol K)]'")
-        key, u = key_unit
+    for j, key, u in header_fields(head, str(path), head_line, example="T [K] or cp_molar [J/(mol K)]"):
+        cell = head[j]
         if key in COLUMNS:
             if key in cols:
                 raise DataError(f"{path}:{head_line}: column {key!r} appears twice")

@@ -77,6 +77,25 @@ class _Lines:
         return (s if self._strip else line) + "\n"
 
 
+#: Header of the row-mark column a tablegen CSV ends with: text, never a property.
+MARK_COLUMN = "mark"
+
+
+def header_fields(header, where: str, line: int, example: str = "cp [kJ/(kg K)]"):
+    """(column index, key, unit text) of every header cell but the row-mark column.
+
+    A cell not of the form ``key [unit]`` is refused with ``where:line`` and ``example``.
+    """
+    for j, cell in enumerate(header):
+        if cell.strip() == MARK_COLUMN:
+            continue
+        key_unit = header_cell(cell)
+        if key_unit is None:
+            raise DataError(f"{where}:{line}: header cell {cell.strip()!r} is not in the form key [unit], "
+                            f"e.g. {example}")
+        yield j, key_unit[0], key_unit[1]
+
+
 def split_table(text: str, name: str, *, whitespace: bool = True, strip: bool = True,
                 max_rows: int | None = None) -> TableText:
     """Split the text of a table into header, rows and comments.
