@@ -30,7 +30,7 @@ from tablegen.calc import agreement
 from tablegen.cli import main as cli
 from tablegen.data.library import library
 from tablegen.thermo.polynomial import Polynomial
-from tablegen.thermo.substance import R_MOLAR
+from tablegen.core.constants import R_MOLAR
 
 ROOT = Path(__file__).resolve().parents[1]
 JANAF_SET = library().datasets["janaf1998"]

@@ -9,7 +9,8 @@ from hypothesis import strategies as st
 
 import tablegen
 from tablegen.core.errors import NameLookupError, RangeError, TablegenError
-from tablegen.thermo.substance import R_MOLAR, Anchor, Datum
+from tablegen.core.constants import R_MOLAR
+from tablegen.thermo.substance import Anchor, Datum
 
 FLUE = {"CO2": 0.09, "H2O": 0.18, "N2": 0.71, "O2": 0.02}
 temps = st.floats(min_value=200.0, max_value=6000.0, allow_nan=False)

@@ -18,7 +18,7 @@ from tablegen.core.errors import TablegenError
 from tablegen.calc.fit_solver import T_SCALE, _basis, scaled_to_raw
 from tablegen.calc.fitting import FitError, fit_cp_table
 from tablegen.thermo.polynomial import Polynomial
-from tablegen.thermo.substance import R_MOLAR
+from tablegen.core.constants import R_MOLAR
 
 
 def janaf_table(index):

@@ -23,7 +23,8 @@ from tablegen.calc.incompressible import Incompressible, incompressible
 from tablegen.thermo.inverse import INVERSE_RTOL
 from tablegen.calc.steps import process
 from tablegen.thermo.polynomial import Polynomial
-from tablegen.thermo.substance import R_MOLAR, Substance
+from tablegen.core.constants import R_MOLAR
+from tablegen.thermo.substance import Substance
 
 AIR = tablegen.substance("air")
 N2 = tablegen.substance("N2")

@@ -34,7 +34,7 @@ sys.path.insert(0, str(ROOT))
 from tablegen.data.library import library  # noqa: E402
 from tablegen.calc.evidence import species_class  # noqa: E402
 
-from tablegen.thermo.substance import R_MOLAR as R  # noqa: E402
+from tablegen.core.constants import R_MOLAR as R  # noqa: E402
 #: tablegen id -> JANAF table index (janaf package)
 JANAF = {
     "Ar": "Ar-001", "He": "He-001", "Ne": "Ne-001",

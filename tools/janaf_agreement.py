@@ -34,7 +34,7 @@ from tablegen.data.library import library  # noqa: E402
 from tablegen.data.tomlout import table  # noqa: E402
 from tablegen.calc.evidence import BAND_EDGES_K  # noqa: E402
 
-from tablegen.thermo.substance import R_MOLAR as R  # noqa: E402
+from tablegen.core.constants import R_MOLAR as R  # noqa: E402
 S_MATCH = 3.0   # J/(mol K): identity check of a formula match
 
 

@@ -51,7 +51,7 @@ from tablegen.calc.agreement import coolprop_ideal  # noqa: E402
 from tablegen.data.library import library  # noqa: E402
 from tablegen.calc.fitting import FitError, fit_cp_table, residuals_against  # noqa: E402
 from tablegen.thermo.polynomial import NINE, Polynomial  # noqa: E402
-from tablegen.thermo.substance import R_MOLAR, T_REF  # noqa: E402
+from tablegen.core.constants import R_MOLAR, T_REF  # noqa: E402
 
 #: tablegen species id -> CoolProp fluid: the components of natural gas in the
 #: GERG-2008 set (ISO 20765-2) that the shipped data sets can anchor, and neopentane

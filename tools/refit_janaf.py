@@ -37,7 +37,7 @@ from tablegen.data.tomlout import table  # noqa: E402
 from tablegen.calc.fitting import FitError, fit_cp_table, residuals_against  # noqa: E402
 from tablegen.core.filewrite import write_bytes  # noqa: E402
 from tablegen.thermo.polynomial import NINE, Polynomial  # noqa: E402
-from tablegen.thermo.substance import R_MOLAR  # noqa: E402
+from tablegen.core.constants import R_MOLAR  # noqa: E402
 
 #: tablegen species id (= the NASA TM-4513 id in gasdata/nasa1993.toml) ->
 #: (JANAF table index, JANAF formula in Hill order as the janaf index spells it)

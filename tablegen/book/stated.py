@@ -35,7 +35,7 @@ ENERGY_COLUMNS = ("h", "u", "g0")
 
 def basis_scale(key: str, sub, basis: str, reference) -> float:
     """SI value on the table's basis of one SI unit on the mass basis, for ``key``."""
-    from ..thermo.substance import R_MOLAR
+    from ..core.constants import R_MOLAR
     if key in ("k", "Pr", "vr", "a") or basis == "mass":
         return 1.0
     Mk = sub.M * 1e-3

@@ -28,7 +28,7 @@ from pathlib import Path
 import numpy as np
 
 from ..core.errors import DataError, NameLookupError
-from ..thermo.substance import R_MOLAR, T_REF
+from ..core.constants import R_MOLAR, T_REF
 
 #: Temperature bands of the figures, K.
 BANDS_K = ((200.0, 1000.0), (1000.0, 2000.0), (2000.0, 3000.0), (3000.0, 6000.0))

@@ -40,7 +40,7 @@ from .burn_result import (AmountGiven, CombustionResult, DewPoint, Flame, FlueGa
 from .fuels import FUEL_KEYS, Fuel, _h_products, _oxygen_need, _products_of_fuel_per_kg, fuel_from_table, fuel_from_text
 from .oxidants import Oxidant, oxidant_from_table, oxidant_from_text
 from .reactants import P_NORMAL, T_NORMAL, _M_H2O, _g, _h_molar, _lib, _num
-from ..thermo.substance import R_MOLAR, T_REF
+from ..core.constants import R_MOLAR, T_REF
 
 #: Product species of complete combustion, in the order they are listed.
 PRODUCT_ORDER = ("CO2", "H2O", "SO2", "N2", "O2", "Ar", "He", "Ne", "Kr", "Xe")

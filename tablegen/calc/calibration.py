@@ -28,7 +28,7 @@ from functools import lru_cache
 import numpy as np
 
 from ..core.errors import NameLookupError
-from ..thermo.substance import T_REF
+from ..core.constants import T_REF
 
 #: The held-out references and the evaluation each stands for
 #: (tablegen.calc.agreement.EVALUATION_OF): IAPWS-95 is CoolProp's "Water".

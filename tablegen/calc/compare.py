@@ -36,7 +36,7 @@ from .compare_reference import Reference
 from .compare_tolerance import Tolerance, default_tolerance, wide_reason
 from ..core.errors import DataError, FitError, InputError, NameLookupError, RangeError
 from ..core.units import Unit
-from ..thermo.substance import R_MOLAR
+from ..core.constants import R_MOLAR
 
 
 # ------------------------------------------------------------- comparing

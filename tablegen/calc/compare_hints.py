@@ -163,7 +163,7 @@ def _entropy_per_mole_factor(col, context) -> float:
 def _p_ref_hint(col, context, dev, bound, label, u) -> Hint | None:
     if col.key not in ENTROPY_KEYS:
         return None
-    from ..thermo.substance import R_MOLAR
+    from ..core.constants import R_MOLAR
     P_tg = float(context["P_ref_Pa"])
     for name, P in P_REF_CANDIDATES.items():
         if abs(P / P_tg - 1) < 1e-9:

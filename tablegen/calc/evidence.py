@@ -36,7 +36,7 @@ import numpy as np
 from . import agreement_compiled
 from .agreement import evaluation_of, tier_of
 from ..core.errors import DataError, NameLookupError
-from ..thermo.substance import R_MOLAR, T_REF
+from ..core.constants import R_MOLAR, T_REF
 
 #: Temperature band edges (K) of reported figures and of computed spreads.
 BAND_EDGES_K = (200.0, 300.0, 600.0, 1000.0, 1500.0, 2000.0, 3000.0, 6000.0, 20000.0)

@@ -20,7 +20,7 @@ import numpy as np
 
 from ..core.errors import FitError
 from ..thermo.polynomial import NCOEF, NINE, interval_of
-from ..thermo.substance import R_MOLAR, T_REF
+from ..core.constants import R_MOLAR, T_REF
 
 #: The scaled variable is tau = T / T_SCALE.
 T_SCALE = 1000.0

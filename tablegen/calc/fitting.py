@@ -43,7 +43,7 @@ import numpy as np
 
 from ..core.errors import FitError
 from ..thermo.polynomial import NINE, SEVEN, Polynomial
-from ..thermo.substance import R_MOLAR, T_REF
+from ..core.constants import R_MOLAR, T_REF
 from .fit_solver import Problem, solve
 
 #: Default residual target: worst |Δcp|/cp at the tabulated points. 1e-3 is

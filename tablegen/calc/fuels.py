@@ -15,7 +15,7 @@ from ..core.composition import looks_like as is_composition, parse as parse_comp
 from ..core.formula import parse_formula
 from ..core.errors import InputError, NameLookupError, RangeError, SpecError, TablegenError, UnitError
 from .reactants import BURNING, NOBLE, _M_H2O, _fractions, _h_molar, _num, _qty, _record, _weights, check_table
-from ..thermo.substance import T_REF
+from ..core.constants import T_REF
 
 @dataclass(frozen=True, slots=True, eq=False)
 class Fuel:

@@ -16,7 +16,7 @@ import numpy as np
 
 from ..thermo.inverse import INVERSE_RTOL   # the incompressible inverse T(u) meets the gas one's tolerance
 from ..core.errors import DataError, InputError, NameLookupError, RangeError
-from ..thermo.substance import T_REF
+from ..core.constants import T_REF
 
 
 

@@ -14,7 +14,7 @@ import numpy as np
 
 from ..core.errors import InputError, NameLookupError, SpecError
 from ..core.rounding import round_steps_down
-from ..thermo.substance import P_STD
+from ..core.constants import P_STD
 
 #: Keys the budget knows, with their SI units (for the JSON sidecar).
 UNITS = {

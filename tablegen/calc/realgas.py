@@ -19,7 +19,7 @@ from functools import lru_cache
 import numpy as np
 
 from .evidence import gasdata_file
-from ..thermo.substance import R_MOLAR
+from ..core.constants import R_MOLAR
 
 @lru_cache(maxsize=1)
 def critical_constants() -> dict:

@@ -17,7 +17,7 @@ from types import MappingProxyType
 import numpy as np
 
 from ..core.errors import RangeError
-from ..thermo.substance import T_REF
+from ..core.constants import T_REF
 
 #: Relative tolerance of the fixed-point iteration of the power law with k at the mean temperature.
 MEAN_K_RTOL = 1e-12

@@ -42,7 +42,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..core.errors import InputError, NameLookupError, RangeError
-from ..thermo.substance import P_STD, R_MOLAR, T_REF
+from ..core.constants import P_STD, R_MOLAR, T_REF
 from .evidence import BAND_EDGES_K, SQRT3, agreement_index, by_species, record_for, species_data
 from .interpolation import ENERGY_KEYS, STANDARD_STATE_KEYS, UNITS, _check_keys, interpolation_bounds
 from .realgas import departure_bounds, model_statements, virial_mixture

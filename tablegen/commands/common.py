@@ -66,7 +66,8 @@ def datum_from_text(text: str | None, substance=None, *, by_rule: bool = False,
     that default does. Otherwise (compare) no text is the formation datum and a
     bare ``sensible`` means h = 0 at 298.15 K.
     """
-    from ..thermo.substance import SENSIBLE_DATUM_T_K, T_REF, Datum, default_datum
+    from ..core.constants import T_REF
+    from ..thermo.substance import SENSIBLE_DATUM_T_K, Datum, default_datum
     from ..core.units import quantity, temperature_K
     if text is None:
         return default_datum(substance, reacting=reacting) if by_rule else Datum("formation")

@@ -97,7 +97,7 @@ def record_of(sub, lib, rid: str) -> dict:
 
 def with_poly(r: dict, poly) -> dict:
     """Add the polynomial-derived fields a writer needs to a record dict."""
-    from ..thermo.substance import R_MOLAR
+    from ..core.constants import R_MOLAR
     hR = float(poly.evaluate(np.array([298.15]))["h"][0])
     r.update({"T_bounds_K": [float(x) for x in poly.T_bounds], "coeffs9": poly.coeffs.copy(),
               "h298_over_R_K": hR, "h_formation_J_per_mol": hR * R_MOLAR,

@@ -319,7 +319,7 @@ FLOW_UNITS = {"mass_flow": "kg/s", "molar_flow": "kmol/s", "normal_volume_flow":
 def add_flow(d: dict, flow) -> None:
     """Flow figures into the JSON result: power = w × flow, duty = q × flow, volume flows v × flow."""
     from ..core.units import P_NORMAL_PA, T_NORMAL_K
-    from ..thermo.substance import R_MOLAR
+    from ..core.constants import R_MOLAR
     m = flow.mass_kg_per_s(d["M"], "--flow")
     d["mass_flow"] = m
     if d["M"] is not None:

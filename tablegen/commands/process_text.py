@@ -165,7 +165,7 @@ def _energies(d: dict, sh) -> list[str]:
 
 def _flows(d: dict, sh, flow) -> list[str]:
     from ..core.units import P_SCF_PA, T_SCF_K
-    from ..thermo.substance import R_MOLAR
+    from ..core.constants import R_MOLAR
     m = d["mass_flow"]
     mu = sh.sym("mass_flow")
     parts = [f"{fmt_sig(unit(mu).from_si(m))} {mu}", f"{fmt_sig(m)} kg/s" if mu != "kg/s" else

@@ -11,7 +11,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..core.errors import NameLookupError
-from ..thermo.substance import R_MOLAR, T_REF
+from ..core.constants import R_MOLAR, T_REF
 from ..core.units import unit as _unit
 
 # ---------------------------------------------------------------- units

@@ -19,7 +19,7 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
-from ..core.constants import P_STD, R_MOLAR, T_REF  # noqa: F401  (re-exported)
+from ..core.constants import P_STD, R_MOLAR, T_REF
 from ..core.errors import DataRangeError, InputError, NameLookupError, RangeError
 from .inverse import INVERTIBLE, bad_value, solve
 from .polynomial import Polynomial
