@@ -4,8 +4,9 @@
 typed; a spec's ``combustion = {...}`` table defines one with its conditions
 (flue pressure, inlet temperatures, reference temperature, metering); a
 ``flue_analysis`` table is a measured flue gas. The calculation is
-tablegen.calc.burn's; this module reads the names and tables and registers the
-name resolver with tablegen.calc.names (explicitly, by :func:`register`).
+tablegen.calc.burn's; this module reads the names and tables. Its resolver of
+``flue@`` names is listed by tablegen.calc.names (``_name_syntaxes``); nothing is
+registered by importing this module.
 """
 
 from __future__ import annotations

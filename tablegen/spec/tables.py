@@ -64,7 +64,7 @@ class TableSpec:
     temperature_units: tuple
     T_mean_ref_K: float
     extrapolate: bool
-    charts: tuple = ()           # ChartSpec (tablegen.book.charts)
+    charts: tuple = ()           # ChartSpec (tablegen.spec.chart)
     composition_u: tuple | None = None   # (basis, {species id: standard uncertainty}) of the fractions
     csv_name: str = ""           # file name of its CSV (tablegen.spec.editions.csv_names); "" : <name>.csv
     shared_by: tuple = ()        # editions whose CSV of this table is that same file
