@@ -290,3 +290,18 @@ def test_datum_and_anchor_values_are_exact_in_every_path(n):
     assert float(one["Pr"]) == 2.5 and float(one["vr"]) == 0.4
     assert float(sub.properties(273.15)["h"]) == 0.0 and sub.cp_h_s0(273.15)[1] == 0.0
     assert float(tablegen.substance("air").properties(298.15)["dh298_molar"]) == 0.0
+
+
+def test_scratch_rows_kept_per_thread_give_the_same_values_in_threads():
+    # the blocked path keeps its scratch rows per thread between calls: two threads
+    # evaluating at once must get exactly what one thread gets alone
+    from concurrent.futures import ThreadPoolExecutor
+    poly = tablegen.mixture(FLUE).poly
+    rng = np.random.default_rng(11)
+    arrays = [rng.uniform(poly.T_min, poly.T_max, 70_000) for _ in range(6)]
+    alone = [poly.evaluate(T) for T in arrays]
+    with ThreadPoolExecutor(max_workers=3) as pool:
+        together = list(pool.map(poly.evaluate, arrays))
+    for a, b in zip(alone, together):
+        for key in ("cp", "h", "s"):
+            assert np.array_equal(a[key], b[key])

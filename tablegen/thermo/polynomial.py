@@ -18,6 +18,7 @@ one record whose evaluation cost does not grow with its number of species.
 
 from __future__ import annotations
 
+import threading
 from bisect import bisect_left
 from math import log as _log
 from dataclasses import dataclass, field
@@ -204,10 +205,10 @@ class Polynomial:
         if T.size <= SMALL:
             return {k: v.reshape(shape) for k, v in self._evaluate_small(T, want).items()}
         out = {k: np.empty_like(T) for k in want}
-        # one set of scratch rows for the whole call (log, 1/T, two temporaries, gathered
-        # T and three gathered results): no temporary array per term, so no fresh memory
-        # pages per block, which cost more than the arithmetic
-        scratch = np.empty((8, min(BLOCK, T.size)))
+        # one set of scratch rows per thread, kept between calls (log, 1/T, two temporaries,
+        # gathered T and three gathered results): no temporary array per term and no
+        # fresh memory pages per call, which cost more than the arithmetic
+        scratch = _scratch()
         for a in range(0, T.size, BLOCK):
             b = min(a + BLOCK, T.size)
             part = {k: v[a:b] for k, v in out.items()}
@@ -349,6 +350,21 @@ def combine(polys, weights, extra_s: float = 0.0) -> Polynomial:
     coeffs[:, 8] += extra_s
     form = SEVEN if all(p.form == SEVEN for p in polys) else NINE
     return Polynomial(bounds, coeffs, form)
+
+
+_SCRATCH = threading.local()
+
+
+def _scratch() -> np.ndarray:
+    """This thread's scratch rows (8, BLOCK), each starting on a 64-byte boundary (vector
+    loads that straddle cache lines cost twice): made once per thread, not per call."""
+    try:
+        return _SCRATCH.rows
+    except AttributeError:
+        buf = np.empty(8 * BLOCK + 8)
+        skip = (-buf.ctypes.data % 64) // 8
+        _SCRATCH.rows = buf[skip:skip + 8 * BLOCK].reshape(8, BLOCK)
+        return _SCRATCH.rows
 
 
 def _horner(out, T, coefs):
