@@ -80,6 +80,35 @@ def machine_limit(bytes_per_state: int) -> float:
     return (bytes_per_state / bandwidth + t_log / src.size) * 1e9
 
 
+FRESH = """
+import sys, time, statistics
+import numpy as np
+import tablegen
+method, in_order, repeat = sys.argv[1], sys.argv[2] == "1", int(sys.argv[3])
+T = np.random.default_rng(0).uniform(300.0, 3000.0, {n})
+T = np.sort(T) if in_order else T
+f = getattr(tablegen.mixture({flue!r}), method)
+f(T)
+ts = []
+for _ in range(repeat):
+    t = time.perf_counter()
+    f(T)
+    ts.append(time.perf_counter() - t)
+print(statistics.median(ts) / T.size * 1e9)
+"""
+
+
+def fresh_process_ns(method: str, in_order: bool, repeat: int) -> float:
+    """ns/state of ``mix.<method>(T)`` in a fresh interpreter that does nothing else, as a
+    user's script sees it: its allocator returns the freed outputs to the system between
+    calls, so each call pays fresh memory pages (this process's allocator has been warmed
+    by the bandwidth measurement's large arrays, hence the second figure of the rows)."""
+    code = FRESH.format(n=N, flue=FLUE)
+    res = subprocess.run([sys.executable, "-c", code, method, "1" if in_order else "0", str(repeat)],
+                         check=True, capture_output=True, text=True, env=ENV)
+    return float(res.stdout.split()[-1])
+
+
 def engine(repeat: int) -> None:
     rng = np.random.default_rng(0)
     T = rng.uniform(300.0, 3000.0, N)
@@ -98,15 +127,19 @@ def engine(repeat: int) -> None:
     except ImportError:
         gas = ref = None
     for label, Tv, goal in (("in order", Ts, "≤ 8 ns (≥ 500x cantera)"), ("random order", T, "≤ 12 ns")):
+        fresh = fresh_process_ns("cp_h_s0", label == "in order", repeat)
         t = median_time(lambda: mix.cp_h_s0(Tv), repeat) / N * 1e9
-        refs = [f"limit {lim3:.1f} ns ({t / lim3:.1f}x)"]
+        refs = [f"limit {lim3:.1f} ns ({fresh / lim3:.1f}x)"]
         if ref is not None:
             t_ct = median_time(lambda: ref(Tv), max(2, repeat // 2)) / N * 1e9
-            refs.insert(0, f"cantera {t_ct:,.0f} ns (tablegen {t_ct / t:,.0f}x faster)")
-        row(f"cp, h, s° of a 4-species flue gas, 1e5 T {label}", f"{t:.1f} ns/state", "; ".join(refs), goal)
+            refs.insert(0, f"cantera {t_ct:,.0f} ns (tablegen {t_ct / fresh:,.0f}x faster)")
+        row(f"cp, h, s° of a 4-species flue gas, 1e5 T {label}",
+            f"{fresh:.1f} ns/state ({t:.1f} once the allocator keeps its memory)", "; ".join(refs), goal)
+    fresh = fresh_process_ns("properties", True, repeat)
     t = median_time(lambda: mix.properties(Ts), repeat) / N * 1e9
-    row("all properties (`properties()`), flue gas, 1e5 T", f"{t:.1f} ns/state",
-        f"limit {lim_all:.1f} ns ({t / lim_all:.1f}x)", "≤ 25 ns")
+    row("all properties (`properties()`), flue gas, 1e5 T",
+        f"{fresh:.1f} ns/state ({t:.1f} once the allocator keeps its memory)",
+        f"limit {lim_all:.1f} ns ({fresh / lim_all:.1f}x)", "≤ 25 ns")
     # one state at a time, as a process simulation or a spreadsheet calls it
     for n in (1, 10, 100, 1000):
         Tn = np.linspace(300.0, 2500.0, n) if n > 1 else 812.5
