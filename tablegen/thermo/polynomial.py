@@ -170,7 +170,8 @@ class Polynomial:
     def _evaluate_small(self, T: np.ndarray, want) -> dict[str, np.ndarray]:
         """Few points: the basis rows written once, one gather of each point's (3, 9)
         table and one product, a dozen array operations whatever the number of
-        intervals. Each point's value depends on its own T only (no BLAS blocking)."""
+        intervals. No BLAS, but einsum's loops round a point's value differently with
+        the size of the array it is in (last bits; DEVELOPERS.md, evaluation)."""
         k = interval_of(self._inner, T)
         V = np.empty((9, T.size))
         np.divide(1.0, T, out=V[1])
