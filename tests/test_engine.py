@@ -305,3 +305,20 @@ def test_scratch_rows_kept_per_thread_give_the_same_values_in_threads():
     for a, b in zip(alone, together):
         for key in ("cp", "h", "s"):
             assert np.array_equal(a[key], b[key])
+
+
+@pytest.mark.parametrize("name", ["CO2", "H2O", "CH4"])
+def test_blocked_path_value_depends_on_its_own_temperature_only(name):
+    # above the small-array size, a value must not depend on the other points of the
+    # call (the CSV prints exact doubles): a slice, a shuffled copy and a sorted copy of
+    # one array give bit for bit the values the whole array gives at those temperatures
+    from tablegen.thermo.polynomial import SMALL
+    poly = tablegen.substance(name).poly
+    rng = np.random.default_rng(7)
+    T = rng.uniform(poly.T_min, poly.T_max, 8 * SMALL)
+    whole = poly.evaluate(T)
+    part = np.arange(1234, 1234 + 2 * SMALL + 5)
+    for ix in (part, rng.permutation(part), part[np.argsort(T[part], kind="stable")]):
+        got = poly.evaluate(T[ix])
+        for key in ("cp", "h", "s"):
+            assert np.array_equal(got[key], whole[key][ix])
