@@ -81,20 +81,16 @@ def machine_limit(bytes_per_state: int) -> float:
 
 
 FRESH = """
-import sys, time, statistics
+import sys
 import numpy as np
 import tablegen
+sys.path.insert(0, {here!r})
+from run_all import median_time
 method, in_order, repeat = sys.argv[1], sys.argv[2] == "1", int(sys.argv[3])
 T = np.random.default_rng(0).uniform(300.0, 3000.0, {n})
 T = np.sort(T) if in_order else T
 f = getattr(tablegen.mixture({flue!r}), method)
-f(T)
-ts = []
-for _ in range(repeat):
-    t = time.perf_counter()
-    f(T)
-    ts.append(time.perf_counter() - t)
-print(statistics.median(ts) / T.size * 1e9)
+print(median_time(lambda: f(T), repeat) / T.size * 1e9)
 """
 
 
@@ -103,7 +99,7 @@ def fresh_process_ns(method: str, in_order: bool, repeat: int) -> float:
     user's script sees it: its allocator returns the freed outputs to the system between
     calls, so each call pays fresh memory pages (this process's allocator has been warmed
     by the bandwidth measurement's large arrays, hence the second figure of the rows)."""
-    code = FRESH.format(n=N, flue=FLUE)
+    code = FRESH.format(n=N, flue=FLUE, here=str(Path(__file__).resolve().parent))
     res = subprocess.run([sys.executable, "-c", code, method, "1" if in_order else "0", str(repeat)],
                          check=True, capture_output=True, text=True, env=ENV)
     return float(res.stdout.split()[-1])
