@@ -60,10 +60,9 @@ def interpolation_bound(substance, key: str, T_rows, *, P_Pa: float = P_STD, n_f
 
 
 #: Row intervals whose fine grids are evaluated together: a table of 5,700 rows held some
-#: 60 MB of fine-grid values at once; in chunks it holds a third of that. Every chunk has
-#: at least half of this many intervals, so its grids (65 and 33 points an interval) stay
-#: above the polynomial's small-array size and take the same evaluation path, point for
-#: point the same bits, as one grid over the whole table.
+#: 60 MB of fine-grid values at once; in chunks it holds a third of that. A value does not
+#: depend on the chunk it is evaluated in (every evaluation path gives the same bits), so
+#: the bounds equal those of one grid over the whole table.
 BOUND_CHUNK = 2048
 
 

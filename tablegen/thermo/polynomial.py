@@ -35,10 +35,23 @@ NINE = "9-coefficient"       # NASA/TP-2002-211556 (2002)
 FORMS = (SEVEN, NINE)
 #: Points evaluated together: small enough that the temporaries stay in cache.
 BLOCK = 32768
-#: Up to this many points, evaluation takes the small-array path (fewer, larger
-#: array operations; faster below it, slower above it, measured in bench_engine.py).
+#: Up to this many points, and up to SMALL_PER_INTERVAL times the number of intervals,
+#: evaluation takes the small-array path (each point's coefficients gathered, then the
+#: blocked path's operations on all points at once). Below that it is faster, above it
+#: slower: the blocked path pays its Python calls per interval, the small path its
+#: gather per point (measured 2026-12-03: crossing near 450 points at 1 interval, 1,500
+#: at 2, 4,100 at 8). Both give the same bits, so these are speed settings only.
 SMALL = 4096
-#: Row of each function in the small path's product.
+SMALL_PER_INTERVAL = 640
+#: Up to this many points, a loop over plain floats: a dozen array operations cost more.
+TINY = 16
+# The small paths' table (Polynomial._tables) has one column of 26 numbers per interval:
+# six Horner steps of cp, h and s (rows 3j..3j+2 for step j), then the factors of 1/T
+# (rows 18-20), the terms after them (21-23) and the factors of ln T for h and s (24-25).
+# In these steps every function takes, value for value, the operations of the blocked
+# path (_eval_run): a leading zero pads cp's and s's shorter Horner, and an interval
+# without negative powers adds zeros, so both paths give the same bits.
+#: Row of each function in the small paths.
 _ROW = {"cp": 0, "h": 1, "s": 2}
 
 
@@ -79,7 +92,8 @@ class Polynomial:
     _h: np.ndarray = field(init=False, repr=False)
     _s: np.ndarray = field(init=False, repr=False)
     _has_neg: bool = field(init=False, repr=False)
-    _basis: np.ndarray = field(init=False, repr=False)
+    _steps: np.ndarray = field(init=False, repr=False)
+    _steps_py: tuple = field(init=False, repr=False)
     _py: tuple = field(init=False, repr=False)
     _inner_list: list = field(init=False, repr=False)
     _lo: float = field(init=False, repr=False)
@@ -127,19 +141,24 @@ class Polynomial:
 
     # -------------------------------------------------------------- evaluation
     def _tables(self):
-        """The small-array table and the one-state tuples, made on first use (a library
+        """The small paths' table and the one-state tuples, made on first use (a library
         builds hundreds of polynomials that are never evaluated)."""
         c, h, s = self.coeffs, self._h, self._s
         a1, a2, a3, a4, a5, a6, a7 = c[:, :7].T
         z = np.zeros_like(a1)
-        # cp/R, h/R, s/R as one product of [T^-2, T^-1, 1, T, T^2, T^3, T^4, T^5, ln T]
-        # with a (3, 9) table per interval
-        basis = np.stack([
-            np.stack([a1, a2, a3, a4, a5, a6, a7, z, z], axis=1),
-            np.stack([z, h[0], h[7], h[2], h[3], h[4], h[5], h[6], h[1]], axis=1),
-            np.stack([s[0], s[1], s[7], s[3], s[4], s[5], s[6], z, s[2]], axis=1),
-        ], axis=1)
-        object.__setattr__(self, "_basis", np.ascontiguousarray(basis))
+        steps = np.stack([
+            z, h[6], z,             # acc = step0 T
+            a7, h[5], s[6],         # acc += step1, then acc *= T, acc += step j for j = 2..5
+            a6, h[4], s[5],
+            a5, h[3], s[4],
+            a4, h[2], s[3],
+            a3, h[7], s[7],
+            a1, z, s[0],            # E = (1/T) rows 18-20 + rows 21-23, E *= 1/T
+            a2, h[0], s[1],
+            h[1], s[2],             # F = ln T rows 24-25: h gets E + F, s gets F then E
+        ])
+        object.__setattr__(self, "_steps", np.ascontiguousarray(steps))
+        object.__setattr__(self, "_steps_py", tuple(tuple(col) for col in steps.T.tolist()))
         # one state: per interval one flat tuple of plain floats (unpacked in one step):
         # has negative powers, cp a1..a7, h as in _h, s as in _s
         py = tuple((bool(c[k, 0] != 0.0 or c[k, 1] != 0.0), *c[k, :7].tolist(), *h[:, k].tolist(),
@@ -168,28 +187,69 @@ class Polynomial:
         return cp, hv, sv
 
     def _evaluate_small(self, T: np.ndarray, want) -> dict[str, np.ndarray]:
-        """Few points: the basis rows written once, one gather of each point's (3, 9)
-        table and one product, a dozen array operations whatever the number of
-        intervals. No BLAS, but einsum's loops round a point's value differently with
-        the size of the array it is in (last bits; DEVELOPERS.md, evaluation)."""
-        k = interval_of(self._inner, T)
-        V = np.empty((9, T.size))
-        np.divide(1.0, T, out=V[1])
-        np.multiply(V[1], V[1], out=V[0])
-        V[2] = 1.0
-        V[3] = T
-        np.multiply(T, T, out=V[4])
-        np.multiply(V[4], T, out=V[5])
-        np.multiply(V[5], T, out=V[6])
-        np.multiply(V[6], T, out=V[7])
-        np.log(T, out=V[8])
+        """Up to SMALL points: each point's column of the steps table gathered, then the
+        blocked path's operations on all points and the three functions at once (rows of
+        one flat array), a couple of dozen array operations whatever the number of
+        intervals. Every operation is elementwise, so a value depends on its own
+        temperature only, bit for bit the value of the blocked path."""
+        m = T.size
+        if m <= TINY:
+            return self._evaluate_tiny(T, want)
         try:
-            basis = self._basis
+            steps = self._steps
         except AttributeError:
             self._tables()
-            basis = self._basis
-        vals = np.einsum("kn,njk->jn", V, basis[k])
-        return {key: vals[_ROW[key]] for key in want}
+            steps = self._steps
+        G = steps.take(interval_of(self._inner, T), axis=1).ravel()   # row r at [r m, (r+1) m)
+        w = 3 * m
+        T3 = np.concatenate((T, T, T))
+        acc = np.multiply(G[:w], T3)
+        acc += G[w:2 * w]
+        for j in range(2, 6):
+            acc *= T3
+            acc += G[j * w:(j + 1) * w]
+        F = np.multiply(G[8 * w:], np.log(T3[m:]))                     # h, s
+        if self._has_neg:
+            inv = np.divide(1.0, T3)
+            E = np.multiply(G[6 * w:7 * w], inv)
+            E += G[7 * w:8 * w]
+            E *= inv
+            E[m:2 * m] += F[:m]
+            acc[2 * m:] += F[m:]
+            acc += E
+        else:
+            acc[2 * m:] += F[m:]
+        return {key: acc[_ROW[key] * m:(_ROW[key] + 1) * m] for key in want}
+
+    def _evaluate_tiny(self, T: np.ndarray, want) -> dict[str, np.ndarray]:
+        """Up to TINY points: the small path's operations in plain floats (IEEE doubles
+        either way, so the same bits), with ln T from np.log as the array paths take it
+        (math.log differs from it in the last bit for a few temperatures in 10^5 on
+        machines where numpy has its own vector logarithm)."""
+        try:
+            cols = self._steps_py
+        except AttributeError:
+            self._tables()
+            cols = self._steps_py
+        inner = self._inner_list
+        cps, hs, ss = [], [], []
+        for t, lnT in zip(T.tolist(), np.log(T).tolist()):
+            (c0, h0, s0, c1, h1, s1, c2, h2, s2, c3, h3, s3, c4, h4, s4, c5, h5, s5,
+             ic, ih, is_, jc, jh, js, fh, fs) = cols[bisect_left(inner, t)]
+            inv = 1.0 / t
+            cp = ((((c0 * t + c1) * t + c2) * t + c3) * t + c4) * t + c5
+            hv = ((((h0 * t + h1) * t + h2) * t + h3) * t + h4) * t + h5
+            sv = ((((s0 * t + s1) * t + s2) * t + s3) * t + s4) * t + s5
+            sv += fs * lnT
+            if self._has_neg:
+                cp += (ic * inv + jc) * inv
+                hv += (ih * inv + jh) * inv + fh * lnT
+                sv += (is_ * inv + js) * inv
+            cps.append(cp)
+            hs.append(hv)
+            ss.append(sv)
+        got = {"cp": cps, "h": hs, "s": ss}
+        return {key: np.array(got[key]) for key in want}
 
     def evaluate(self, T, *, want=("cp", "h", "s")) -> dict[str, np.ndarray]:
         """cp/R, h/R (in K) and s/R at temperatures T (K), arrays broadcast.
@@ -199,12 +259,16 @@ class Polynomial:
         blocks that stay in the processor cache; inside a block each interval
         is evaluated with scalar coefficients on its own contiguous run of
         points (sorted input: slices; unsorted: a counting sort by interval).
+        Small arrays gather each point's coefficients instead (TINY, SMALL). Every
+        path does the same operations on each point: a value depends on its own
+        temperature only, not on the size or order of the array it is in.
         """
         T = np.asarray(T, dtype=float)
         shape = T.shape
         T = T.ravel()
-        if T.size <= SMALL:
-            return {k: v.reshape(shape) for k, v in self._evaluate_small(T, want).items()}
+        if T.size <= SMALL and T.size <= SMALL_PER_INTERVAL * self.coeffs.shape[0]:
+            vals = self._evaluate_small(T, want)
+            return vals if len(shape) == 1 else {k: v.reshape(shape) for k, v in vals.items()}
         out = {k: np.empty_like(T) for k in want}
         # one set of scratch rows per thread, kept between calls (log, 1/T, two temporaries,
         # gathered T and three gathered results): no temporary array per term and no
@@ -254,8 +318,9 @@ class Polynomial:
         inv = np.divide(1.0, T, out=scratch[1, :m]) if neg else None
         tmp, tmp2 = scratch[2, :m], scratch[3, :m]
         c, h, s = self.coeffs[k], self._h[:, k], self._s[:, k]
-        # The operations and their order are those of Polynomial.point (plain floats), so
-        # the two give the same bits.
+        # The operations and their order are those of the small paths and of
+        # Polynomial.point (plain floats): the array paths give the same bits; point()
+        # takes math.log, which can differ from np.log in the last bit.
         if "cp" in out:
             v = out["cp"]
             _horner(v, T, (c[2], c[3], c[4], c[5], c[6]))
