@@ -10,6 +10,7 @@ skip operators that change nothing.
 from __future__ import annotations
 
 import math
+from functools import lru_cache
 
 from . import fonts
 from .pageflow import PageFlow
@@ -72,6 +73,29 @@ def draw_text(c, x, y, s, font=fonts.SANS, size=8.5, color=INK, align="left"):
         c.drawString(x, y, s)
 
 
+def text_width(s: str, font: str, size: float) -> float:
+    """reportlab's width of s; in the monospaced face, where every glyph has one advance,
+    the width of as many digits (the same number, from one measurement per length)."""
+    if font == fonts.MONO and _mono_uniform():
+        return _mono_width(len(s), size)
+    from reportlab.pdfbase.pdfmetrics import stringWidth
+    return stringWidth(s, font, size)
+
+
+@lru_cache(maxsize=None)
+def _mono_uniform() -> bool:
+    """True if every glyph of the monospaced face (and its default) has one advance."""
+    from reportlab.pdfbase.pdfmetrics import getFont
+    face = getFont(fonts.MONO).face
+    return len({*face.charWidths.values(), face.defaultWidth}) == 1
+
+
+@lru_cache(maxsize=4096)
+def _mono_width(n: int, size: float) -> float:
+    from reportlab.pdfbase.pdfmetrics import stringWidth
+    return stringWidth("0" * n, fonts.MONO, size)
+
+
 def queue_text(c, x, y, s, font, size, color=INK, align="left"):
     """Like draw_text, but held back and drawn with the page's other queued cells by
     flush_text: one text object per font, size and colour (the book pages' batched cell
@@ -79,11 +103,20 @@ def queue_text(c, x, y, s, font, size, color=INK, align="left"):
     if not s:
         return
     if align != "left":
-        from reportlab.pdfbase.pdfmetrics import stringWidth
-        w = stringWidth(s, font, size)
+        w = text_width(s, font, size)
         x -= w if align == "right" else w / 2
     q = DRAW_STATE.setdefault(id(c), {}).setdefault("queue", {})
     q.setdefault((font, size, tuple(color)), []).append((x, y, s))
+
+
+def queue_right(c, font, size, color, cells):
+    """queue_text for several right-aligned texts of one font, size and colour at once:
+    ``cells`` are (x of the right end, y, text); the same places as one call each."""
+    q = DRAW_STATE.setdefault(id(c), {}).setdefault("queue", {}).setdefault((font, size, tuple(color)), [])
+    mono = font == fonts.MONO and _mono_uniform()
+    for x, y, s in cells:
+        if s:
+            q.append((x - (_mono_width(len(s), size) if mono else text_width(s, font, size)), y, s))
 
 
 def flush_text(c):
@@ -121,10 +154,9 @@ def wrap_text(s: str, font: str, size: float, width: float) -> list[str]:
 
 def fit_text(s: str, font: str, size: float, width: float) -> str:
     """Text cut with '…' to fit a width (the report's cells and running head)."""
-    from reportlab.pdfbase.pdfmetrics import stringWidth
-    if stringWidth(s, font, size) <= width:
+    if (_mono_width(len(s), size) if font == fonts.MONO and _mono_uniform() else text_width(s, font, size)) <= width:
         return s
-    while s and stringWidth(s + "…", font, size) > width:
+    while s and text_width(s + "…", font, size) > width:
         s = s[:-1]
     return s + "…"
 

@@ -47,47 +47,43 @@ def _tick_label(v: float, step: float) -> str:
     return f"{v:.{dec}f}".replace("-", "−")
 
 
-def _clip_segments(points, ylo, yhi):
-    """Split a polyline (None breaks it) into pieces inside ylo <= y <= yhi, cut exactly at the limits,
-    so no coordinate far outside the plot reaches the PDF."""
-    pieces, cur = [], []
-    for a, b in zip(points[:-1], points[1:]):
-        if a is None or b is None:
-            continue
-        (t0, v0), (t1, v1) = a, b
-        s0, s1 = 0.0, 1.0                       # parameter range of the segment inside the limits
-        dv = v1 - v0
-        for lim, inside_above in ((ylo, True), (yhi, False)):
-            if dv == 0:
-                if (v0 < lim) if inside_above else (v0 > lim):
-                    s0, s1 = 1.0, 0.0
-                continue
-            sc = (lim - v0) / dv
-            if (dv > 0) == inside_above:
-                s0 = max(s0, sc)
-            else:
-                s1 = min(s1, sc)
-        if s0 > s1:
-            continue
-        p0 = (t0 + (t1 - t0) * s0, v0 + dv * s0)
-        p1 = (t0 + (t1 - t0) * s1, v0 + dv * s1)
-        if cur and cur[-1] == p0:
-            cur.append(p1)
-        else:
-            if len(cur) > 1:
-                pieces.append(cur)
-            cur = [p0, p1]
-    if len(cur) > 1:
-        pieces.append(cur)
+def _clip_segments(t, v, valid, ylo, yhi):
+    """Split a polyline through the points (t, v) (a point not ``valid`` breaks it) into
+    pieces inside ylo <= v <= yhi, cut exactly at the limits, so no coordinate far outside
+    the plot reaches the PDF. Returns (t, v) arrays, one pair per piece. Every segment is
+    cut at once, with a point-for-point the arithmetic of a loop over segments."""
+    t0, t1, v0, v1 = t[:-1], t[1:], v[:-1], v[1:]
+    dv = v1 - v0
+    flat, up = dv == 0, dv > 0
+    with np.errstate(divide="ignore", invalid="ignore"):
+        c_lo, c_hi = (ylo - v0) / dv, (yhi - v0) / dv      # parameter where the segment meets a limit
+    s0 = np.zeros(dv.shape)
+    s1 = np.ones(dv.shape)
+    s0 = np.where(~flat & up, np.maximum(s0, c_lo), s0)
+    s1 = np.where(~flat & ~up, np.minimum(s1, c_lo), s1)
+    s0 = np.where(~flat & ~up, np.maximum(s0, c_hi), s0)
+    s1 = np.where(~flat & up, np.minimum(s1, c_hi), s1)
+    keep = valid[:-1] & valid[1:] & ~(flat & ((v0 < ylo) | (v0 > yhi))) & ~(s0 > s1)
+    k = np.flatnonzero(keep)
+    if not k.size:
+        return []
+    a_t, a_v = t0[k] + (t1[k] - t0[k]) * s0[k], v0[k] + dv[k] * s0[k]
+    b_t, b_v = t0[k] + (t1[k] - t0[k]) * s1[k], v0[k] + dv[k] * s1[k]
+    # a kept segment continues the piece when it starts where the kept one before it ends
+    starts = np.flatnonzero(np.concatenate(([True], (a_t[1:] != b_t[:-1]) | (a_v[1:] != b_v[:-1]))))
+    pieces = []
+    for i, j in zip(starts, [*starts[1:], k.size]):
+        pieces.append((np.concatenate((a_t[i:i + 1], b_t[i:j])), np.concatenate((a_v[i:i + 1], b_v[i:j]))))
     return pieces
 
 
-def _polyline(c, points, ylo, yhi, X, Y):
-    for piece in _clip_segments(points, ylo, yhi):
+def _polyline(c, t, v, valid, ylo, yhi, X, Y):
+    for pt, pv in _clip_segments(t, v, valid, ylo, yhi):
+        xs, ys = X(pt).tolist(), Y(pv).tolist()
         path = c.beginPath()
-        path.moveTo(X(piece[0][0]), Y(piece[0][1]))
-        for t, v in piece[1:]:
-            path.lineTo(X(t), Y(v))
+        path.moveTo(xs[0], ys[0])
+        for x, y in zip(xs[1:], ys[1:]):
+            path.lineTo(x, y)
         c.drawPath(path, stroke=1, fill=0)
 
 
@@ -144,12 +140,13 @@ def draw_deviation_plot(c, col, T_disp, T_unit, x, y, w, h):
     c.setStrokeColorRGB(*BAND)
     c.setLineWidth(0.8)
     c.setDash(3, 2)
+    every = np.ones(int(np.sum(ms)), bool)
     for sign in (1, -1):
-        _polyline(c, [(t, sign * b) for t, b, mm in zip(Ts, bs, ms) if mm], ylo, yhi, X, Y)
+        _polyline(c, Ts[ms], sign * bs[ms], every, ylo, yhi, X, Y)
     c.setDash()
     c.setStrokeColorRGB(*TRACE)
     c.setLineWidth(0.7)
-    _polyline(c, [(t, d) if mm else None for t, d, mm in zip(Ts, ds, ms)], ylo, yhi, X, Y)
+    _polyline(c, Ts, ds, ms, ylo, yhi, X, Y)
     set_fill(c, *TRACE)
     if int(np.sum(ms)) <= 200:              # row markers while they stay distinguishable
         for t, d, mm, ok in zip(Ts, ds, ms, ws):

@@ -34,8 +34,8 @@ from . import fonts
 from .pageflow import draw_pages, page_of, with_binary_streams
 from .qa_layout import (DRAW_STATE, EXTRAP_MARK, FAIL_FILL, FAIL_INK, GREY, INK, MARGIN, OUT_MARK, PAGE_H,
                         PAGE_W, PASS_FILL, PASS_INK, RULE, WIDTH, draw_text, fit_text, flush_text, forget_state,
-                        heading, paragraph, queue_text, report_flow, ruled_table, set_fill, set_stroke,
-                        wrap_text)
+                        heading, paragraph, queue_right, queue_text, report_flow, ruled_table, set_fill,
+                        set_stroke, text_width, wrap_text)
 from .qa_plots import plots
 
 MINUS = "−"
@@ -317,6 +317,8 @@ def _listing(flow, cmp, table: str = "", listing: str = "auto"):
     w_ref, w_tg, w_d, w_m = 52.0, 52.0, 42.0, 11.0
     aligned_any = any(c.alignment is not None for c in cols)
     rows = listed_rows(cmp, listing)
+    lines, T_text = [str(n) for n in ref.lines], ref.T_text
+    extrapolated = np.asarray(cmp.extrapolated, bool).tolist()
     for g in range(0, len(cols), per):
         group = cols[g:g + per]
         flow.new_page()
@@ -355,6 +357,11 @@ def _listing(flow, cmp, table: str = "", listing: str = "auto"):
                 x += w_m
         flow.keep_with_next(2 * lead, 2 * lead)
         flow.add(2 * lead, head)
+        # the columns as Python lists once (the same values; a listing draws many thousand cells)
+        gw = w_ref + w_tg + w_d + w_m
+        data = [(np.asarray(col.present, bool).tolist(), np.asarray(col.within, bool).tolist(), col.text,
+                 np.asarray(col.reference, float).tolist(), np.asarray(col.tablegen, float).tolist(),
+                 np.asarray(col.deviation, float).tolist()) for col in group]
         for i in rows:
             if flow.turn_if_short(lead):
                 flow.add(2 * lead, head)
@@ -362,35 +369,36 @@ def _listing(flow, cmp, table: str = "", listing: str = "auto"):
                 flow.add(lead, lambda c, y, gap=i: _gap_row(c, y, ref, gap, lead, size))
                 continue
 
-            def row(c, y, i=i, group=group):
+            def row(c, y, i=i, group=group, data=data):
                 # cells are queued and drawn per page in one text object per colour (flush_text)
                 base = y - lead + 2.6
-                ext = bool(cmp.extrapolated[i])
-                queue_text(c, MARGIN + w_line - 2, base, str(ref.lines[i]), fonts.MONO, size, GREY, "right")
-                queue_text(c, MARGIN + w_line + w_T - 2, base, ref.T_text[i] + (EXTRAP_MARK if ext else " "),
-                           fonts.MONO, size, INK, "right")
+                # queued in the order of one call per cell, so the page's colour groups come out alike
+                queue_right(c, fonts.MONO, size, GREY, ((MARGIN + w_line - 2, base, lines[i]),))
+                queue_right(c, fonts.MONO, size, INK,
+                            ((MARGIN + w_line + w_T - 2, base, T_text[i] + (EXTRAP_MARK if extrapolated[i] else " ")),))
+                ink_cells = []
                 x = MARGIN + w_line + w_T
-                for col in group:
-                    gw = w_ref + w_tg + w_d + w_m
-                    bad = bool(col.present[i] and not col.within[i])
+                for present, within, text, reference, tablegen, deviation in data:
+                    bad = present[i] and not within[i]
                     if bad:
                         set_fill(c, *FAIL_FILL)
                         c.rect(x, y - lead, gw, lead, stroke=0, fill=1)
-                    ink = FAIL_INK if bad else INK
-                    if col.present[i]:
-                        r_s, t_s = _pair(col.text[i], col.reference[i], col.tablegen[i], w_ref - 3, size)
-                        cells = (r_s, t_s, format_dev(col.deviation[i]))
+                    if present[i]:
+                        r_s, t_s = _pair(text[i], reference[i], tablegen[i], w_ref - 3, size)
+                        cells = (r_s, t_s, format_dev(deviation[i]))
                     else:
-                        cells = ("—", _pair("", np.nan, col.tablegen[i], w_tg - 3, size)[1], "")
+                        cells = ("—", _pair("", math.nan, tablegen[i], w_tg - 3, size)[1], "")
+                    out = [] if bad else ink_cells
                     for s, ww in zip(cells, (w_ref, w_tg, w_d)):
                         x += ww
-                        queue_text(c, x - 2, base, fit_text(s.replace("-", "−"), fonts.MONO, size, ww - 3),
-                                   fonts.MONO, size, ink, "right")
+                        out.append((x - 2, base, fit_text(s.replace("-", "−"), fonts.MONO, size, ww - 3)))
                     if bad:
+                        queue_right(c, fonts.MONO, size, FAIL_INK, out)
                         queue_text(c, x + w_m / 2, base, OUT_MARK, fonts.SANS_BOLD, size + 0.6, FAIL_INK, "center")
                     set_stroke(c, RULE, 0.3)
                     c.line(x + w_m, y, x + w_m, y - lead)
                     x += w_m
+                queue_right(c, fonts.MONO, size, INK, ink_cells)
                 if i % 5 == 4:
                     set_stroke(c, RULE, 0.25)
                     c.line(MARGIN, y - lead, x, y - lead)
@@ -410,12 +418,10 @@ def _gap_row(c, y, ref, gap, lead, size):
 def _pair(text, ref_value, tg_value, width, size):
     """Reference cell as printed and tablegen value to the same places; both to 8 significant
     figures when the printed text is too wide for the column (deviations.csv keeps everything)."""
-    from reportlab.pdfbase.pdfmetrics import stringWidth
-
     from ..calc.compare_output import format_like
     if text:
         r_s, t_s = text, format_like(tg_value, text)
-        if max(stringWidth(r_s, fonts.MONO, size), stringWidth(t_s, fonts.MONO, size)) <= width:
+        if max(text_width(r_s, fonts.MONO, size), text_width(t_s, fonts.MONO, size)) <= width:
             return r_s, t_s
         return f"{ref_value:.8g}", f"{tg_value:.8g}"
     t_s = f"{tg_value:.8g}" if math.isfinite(tg_value) else "—"

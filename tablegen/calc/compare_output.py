@@ -62,12 +62,16 @@ def unit_suffix(symbol: str) -> str:
     return "" if symbol in ("-", "") else f" {symbol}"
 
 
+#: First characters a spreadsheet may read as the start of a formula.
+_FORMULA_START = frozenset(("=", "+", "-", "@", "\t", "\r", "|", "%"))
+
+
 def _neutral(text: str) -> str:
     """Neutralise text against spreadsheet formula injection; numbers stay numbers."""
     s = str(text)
-    if NUMBER.match(s) or re.fullmatch(r"-?(inf|nan)", s):
+    if s[:1] not in _FORMULA_START or NUMBER.match(s) or re.fullmatch(r"-?(inf|nan)", s):
         return s
-    return "'" + s if s[:1] in ("=", "+", "-", "@", "\t", "\r", "|", "%") else s
+    return "'" + s
 
 
 def deviations_csv(cmp: Comparison) -> str:
@@ -86,16 +90,22 @@ def deviations_csv(cmp: Comparison) -> str:
         head += [f"{c.key}.reference [{s}]", f"{c.key}.tablegen [{s}]", f"{c.key}.deviation [{s}]",
                  f"{c.key}.relative [-]", f"{c.key}.bound [{s}]", f"{c.key}.status [-]"]
     w.writerow(head)
-    for i in range(cmp.T_K.size):
-        row = [str(ref.lines[i]), ref.T_text[i], repr(float(cmp.T_K[i])), "yes" if cmp.extrapolated[i] else "no"]
-        for c in cmp.columns:
-            if c.present[i]:
-                row += [c.text[i], repr(float(c.tablegen[i])), repr(float(c.deviation[i])),
-                        "" if not math.isfinite(c.relative[i]) else repr(float(c.relative[i])),
-                        repr(float(c.bound[i])), "within" if c.within[i] else "OUT"]
+    # columns as lists of Python floats once (repr of the same doubles as before)
+    cols = [(c.present.tolist(), c.text, c.tablegen.tolist(), c.deviation.tolist(), c.relative.tolist(),
+             c.bound.tolist(), c.within.tolist()) for c in cmp.columns]
+    T_K, ext = cmp.T_K.tolist(), cmp.extrapolated.tolist()
+    # only the texts read from the reference can start a formula: the rest are reprs of
+    # floats, which _neutral leaves as they are, and fixed words
+    for i in range(len(T_K)):
+        row = [str(ref.lines[i]), _neutral(ref.T_text[i]), repr(T_K[i]), "yes" if ext[i] else "no"]
+        for present, text, tg, dev, rel, bound, within in cols:
+            if present[i]:
+                row += [_neutral(text[i]), repr(tg[i]), repr(dev[i]),
+                        "" if not math.isfinite(rel[i]) else repr(rel[i]),
+                        repr(bound[i]), "within" if within[i] else "OUT"]
             else:
-                row += ["", repr(float(c.tablegen[i])), "", "", "", ""]
-        w.writerow([_neutral(x) for x in row])
+                row += ["", repr(tg[i]), "", "", "", ""]
+        w.writerow(row)
     return buf.getvalue()
 
 
