@@ -119,10 +119,36 @@ def queue_right(c, font, size, color, cells):
             q.append((x - (_mono_width(len(s), size) if mono else text_width(s, font, size)), y, s))
 
 
+def queue_rules(c, xs, y_top, y_bottom):
+    """Vertical rules (RULE, 0.3 pt) at the places ``xs`` from y_top to y_bottom, held back
+    like queue_text: flush_text draws the rules of a page that meet end to end at one x as
+    one line (a listing of many thousand rows draws one rule per column and page, not one
+    per cell)."""
+    DRAW_STATE.setdefault(id(c), {}).setdefault("rules", []).append((xs, y_top, y_bottom))
+
+
 def flush_text(c):
-    """Draw the text queued by queue_text (call before the page ends)."""
+    """Draw the text and rules queued by queue_text and queue_rules (call before the page ends)."""
     from .pdf import _draw_cells
-    q = DRAW_STATE.setdefault(id(c), {}).pop("queue", None)
+    st = DRAW_STATE.setdefault(id(c), {})
+    rules = st.pop("rules", None)
+    if rules:
+        spans: dict = {}
+        for xs, a, b in rules:
+            for x in xs:
+                spans.setdefault(x, []).append((a, b))
+        set_stroke(c, RULE, 0.3)
+        for x, runs in spans.items():
+            runs.sort(key=lambda r: -r[0])
+            top, bottom = runs[0]
+            for a, b in runs[1:]:
+                if abs(a - bottom) <= 1e-6:           # this run starts where the last ended
+                    bottom = min(bottom, b)
+                    continue
+                c.line(x, top, x, bottom)
+                top, bottom = a, b
+            c.line(x, top, x, bottom)
+    q = st.pop("queue", None)
     for (font, size, color), cells in (q or {}).items():
         set_fill(c, *color)
         _draw_cells(c, font, size, cells)

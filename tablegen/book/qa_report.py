@@ -34,7 +34,7 @@ from . import fonts
 from .pageflow import draw_pages, page_of, with_binary_streams
 from .qa_layout import (DRAW_STATE, EXTRAP_MARK, FAIL_FILL, FAIL_INK, GREY, INK, MARGIN, OUT_MARK, PAGE_H,
                         PAGE_W, PASS_FILL, PASS_INK, RULE, WIDTH, draw_text, fit_text, flush_text, forget_state,
-                        heading, paragraph, queue_right, queue_text, report_flow, ruled_table, set_fill,
+                        heading, paragraph, queue_right, queue_rules, queue_text, report_flow, ruled_table, set_fill,
                         set_stroke, text_width, wrap_text)
 from .qa_plots import plots
 
@@ -359,6 +359,13 @@ def _listing(flow, cmp, table: str = "", listing: str = "auto"):
         flow.add(2 * lead, head)
         # the columns as Python lists once (the same values; a listing draws many thousand cells)
         gw = w_ref + w_tg + w_d + w_m
+        rule_xs, x = [], MARGIN + w_line + w_T
+        for _ in group:                       # the sums the cells take, so rules and cells agree
+            x += w_ref
+            x += w_tg
+            x += w_d
+            rule_xs.append(x + w_m)
+            x += w_m
         data = [(np.asarray(col.present, bool).tolist(), np.asarray(col.within, bool).tolist(), col.text,
                  np.asarray(col.reference, float).tolist(), np.asarray(col.tablegen, float).tolist(),
                  np.asarray(col.deviation, float).tolist()) for col in group]
@@ -395,10 +402,9 @@ def _listing(flow, cmp, table: str = "", listing: str = "auto"):
                     if bad:
                         queue_right(c, fonts.MONO, size, FAIL_INK, out)
                         queue_text(c, x + w_m / 2, base, OUT_MARK, fonts.SANS_BOLD, size + 0.6, FAIL_INK, "center")
-                    set_stroke(c, RULE, 0.3)
-                    c.line(x + w_m, y, x + w_m, y - lead)
                     x += w_m
                 queue_right(c, fonts.MONO, size, INK, ink_cells)
+                queue_rules(c, rule_xs, y, y - lead)
                 if i % 5 == 4:
                     set_stroke(c, RULE, 0.25)
                     c.line(MARGIN, y - lead, x, y - lead)
