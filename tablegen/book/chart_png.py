@@ -89,6 +89,14 @@ class PngPages:
 
     def __init__(self):
         self._figs = {}
+        self._pool = None
+        self._pending = []
+
+    def close(self) -> None:
+        """Finish the encodings still running and stop the worker thread (png_soon)."""
+        if self._pool is not None:
+            self._pool.shutdown(wait=True)
+            self._pool = None
 
     def _figure(self, W: float, H: float, dpi: int):
         from matplotlib.backends.backend_agg import FigureCanvasAgg
@@ -107,8 +115,27 @@ class PngPages:
 
     def png(self, model, paper: str | None = None, dpi: int = 300) -> bytes:
         """The chart as a PNG page (landscape A4 or A3) at ``dpi``; reproducible bytes."""
-        import io
+        return _encode(*self._draw(model, paper, dpi))
 
+    def png_soon(self, model, paper: str | None = None, dpi: int = 300):
+        """Like :meth:`png`, but only the drawing is done now: the PNG encoding (a third of
+        a chart's time, in zlib without Python's lock) runs on a worker thread while the
+        next chart is drawn. Returns a function that waits for the bytes, which are those
+        of :meth:`png`. At most two pages wait for their encoding (memory); call
+        :meth:`close` when done."""
+        from concurrent.futures import ThreadPoolExecutor
+        image = self._draw(model, paper, dpi)
+        if self._pool is None:
+            self._pool = ThreadPoolExecutor(max_workers=1, thread_name_prefix="tablegen-png")
+        self._pending = [f for f in self._pending if not f.done()]
+        while len(self._pending) >= 2:
+            self._pending.pop(0).result()
+        future = self._pool.submit(_encode, *image)
+        self._pending.append(future)
+        return future.result
+
+    def _draw(self, model, paper, dpi):
+        """The page drawn and copied out of the figure: (RGB image, tEXt chunks, dpi)."""
         import matplotlib
 
         paper = (paper or model.paper).upper()
@@ -119,28 +146,35 @@ class PngPages:
             fig, ax = self._figure(W, H, dpi)
             try:
                 _compose(_MplSurface(ax), model, 0.0, 0.0, W, H, page_text="")
-                buf = io.BytesIO()
-                _save_rgb(fig, buf, dpi, {"Title": model.title[:200],
-                                          "Description": f"tablegen chart {model.fingerprint}"})
+                rgb = _rgb(fig)
             finally:
                 for artist in (*ax.lines, *ax.patches, *ax.texts):
                     artist.remove()
-        return buf.getvalue()
+        return rgb, {"Title": model.title[:200], "Description": f"tablegen chart {model.fingerprint}"}, dpi
 
 
-def _save_rgb(fig, buf, dpi: int, text: dict) -> None:
-    """The drawn figure as an RGB PNG (the page is opaque white: an alpha channel would
-    only add a constant byte per pixel to encode), with ``text`` as tEXt chunks and the
-    resolution in pHYs; no time or software chunk, so the bytes are reproducible."""
-    from PIL import Image, PngImagePlugin
+def _rgb(fig):
+    """The drawn figure as an RGB image (the page is opaque white: an alpha channel would
+    only add a constant byte per pixel to encode), a copy independent of the figure."""
+    from PIL import Image
 
     fig.canvas.draw()
     w, h = fig.canvas.get_width_height(physical=True)
-    rgb = Image.frombuffer("RGBA", (w, h), fig.canvas.buffer_rgba(), "raw", "RGBA", 0, 1).convert("RGB")
+    return Image.frombuffer("RGBA", (w, h), fig.canvas.buffer_rgba(), "raw", "RGBA", 0, 1).convert("RGB")
+
+
+def _encode(rgb, text: dict, dpi: int) -> bytes:
+    """An RGB image as PNG bytes, with ``text`` as tEXt chunks and the resolution in pHYs;
+    no time or software chunk, so the bytes are reproducible."""
+    import io
+
+    from PIL import PngImagePlugin
     info = PngImagePlugin.PngInfo()
     for k, v in text.items():
         info.add_text(k, v)
+    buf = io.BytesIO()
     rgb.save(buf, format="png", pnginfo=info, dpi=(dpi, dpi), compress_level=PNG_COMPRESS_LEVEL)
+    return buf.getvalue()
 
 
 def chart_png(model, paper: str | None = None, dpi: int = 300) -> bytes:

@@ -239,9 +239,16 @@ def run(args) -> int:
         for m in models:
             seen[m.kind] = seen.get(m.kind, 0) + 1
             suffix = "" if sum(1 for x in models if x.kind == m.kind) == 1 else f"-{seen[m.kind]}"
-            jobs[out / f"{stem}-{m.kind}{suffix}.png"] = lambda m=m: pages.png(m, m.paper, dpi=args.dpi)
+            # drawn one after the other, each encoded on a worker while the next is drawn
+            jobs[out / f"{stem}-{m.kind}{suffix}.png"] = lambda m=m: pages.png_soon(m, m.paper, dpi=args.dpi)
     check_files(jobs, args.force)
-    written = write_files({p: make() for p, make in jobs.items()}, args.force)
+    try:
+        made = {p: make() for p, make in jobs.items()}       # PDF bytes, or a function giving PNG bytes
+        made = {p: v() if callable(v) else v for p, v in made.items()}
+    finally:
+        if args.format in ("png", "both"):
+            pages.close()
+    written = write_files(made, args.force)
     for p in written:
         sys.stdout.write(f"{p}\n")
     notice(args, f"{len(models)} chart(s) of {sub.id} written to {out}/")
