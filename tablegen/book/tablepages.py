@@ -209,18 +209,15 @@ def table_pages(t, index: int, L: Layout, pages: list):
             y_rule = y_unit - 4
             ops.append(("l", x0, y_rule, x0 + tw, y_rule, 0.8, 0.0))
             # body
-            cells = []
+            bases = []
             yy = y_rule
             for r in range(a, b):
                 yy -= L.row
-                base = yy + (L.row - L.body) * 0.5
-                if markw and t.marks[r]:
-                    cells.append((x0, base, t.marks[r]))
-                for i, xx in zip(g, xr):
-                    cells.append((xx - cell_w[i][r], base, cells_txt[i][r]))
+                bases.append(yy + (L.row - L.body) * 0.5)
                 if (r - a + 1) % 5 == 0 and r + 1 < b:
                     ops.append(("l", x0, yy, x0 + tw, yy, 0.3, 0.6))
-            ops.append(("cells", SANS, L.body, cells))
+            ops.append(("cells", SANS, L.body,
+                        _CellGrid(a, bases, x0, t.marks if markw else None, tuple(zip(g, xr)), cells_txt, cell_w)))
             ops.append(("l", x0, yy - 1, x0 + tw, yy - 1, 0.8, 0.0))
             ny = yy - 3
             lines = list(P.note_lines) if last or not L.compact else []
@@ -230,6 +227,27 @@ def table_pages(t, index: int, L: Layout, pages: list):
                 ops.append(("t", SANS_OBLIQUE, L.body * 0.85, left0, ny, line))
             pages.append(page)
     return len(pages) - start
+
+
+class _CellGrid:
+    """The cells of one table page, made when the page is drawn: (x, baseline, text) in
+    row order (the mark, then the columns), from the table's own lists of texts and
+    widths. A 500-page book held some 600,000 such tuples at once when every page kept
+    its own list; now a page keeps its baselines only."""
+
+    __slots__ = ("first", "bases", "x0", "marks", "columns", "texts", "widths")
+
+    def __init__(self, first, bases, x0, marks, columns, texts, widths):
+        self.first, self.bases, self.x0, self.marks = first, bases, x0, marks
+        self.columns, self.texts, self.widths = columns, texts, widths
+
+    def __iter__(self):
+        marks, x0, texts, widths = self.marks, self.x0, self.texts, self.widths
+        for r, base in enumerate(self.bases, self.first):
+            if marks is not None and marks[r]:
+                yield (x0, base, marks[r])
+            for i, xx in self.columns:
+                yield (xx - widths[i][r], base, texts[i][r])
 
 
 def _part_line(a: int, b: int, n: int, gi: int, parts: int, facing: bool, end: bool) -> str:
