@@ -231,7 +231,7 @@ class Polynomial:
         except AttributeError:
             self._tables()
             cols = self._steps_py
-        inner = self._inner_list
+        inner, neg = self._inner_list, self._has_neg
         cps, hs, ss = [], [], []
         for t, lnT in zip(T.tolist(), np.log(T).tolist()):
             (c0, h0, s0, c1, h1, s1, c2, h2, s2, c3, h3, s3, c4, h4, s4, c5, h5, s5,
@@ -241,15 +241,15 @@ class Polynomial:
             hv = ((((h0 * t + h1) * t + h2) * t + h3) * t + h4) * t + h5
             sv = ((((s0 * t + s1) * t + s2) * t + s3) * t + s4) * t + s5
             sv += fs * lnT
-            if self._has_neg:
+            if neg:
                 cp += (ic * inv + jc) * inv
                 hv += (ih * inv + jh) * inv + fh * lnT
                 sv += (is_ * inv + js) * inv
             cps.append(cp)
             hs.append(hv)
             ss.append(sv)
-        got = {"cp": cps, "h": hs, "s": ss}
-        return {key: np.array(got[key]) for key in want}
+        rows = np.array((cps, hs, ss))
+        return {key: rows[_ROW[key]] for key in want}
 
     def evaluate(self, T, *, want=("cp", "h", "s")) -> dict[str, np.ndarray]:
         """cp/R, h/R (in K) and s/R at temperatures T (K), arrays broadcast.
