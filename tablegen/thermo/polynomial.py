@@ -251,7 +251,7 @@ class Polynomial:
         rows = np.array((cps, hs, ss))
         return {key: rows[_ROW[key]] for key in want}
 
-    def evaluate(self, T, *, want=("cp", "h", "s")) -> dict[str, np.ndarray]:
+    def evaluate(self, T, *, want=("cp", "h", "s"), out=None) -> dict[str, np.ndarray]:
         """cp/R, h/R (in K) and s/R at temperatures T (K), arrays broadcast.
 
         No range check here: callers (``Substance``) refuse or mark
@@ -262,14 +262,25 @@ class Polynomial:
         Small arrays gather each point's coefficients instead (TINY, SMALL). Every
         path does the same operations on each point: a value depends on its own
         temperature only, not on the size or order of the array it is in.
+
+        ``out``: arrays of T's shape (C-contiguous) to write some of the results into,
+        by key; the others are rows of one new block (so they are freed together: a
+        script's allocator then keeps the block's pages between calls instead of
+        returning them to the system each time).
         """
         T = np.asarray(T, dtype=float)
         shape = T.shape
         T = T.ravel()
+        given = out or {}
         if T.size <= SMALL and T.size <= SMALL_PER_INTERVAL * self.coeffs.shape[0]:
             vals = self._evaluate_small(T, want)
-            return vals if len(shape) == 1 else {k: v.reshape(shape) for k, v in vals.items()}
-        out = {k: np.empty_like(T) for k in want}
+            for k, v in given.items():
+                np.copyto(v.reshape(-1), vals[k])
+            vals = {k: given[k] if k in given else v.reshape(shape) for k, v in vals.items()}
+            return vals
+        new = [k for k in want if k not in given]
+        block = dict(zip(new, np.empty((len(new), T.size)))) if new else {}
+        out = {k: given[k].reshape(-1) if k in given else block[k] for k in want}
         # one set of scratch rows per thread, kept between calls (log, 1/T, two temporaries,
         # gathered T and three gathered results): no temporary array per term and no
         # fresh memory pages per call, which cost more than the arithmetic
@@ -278,7 +289,7 @@ class Polynomial:
             b = min(a + BLOCK, T.size)
             part = {k: v[a:b] for k, v in out.items()}
             self._evaluate_block(T[a:b], part, scratch)
-        return {k: v.reshape(shape) for k, v in out.items()}
+        return {k: given[k] if k in given else v.reshape(shape) for k, v in out.items()}
 
     def _evaluate_block(self, T, out, scratch):
         n = self.n_intervals

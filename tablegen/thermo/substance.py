@@ -290,6 +290,9 @@ class Substance:
         dict of numpy arrays (and scalars M, R): T_K, cp, cv, k, h, u, s0, g0, Pr,
         vr, a (J/kg, J/(kg K), m/s), the same with ``_molar`` (J/mol, J/(mol K)),
         dh298_molar = H(T) - H(298.15 K); with ``keys``, T_K, M, R and those keys.
+        The returned columns are rows of one block of memory (one allocation is much
+        faster than twenty): a column kept alone keeps that block alive, so copy it
+        (``np.copy``) to keep one column of a large call, or ask for it with ``keys``.
 
         Raises
         ------
@@ -305,41 +308,48 @@ class Substance:
         for key in want:
             funcs.update(_FUNCTIONS.get(key, ""))
         c = self._constants()
-        raw = self.poly.evaluate(T, want=tuple(f for f in ("cp", "h", "s") if f[0] in funcs)) if funcs else {}
+        col = _Columns(want, T.shape)
+        raw = self.poly.evaluate(T, want=tuple(f for f in ("cp", "h", "s") if f[0] in funcs),
+                                 out=col.given({"cp": "cp_molar", "h": "h_molar"})) if funcs else {}
         Mk = self.M * 1e-3
         out = {"T_K": T, "M": self.M, "R": self.R}
         if "c" in funcs:
             cp_m = raw["cp"]
             cp_m *= R_MOLAR
-            cv_m = cp_m - R_MOLAR
+            cv_m = np.subtract(cp_m, R_MOLAR, out=col("cv_molar"))
             if mask is not None and mask.any():
                 self._check_cv(T[mask], cv_m[mask])
-            k = cp_m / cv_m
+            k = np.divide(cp_m, cv_m, out=col("k"))
             out.update(cp_molar=cp_m, cv_molar=cv_m, k=k)
             if "cp" in want:
-                out["cp"] = cp_m / Mk
+                out["cp"] = np.divide(cp_m, Mk, out=col("cp"))
             if "cv" in want:
-                out["cv"] = cv_m / Mk
+                out["cv"] = np.divide(cv_m, Mk, out=col("cv"))
             if "a" in want:
-                out["a"] = np.sqrt(k * self.R * T)
+                a = np.multiply(k, self.R, out=col("a"))
+                a *= T
+                out["a"] = np.sqrt(a, out=a)
         if "h" in funcs:
             hR = raw["h"]
             if "dh298_molar" in want:
-                out["dh298_molar"] = _set_where((hR - c["h298R"]) * R_MOLAR, T == T_REF, 0.0)
+                d = np.subtract(hR, c["h298R"], out=col("dh298_molar"))
+                d *= R_MOLAR
+                out["dh298_molar"] = _set_where(d, T == T_REF, 0.0)
             h_m = hR
             h_m *= R_MOLAR
             h_m += c["h_off"]
             h_m = self._exact_at_datum(T, h_m, self.M * 1e-3)
             out["h_molar"] = h_m
             if want & {"u", "u_molar"}:
-                u_m = h_m - R_MOLAR * T
+                u_m = np.multiply(R_MOLAR, T, out=col("u_molar"))
+                u_m = np.subtract(h_m, u_m, out=u_m)
                 out["u_molar"] = u_m
                 if "u" in want:
-                    out["u"] = u_m / Mk
+                    out["u"] = np.divide(u_m, Mk, out=col("u"))
             if "h" in want:
-                out["h"] = h_m / Mk
+                out["h"] = np.divide(h_m, Mk, out=col("h"))
         if "s" in funcs:
-            self._entropy_columns(out, T, raw["s"], c, want)
+            self._entropy_columns(out, T, raw["s"], c, want, col)
         if P is not None:
             self._pressure_columns(out, T, P, want)
         if keys is not None:
@@ -350,14 +360,16 @@ class Substance:
             out.update(_uncertainty_columns()(self, T, P))
         return out
 
-    def _entropy_columns(self, out: dict, T: np.ndarray, sR, c: dict, want: set) -> None:
+    def _entropy_columns(self, out: dict, T: np.ndarray, sR, c: dict, want: set, col=None) -> None:
         """Add s0_molar and the wanted of s0, Pr, vr, g0, g0_molar to ``out`` (sR: s°/R at 1 bar;
-        g0 needs h_molar in ``out`` already)."""
+        g0 needs h_molar in ``out`` already; ``col``: where the columns go, :class:`_Columns`)."""
+        col = col or _Columns((), T.shape)
         Mk = self.M * 1e-3
-        s0_m = (sR - c["lnP"]) * R_MOLAR
+        s0_m = np.subtract(sR, c["lnP"], out=col("s0_molar"))
+        s0_m *= R_MOLAR
         out["s0_molar"] = s0_m
         if "s0" in want:
-            out["s0"] = s0_m / Mk
+            out["s0"] = np.divide(s0_m, Mk, out=col("s0"))
         if want & {"Pr", "vr"}:
             lnPr = sR
             lnPr -= c["sR_anchor"] - math.log(self.anchor.Pr)
@@ -365,17 +377,19 @@ class Substance:
                 self._check_scales(float(lnPr.min()), float(lnPr.max()), float(T.min()), float(T.max()))
             at_anchor = T == self.anchor.T_K     # the anchor values exactly, as the datum
             if "Pr" in want:
-                out["Pr"] = _set_where(np.exp(lnPr), at_anchor, self.anchor.Pr)
+                out["Pr"] = _set_where(np.exp(lnPr, out=col("Pr")), at_anchor, self.anchor.Pr)
             if "vr" in want:
-                vr = np.exp(math.log(self.anchor.Pr) - lnPr)
+                vr = np.subtract(math.log(self.anchor.Pr), lnPr, out=col("vr"))
+                vr = np.exp(vr, out=vr)
                 vr *= T
                 vr *= self.anchor.vr / self.anchor.T_K
                 out["vr"] = _set_where(vr, at_anchor, self.anchor.vr)
         if want & {"g0", "g0_molar"}:
-            g0_m = out["h_molar"] - T * s0_m
+            g0_m = np.multiply(T, s0_m, out=col("g0_molar"))
+            g0_m = np.subtract(out["h_molar"], g0_m, out=g0_m)
             out["g0_molar"] = g0_m
             if "g0" in want:
-                out["g0"] = g0_m / Mk
+                out["g0"] = np.divide(g0_m, Mk, out=col("g0"))
 
     def _pressure_columns(self, out: dict, T: np.ndarray, P, want: set) -> None:
         """Add P_Pa and the wanted of s, s_molar, v, rho at pressures P (Pa) to ``out``."""
@@ -562,6 +576,34 @@ def _wanted(keys, with_P: bool, molar_only: bool) -> set:
     if not with_P and want & {"s", "s_molar", "v", "rho", "P_Pa"}:
         raise InputError("keys s, s_molar, v, rho need pressures P")
     return want
+
+
+class _Columns:
+    """Where properties() puts its columns: the keys it returns as rows of one block (one
+    allocation, freed as one: a script's allocator then keeps the block's pages between
+    calls instead of handing them back to the system, which cost half of a large call);
+    anything else (a column only computed on the way) in an array of its own, so a kept
+    column never holds more than the columns returned with it."""
+
+    __slots__ = ("rows", "shape")
+
+    def __init__(self, want, shape):
+        keys = sorted(set(want) & _BLOCK_KEYS)
+        self.shape = shape
+        self.rows = dict(zip(keys, np.empty((len(keys), *shape)))) if keys and shape else {}
+
+    def __call__(self, key: str) -> np.ndarray:
+        r = self.rows.get(key)
+        return r if r is not None else np.empty(self.shape)
+
+    def given(self, names: dict) -> dict:
+        """The rows for evaluation results that are returned as they are ({result: key})."""
+        return {f: self.rows[k] for f, k in names.items() if k in self.rows}
+
+
+#: Columns of properties() computed into rows of its block.
+_BLOCK_KEYS = frozenset(("cp_molar", "cv_molar", "k", "cp", "cv", "a", "dh298_molar", "h_molar", "u_molar",
+                         "h", "u", "s0_molar", "s0", "Pr", "vr", "g0_molar", "g0"))
 
 
 def _set_where(a, mask, value):
