@@ -274,10 +274,11 @@ class Polynomial:
         given = out or {}
         if T.size <= SMALL and T.size <= SMALL_PER_INTERVAL * self.coeffs.shape[0]:
             vals = self._evaluate_small(T, want)
+            if out is None:
+                return vals if len(shape) == 1 else {k: v.reshape(shape) for k, v in vals.items()}
             for k, v in given.items():
                 np.copyto(v.reshape(-1), vals[k])
-            vals = {k: given[k] if k in given else v.reshape(shape) for k, v in vals.items()}
-            return vals
+            return {k: given[k] if k in given else v.reshape(shape) for k, v in vals.items()}
         new = [k for k in want if k not in given]
         block = dict(zip(new, np.empty((len(new), T.size)))) if new else {}
         out = {k: given[k].reshape(-1) if k in given else block[k] for k in want}
