@@ -113,10 +113,10 @@ def queue_right(c, font, size, color, cells):
     """queue_text for several right-aligned texts of one font, size and colour at once:
     ``cells`` are (x of the right end, y, text); the same places as one call each."""
     q = DRAW_STATE.setdefault(id(c), {}).setdefault("queue", {}).setdefault((font, size, tuple(color)), [])
-    mono = font == fonts.MONO and _mono_uniform()
-    for x, y, s in cells:
-        if s:
-            q.append((x - (_mono_width(len(s), size) if mono else text_width(s, font, size)), y, s))
+    if font == fonts.MONO and _mono_uniform():          # the listing's cells: one lookup by length
+        q.extend((x - _mono_width(len(s), size), y, s) for x, y, s in cells if s)
+    else:
+        q.extend((x - text_width(s, font, size), y, s) for x, y, s in cells if s)
 
 
 def queue_rules(c, xs, y_top, y_bottom):
@@ -180,7 +180,7 @@ def wrap_text(s: str, font: str, size: float, width: float) -> list[str]:
 
 def fit_text(s: str, font: str, size: float, width: float) -> str:
     """Text cut with '…' to fit a width (the report's cells and running head)."""
-    if (_mono_width(len(s), size) if font == fonts.MONO and _mono_uniform() else text_width(s, font, size)) <= width:
+    if text_width(s, font, size) <= width:
         return s
     while s and text_width(s + "…", font, size) > width:
         s = s[:-1]

@@ -360,10 +360,9 @@ class Substance:
             out.update(_uncertainty_columns()(self, T, P))
         return out
 
-    def _entropy_columns(self, out: dict, T: np.ndarray, sR, c: dict, want: set, col=None) -> None:
+    def _entropy_columns(self, out: dict, T: np.ndarray, sR, c: dict, want: set, col) -> None:
         """Add s0_molar and the wanted of s0, Pr, vr, g0, g0_molar to ``out`` (sR: s°/R at 1 bar;
         g0 needs h_molar in ``out`` already; ``col``: where the columns go, :class:`_Columns`)."""
-        col = col or _Columns((), T.shape)
         Mk = self.M * 1e-3
         s0_m = np.subtract(sR, c["lnP"], out=col("s0_molar"))
         s0_m *= R_MOLAR
