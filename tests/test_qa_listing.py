@@ -98,3 +98,38 @@ def test_a_bad_listing_mode_is_refused_in_one_line(tmp_path, capsys):
     code, _ = _run(tmp_path, _reference(tmp_path, 20), "--listing", "some")
     err = capsys.readouterr().err.strip().splitlines()
     assert code == 2 and len(err) == 1 and "--listing" in err[0] and "full" in err[0]
+
+
+def _vertical_rules(page) -> dict:
+    """Total length of the vertical line segments of a page's content, by x (pt)."""
+    import re
+    data = page.get_contents().get_data().decode("latin-1")
+    spans: dict = {}
+    for x1, y1, x2, y2 in re.findall(r"([-\d.]+) ([-\d.]+) m ([-\d.]+) ([-\d.]+) l S", data):
+        if abs(float(x1) - float(x2)) < 1e-3:
+            x = round(float(x1), 2)
+            spans[x] = spans.get(x, 0.0) + abs(float(y2) - float(y1))
+    return spans
+
+
+def test_every_column_group_is_ruled_from_its_head_to_its_last_row(tmp_path):
+    # four columns make two groups of different width (3 + 1): each listing page rules the
+    # right edge of every group of its columns over the same height (a rule queued for the
+    # page and merged must not take another group's places). NIST-JANAF N2 (table N-023):
+    # cp, s°, H - H(298); h at the formation datum is H - H(298) for an element (ΔfH = 0,
+    # common practice), a fourth column.
+    text = (EXAMPLES / "janaf-n2.csv").read_text(encoding="utf-8")
+    table = [r for r in csv.reader(io.StringIO(text)) if r and not r[0].startswith("#")]
+    ref = tmp_path / "n2-four.csv"
+    with open(ref, "w", newline="", encoding="utf-8") as f:
+        w = csv.writer(f)
+        w.writerow(table[0] + ["h_molar [kJ/mol]"])
+        w.writerows(r + [r[3]] for r in table[1:])
+    out = tmp_path / "qa"
+    code = cli.main(["compare", "N2", str(ref), "--out", str(out), "--listing", "full", "--quiet"])
+    assert code in (0, 1)
+    pages = [p for p in PdfReader(out / "report.pdf").pages if "Side-by-side listing" in p.extract_text()]
+    assert len(pages) >= 2                                  # one page per column group at least
+    for page in pages:
+        spans = _vertical_rules(page)
+        assert spans and max(spans.values()) - min(spans.values()) < 0.5, spans

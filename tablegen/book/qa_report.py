@@ -376,7 +376,7 @@ def _listing(flow, cmp, table: str = "", listing: str = "auto"):
                 flow.add(lead, lambda c, y, gap=i: _gap_row(c, y, ref, gap, lead, size))
                 continue
 
-            def row(c, y, i=i, group=group, data=data):
+            def row(c, y, i=i, data=data, rule_xs=tuple(rule_xs)):
                 # cells are queued and drawn per page in one text object per colour (flush_text)
                 base = y - lead + 2.6
                 # queued in the order of one call per cell, so the page's colour groups come out alike
