@@ -278,6 +278,7 @@ def _draw_cells(c, fontname: str, size: float, cells):
     tests/test_book.py checks this path against the public text-object path page by page.
     """
     from reportlab.pdfbase.pdfdoc import escapePDF
+    cells = list(cells)          # a table page's cells are made on demand (tablepages._CellGrid): once
     font = getFont(fontname)
     doc = c._doc
     tf = f"{size:.2f} Tf"

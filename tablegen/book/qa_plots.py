@@ -51,7 +51,7 @@ def _clip_segments(t, v, valid, ylo, yhi):
     """Split a polyline through the points (t, v) (a point not ``valid`` breaks it) into
     pieces inside ylo <= v <= yhi, cut exactly at the limits, so no coordinate far outside
     the plot reaches the PDF. Returns (t, v) arrays, one pair per piece. Every segment is
-    cut at once, with a point-for-point the arithmetic of a loop over segments."""
+    cut at once, each with the arithmetic a loop over the segments would do."""
     t0, t1, v0, v1 = t[:-1], t[1:], v[:-1], v[1:]
     dv = v1 - v0
     flat, up = dv == 0, dv > 0

@@ -208,17 +208,17 @@ class Polynomial:
         for j in range(2, 6):
             acc *= T3
             acc += G[j * w:(j + 1) * w]
-        F = np.multiply(G[8 * w:], np.log(T3[m:]))                     # h, s
+        F = np.multiply(G[8 * w:].reshape(2, m), np.log(T))             # ln T terms of h, s
         if self._has_neg:
             inv = np.divide(1.0, T3)
             E = np.multiply(G[6 * w:7 * w], inv)
             E += G[7 * w:8 * w]
             E *= inv
-            E[m:2 * m] += F[:m]
-            acc[2 * m:] += F[m:]
+            E[m:2 * m] += F[0]
+            acc[2 * m:] += F[1]
             acc += E
         else:
-            acc[2 * m:] += F[m:]
+            acc[2 * m:] += F[1]
         return {key: acc[_ROW[key] * m:(_ROW[key] + 1) * m] for key in want}
 
     def _evaluate_tiny(self, T: np.ndarray, want) -> dict[str, np.ndarray]:
