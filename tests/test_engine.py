@@ -50,9 +50,14 @@ def test_collapsed_mixture_equals_sum_of_species(y, T):
     cp = sum(yi * p["cp_molar"][0] for yi, p in zip(y, parts))
     h = sum(yi * p["h_molar"][0] for yi, p in zip(y, parts))
     s = sum(yi * (p["s0_molar"][0] - R_MOLAR * math.log(yi)) for yi, p in zip(y, parts))
-    assert pm["cp_molar"][0] == pytest.approx(cp, rel=1e-12)
-    assert pm["h_molar"][0] == pytest.approx(h, rel=1e-12, abs=1e-6)
-    assert pm["s0_molar"][0] == pytest.approx(s, rel=1e-12)
+    # one polynomial of summed coefficients against a sum of polynomials: two summation
+    # orders, which differ by up to about 1e5 eps where the published coefficients of the
+    # narrow intervals above 5000 K cancel (docs/data-curation.md; the bound of
+    # test_one_state_path_equals_array_path). 1e-12 was tighter: random draws near 5000 K failed it,
+    # on the engine of 2026-12-02 as on today's (cp 9e-13, s 1e-12 measured on both).
+    assert pm["cp_molar"][0] == pytest.approx(cp, rel=3e-11)
+    assert pm["h_molar"][0] == pytest.approx(h, rel=3e-11, abs=1e-6)
+    assert pm["s0_molar"][0] == pytest.approx(s, rel=3e-11)
 
 
 @settings(max_examples=30, deadline=None)
